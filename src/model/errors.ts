@@ -1,0 +1,90 @@
+/**
+ * The one error every model function throws for bad input.
+ *
+ * A model function never returns NaN or Infinity: it checks its arguments first and throws
+ * `ModelInputError`, whose message names the function, the parameter, its unit, the allowed
+ * range and the value received, e.g.
+ *
+ *   voidRadius: heightM = -1e-6 m is out of range; allowed > 0 m
+ */
+export class ModelInputError extends Error {
+  override readonly name = 'ModelInputError';
+  constructor(
+    readonly fn: string,
+    readonly param: string,
+    readonly unit: string,
+    readonly allowed: string,
+    readonly value: unknown,
+  ) {
+    super(`${fn}: ${param} = ${formatValue(value)}${unit ? ` ${unit}` : ''} is out of range; allowed ${allowed}`);
+  }
+}
+
+function formatValue(v: unknown): string {
+  if (typeof v === 'number') return Number.isNaN(v) ? 'NaN' : String(v);
+  if (typeof v === 'string') return JSON.stringify(v);
+  if (v === undefined) return 'undefined';
+  if (v === null) return 'null';
+  try {
+    return JSON.stringify(v) ?? String(v);
+  } catch {
+    return String(v);
+  }
+}
+
+export interface Range {
+  /** Inclusive lower bound unless `minExclusive`. */
+  min?: number;
+  max?: number;
+  minExclusive?: boolean;
+  maxExclusive?: boolean;
+  integer?: boolean;
+}
+
+function describe(r: Range, unit: string): string {
+  const u = unit ? ` ${unit}` : '';
+  const parts: string[] = [];
+  if (r.min !== undefined) parts.push(`${r.minExclusive ? '>' : '≥'} ${r.min}${u}`);
+  if (r.max !== undefined) parts.push(`${r.maxExclusive ? '<' : '≤'} ${r.max}${u}`);
+  const core = parts.length ? parts.join(' and ') : 'a finite number';
+  return r.integer ? `an integer ${core}` : core;
+}
+
+/**
+ * Checks that `value` is a finite number inside `range`; returns it, or throws ModelInputError.
+ *
+ * @example requireNumber('voidRadius', 'heightM', h, 'm', { min: 0, minExclusive: true })
+ */
+export function requireNumber(fn: string, param: string, value: unknown, unit: string, range: Range = {}): number {
+  const allowed = describe(range, unit);
+  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelInputError(fn, param, unit, allowed, value);
+  if (range.integer && !Number.isInteger(value)) throw new ModelInputError(fn, param, unit, allowed, value);
+  if (range.min !== undefined && (range.minExclusive ? value <= range.min : value < range.min))
+    throw new ModelInputError(fn, param, unit, allowed, value);
+  if (range.max !== undefined && (range.maxExclusive ? value >= range.max : value > range.max))
+    throw new ModelInputError(fn, param, unit, allowed, value);
+  return value;
+}
+
+/** A finite number > 0. */
+export const requirePositive = (fn: string, param: string, value: unknown, unit: string): number =>
+  requireNumber(fn, param, value, unit, { min: 0, minExclusive: true });
+
+/** A finite number ≥ 0. */
+export const requireNonNegative = (fn: string, param: string, value: unknown, unit: string): number =>
+  requireNumber(fn, param, value, unit, { min: 0 });
+
+/** Checks that `value` is one of `options`. */
+export function requireOneOf<T extends string>(fn: string, param: string, value: unknown, options: readonly T[]): T {
+  if (typeof value === 'string' && (options as readonly string[]).includes(value)) return value as T;
+  throw new ModelInputError(fn, param, '', `one of ${options.join(', ')}`, value);
+}
+
+/**
+ * Guards a result: a model function calls this on what it returns so that no NaN or Infinity
+ * ever leaves the model library, even through an overflow the argument checks did not foresee.
+ */
+export function finiteResult(fn: string, value: number, what = 'result'): number {
+  if (!Number.isFinite(value)) throw new ModelInputError(fn, what, '', 'a finite result (inputs overflowed)', value);
+  return value;
+}
