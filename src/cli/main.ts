@@ -1,0 +1,75 @@
+/**
+ * `voidcast <command> [options]` — the command-line face of the same engine the web app uses.
+ */
+import { fileURLToPath } from 'node:url';
+import { VERSION } from '../web/version.ts';
+import { serve } from './commands/serve.ts';
+import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
+
+/** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
+export const COMMANDS: Command[] = [serve];
+
+export function usage(): string {
+  const width = Math.max(...COMMANDS.map((c) => c.name.length));
+  return [
+    'usage: voidcast <command> [options]',
+    '',
+    'commands:',
+    ...COMMANDS.map((c) => `  ${c.name.padEnd(width)}  ${c.summary}`),
+    '',
+    'voidcast <command> --help   shows a command\'s options',
+    'voidcast --version          prints the version',
+  ].join('\n');
+}
+
+export async function main(argv: string[], io: CliIo): Promise<number> {
+  const [first, ...rest] = argv;
+  if (first === undefined || first === '--help' || first === '-h' || first === 'help') {
+    io.out(`${usage()}\n`);
+    return first === undefined ? EXIT.usage : EXIT.ok;
+  }
+  if (first === '--version' || first === '-v') {
+    io.out(`voidcast ${VERSION}\n`);
+    return EXIT.ok;
+  }
+  const cmd = COMMANDS.find((c) => c.name === first);
+  if (!cmd) {
+    io.err(`voidcast: unknown command "${first}"\n${usage()}\n`);
+    return EXIT.usage;
+  }
+  if (rest.includes('--help') || rest.includes('-h')) {
+    io.out(`usage: ${cmd.usage}\n`);
+    return EXIT.ok;
+  }
+  try {
+    return await cmd.run(rest, io);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.err(`voidcast ${cmd.name}: ${e.message}\nusage: ${cmd.usage}\n`);
+      return EXIT.usage;
+    }
+    const msg = e instanceof Error ? e.message : String(e);
+    io.err(`voidcast ${cmd.name}: ${msg}\n`);
+    return EXIT.failure;
+  }
+}
+
+export const processIo: CliIo = {
+  out: (t) => process.stdout.write(t),
+  err: (t) => process.stderr.write(t),
+  isTty: Boolean(process.stdout.isTTY),
+  env: process.env,
+  cwd: process.cwd(),
+};
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  main(process.argv.slice(2), processIo).then(
+    (code) => {
+      process.exitCode = code;
+    },
+    (e) => {
+      process.stderr.write(`voidcast: ${e instanceof Error ? e.message : String(e)}\n`);
+      process.exitCode = EXIT.failure;
+    },
+  );
+}

@@ -1,0 +1,70 @@
+/**
+ * The web application: one Hono app, routes in src/web/routes/, pages in views/.
+ * Reads like a table of contents: middleware, static assets, then one module per area.
+ */
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { Hono } from 'hono';
+import { logger } from 'hono/logger';
+import { MessagePage } from '../../views/pages/message.tsx';
+import type { AppContext } from './context.ts';
+import { renderPage } from './render.ts';
+import * as home from './routes/home.tsx';
+import * as health from './routes/health.ts';
+
+const require = createRequire(import.meta.url);
+const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
+const CSS = readFileSync(new URL('../../public/voidcast.css', import.meta.url));
+const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url));
+
+export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
+
+/** Route modules, one per area of the product. Later areas add themselves here. */
+const ROUTES: RouteModule[] = [home, health];
+
+export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
+  const app = new Hono();
+  app.use('*', logger((line: string) => ctx.log(line)));
+
+  const asset = (body: Buffer, type: string) => () =>
+    new Response(new Uint8Array(body), { headers: { 'content-type': type, 'cache-control': 'public, max-age=3600' } });
+  app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
+  app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
+  app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
+
+  for (const r of [...ROUTES, ...extraRoutes]) r.register(app, ctx);
+
+  app.notFound((c) =>
+    renderPage(
+      c,
+      ctx,
+      {
+        title: 'Not found',
+        active: '',
+        body: MessagePage({ code: '404', heading: 'Nothing here', detail: `There is no page at ${c.req.path}.` }),
+      },
+      404,
+    ),
+  );
+  app.onError((err, c) => {
+    // The stack goes to the log for the operator, never to the browser.
+    ctx.log(`ERROR ${c.req.method} ${c.req.path}: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
+    if (c.req.path.startsWith('/api/') || c.req.path === '/healthz')
+      return c.json({ error: 'internal error', detail: 'The server could not complete this request.' }, 500);
+    return renderPage(
+      c,
+      ctx,
+      {
+        title: 'Server error',
+        active: '',
+        body: MessagePage({
+          code: '500',
+          heading: 'Something went wrong on our side',
+          detail: 'The request could not be completed. The details are in the server log.',
+        }),
+      },
+      500,
+    );
+  });
+  return app;
+}

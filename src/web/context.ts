@@ -1,0 +1,10 @@
+import type { Db } from '../store/db.ts';
+
+/** What every route module receives. */
+export interface AppContext {
+  db: Db;
+  dataDir: string;
+  version: string;
+  /** Where log lines go (stdout in production, a buffer in tests). */
+  log: (line: string) => void;
+}

@@ -1,0 +1,30 @@
+/**
+ * Rendering helpers: a full page goes through the layout with a doctype (hono/jsx sends none);
+ * an htmx request for a fragment gets the fragment alone.
+ */
+import type { Context } from 'hono';
+import type { Child } from 'hono/jsx';
+import { Layout } from '../../views/layout.tsx';
+import type { AppContext } from './context.ts';
+
+export const DOCTYPE = '<!doctype html>';
+
+export function renderPage(
+  c: Context,
+  ctx: AppContext,
+  page: { title: string; active?: string; body: Child },
+  status: 200 | 400 | 404 | 409 | 413 | 422 | 500 = 200,
+): Response {
+  const html = DOCTYPE + String(Layout({ title: page.title, active: page.active ?? c.req.path, version: ctx.version, children: page.body }));
+  return c.html(html, status);
+}
+
+/** True when htmx asked for a fragment (not a boosted full-page navigation). */
+export function isFragmentRequest(c: Context): boolean {
+  return c.req.header('HX-Request') === 'true' && c.req.header('HX-Boosted') !== 'true';
+}
+
+/** A fragment, no layout. */
+export function renderFragment(c: Context, body: Child, status: 200 | 400 | 422 = 200): Response {
+  return c.html(String(body), status);
+}

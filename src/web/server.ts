@@ -1,0 +1,51 @@
+/** Starts the HTTP server on the loopback interface (by default) for a data directory. */
+import type { AddressInfo } from 'node:net';
+import { serve, type ServerType } from '@hono/node-server';
+import { openDataDir, type Db } from '../store/db.ts';
+import { createApp } from './app.ts';
+import type { AppContext } from './context.ts';
+import { VERSION } from './version.ts';
+
+export interface ServerOptions {
+  host: string;
+  port: number;
+  dataDir: string;
+  log?: (line: string) => void;
+  /** Runs after the database is open and migrated, before the server listens (e.g. the demo loader). */
+  beforeListen?: (db: Db) => Promise<void> | void;
+}
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  db: Db;
+  close: () => Promise<void>;
+}
+
+export async function startServer(opts: ServerOptions): Promise<RunningServer> {
+  const log = opts.log ?? ((line: string) => process.stdout.write(`${line}\n`));
+  const db = openDataDir(opts.dataDir);
+  if (opts.beforeListen) await opts.beforeListen(db);
+  const ctx: AppContext = { db, dataDir: opts.dataDir, version: VERSION, log };
+  const app = createApp(ctx);
+  const server: ServerType = await new Promise((resolve, reject) => {
+    const s = serve({ fetch: app.fetch, hostname: opts.host, port: opts.port }, () => resolve(s));
+    s.once('error', reject);
+  });
+  const port = (server.address() as AddressInfo).port;
+  const shownHost = opts.host.includes(':') ? `[${opts.host}]` : opts.host;
+  return {
+    url: `http://${shownHost}:${port}/`,
+    port,
+    db,
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.close(() => {
+          db.close();
+          resolve();
+        });
+        // Keep-alive sockets would hold close() open; end them.
+        (server as unknown as { closeAllConnections?: () => void }).closeAllConnections?.();
+      }),
+  };
+}

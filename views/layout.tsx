@@ -1,0 +1,67 @@
+/** The page frame every full page renders in: header, navigation, main, footer. */
+import type { Child } from 'hono/jsx';
+
+export interface NavItem {
+  href: string;
+  label: string;
+}
+
+/** The navigation, in the order a bonding engineer works: what waits to bond, then where risk comes from. */
+export const NAV: NavItem[] = [
+  { href: '/', label: 'Overview' },
+  { href: '/lots', label: 'Lots' },
+  { href: '/areas', label: 'Areas' },
+  { href: '/tools', label: 'Tools & cleans' },
+  { href: '/calculators', label: 'Calculators' },
+  { href: '/imports', label: 'Imports' },
+];
+
+export function Layout(props: { title: string; active?: string; children?: Child; version?: string }) {
+  const active = props.active ?? '';
+  return (
+    <html lang="en">
+      <head>
+        <meta charset="utf-8" />
+        <meta name="viewport" content="width=device-width, initial-scale=1" />
+        <title>{`${props.title} · voidcast`}</title>
+        <link rel="stylesheet" href="/assets/voidcast.css" />
+        <link rel="icon" href="/assets/favicon.svg" type="image/svg+xml" />
+        <script src="/assets/htmx.min.js" defer></script>
+      </head>
+      <body hx-boost="true">
+        <header class="vc-masthead">
+          <a class="vc-brand" href="/" aria-label="voidcast overview">
+            <svg class="vc-mark" viewBox="0 0 32 32" width="28" height="28" aria-hidden="true">
+              <circle cx="16" cy="16" r="14" fill="none" stroke="currentColor" stroke-width="2.5" />
+              <circle cx="16" cy="16" r="6" fill="none" stroke="currentColor" stroke-width="2" stroke-dasharray="3 2" />
+              <circle cx="16" cy="16" r="1.8" fill="currentColor" />
+            </svg>
+            <span>voidcast</span>
+          </a>
+          <nav class="vc-nav" aria-label="Main">
+            {NAV.map((n) => (
+              <a href={n.href} class={isActive(n.href, active) ? 'active' : undefined} aria-current={isActive(n.href, active) ? 'page' : undefined}>
+                {n.label}
+              </a>
+            ))}
+          </nav>
+        </header>
+        <main id="main" class="vc-main">
+          {props.children}
+        </main>
+        <footer class="vc-footer">
+          <p>
+            voidcast {props.version ?? ''} estimates particle and void risk. It does not replace the site's
+            contamination-control and equipment-safety procedures; re-clean calls go through authorised recipes and
+            qualified people.
+          </p>
+        </footer>
+      </body>
+    </html>
+  );
+}
+
+function isActive(href: string, active: string): boolean {
+  if (href === '/') return active === '/';
+  return active === href || active.startsWith(`${href}/`);
+}
