@@ -18,12 +18,14 @@ export const serve: Command = {
 
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
-  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)`,
+  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
+  --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)`,
   async run(argv, io) {
     const { values } = parseOptions(argv, {
       port: { type: 'string' },
       host: { type: 'string' },
       data: { type: 'string' },
+      empty: { type: 'boolean' },
     });
     const port =
       values.port !== undefined
@@ -34,6 +36,8 @@ export const serve: Command = {
     const host = values.host ?? DEFAULT_HOST;
     if (host.trim() === '') throw new UsageError('--host must not be empty');
     const dataDir = resolveDataDir(values.data, io);
+    const loadDemo = !(values.empty || io.env.VOIDCAST_EMPTY === '1');
+    void loadDemo; // the demo loader (src/cli/demo.ts) hooks in through startServer's beforeListen
     const server = await startServer({ host, port, dataDir, log: (l) => io.out(`${l}\n`) });
     io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
     await new Promise<void>((done) => {

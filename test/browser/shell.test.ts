@@ -1,0 +1,50 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromiumAvailable, launchBrowser, screenshotPath, startTestServer, type TestServer } from '../helpers/browser.ts';
+
+const run = chromiumAvailable();
+
+// Requires the Calculators page (src/web/routes/calculators.tsx) as the navigation target.
+
+describe.skipIf(!run)('the app shell in Chromium', () => {
+  let server: TestServer;
+  let browser: Awaited<ReturnType<typeof launchBrowser>>;
+
+  beforeAll(async () => {
+    server = await startTestServer({ args: ['--empty'], env: { VOIDCAST_EMPTY: '1' } });
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await server?.stop();
+  });
+
+  it('renders the overview, then follows a boosted navigation link without a full reload', async () => {
+    const page = await browser.context.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto(server.url);
+    expect(await page.locator('h1').textContent()).toBe('Line overview');
+    expect(await page.evaluate(() => document.doctype?.name)).toBe('html');
+    // htmx is loaded from our own server, not a CDN.
+    expect(await page.evaluate(() => typeof (window as unknown as { htmx?: unknown }).htmx)).toBe('object');
+    await page.evaluate(() => {
+      (window as unknown as { __marker: number }).__marker = 42;
+    });
+    await page.getByRole('link', { name: 'Calculators' }).click();
+    await page.waitForURL(/\/calculators$/);
+    expect(await page.locator('h1').textContent()).toContain('Calculators');
+    // hx-boost swapped the body in place: the window (and our marker) survived.
+    expect(await page.evaluate(() => (window as unknown as { __marker?: number }).__marker)).toBe(42);
+    expect(await page.locator('.vc-nav a.active').textContent()).toBe('Calculators');
+    await page.screenshot({ path: screenshotPath('shell-calculators'), fullPage: true });
+    expect(errors).toEqual([]);
+  });
+
+  it('shows its own 404 page without a stack trace', async () => {
+    const page = await browser.context.newPage();
+    const res = await page.goto(`${server.url}no/such/page`);
+    expect(res?.status()).toBe(404);
+    expect(await page.locator('h1').textContent()).toBe('Nothing here');
+    expect(await page.content()).not.toMatch(/at .*\.ts:\d+/);
+  });
+});
