@@ -27,5 +27,4 @@ export default defineConfig({
       },
     ],
   },
-  esbuild: { jsx: 'automatic', jsxImportSource: 'hono/jsx' },
 });

@@ -14,7 +14,7 @@ export function resolveDataDir(flag: string | undefined, io: CliIo): string {
 export const serve: Command = {
   name: 'serve',
   summary: 'run the web application',
-  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR]
+  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]
 
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
