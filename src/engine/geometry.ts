@@ -1,0 +1,148 @@
+/**
+ * Pair geometry: mapping the flipped top wafer into the bond frame, and the die grid.
+ *
+ * The bond frame is the bottom wafer's own frame (origin at the centre, x right, y up, notch down,
+ * seen from its device side). The top wafer is turned face-down onto it: flipping about its own y
+ * axis maps (x, y) → (−x, y), about its x axis (x, y) → (x, −y); then the pair's rotation
+ * (counter-clockwise, radians) and offset apply. A flip is a mirror, so a point and its image have
+ * the same distance from the centre and a second flip about the same axis returns it.
+ */
+import type { DieLayoutInput } from './types.ts';
+
+export interface Placement {
+  flipAxis: 'x' | 'y';
+  rotationRad: number;
+  offsetXM: number;
+  offsetYM: number;
+}
+
+/** Maps top-wafer coordinates (its own frame) into the bond frame; returns new arrays. */
+export function mirrorIntoBondFrame(
+  xM: Float64Array,
+  yM: Float64Array,
+  p: Placement,
+): { xM: Float64Array; yM: Float64Array } {
+  const n = xM.length;
+  const ox = new Float64Array(n);
+  const oy = new Float64Array(n);
+  const c = Math.cos(p.rotationRad);
+  const s = Math.sin(p.rotationRad);
+  const fx = p.flipAxis === 'y' ? -1 : 1;
+  const fy = p.flipAxis === 'x' ? -1 : 1;
+  for (let i = 0; i < n; i++) {
+    const x = fx * xM[i]!;
+    const y = fy * yM[i]!;
+    ox[i] = c * x - s * y + p.offsetXM;
+    oy[i] = s * x + c * y + p.offsetYM;
+  }
+  return { xM: ox, yM: oy };
+}
+
+/** The whole dies of a layout inside the usable radius (wafer radius − edge exclusion). */
+export interface DieGridIndex {
+  layout: DieLayoutInput;
+  /** Column and row range of the grid that can hold a die. */
+  colMin: number;
+  rowMin: number;
+  cols: number;
+  rows: number;
+  /** Die index in `dies` per (col − colMin) + (row − rowMin)·cols cell, −1 where no whole die fits. */
+  cell: Int32Array;
+  /** Per die: grid column, row and the lower-left corner of its critical rectangle (pad or die), m. */
+  dieCol: Int32Array;
+  dieRow: Int32Array;
+  critX0: Float64Array;
+  critY0: Float64Array;
+  /** Critical rectangle width and height, m (the pad array or the whole die). */
+  critW: number;
+  critH: number;
+  count: number;
+}
+
+/**
+ * Builds the die grid: a die is on the wafer when all four of its corners lie within
+ * usableRadiusM of the centre (common practice for "whole dies inside the edge exclusion").
+ */
+export function buildDieGrid(layout: DieLayoutInput, usableRadiusM: number): DieGridIndex {
+  const { widthM: w, heightM: h, pitchXM: px, pitchYM: py, originXM: x0, originYM: y0 } = layout;
+  const colMin = Math.floor((-usableRadiusM - x0) / px) - 1;
+  const colMax = Math.ceil((usableRadiusM - x0) / px) + 1;
+  const rowMin = Math.floor((-usableRadiusM - y0) / py) - 1;
+  const rowMax = Math.ceil((usableRadiusM - y0) / py) + 1;
+  const cols = colMax - colMin + 1;
+  const rows = rowMax - rowMin + 1;
+  const cell = new Int32Array(cols * rows).fill(-1);
+  const dc: number[] = [];
+  const dr: number[] = [];
+  const r2 = usableRadiusM * usableRadiusM;
+  const inside = (x: number, y: number) => x * x + y * y <= r2;
+  for (let j = rowMin; j <= rowMax; j++)
+    for (let i = colMin; i <= colMax; i++) {
+      const lx = x0 + i * px;
+      const ly = y0 + j * py;
+      if (inside(lx, ly) && inside(lx + w, ly) && inside(lx, ly + h) && inside(lx + w, ly + h)) {
+        cell[i - colMin + (j - rowMin) * cols] = dc.length;
+        dc.push(i);
+        dr.push(j);
+      }
+    }
+  const pad = layout.pad;
+  const count = dc.length;
+  const critX0 = new Float64Array(count);
+  const critY0 = new Float64Array(count);
+  for (let k = 0; k < count; k++) {
+    critX0[k] = x0 + dc[k]! * px + (pad ? pad.xM : 0);
+    critY0[k] = y0 + dr[k]! * py + (pad ? pad.yM : 0);
+  }
+  return {
+    layout,
+    colMin,
+    rowMin,
+    cols,
+    rows,
+    cell,
+    dieCol: Int32Array.from(dc),
+    dieRow: Int32Array.from(dr),
+    critX0,
+    critY0,
+    critW: pad ? pad.widthM : w,
+    critH: pad ? pad.heightM : h,
+    count,
+  };
+}
+
+/**
+ * Calls visit(dieIndex) for every die whose critical rectangle a disc of radius r at (x, y)
+ * reaches (distance from the centre to the rectangle ≤ r: touching counts, so a particle exactly
+ * on a die edge hits that die). Only the grid cells the disc's bounding box overlaps are examined
+ * (direct index ranges, no search over all dies).
+ */
+export function forEachDieHit(
+  g: DieGridIndex,
+  x: number,
+  y: number,
+  r: number,
+  visit: (die: number) => void,
+): void {
+  const { pitchXM: px, pitchYM: py, originXM: x0, originYM: y0, pad } = g.layout;
+  const offX = pad ? pad.xM : 0;
+  const offY = pad ? pad.yM : 0;
+  // A die (i, j) has its critical rectangle at [x0 + i·px + offX, … + critW]; it can be reached only
+  // if that interval meets [x − r, x + r]; one cell of margin each side absorbs rounding at exact
+  // edges, and the distance test below decides.
+  const iLo = Math.max(g.colMin, Math.ceil((x - r - x0 - offX - g.critW) / px) - 1);
+  const iHi = Math.min(g.colMin + g.cols - 1, Math.floor((x + r - x0 - offX) / px) + 1);
+  const jLo = Math.max(g.rowMin, Math.ceil((y - r - y0 - offY - g.critH) / py) - 1);
+  const jHi = Math.min(g.rowMin + g.rows - 1, Math.floor((y + r - y0 - offY) / py) + 1);
+  const r2 = r * r;
+  for (let j = jLo; j <= jHi; j++)
+    for (let i = iLo; i <= iHi; i++) {
+      const k = g.cell[i - g.colMin + (j - g.rowMin) * g.cols]!;
+      if (k < 0) continue;
+      const rx = g.critX0[k]!;
+      const ry = g.critY0[k]!;
+      const dx = x < rx ? rx - x : x > rx + g.critW ? x - rx - g.critW : 0;
+      const dy = y < ry ? ry - y : y > ry + g.critH ? y - ry - g.critH : 0;
+      if (dx * dx + dy * dy <= r2) visit(k);
+    }
+}
