@@ -1,0 +1,137 @@
+import { describe, expect, it } from 'vitest';
+import { segmentTrend, trend } from '../../../views/charts/trend.tsx';
+import { byClass, svgOf, textOf } from './svg-query.ts';
+
+const T0 = Date.UTC(2025, 2, 3, 0, 0);
+const MIN = 60_000;
+/** Samples every 15 min, with values v(i); indices in `skip` are missing. */
+function series(n: number, v: (i: number) => number | null, skip: number[] = []) {
+  return Array.from({ length: n }, (_, i) => i)
+    .filter((i) => !skip.includes(i))
+    .map((i) => ({ tMs: T0 + i * 15 * MIN, value: v(i) }));
+}
+
+describe('segmentTrend', () => {
+  it('breaks the line where samples are more than 3 × the median interval apart', () => {
+    const s = segmentTrend(series(20, () => 10, [8, 9, 10, 11]));
+    expect(s.gapMs).toBe(45 * MIN);
+    expect(s.segments.map((x) => x.length)).toEqual([8, 8]);
+    expect(s.gaps).toEqual([{ fromMs: T0 + 7 * 15 * MIN, toMs: T0 + 12 * 15 * MIN }]);
+  });
+
+  it('does not call a single missed sample (2 × the interval) a gap', () => {
+    expect(segmentTrend(series(20, () => 10, [5])).gaps).toEqual([]);
+  });
+
+  it('breaks the line at a sample without a usable value, and sorts by time', () => {
+    const pts = series(6, (i) => (i === 3 ? null : i)).reverse();
+    const s = segmentTrend(pts);
+    expect(s.segments.map((x) => x.map((p) => p.value))).toEqual([
+      [0, 1, 2],
+      [4, 5],
+    ]);
+  });
+
+  it('honours an explicit gap threshold', () => {
+    expect(
+      segmentTrend(
+        series(4, () => 1),
+        10 * MIN,
+      ).segments,
+    ).toHaveLength(4);
+  });
+});
+
+describe('trend', () => {
+  const pts = series(
+    96,
+    (i) => (i === 70 ? 300 : i === 20 ? 110 : 30),
+    [41, 42, 43, 44, 45, 46, 47, 48, 49, 50],
+  );
+  const chart = () =>
+    svgOf(
+      trend({
+        title: 'Bay 3 ≥ 0.5 µm',
+        channelLabel: '≥ 0.5 µm',
+        unit: 'particles/m³',
+        points: pts,
+        alert: 80,
+        action: 150,
+        classLimit: { value: 352, label: 'ISO 5 limit' },
+        yScale: 'linear',
+      }),
+    );
+
+  it('draws the alert, action and class-limit lines in order, each named, with distinct dashes', () => {
+    const svg = chart();
+    const levels = byClass(svg, 'vc-level');
+    expect(levels.map((l) => l.attrs['data-level'])).toEqual(['alert', 'action', 'class-limit']);
+    const ys = levels.map((l) => Number(l.children[0]!.attrs.y1));
+    // Screen y grows downward: a higher level sits higher.
+    expect(ys[0]!).toBeGreaterThan(ys[1]!);
+    expect(ys[1]!).toBeGreaterThan(ys[2]!);
+    expect(levels.map((l) => textOf(l))).toEqual(['alert 80', 'action 150', 'ISO 5 limit 352']);
+    const dashes = levels.map((l) => l.children[0]!.attrs['stroke-dasharray'] ?? 'solid');
+    expect(new Set(dashes).size).toBe(3);
+  });
+
+  it('shows the gap as a gap: two line segments and one shaded "no data" band', () => {
+    const svg = chart();
+    expect(byClass(svg, 'vc-trend-line')).toHaveLength(2);
+    const gaps = byClass(svg, 'vc-gap');
+    expect(gaps).toHaveLength(1);
+    expect(textOf(gaps[0]!)).toBe('no data');
+  });
+
+  it('marks samples above action with a triangle and above alert with a diamond', () => {
+    const svg = chart();
+    expect(byClass(svg, 'vc-point-action')).toHaveLength(1);
+    expect(byClass(svg, 'vc-point-alert')).toHaveLength(1);
+    expect(byClass(svg, 'vc-point')).toHaveLength(86);
+    expect(textOf(byClass(svg, 'vc-point-action')[0]!)).toContain('(above action)');
+  });
+
+  it('labels its time axis in UTC and its y axis with channel and unit', () => {
+    const svg = chart();
+    const x = svg.children.find((c) => c.attrs['data-axis'] === 'x')!;
+    expect(textOf(x)).toContain('sample start (UTC)');
+    expect(byClass(x, 'vc-tick').map(textOf)).toContain('06:00');
+    const y = svg.children.find((c) => c.attrs['data-axis'] === 'y')!;
+    expect(textOf(y)).toContain('≥ 0.5 µm (particles/m³)');
+  });
+
+  it('switches to a log axis when the class limit lies far above the data', () => {
+    const svg = svgOf(
+      trend({
+        title: 't',
+        channelLabel: '≥ 0.1 µm',
+        unit: 'particles/m³',
+        points: series(10, () => 20),
+        classLimit: { value: 100000, label: 'ISO 5' },
+      }),
+    );
+    const y = svg.children.find((c) => c.attrs['data-axis'] === 'y')!;
+    expect(byClass(y, 'vc-tick').map(textOf)).toContain('10⁵');
+  });
+
+  it('says so when the window has no samples', () => {
+    const svg = svgOf(
+      trend({ title: 't', channelLabel: 'c', unit: 'u', points: [], fromMs: T0, toMs: T0 + 3600_000 }),
+    );
+    expect(textOf(byClass(svg, 'vc-nodata')[0]!)).toBe('no samples in this window');
+    expect(byClass(svg, 'vc-trend-line')).toHaveLength(0);
+  });
+
+  it('escapes the class-limit label and title', () => {
+    const out = String(
+      trend({
+        title: '<x>',
+        channelLabel: '<c>',
+        unit: 'u',
+        points: series(3, () => 1),
+        classLimit: { value: 5, label: '<ISO>' },
+      }),
+    );
+    expect(out).not.toMatch(/<x>|<c>|<ISO>/);
+  });
+});

@@ -1,0 +1,276 @@
+/**
+ * trend — an airborne particle concentration per counter channel over time, with the alert and
+ * action levels and the ISO 14644-1 class limit as horizontal lines.
+ *
+ * Lines are told apart by dash pattern and name, not colour alone: alert dashed, action
+ * dash-dot, class limit solid and heavy. Samples above the action level are drawn as filled
+ * triangles, above the alert level as open diamonds, others as small dots. Missing data stays
+ * missing: where consecutive samples are further apart than the gap threshold (default three
+ * times the median sampling interval), the line breaks and the gap is shaded and labelled.
+ * A sample with a null value (a flagged or rejected sample) also breaks the line.
+ */
+import { scaleLinear, scaleLog, scaleUtc } from 'd3-scale';
+import { line } from 'd3-shape';
+import {
+  ChartSvg,
+  fmtNum,
+  fmtPow10,
+  fmtUtcTick,
+  innerBox,
+  linearTicks,
+  logTicks,
+  NoData,
+  r,
+  safeId,
+  XAxis,
+  YAxis,
+} from './svg.tsx';
+
+export interface TrendPoint {
+  /** Sample start, ms since the epoch (UTC). */
+  tMs: number;
+  /** Concentration in the chart's unit; null for a sample without a usable value. */
+  value: number | null;
+}
+
+export interface TrendInput {
+  title: string;
+  /** The channel, e.g. "≥ 0.5 µm". */
+  channelLabel: string;
+  /** The concentration unit shown, e.g. "particles/m³". */
+  unit: string;
+  points: TrendPoint[];
+  alert?: number | null;
+  action?: number | null;
+  classLimit?: { value: number; label: string } | null;
+  /** Gap threshold in ms; default 3 × the median interval between samples. */
+  gapMs?: number;
+  fromMs?: number;
+  toMs?: number;
+  yScale?: 'linear' | 'log' | 'auto';
+  id?: string;
+  width?: number;
+  height?: number;
+}
+
+export interface TrendSegmentation {
+  segments: TrendPoint[][];
+  gaps: { fromMs: number; toMs: number }[];
+  gapMs: number;
+}
+
+/** Splits samples into runs without gaps (the lines) and the gaps between them. */
+export function segmentTrend(points: TrendPoint[], gapMs?: number): TrendSegmentation {
+  const pts = points.filter((p) => Number.isFinite(p.tMs)).sort((a, b) => a.tMs - b.tMs);
+  const dts: number[] = [];
+  for (let i = 1; i < pts.length; i++) dts.push(pts[i]!.tMs - pts[i - 1]!.tMs);
+  const sorted = [...dts].sort((a, b) => a - b);
+  const median = sorted.length ? sorted[Math.floor((sorted.length - 1) / 2)]! : 0;
+  const gap = gapMs ?? (median > 0 ? 3 * median : Number.POSITIVE_INFINITY);
+  const segments: TrendPoint[][] = [];
+  const gaps: { fromMs: number; toMs: number }[] = [];
+  let cur: TrendPoint[] = [];
+  let lastGood: TrendPoint | null = null;
+  for (const p of pts) {
+    const usable = p.value !== null && Number.isFinite(p.value);
+    if (!usable) {
+      if (cur.length) segments.push(cur);
+      cur = [];
+      continue;
+    }
+    if (lastGood && p.tMs - lastGood.tMs > gap) {
+      if (cur.length) segments.push(cur);
+      cur = [];
+      gaps.push({ fromMs: lastGood.tMs, toMs: p.tMs });
+    }
+    cur.push(p);
+    lastGood = p;
+  }
+  if (cur.length) segments.push(cur);
+  return { segments, gaps, gapMs: gap };
+}
+
+export function trend(input: TrendInput) {
+  const id = safeId(input.id ?? `tr-${input.title}`);
+  const width = input.width ?? 640;
+  const height = input.height ?? 280;
+  const frame = { width, height, margin: { top: 14, right: 96, bottom: 46, left: 70 } };
+  const box = innerBox(frame);
+  const { segments, gaps } = segmentTrend(input.points, input.gapMs);
+  const values = segments.flat().map((p) => p.value as number);
+  const times = input.points.map((p) => p.tMs).filter(Number.isFinite);
+  const t0 = input.fromMs ?? (times.length ? Math.min(...times) : Date.UTC(2000, 0, 1));
+  const t1 = input.toMs ?? (times.length ? Math.max(...times) : t0 + 86_400_000);
+  const span = Math.max(t1 - t0, 60_000);
+  const x = scaleUtc()
+    .domain([new Date(t0), new Date(t0 + span)])
+    .range([box.x0, box.x1]);
+  const levels = [
+    input.alert != null
+      ? { kind: 'alert', value: input.alert, label: 'alert', dash: '6 4', colour: '#a8660b', w: 1.4 }
+      : null,
+    input.action != null
+      ? { kind: 'action', value: input.action, label: 'action', dash: '8 3 2 3', colour: '#b3261e', w: 1.6 }
+      : null,
+    input.classLimit
+      ? {
+          kind: 'class-limit',
+          value: input.classLimit.value,
+          label: input.classLimit.label,
+          dash: null,
+          colour: '#18202e',
+          w: 2.4,
+        }
+      : null,
+  ].filter((l): l is NonNullable<typeof l> => l !== null && Number.isFinite(l.value) && l.value > 0);
+  const vmax = Math.max(0, ...values, ...levels.map((l) => l.value));
+  const positives = values.filter((v) => v > 0);
+  const vminPos = positives.length ? Math.min(...positives) : vmax / 100;
+  const wantLog =
+    input.yScale === 'log' ||
+    (input.yScale !== 'linear' &&
+      vmax > 0 &&
+      (vmax / Math.max(Math.max(0, ...values), 1e-300) > 30 || vmax / vminPos > 300));
+  let yTicks: ReturnType<typeof linearTicks>;
+  let yOf: (v: number) => number;
+  let floorV = 0;
+  if (wantLog && vmax > 0) {
+    const top = 10 ** Math.ceil(Math.log10(vmax * 1.05));
+    floorV = Math.min(10 ** Math.floor(Math.log10(Math.max(vminPos, top * 1e-6))), top / 10);
+    const y = scaleLog().domain([floorV, top]).range([box.y1, box.y0]).clamp(true);
+    yOf = (v) => y(Math.max(v, floorV));
+    yTicks = logTicks([floorV, top], y, fmtPow10);
+  } else {
+    const y = scaleLinear()
+      .domain([0, vmax > 0 ? vmax * 1.08 : 1])
+      .nice(5)
+      .range([box.y1, box.y0]);
+    yOf = (v) => y(v);
+    yTicks = linearTicks(y.ticks(5), y, (v) => fmtNum(v));
+  }
+  const path = line<TrendPoint>()
+    .x((p) => x(new Date(p.tMs)))
+    .y((p) => yOf(p.value as number));
+  const classify = (v: number) =>
+    input.action != null && v > input.action
+      ? 'action'
+      : input.alert != null && v > input.alert
+        ? 'alert'
+        : 'ok';
+  const pts = segments.flat();
+  const nAction = pts.filter((p) => classify(p.value as number) === 'action').length;
+  const nAlert = pts.filter((p) => classify(p.value as number) === 'alert').length;
+  const xticks = x.ticks(6).map((d) => ({ at: x(d), label: fmtUtcTick(d.getTime(), span) }));
+  const desc =
+    `${input.channelLabel} concentration in ${input.unit}, ${pts.length} samples, ` +
+    `${nAction} above the action level, ${nAlert} between alert and action, ${gaps.length} gap${gaps.length === 1 ? '' : 's'} in the data` +
+    (wantLog ? `; log scale, values below ${fmtNum(floorV)} drawn on the floor` : '') +
+    '. Times in UTC.';
+  return (
+    <ChartSvg kind="trend" id={id} width={width} height={height} title={input.title} desc={desc}>
+      <defs>
+        <clipPath id={`${id}-plot`}>
+          <rect x={box.x0} y={box.y0 - 4} width={box.x1 - box.x0} height={box.y1 - box.y0 + 8} />
+        </clipPath>
+      </defs>
+      <g class="vc-gaps">
+        {gaps.map((g) => {
+          const a = x(new Date(g.fromMs));
+          const b = x(new Date(g.toMs));
+          return (
+            <g
+              class="vc-gap"
+              data-from={new Date(g.fromMs).toISOString()}
+              data-to={new Date(g.toMs).toISOString()}
+            >
+              <rect
+                x={r(a)}
+                y={box.y0}
+                width={r(Math.max(b - a, 1))}
+                height={box.y1 - box.y0}
+                fill="#f0eee8"
+              />
+              {b - a > 34 ? (
+                <text x={r((a + b) / 2)} y={box.y0 + 12} text-anchor="middle" font-style="italic">
+                  no data
+                </text>
+              ) : null}
+            </g>
+          );
+        })}
+      </g>
+      <YAxis
+        ticks={yTicks}
+        x={box.x0}
+        y0={box.y0}
+        y1={box.y1}
+        label={`${input.channelLabel} (${input.unit})`}
+        grid={box.x1}
+      />
+      <XAxis ticks={xticks} y={box.y1} x0={box.x0} x1={box.x1} label="sample start (UTC)" />
+      <g class="vc-levels">
+        {levels.map((l) => (
+          <g class={`vc-level vc-level-${l.kind}`} data-level={l.kind} data-value={l.value}>
+            <line
+              x1={box.x0}
+              x2={box.x1}
+              y1={r(yOf(l.value))}
+              y2={r(yOf(l.value))}
+              stroke={l.colour}
+              stroke-width={l.w}
+              stroke-dasharray={l.dash ?? undefined}
+            />
+            <text x={box.x1 + 5} y={r(yOf(l.value)) + 4} fill={l.colour}>
+              {`${l.label} ${fmtNum(l.value)}`}
+            </text>
+          </g>
+        ))}
+      </g>
+      {pts.length === 0 ? (
+        <NoData x={(box.x0 + box.x1) / 2} y={(box.y0 + box.y1) / 2} text="no samples in this window" />
+      ) : null}
+      <g class="vc-marks" clip-path={`url(#${id}-plot)`}>
+        {segments.map((s) => (
+          <path class="vc-trend-line" d={path(s) ?? ''} fill="none" stroke="#1f6f8b" stroke-width="1.3" />
+        ))}
+        {pts.map((p) => {
+          const px = r(x(new Date(p.tMs)));
+          const py = r(yOf(p.value as number));
+          const c = classify(p.value as number);
+          const tip = (
+            <title>{`${new Date(p.tMs).toISOString().slice(0, 16)}Z: ${fmtNum(p.value as number)} ${input.unit}${c === 'ok' ? '' : ` (above ${c})`}`}</title>
+          );
+          if (c === 'action')
+            return (
+              <path
+                class="vc-mark vc-point vc-point-action"
+                d={`M${px},${r(py - 5)} l4.5,8 h-9 Z`}
+                fill="#b3261e"
+                stroke="#18202e"
+                stroke-width="0.6"
+              >
+                {tip}
+              </path>
+            );
+          if (c === 'alert')
+            return (
+              <path
+                class="vc-mark vc-point vc-point-alert"
+                d={`M${px},${r(py - 4.5)} l4,4.5 l-4,4.5 l-4,-4.5 Z`}
+                fill="#fff"
+                stroke="#a8660b"
+                stroke-width="1.4"
+              >
+                {tip}
+              </path>
+            );
+          return (
+            <circle class="vc-mark vc-point" cx={px} cy={py} r="1.8" fill="#1f6f8b">
+              {tip}
+            </circle>
+          );
+        })}
+      </g>
+    </ChartSvg>
+  );
+}
