@@ -1,0 +1,370 @@
+/**
+ * Cleanroom air classification by particle concentration, ISO 14644-1:2015 (with the 1999
+ * edition's upper-confidence-limit rule as an option).
+ *
+ * Sizes are threshold diameters D in metres (the standard states them in µm; they are converted
+ * here, at the edge of the formula). Concentrations are particles per m³ of size ≥ D.
+ *
+ * Tags on facts: [V] checked against the published standard (ISO 14644-1:2015 Table 1, cells of
+ * classes 3, 5 and 7; the 52 m² → 10 and > 1000 m² steps of Table A.1; the 95 %/90 % basis of the
+ * location count; the 1999 UCL rule being dropped in 2015); [M] recalled from the standard, not
+ * re-verified here (other Table 1 cells, the intermediate steps of Table A.1, the minimum sample
+ * volume wording, the 1999 edition's t table); [D] derived from a stated formula.
+ */
+import { ModelInputError, requireNumber } from './errors.ts';
+
+const FN_LIMIT = 'isoClassLimit';
+const D_MIN_M = 0.1e-6;
+const D_MAX_M = 5e-6;
+
+function requireClass(fn: string, classN: unknown): number {
+  return requireNumber(fn, 'classN', classN, '', { min: 1, max: 9 });
+}
+function requireIsoSize(fn: string, param: string, d: unknown): number {
+  return requireNumber(fn, param, d, 'm', { min: D_MIN_M, max: D_MAX_M });
+}
+
+/**
+ * ISO 14644-1:2015 class limit: maximum permitted concentration of particles ≥ D.
+ *
+ *   C_n = 10^N · (0.1 / D)^2.08           (ISO 14644-1:2015 eq. (1)) [V]
+ *
+ * C_n particles per m³ of size ≥ D; N the ISO class number; D the threshold size in µm
+ * (this function takes metres and converts). Valid 0.1 µm ≤ D ≤ 5 µm and 1 ≤ N ≤ 9. The standard
+ * allows intermediate classes in steps of 0.1 (N = 1, 1.1, …, 9); this function accepts any value
+ * in [1, 9] and leaves the choice of step to the caller (bestClassAchieved uses 0.1).
+ * The value is unrounded; Table 1 rounds it (isoTable1Value, roundIsoLimit).
+ *
+ * @param classN ISO class N, 1–9
+ * @param diameterM threshold size D in m, 1e-7 – 5e-6 (0.1–5 µm)
+ * @returns C_n in particles per m³
+ * @throws ModelInputError when N or D is out of range or not finite
+ * @example isoClassLimit(5, 0.5e-6) // 3516.757… (Table 1 rounds it to 3520)
+ */
+export function isoClassLimit(classN: number, diameterM: number): number {
+  const n = requireClass(FN_LIMIT, classN);
+  const d = requireIsoSize(FN_LIMIT, 'diameterM', diameterM);
+  return 10 ** n * (D_MIN_M / d) ** 2.08;
+}
+
+/**
+ * Rounds a class limit the way ISO 14644-1:2015 Table 1 prints it: to a whole number with at
+ * most three significant figures [D — the rule reproduces every [V] cell: 237, 102, 35, 3520, 832,
+ * 352 000, 83 200, 2930].
+ *
+ *   v < 1000:  round to the nearest whole number (23.65 → 24, 236.5… → 237)
+ *   v ≥ 1000:  round to three significant figures (3516.76 → 3520, 83 176 → 83 200)
+ *
+ * @param valuePerM3 an unrounded limit, finite and ≥ 0
+ * @returns the rounded limit
+ * @throws ModelInputError when the value is negative or not finite
+ * @example roundIsoLimit(3516.757) // 3520
+ */
+export function roundIsoLimit(valuePerM3: number): number {
+  const v = requireNumber('roundIsoLimit', 'valuePerM3', valuePerM3, 'per m³', { min: 0 });
+  if (v < 1000) return Math.round(v);
+  const step = 10 ** (Math.floor(Math.log10(v)) - 2);
+  return Math.round(v / step) * step;
+}
+
+/** The six threshold sizes of ISO 14644-1:2015 Table 1, in metres. */
+export const ISO_TABLE1_SIZES_M: readonly number[] = [0.1e-6, 0.2e-6, 0.3e-6, 0.5e-6, 1e-6, 5e-6];
+
+/**
+ * A cell of ISO 14644-1:2015 Table 1: the rounded class limit, or null where the table says the
+ * classification is not applicable.
+ *
+ * The n/a pattern of the 2015 table, reproduced by three rules [D from the table; cells of classes
+ * 3, 5, 7 are [V], the others [M]]:
+ *   1. limit below 10 particles/m³ (class 1 at ≥ 0.2 µm, class 2 at ≥ 0.5 µm, class 3 at 1 µm, …):
+ *      too few particles for a statistically meaningful count;
+ *   2. D = 5 µm for classes 1–5 (the 1999 edition still printed class 5 at 5 µm = 29): sampling
+ *      losses of large particles at low concentration — the M descriptor (Annex C) covers them;
+ *   3. D < 0.5 µm for classes 7–9: concentrations so high that counters are in coincidence.
+ * Rule 2 and rule 3 are stated as the table's pattern; its footnotes give the reasons above [M].
+ * Only integer classes are tabulated in Table 1 (intermediate classes are in Table E.1, not
+ * reproduced here); use isoClassLimit and roundIsoLimit for those.
+ *
+ * @param classN integer 1–9
+ * @param diameterM one of ISO_TABLE1_SIZES_M (0.1, 0.2, 0.3, 0.5, 1, 5 µm), matched to 1e-9 relative
+ * @returns the Table 1 value in particles per m³, or null for a not-applicable cell
+ * @throws ModelInputError when classN is not an integer 1–9 or diameterM is not a Table 1 size
+ * @example isoTable1Value(5, 0.5e-6) // 3520;  isoTable1Value(7, 0.1e-6) // null
+ */
+export function isoTable1Value(classN: number, diameterM: number): number | null {
+  const fn = 'isoTable1Value';
+  const n = requireNumber(fn, 'classN', classN, '', { min: 1, max: 9, integer: true });
+  const d = requireIsoSize(fn, 'diameterM', diameterM);
+  if (!ISO_TABLE1_SIZES_M.some((s) => Math.abs(s - d) <= 1e-9 * s))
+    throw new ModelInputError(fn, 'diameterM', 'm', 'one of 1e-7, 2e-7, 3e-7, 5e-7, 1e-6, 5e-6 m', diameterM);
+  const exact = isoClassLimit(n, d);
+  if (exact < 10) return null;
+  if (d > 4e-6 && n <= 5) return null;
+  if (d < 0.45e-6 && n >= 7) return null;
+  return roundIsoLimit(exact);
+}
+
+/**
+ * Minimum single sample volume per location (ISO 14644-1:2015 A.4.4) [M].
+ *
+ *   V_s = (20 / C_n,m) × 1000   litres,  and at least 2 L (sampling time at least 1 min)
+ *
+ * C_n,m the class limit (per m³) at the largest considered size; 20 is the number of particles
+ * that would be counted if the concentration were at the class limit. In m³: V_s = 20 / C_n,m.
+ * voidcast uses the unrounded formula limit (ISO 5 at 0.5 µm: 20 / 3516.76 m³ = 5.69 L; the
+ * rounded 3520 would give 5.68 L). The 1-minute minimum time is the caller's to enforce.
+ *
+ * @param classN 1–9
+ * @param diameterM the largest considered size, 0.1–5 µm (in m)
+ * @returns V_s in m³ (≥ 0.002)
+ * @throws ModelInputError when N or D is out of range
+ * @example minimumSampleVolumeM3(5, 0.5e-6) // 0.005687 m³ = 5.69 L
+ */
+export function minimumSampleVolumeM3(classN: number, diameterM: number): number {
+  const fn = 'minimumSampleVolumeM3';
+  const n = requireClass(fn, classN);
+  const d = requireIsoSize(fn, 'diameterM', diameterM);
+  return Math.max(20 / isoClassLimit(n, d), 0.002);
+}
+
+/**
+ * ISO 14644-1:2015 Annex A Table A.1: minimum number of sampling locations for a cleanroom or
+ * clean zone of area A (m²), rows as [largest area of the row in m², locations]. A room whose area
+ * falls between two rows takes the next larger row. Basis: at least 95 % confidence that at least
+ * 90 % of the area does not exceed the class limit [V]. 52 m² → 10 and 1000 m² → 27 are [V]; the
+ * other steps are as recalled from the standard [M].
+ */
+export const ISO_TABLE_A1: readonly (readonly [areaM2: number, locations: number])[] = [
+  [2, 1],
+  [4, 2],
+  [6, 3],
+  [8, 4],
+  [10, 5],
+  [24, 6],
+  [28, 7],
+  [32, 8],
+  [36, 9],
+  [52, 10],
+  [56, 11],
+  [64, 12],
+  [68, 13],
+  [72, 14],
+  [76, 15],
+  [104, 16],
+  [108, 17],
+  [116, 18],
+  [148, 19],
+  [156, 20],
+  [192, 21],
+  [232, 22],
+  [276, 23],
+  [352, 24],
+  [436, 25],
+  [636, 26],
+  [1000, 27],
+];
+
+/**
+ * Minimum number of sampling locations N_L for classification (ISO 14644-1:2015 A.4.1).
+ *
+ *   A ≤ 1000 m²: the row of Table A.1 whose area is the smallest ≥ A
+ *   A > 1000 m²: N_L = ⌈27 × A / 1000⌉                                           [V]
+ *
+ * @param areaM2 floor area of the cleanroom or clean zone, m², > 0 and ≤ 1e7
+ * @returns the minimum number of locations (integer ≥ 1)
+ * @throws ModelInputError when areaM2 is not > 0, too large, or not finite
+ * @example samplingLocations(52) // 10;  samplingLocations(1500) // 41
+ */
+export function samplingLocations(areaM2: number): number {
+  const a = requireNumber('samplingLocations', 'areaM2', areaM2, 'm²', {
+    min: 0,
+    minExclusive: true,
+    max: 1e7,
+  });
+  for (const [maxArea, n] of ISO_TABLE_A1) if (a <= maxArea) return n;
+  // (27 × A) / 1000 rather than 27 × (A / 1000): exact for whole square metres, so that e.g.
+  // 2000 m² gives 54 and not a rounding-up to 55.
+  return Math.ceil((27 * a) / 1000);
+}
+
+/**
+ * One-sided Student t quantiles t_0.95 for m − 1 = 1 … 8 degrees of freedom, as in ISO 14644-1:1999
+ * Table C.1 [M]; equal to the 95 % quantile of Student's t to the printed figures (checked
+ * against jStat in the tests).
+ */
+export const ISO1999_T95: readonly number[] = [6.31, 2.92, 2.35, 2.13, 2.02, 1.94, 1.9, 1.86];
+
+/** Which pass rule to apply. */
+export type IsoEdition = 2015 | 1999;
+
+/** Input of bestClassAchieved (and, with classN, of classifyLocations). */
+export interface IsoLocationData {
+  /** Considered threshold sizes, m, strictly increasing, each 0.1–5 µm. */
+  sizesM: readonly number[];
+  /** Per location, per size: the location's mean concentration (particles ≥ size per m³). */
+  locationMeansPerM3: readonly (readonly number[])[];
+  /**
+   * 2015 (default): every location mean ≤ the limit at every considered size.
+   * 1999: that, and for 2–9 locations also the 95 % UCL of the mean of the location means
+   * (ISO 14644-1:1999 Annex C).
+   */
+  edition?: IsoEdition;
+}
+
+/** Input of classifyLocations: the data and the ISO class to test (1–9). */
+export interface IsoClassTest extends IsoLocationData {
+  classN: number;
+}
+
+/** Per-size outcome. */
+export interface IsoSizeResult {
+  diameterM: number;
+  /** The class limit at this size, rounded as Table 1 rounds it. */
+  limitPerM3: number;
+  /** Mean of the location means, particles per m³. */
+  meanOfMeansPerM3: number;
+  /** 95 % UCL of the mean of means (edition 1999 with 2–9 locations), else null. */
+  ucl95PerM3: number | null;
+  pass: boolean;
+}
+
+/** Result of a classification test. */
+export interface IsoClassification {
+  classN: number;
+  edition: IsoEdition;
+  pass: boolean;
+  sizes: IsoSizeResult[];
+  /** Per location: pass at every size, and pass per size (same order as sizesM). */
+  locations: { pass: boolean; passBySize: boolean[] }[];
+}
+
+function checkData(
+  fn: string,
+  data: IsoLocationData,
+): { sizes: number[]; means: number[][]; edition: IsoEdition } {
+  if (data === null || typeof data !== 'object') throw new ModelInputError(fn, 'data', '', 'an object', data);
+  const edition = data.edition ?? 2015;
+  if (edition !== 2015 && edition !== 1999)
+    throw new ModelInputError(fn, 'edition', '', 'one of 2015, 1999', edition);
+  if (!Array.isArray(data.sizesM) || data.sizesM.length === 0)
+    throw new ModelInputError(fn, 'sizesM', 'm', 'a non-empty array of sizes 0.1–5 µm', data.sizesM);
+  const sizes = data.sizesM.map((d, j) => requireIsoSize(fn, `sizesM[${j}]`, d));
+  for (let j = 1; j < sizes.length; j++)
+    if (!(sizes[j]! > sizes[j - 1]!))
+      throw new ModelInputError(
+        fn,
+        `sizesM[${j}]`,
+        'm',
+        `> sizesM[${j - 1}] = ${sizes[j - 1]} m (strictly increasing)`,
+        sizes[j],
+      );
+  const rows = data.locationMeansPerM3;
+  if (!Array.isArray(rows) || rows.length === 0)
+    throw new ModelInputError(fn, 'locationMeansPerM3', 'per m³', 'at least one location', rows);
+  const means = rows.map((row, i) => {
+    if (!Array.isArray(row) || row.length !== sizes.length)
+      throw new ModelInputError(
+        fn,
+        `locationMeansPerM3[${i}]`,
+        'per m³',
+        `an array of ${sizes.length} means`,
+        row,
+      );
+    return row.map((v, j) => requireNumber(fn, `locationMeansPerM3[${i}][${j}]`, v, 'per m³', { min: 0 }));
+  });
+  return { sizes, means, edition };
+}
+
+/**
+ * 95 % upper confidence limit of the mean of m location means (ISO 14644-1:1999 C.3) [M]:
+ *
+ *   UCL = M + t_0.95(m − 1) · s / √m,   M = Σ x_i / m,   s² = Σ (x_i − M)² / (m − 1)
+ *
+ * Defined for 2 ≤ m ≤ 9 (the 1999 edition applies it only then).
+ *
+ * @param locationMeansPerM3 2–9 location means, each ≥ 0, particles per m³
+ * @returns the UCL, particles per m³
+ * @throws ModelInputError for fewer than 2 or more than 9 means, or a negative / non-finite mean
+ * @example iso1999Ucl95([2000, 3000, 3300]) // 3914.2
+ */
+export function iso1999Ucl95(locationMeansPerM3: readonly number[]): number {
+  const fn = 'iso1999Ucl95';
+  if (!Array.isArray(locationMeansPerM3) || locationMeansPerM3.length < 2 || locationMeansPerM3.length > 9)
+    throw new ModelInputError(
+      fn,
+      'locationMeansPerM3',
+      'per m³',
+      'an array of 2–9 location means',
+      locationMeansPerM3,
+    );
+  const x = locationMeansPerM3.map((v, i) =>
+    requireNumber(fn, `locationMeansPerM3[${i}]`, v, 'per m³', { min: 0 }),
+  );
+  const m = x.length;
+  const mean = x.reduce((a, b) => a + b, 0) / m;
+  const s = Math.sqrt(x.reduce((a, b) => a + (b - mean) ** 2, 0) / (m - 1));
+  return mean + (ISO1999_T95[m - 2]! * s) / Math.sqrt(m);
+}
+
+function classify(
+  classN: number,
+  sizes: number[],
+  means: number[][],
+  edition: IsoEdition,
+): IsoClassification {
+  const m = means.length;
+  const sizeResults: IsoSizeResult[] = sizes.map((d, j) => {
+    const limit = roundIsoLimit(isoClassLimit(classN, d));
+    const column = means.map((row) => row[j]!);
+    const meanOfMeans = column.reduce((a, b) => a + b, 0) / m;
+    const ucl = edition === 1999 && m >= 2 && m <= 9 ? iso1999Ucl95(column) : null;
+    const pass = column.every((v) => v <= limit) && (ucl === null || ucl <= limit);
+    return { diameterM: d, limitPerM3: limit, meanOfMeansPerM3: meanOfMeans, ucl95PerM3: ucl, pass };
+  });
+  const locations = means.map((row) => {
+    const passBySize = row.map((v, j) => v <= sizeResults[j]!.limitPerM3);
+    return { pass: passBySize.every(Boolean), passBySize };
+  });
+  return { classN, edition, pass: sizeResults.every((s) => s.pass), sizes: sizeResults, locations };
+}
+
+/**
+ * Tests whether measured location means meet ISO class N at every considered size.
+ *
+ * 2015 rule (ISO 14644-1:2015 A.6.2) [M]: the area meets the class if the mean concentration at
+ * every sampling location is ≤ the class limit at every considered size. The limit compared with
+ * is the class limit rounded as in Table 1 (whole number, at most three significant figures).
+ * 1999 rule (optional, edition: 1999): additionally, with 2–9 locations, the 95 % UCL of the mean
+ * of the location means must be ≤ the limit (ISO 14644-1:1999 Annex C) [M]; the 2015 edition
+ * dropped this [V]. The 1999 edition's outlier provision is not implemented.
+ * Whether a cell is applicable in Table 1 is not checked here (see isoTable1Value).
+ *
+ * @param test sizes (m), location means (per m³) per location and size, the class N (1–9), edition
+ * @returns pass overall, per size (limit, mean of means, UCL) and per location
+ * @throws ModelInputError for bad sizes, a ragged or negative matrix, N out of range, unknown edition
+ * @example classifyLocations({ sizesM: [5e-7], locationMeansPerM3: [[2000], [3000], [3300]], classN: 5 }).pass // true
+ */
+export function classifyLocations(test: IsoClassTest): IsoClassification {
+  const fn = 'classifyLocations';
+  const { sizes, means, edition } = checkData(fn, test);
+  return classify(requireClass(fn, test.classN), sizes, means, edition);
+}
+
+/**
+ * The cleanest ISO class the data meet: the lowest N in steps of 0.1 from 1 to 9 for which
+ * classifyLocations passes (same rule and edition). Concentrations rise with N at every size, so
+ * the first passing N is the answer; null when even class 9 fails.
+ *
+ * @param data sizes (m), location means (per m³), edition
+ * @returns N with one decimal (1, 1.1, …, 9), or null
+ * @throws ModelInputError as classifyLocations
+ * @example bestClassAchieved({ sizesM: [5e-7], locationMeansPerM3: [[3520]] }) // 5
+ */
+export function bestClassAchieved(data: IsoLocationData): number | null {
+  const { sizes, means, edition } = checkData('bestClassAchieved', data);
+  for (let k = 10; k <= 90; k++) {
+    const n = k / 10;
+    if (classify(n, sizes, means, edition).pass) return n;
+  }
+  return null;
+}
