@@ -1,0 +1,61 @@
+/**
+ * Display formats for the pages: numbers with their intervals, areas, dies, times. SI values
+ * come in; the units a fab engineer reads (mm², %, h, UTC) go out. Display only.
+ */
+import { fmtNum, fmtPct } from '../charts/svg.tsx';
+
+export { fmtDiameter, fmtNum, fmtPct } from '../charts/svg.tsx';
+
+/** A figure with its interval: "4.1 (2.3–6.8)". */
+export interface EstimateLike {
+  value: number;
+  low: number;
+  high: number;
+  confidence: number;
+}
+
+export function fmtEstimate(
+  e: EstimateLike | null | undefined,
+  f: (v: number) => string = (v) => fmtNum(v),
+): string {
+  if (!e) return '—';
+  return `${f(e.value)} (${f(e.low)}–${f(e.high)})`;
+}
+
+/** Confidence as words: "95 % interval". */
+export function fmtConfidence(e: EstimateLike | null | undefined): string {
+  return e ? `${Math.round(e.confidence * 100)} % interval` : '';
+}
+
+/** An area in m² shown in mm² (below 1 cm²) or cm². */
+export function fmtAreaM2(a: number): string {
+  if (!Number.isFinite(a)) return '—';
+  if (a < 1e-4) return `${fmtNum(a * 1e6)} mm²`;
+  return `${fmtNum(a * 1e4)} cm²`;
+}
+
+/** A count of dies with one decimal below 10. */
+export function fmtDies(n: number): string {
+  if (!Number.isFinite(n)) return '—';
+  return n < 10 ? n.toFixed(n < 1 ? 2 : 1) : String(Math.round(n));
+}
+
+/** UTC time "2025-03-04 13:20 UTC". */
+export function fmtUtc(ms: number | null | undefined): string {
+  if (ms === null || ms === undefined || !Number.isFinite(ms)) return '—';
+  const iso = new Date(ms).toISOString();
+  return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+}
+
+/** A duration in seconds as "2.5 h" or "35 min". */
+export function fmtDurationS(s: number | null | undefined): string {
+  if (s === null || s === undefined || !Number.isFinite(s)) return '—';
+  if (s < 3600) return `${Math.round(s / 60)} min`;
+  if (s < 48 * 3600) return `${(s / 3600).toFixed(1)} h`;
+  return `${(s / 86400).toFixed(1)} d`;
+}
+
+/** A share 0…1 as a whole percentage. */
+export function fmtShare(f: number): string {
+  return fmtPct(f);
+}
