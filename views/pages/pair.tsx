@@ -332,7 +332,10 @@ export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cum
   if (tail.length === 1) head.push({ source: tail[0]!.s.label, counts: tail[0]!.s.counts });
   else if (tail.length > 1) {
     const pooled = new Array<number>(sp.centresM.length).fill(0);
-    for (const x of tail) x.s.counts.forEach((v, i) => (pooled[i]! += v));
+    for (const x of tail)
+      x.s.counts.forEach((v, i) => {
+        pooled[i]! += v;
+      });
     head.push({ source: `${tail.length} other sources`, counts: pooled });
   }
   const other = props.mode === 'per-bin' ? 'cumulative' : 'per-bin';
