@@ -33,14 +33,26 @@ export function Layout(props: { title: string; active?: string; children?: Child
           <a class="vc-brand" href="/" aria-label="voidcast overview">
             <svg class="vc-mark" viewBox="0 0 32 32" width="28" height="28" aria-hidden="true">
               <circle cx="16" cy="16" r="14" fill="none" stroke="currentColor" stroke-width="2.5" />
-              <circle cx="16" cy="16" r="6" fill="none" stroke="currentColor" stroke-width="2" stroke-dasharray="3 2" />
+              <circle
+                cx="16"
+                cy="16"
+                r="6"
+                fill="none"
+                stroke="currentColor"
+                stroke-width="2"
+                stroke-dasharray="3 2"
+              />
               <circle cx="16" cy="16" r="1.8" fill="currentColor" />
             </svg>
             <span>voidcast</span>
           </a>
           <nav class="vc-nav" aria-label="Main">
             {NAV.map((n) => (
-              <a href={n.href} class={isActive(n.href, active) ? 'active' : undefined} aria-current={isActive(n.href, active) ? 'page' : undefined}>
+              <a
+                href={n.href}
+                class={isActive(n.href, active) ? 'active' : undefined}
+                aria-current={isActive(n.href, active) ? 'page' : undefined}
+              >
                 {n.label}
               </a>
             ))}
@@ -52,8 +64,8 @@ export function Layout(props: { title: string; active?: string; children?: Child
         <footer class="vc-footer">
           <p>
             voidcast {props.version ?? ''} estimates particle and void risk. It does not replace the site's
-            contamination-control and equipment-safety procedures; re-clean calls go through authorised recipes and
-            qualified people.
+            contamination-control and equipment-safety procedures; re-clean calls go through authorised
+            recipes and qualified people.
           </p>
         </footer>
       </body>

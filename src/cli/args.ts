@@ -1,7 +1,7 @@
 /**
  * Option parsing for every command, on node:util parseArgs (strict: unknown options are errors).
  */
-import { parseArgs, type ParseArgsConfig } from 'node:util';
+import { type ParseArgsConfig, parseArgs } from 'node:util';
 import { UsageError } from './io.ts';
 
 export function parseOptions<T extends NonNullable<ParseArgsConfig['options']>>(
@@ -19,7 +19,8 @@ export function parseOptions<T extends NonNullable<ParseArgsConfig['options']>>(
 
 /** A port number from a flag or the environment. */
 export function parsePort(value: string, from: string): number {
-  if (!/^\d+$/.test(value)) throw new UsageError(`${from} must be a whole number from 0 to 65535, got "${value}"`);
+  if (!/^\d+$/.test(value))
+    throw new UsageError(`${from} must be a whole number from 0 to 65535, got "${value}"`);
   const n = Number(value);
   if (n > 65535) throw new UsageError(`${from} must be a whole number from 0 to 65535, got "${value}"`);
   return n;

@@ -2,12 +2,14 @@
  * `voidcast <command> [options]` — the command-line face of the same engine the web app uses.
  */
 import { fileURLToPath } from 'node:url';
+import { findCalculator } from '../engine/calculators.ts';
 import { VERSION } from '../web/version.ts';
+import { calc, calcUsage } from './commands/calc.ts';
 import { serve } from './commands/serve.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve];
+export const COMMANDS: Command[] = [serve, calc];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
@@ -17,7 +19,7 @@ export function usage(): string {
     'commands:',
     ...COMMANDS.map((c) => `  ${c.name.padEnd(width)}  ${c.summary}`),
     '',
-    'voidcast <command> --help   shows a command\'s options',
+    "voidcast <command> --help   shows a command's options",
     'voidcast --version          prints the version',
   ].join('\n');
 }
@@ -38,7 +40,8 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
     return EXIT.usage;
   }
   if (rest.includes('--help') || rest.includes('-h')) {
-    io.out(`usage: ${cmd.usage}\n`);
+    const calculator = cmd === calc && rest[0] ? findCalculator(rest[0]) : undefined;
+    io.out(`usage: ${calculator ? calcUsage(calculator) : cmd.usage}\n`);
     return EXIT.ok;
   }
   try {

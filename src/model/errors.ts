@@ -16,7 +16,9 @@ export class ModelInputError extends Error {
     readonly allowed: string,
     readonly value: unknown,
   ) {
-    super(`${fn}: ${param} = ${formatValue(value)}${unit ? ` ${unit}` : ''} is out of range; allowed ${allowed}`);
+    super(
+      `${fn}: ${param} = ${formatValue(value)}${unit ? ` ${unit}` : ''} is out of range; allowed ${allowed}`,
+    );
   }
 }
 
@@ -55,9 +57,16 @@ function describe(r: Range, unit: string): string {
  *
  * @example requireNumber('voidRadius', 'heightM', h, 'm', { min: 0, minExclusive: true })
  */
-export function requireNumber(fn: string, param: string, value: unknown, unit: string, range: Range = {}): number {
+export function requireNumber(
+  fn: string,
+  param: string,
+  value: unknown,
+  unit: string,
+  range: Range = {},
+): number {
   const allowed = describe(range, unit);
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelInputError(fn, param, unit, allowed, value);
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    throw new ModelInputError(fn, param, unit, allowed, value);
   if (range.integer && !Number.isInteger(value)) throw new ModelInputError(fn, param, unit, allowed, value);
   if (range.min !== undefined && (range.minExclusive ? value <= range.min : value < range.min))
     throw new ModelInputError(fn, param, unit, allowed, value);
@@ -75,7 +84,12 @@ export const requireNonNegative = (fn: string, param: string, value: unknown, un
   requireNumber(fn, param, value, unit, { min: 0 });
 
 /** Checks that `value` is one of `options`. */
-export function requireOneOf<T extends string>(fn: string, param: string, value: unknown, options: readonly T[]): T {
+export function requireOneOf<T extends string>(
+  fn: string,
+  param: string,
+  value: unknown,
+  options: readonly T[],
+): T {
   if (typeof value === 'string' && (options as readonly string[]).includes(value)) return value as T;
   throw new ModelInputError(fn, param, '', `one of ${options.join(', ')}`, value);
 }
@@ -85,6 +99,7 @@ export function requireOneOf<T extends string>(fn: string, param: string, value:
  * ever leaves the model library, even through an overflow the argument checks did not foresee.
  */
 export function finiteResult(fn: string, value: number, what = 'result'): number {
-  if (!Number.isFinite(value)) throw new ModelInputError(fn, what, '', 'a finite result (inputs overflowed)', value);
+  if (!Number.isFinite(value))
+    throw new ModelInputError(fn, what, '', 'a finite result (inputs overflowed)', value);
   return value;
 }

@@ -162,7 +162,10 @@ export function powerLawSpectrum(opts: {
   const n0 = requireNumber(fn, 'countAbove', opts.countAbove, 'count', { min: 0 });
   const d0 = requirePositive(fn, 'atDiameterM', opts.atDiameterM, 'm');
   const a = requireNumber(fn, 'slope', opts.slope, '', { min: 0, max: 10 });
-  const from = requireNumber(fn, 'fromM', opts.fromM, 'm', { min: SPECTRUM_MIN_DIAMETER_M, max: SPECTRUM_MAX_DIAMETER_M });
+  const from = requireNumber(fn, 'fromM', opts.fromM, 'm', {
+    min: SPECTRUM_MIN_DIAMETER_M,
+    max: SPECTRUM_MAX_DIAMETER_M,
+  });
   const to = requireNumber(fn, 'toM', opts.toM ?? SPECTRUM_MAX_DIAMETER_M, 'm', {
     min: from,
     max: SPECTRUM_MAX_DIAMETER_M,
@@ -174,7 +177,8 @@ export function powerLawSpectrum(opts: {
     const hi = Math.min(SPECTRUM_EDGES_M[i + 1]!, to);
     if (hi <= lo) continue;
     const v = cum(lo) - (hi >= SPECTRUM_MAX_DIAMETER_M && to >= SPECTRUM_MAX_DIAMETER_M ? cum(hi) : cum(hi));
-    if (!Number.isFinite(v)) throw new ModelInputError(fn, 'countAbove', 'count', 'a size that does not overflow', n0);
+    if (!Number.isFinite(v))
+      throw new ModelInputError(fn, 'countAbove', 'count', 'a size that does not overflow', n0);
     out[i] = Math.max(v, 0);
   }
   return out;

@@ -32,7 +32,9 @@ export function loadMigrations(dir: string = MIGRATIONS_DIR): Migration[] {
   out.sort((a, b) => a.version - b.version);
   for (let i = 1; i < out.length; i++)
     if (out[i]!.version === out[i - 1]!.version)
-      throw new Error(`two migrations share version ${out[i]!.version}: ${out[i - 1]!.name} and ${out[i]!.name}`);
+      throw new Error(
+        `two migrations share version ${out[i]!.version}: ${out[i - 1]!.name} and ${out[i]!.name}`,
+      );
   return out;
 }
 
@@ -54,9 +56,9 @@ export function appliedVersions(db: Db): number[] {
     name TEXT NOT NULL,
     applied_at TEXT NOT NULL
   )`);
-  return (db.prepare('SELECT version FROM schema_migrations ORDER BY version').all() as { version: number }[]).map(
-    (r) => r.version,
-  );
+  return (
+    db.prepare('SELECT version FROM schema_migrations ORDER BY version').all() as { version: number }[]
+  ).map((r) => r.version);
 }
 
 /**

@@ -9,8 +9,9 @@ import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
 import type { AppContext } from './context.ts';
 import { renderPage } from './render.ts';
-import * as home from './routes/home.tsx';
+import * as calculators from './routes/calculators.tsx';
 import * as health from './routes/health.ts';
+import * as home from './routes/home.tsx';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
@@ -20,14 +21,19 @@ const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
 
 /** Route modules, one per area of the product. Later areas add themselves here. */
-const ROUTES: RouteModule[] = [home, health];
+const ROUTES: RouteModule[] = [home, health, calculators];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();
-  app.use('*', logger((line: string) => ctx.log(line)));
+  app.use(
+    '*',
+    logger((line: string) => ctx.log(line)),
+  );
 
   const asset = (body: Buffer, type: string) => () =>
-    new Response(new Uint8Array(body), { headers: { 'content-type': type, 'cache-control': 'public, max-age=3600' } });
+    new Response(new Uint8Array(body), {
+      headers: { 'content-type': type, 'cache-control': 'public, max-age=3600' },
+    });
   app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
   app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
@@ -41,14 +47,20 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
       {
         title: 'Not found',
         active: '',
-        body: MessagePage({ code: '404', heading: 'Nothing here', detail: `There is no page at ${c.req.path}.` }),
+        body: MessagePage({
+          code: '404',
+          heading: 'Nothing here',
+          detail: `There is no page at ${c.req.path}.`,
+        }),
       },
       404,
     ),
   );
   app.onError((err, c) => {
     // The stack goes to the log for the operator, never to the browser.
-    ctx.log(`ERROR ${c.req.method} ${c.req.path}: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
+    ctx.log(
+      `ERROR ${c.req.method} ${c.req.path}: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`,
+    );
     if (c.req.path.startsWith('/api/') || c.req.path === '/healthz')
       return c.json({ error: 'internal error', detail: 'The server could not complete this request.' }, 500);
     return renderPage(

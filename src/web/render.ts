@@ -15,7 +15,16 @@ export function renderPage(
   page: { title: string; active?: string; body: Child },
   status: 200 | 400 | 404 | 409 | 413 | 422 | 500 = 200,
 ): Response {
-  const html = DOCTYPE + String(Layout({ title: page.title, active: page.active ?? c.req.path, version: ctx.version, children: page.body }));
+  const html =
+    DOCTYPE +
+    String(
+      Layout({
+        title: page.title,
+        active: page.active ?? c.req.path,
+        version: ctx.version,
+        children: page.body,
+      }),
+    );
   return c.html(html, status);
 }
 

@@ -1,7 +1,7 @@
 /** Starts the HTTP server on the loopback interface (by default) for a data directory. */
 import type { AddressInfo } from 'node:net';
-import { serve, type ServerType } from '@hono/node-server';
-import { openDataDir, type Db } from '../store/db.ts';
+import { type ServerType, serve } from '@hono/node-server';
+import { type Db, openDataDir } from '../store/db.ts';
 import { createApp } from './app.ts';
 import type { AppContext } from './context.ts';
 import { VERSION } from './version.ts';

@@ -1,5 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromiumAvailable, launchBrowser, screenshotPath, startTestServer, type TestServer } from '../helpers/browser.ts';
+import {
+  chromiumAvailable,
+  launchBrowser,
+  screenshotPath,
+  startTestServer,
+  type TestServer,
+} from '../helpers/browser.ts';
 
 const run = chromiumAvailable();
 

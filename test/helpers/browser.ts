@@ -19,8 +19,13 @@ export const SCREENSHOT_DIR = join(REPO_ROOT, 'test-results', 'screenshots');
 export function chromiumAvailable(): boolean {
   const ok = existsSync(CHROMIUM_PATH);
   if (!ok && process.env.CI === 'true')
-    throw new Error(`CI=true but Chromium is not at ${CHROMIUM_PATH}; .ci/run must install it (apt-get install -y chromium)`);
-  if (!ok) console.warn(`[browser tests skipped] Chromium not found at ${CHROMIUM_PATH}; install it with: apt-get install -y chromium`);
+    throw new Error(
+      `CI=true but Chromium is not at ${CHROMIUM_PATH}; .ci/run must install it (apt-get install -y chromium)`,
+    );
+  if (!ok)
+    console.warn(
+      `[browser tests skipped] Chromium not found at ${CHROMIUM_PATH}; install it with: apt-get install -y chromium`,
+    );
   return ok;
 }
 
@@ -41,8 +46,22 @@ export async function startTestServer(
   const dataDir = opts.dataDir ?? mkdtempSync(join(tmpdir(), 'voidcast-test-'));
   const child: ChildProcess = spawn(
     process.execPath,
-    ['--import', 'tsx', join(REPO_ROOT, 'src/cli/main.ts'), 'serve', '--port', '0', '--data', dataDir, ...(opts.args ?? [])],
-    { cwd: REPO_ROOT, env: { ...process.env, ...opts.env, NO_COLOR: '1' }, stdio: ['ignore', 'pipe', 'pipe'] },
+    [
+      '--import',
+      'tsx',
+      join(REPO_ROOT, 'src/cli/main.ts'),
+      'serve',
+      '--port',
+      '0',
+      '--data',
+      dataDir,
+      ...(opts.args ?? []),
+    ],
+    {
+      cwd: REPO_ROOT,
+      env: { ...process.env, ...opts.env, NO_COLOR: '1' },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    },
   );
   let out = '';
   child.stdout?.on('data', (b: Buffer) => {

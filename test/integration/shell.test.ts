@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { openDatabase, migrate } from '../../src/store/db.ts';
+import { migrate, openDatabase } from '../../src/store/db.ts';
 import { createApp } from '../../src/web/app.ts';
 
 function app() {
@@ -17,7 +17,8 @@ describe('web shell', () => {
     expect(res.status).toBe(200);
     const html = await res.text();
     expect(html.startsWith('<!doctype html>')).toBe(true);
-    for (const label of ['Lots', 'Areas', 'Tools &amp; cleans', 'Calculators', 'Imports']) expect(html).toContain(`>${label}</a>`);
+    for (const label of ['Lots', 'Areas', 'Tools &amp; cleans', 'Calculators', 'Imports'])
+      expect(html).toContain(`>${label}</a>`);
     expect(html).toContain('<script src="/assets/htmx.min.js"');
     expect(html).not.toMatch(/unpkg|jsdelivr|cdn/i);
   });

@@ -15,7 +15,8 @@ export function HomePage(props: { counts: HomeCounts; dataDir: string }) {
     <section>
       <h1>Line overview</h1>
       <p class="vc-lede">
-        Particles at the bond interface, followed from the air, the tools and the cleans to the voids they will leave.
+        Particles at the bond interface, followed from the air, the tools and the cleans to the voids they
+        will leave.
       </p>
       <div class="vc-tiles">
         <Tile label="Lots" value={c.lots} href="/lots" />
@@ -27,8 +28,8 @@ export function HomePage(props: { counts: HomeCounts; dataDir: string }) {
       </div>
       {empty ? (
         <p class="vc-note">
-          This database is empty. Load files on the <a href="/imports">Imports</a> page, or restart with the demo line
-          (<code>npm start</code> loads it on first start).
+          This database is empty. Load files on the <a href="/imports">Imports</a> page, or restart with the
+          demo line (<code>npm start</code> loads it on first start).
         </p>
       ) : null}
       <p class="vc-small">Data directory: {props.dataDir}</p>

@@ -21,6 +21,10 @@ export function register(app: Hono, ctx: AppContext): void {
       scans: countRows(ctx.db, 'scans'),
       imports: countRows(ctx.db, 'imports'),
     };
-    return renderPage(c, ctx, { title: 'Overview', active: '/', body: HomePage({ counts, dataDir: ctx.dataDir }) });
+    return renderPage(c, ctx, {
+      title: 'Overview',
+      active: '/',
+      body: HomePage({ counts, dataDir: ctx.dataDir }),
+    });
   });
 }

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { main } from '../../../src/cli/main.ts';
 import type { CliIo } from '../../../src/cli/io.ts';
+import { main } from '../../../src/cli/main.ts';
 
 function io() {
   let out = '';
@@ -42,11 +42,15 @@ describe('voidcast CLI', () => {
   it('a bad port exits 2 naming the rule', async () => {
     const t = io();
     expect(await main(['serve', '--port', 'eighty'], t.io)).toBe(2);
-    expect(t.err().split('\n')[0]).toBe('voidcast serve: --port must be a whole number from 0 to 65535, got "eighty"');
+    expect(t.err().split('\n')[0]).toBe(
+      'voidcast serve: --port must be a whole number from 0 to 65535, got "eighty"',
+    );
     const t2 = io();
     t2.io.env = { PORT: '70000' };
     expect(await main(['serve'], t2.io)).toBe(2);
-    expect(t2.err().split('\n')[0]).toBe('voidcast serve: PORT must be a whole number from 0 to 65535, got "70000"');
+    expect(t2.err().split('\n')[0]).toBe(
+      'voidcast serve: PORT must be a whole number from 0 to 65535, got "70000"',
+    );
   });
 
   it('no command at all prints the usage and exits 2', async () => {

@@ -2,7 +2,13 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
-import { appliedVersions, loadMigrations, migrate, openDatabase, openDataDir } from '../../../src/store/db.ts';
+import {
+  appliedVersions,
+  loadMigrations,
+  migrate,
+  openDatabase,
+  openDataDir,
+} from '../../../src/store/db.ts';
 
 const dirs: string[] = [];
 function tempDir(): string {
@@ -37,7 +43,11 @@ describe('migrations', () => {
     // Build the database as the first release left it: only migration 0001, with a row in it.
     const old = openDatabase(file);
     migrate(old, { upTo: 1 });
-    old.prepare("INSERT INTO settings (key, value, updated_at) VALUES ('operator-note', 'kept', '2026-01-01T00:00:00Z')").run();
+    old
+      .prepare(
+        "INSERT INTO settings (key, value, updated_at) VALUES ('operator-note', 'kept', '2026-01-01T00:00:00Z')",
+      )
+      .run();
     expect(appliedVersions(old)).toEqual([1]);
     old.close();
 
@@ -45,7 +55,9 @@ describe('migrations', () => {
     const applied = migrate(db);
     expect(applied).toEqual(all.filter((m) => m.version > 1).map((m) => m.version));
     expect(appliedVersions(db)).toEqual(all.map((m) => m.version));
-    expect(db.prepare("SELECT value FROM settings WHERE key = 'operator-note'").get()).toEqual({ value: 'kept' });
+    expect(db.prepare("SELECT value FROM settings WHERE key = 'operator-note'").get()).toEqual({
+      value: 'kept',
+    });
     // A second start applies nothing.
     expect(migrate(db)).toEqual([]);
     db.close();
