@@ -187,7 +187,8 @@ export function csrfDeferred(c: Context): boolean {
   return c.get('csrfDeferred') === true;
 }
 
-function forbidden(c: Context, version: string, detail: string): Response {
+/** The 403 answer: the message alone for an htmx request, else a full page. */
+export function forbidden(c: Context, version: string, detail: string): Response {
   const message = MessagePage({ code: '403', heading: 'This request was refused', detail });
   // An htmx request gets the message alone; the page's own rule decides whether a 403 is swapped in.
   if (isFragmentRequest(c)) return c.html(String(message), 403);

@@ -26,7 +26,7 @@ export const UPLOAD_LIMIT_ENV = 'VOIDCAST_UPLOAD_LIMIT';
 /** Why an upload was refused: `too-large` → 413, the others → 400. */
 export class UploadError extends Error {
   constructor(
-    readonly code: 'too-large' | 'malformed' | 'not-multipart' | 'refused',
+    readonly code: 'too-large' | 'malformed' | 'not-multipart' | 'refused' | 'forbidden',
     message: string,
   ) {
     super(message);

@@ -28,7 +28,7 @@ export interface ImportFormProps {
 }
 
 /** Status codes whose bodies explain a refusal and are swapped into #import-job. */
-export const SWAPPED_ERROR_CODES = [400, 403, 413, 422] as const;
+export const SWAPPED_ERROR_CODES = [400, 403, 404, 413, 422] as const;
 
 /** htmx attributes of the swap target #import-job: swap the explanatory 4xx responses. */
 export const importTargetAttrs: Record<string, string> = {

@@ -61,7 +61,9 @@ export function ImportHistory(props: { rows: HistoryRowView[]; total: number; oo
                   <td>
                     <time datetime={r.importedAt}>{shortUtc(r.importedAt)}</time>
                   </td>
-                  <td class="vc-filename">{r.file}</td>
+                  <td class="vc-filename">
+                    <a href={`/imports/history/${r.id}`}>{r.file}</a>
+                  </td>
                   <td>{r.kind}</td>
                   <td>
                     <code title={r.sha256}>{r.sha256.slice(0, 12)}</code>

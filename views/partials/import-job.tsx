@@ -3,7 +3,7 @@
  * replaces it with the next state; without script a refresh every 2 s does); once finished, the
  * validation report of every file. The same partial serves the full page and the htmx swap.
  */
-import { ImportReport, type ReportView } from './import-report.tsx';
+import { ImportReport, jobIssueLinks, type ReportView } from './import-report.tsx';
 
 export interface JobFileView {
   name: string;
@@ -114,7 +114,7 @@ export function ImportJob(props: { job: JobView; page?: { file: number; page: nu
           <ImportReport
             report={f.report}
             index={i}
-            jobId={job.id}
+            links={jobIssueLinks(job.id, i)}
             page={props.page && props.page.file === i ? props.page.page : 1}
           />
         ) : (

@@ -44,7 +44,24 @@ export function StatusBadge(props: { status: ReportView['status'] }) {
 
 const n = (v: number) => v.toLocaleString('en-US');
 
-export function ImportReport(props: { report: ReportView; index: number; jobId: string; page?: number }) {
+/** Where page `p` of a report's rejected rows is: a full page (href) and the table alone (hx-get). */
+export type IssuePageLink = (page: number) => { href: string; hxGet: string };
+
+/** The page links of a job's file `index`. */
+export function jobIssueLinks(jobId: string, index: number): IssuePageLink {
+  const base = `/imports/jobs/${encodeURIComponent(jobId)}`;
+  return (p) => ({
+    href: `${base}?file=${index}&page=${p}#issues-${index}`,
+    hxGet: `${base}/files/${index}/issues?page=${p}`,
+  });
+}
+
+export function ImportReport(props: {
+  report: ReportView;
+  index: number;
+  links: IssuePageLink;
+  page?: number;
+}) {
   const r = props.report;
   return (
     <article class="vc-report" id={`report-${props.index}`} aria-labelledby={`report-${props.index}-title`}>
@@ -112,7 +129,7 @@ export function ImportReport(props: { report: ReportView; index: number; jobId: 
         </>
       ) : null}
       {r.issues.length > 0 ? (
-        <ImportIssues issues={r.issues} index={props.index} jobId={props.jobId} page={props.page ?? 1} />
+        <ImportIssues issues={r.issues} index={props.index} links={props.links} page={props.page ?? 1} />
       ) : null}
     </article>
   );
@@ -125,7 +142,7 @@ export function ImportReport(props: { report: ReportView; index: number; jobId: 
 export function ImportIssues(props: {
   issues: ReportView['issues'];
   index: number;
-  jobId: string;
+  links: IssuePageLink;
   page: number;
 }) {
   const total = props.issues.length;
@@ -135,11 +152,11 @@ export function ImportIssues(props: {
   const shown = props.issues.slice(from, from + ISSUES_PER_PAGE);
   const id = `issues-${props.index}`;
   const link = (p: number, label: string) => {
-    const base = `/imports/jobs/${encodeURIComponent(props.jobId)}`;
+    const to = props.links(p);
     return (
       <a
-        href={`${base}?file=${props.index}&page=${p}#${id}`}
-        hx-get={`${base}/files/${props.index}/issues?page=${p}`}
+        href={to.href}
+        hx-get={to.hxGet}
         hx-target={`#${id}`}
         hx-swap="outerHTML"
         rel={label === 'Next' ? 'next' : label === 'Previous' ? 'prev' : undefined}
