@@ -1,0 +1,18 @@
+/**
+ * The registry of import kinds. Each kind lives in its own file (`./<kind>.ts`) and is listed here
+ * once; `importFile` finds it by name. To add a kind: import it below and add it to KINDS.
+ */
+import type { ImportKind, ImportKindName } from '../types.ts';
+import { locations } from './locations.ts';
+// — kinds of the ingest core above; further kinds below, one import line each —
+
+export const KINDS: readonly ImportKind[] = [
+  locations,
+  // — further kinds below, one line each —
+];
+
+export function getKind(name: string): ImportKind | undefined {
+  return KINDS.find((k) => k.name === name);
+}
+
+export type { ImportKindName };
