@@ -1,0 +1,124 @@
+/**
+ * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools}.png,
+ * from a running voidcast server with the demo line.
+ *
+ *   npm run screenshots                         start a demo server in a temporary data directory
+ *   npm run screenshots -- --url http://127.0.0.1:4180/   use a server that is already running
+ *
+ * The lot shown is the first lot waiting to bond whose call is re-clean (else hold, else any);
+ * the pair shown is that lot's first pair with the same call, so the tour shows a call with its
+ * reasons, the caution and the modelled re-clean. Needs Debian's Chromium (/usr/bin/chromium or
+ * $VOIDCAST_CHROMIUM).
+ */
+import { type ChildProcess, spawn } from 'node:child_process';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { parseArgs } from 'node:util';
+import { chromium, type Page } from 'playwright-core';
+
+const ROOT = resolve(import.meta.dirname, '..');
+const OUT = join(ROOT, 'docs', 'screenshots');
+const CHROMIUM = process.env.VOIDCAST_CHROMIUM ?? '/usr/bin/chromium';
+
+async function startDemoServer(): Promise<{ url: string; stop: () => Promise<void> }> {
+  const dataDir = mkdtempSync(join(tmpdir(), 'voidcast-shots-'));
+  const child: ChildProcess = spawn(
+    process.execPath,
+    ['--import', 'tsx', join(ROOT, 'src/cli/main.ts'), 'serve', '--port', '0', '--data', dataDir],
+    { cwd: ROOT, env: { ...process.env, NO_COLOR: '1' }, stdio: ['ignore', 'pipe', 'pipe'] },
+  );
+  let out = '';
+  child.stderr?.on('data', (b: Buffer) => {
+    out += b.toString();
+  });
+  const url = await new Promise<string>((ok, fail) => {
+    const timer = setTimeout(
+      () => fail(new Error(`the demo server did not start within 180 s:\n${out}`)),
+      180_000,
+    );
+    child.stdout?.on('data', (b: Buffer) => {
+      out += b.toString();
+      const m = /running at (http:\/\/127\.0\.0\.1:\d+\/)/.exec(out);
+      if (m) {
+        clearTimeout(timer);
+        ok(m[1]!);
+      }
+    });
+    child.once('exit', (code) => {
+      clearTimeout(timer);
+      fail(new Error(`the demo server exited with ${code}:\n${out}`));
+    });
+  });
+  return {
+    url,
+    stop: async () => {
+      if (child.exitCode === null) {
+        const exited = new Promise((r) => child.once('exit', r));
+        child.kill('SIGTERM');
+        await exited;
+      }
+      rmSync(dataDir, { recursive: true, force: true });
+    },
+  };
+}
+
+/** The href of the first row link in `table` whose row shows `call`, trying the calls in order. */
+async function pickLink(page: Page, rowSelector: string, calls: string[]): Promise<string | null> {
+  for (const call of [...calls, '']) {
+    const sel = call ? `${rowSelector}:has([data-call="${call}"]) a` : `${rowSelector} a`;
+    const href = await page
+      .locator(sel)
+      .first()
+      .getAttribute('href', { timeout: 2000 })
+      .catch(() => null);
+    if (href) return href;
+  }
+  return null;
+}
+
+async function shoot(page: Page, url: string, name: string): Promise<void> {
+  const res = await page.goto(url, { waitUntil: 'networkidle' });
+  if (!res || res.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
+  const file = join(OUT, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: true });
+  console.log(`wrote ${file}`);
+}
+
+async function main(): Promise<number> {
+  const { values } = parseArgs({ options: { url: { type: 'string' } } });
+  mkdirSync(OUT, { recursive: true });
+  const server = values.url
+    ? { url: values.url.endsWith('/') ? values.url : `${values.url}/`, stop: async () => {} }
+    : await startDemoServer();
+  const browser = await chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu'],
+  });
+  try {
+    const page = await browser.newPage({ viewport: { width: 1360, height: 900 }, deviceScaleFactor: 1 });
+    await shoot(page, server.url, 'overview');
+    await page.goto(new URL('lots', server.url).href);
+    const lot = await pickLink(page, 'table[data-table="waiting"] tbody tr', ['re-clean', 'hold']);
+    if (!lot) throw new Error('no lot on /lots: is the demo line loaded?');
+    await shoot(page, new URL(lot, server.url).href, 'lot');
+    const pair = await pickLink(page, 'table.vc-pair-table tbody tr', ['re-clean', 'hold']);
+    if (!pair) throw new Error(`no pair on ${lot}`);
+    await shoot(page, new URL(pair, server.url).href, 'pair');
+    await shoot(page, new URL('areas', server.url).href, 'areas');
+    await shoot(page, new URL('tools', server.url).href, 'tools');
+    return 0;
+  } finally {
+    await browser.close();
+    await server.stop();
+  }
+}
+
+main().then(
+  (code) => process.exit(code),
+  (err: unknown) => {
+    console.error(err instanceof Error ? err.message : String(err));
+    process.exit(1);
+  },
+);
