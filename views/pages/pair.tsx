@@ -52,7 +52,7 @@ export interface PairPageProps {
   edgeExclusionM: number;
   paretoBy: ParetoBy;
   spectrumMode: 'per-bin' | 'cumulative';
-  signoff: Omit<SignoffProps, 'pairId' | 'inputsHash' | 'proposedCall'>;
+  signoff: Omit<SignoffProps, 'pairId' | 'inputsHash' | 'proposedCall' | 'asOfMs'>;
 }
 
 const MAX_SPECTRUM_SERIES = 7;
@@ -204,7 +204,13 @@ export function PairPage(props: PairPageProps) {
       </div>
       <Notes a={a} />
 
-      <SignoffPanel {...props.signoff} pairId={a.pairId} inputsHash={a.inputsHash} proposedCall={a.call} />
+      <SignoffPanel
+        {...props.signoff}
+        pairId={a.pairId}
+        inputsHash={a.inputsHash}
+        asOfMs={a.asOfMs}
+        proposedCall={a.call}
+      />
 
       <p class="vc-small vc-provenance">
         Model {a.modelVersion} · spec {a.specVersion} · {a.draws} Monte Carlo draws, seed {a.seed} ·

@@ -31,6 +31,8 @@ export interface SignoffValues {
 export interface SignoffProps {
   pairId: string;
   inputsHash: string;
+  /** Assessment time of the figures shown, UTC ms: the sign-off re-assesses at this time. */
+  asOfMs: number;
   proposedCall: CallName;
   csrfToken: string;
   records: SignoffRecordLike[];
@@ -78,6 +80,7 @@ export function SignoffPanel(props: SignoffProps) {
       >
         <input type="hidden" name="_csrf" value={props.csrfToken} />
         <input type="hidden" name="inputsHash" value={props.inputsHash} />
+        <input type="hidden" name="asOfMs" value={String(props.asOfMs)} />
         <label for="signoff-name">Name</label>
         <input
           id="signoff-name"
