@@ -1,0 +1,33 @@
+/** Plain-words number formatting for reasons and the terminal table (SI in, display units out). */
+
+export function fmtCount(x: number): string {
+  if (x === 0) return '0';
+  if (Math.abs(x) >= 100) return x.toFixed(0);
+  if (Math.abs(x) >= 10) return x.toFixed(1);
+  if (Math.abs(x) >= 0.01) return x.toFixed(2);
+  return x.toExponential(1);
+}
+
+export function fmtPercent(fraction: number): string {
+  const p = fraction * 100;
+  if (p === 0) return '0 %';
+  if (p >= 10) return `${p.toFixed(1)} %`;
+  if (p >= 0.01) return `${p.toFixed(2)} %`;
+  return `${p.toExponential(1)} %`;
+}
+
+export function fmtMm2(areaM2: number): string {
+  const mm2 = areaM2 * 1e6;
+  return `${mm2 >= 100 ? mm2.toFixed(0) : mm2 >= 1 ? mm2.toFixed(1) : mm2.toPrecision(2)} mm²`;
+}
+
+export function fmtSize(dM: number): string {
+  if (dM < 1e-6) return `${(dM * 1e9).toPrecision(3).replace(/\.?0+$/, '')} nm`;
+  if (dM < 1e-3) return `${(dM * 1e6).toPrecision(3).replace(/\.?0+$/, '')} µm`;
+  return `${(dM * 1e3).toPrecision(3).replace(/\.?0+$/, '')} mm`;
+}
+
+export function fmtHours(s: number): string {
+  if (s < 3600) return `${(s / 60).toFixed(0)} min`;
+  return `${(s / 3600).toFixed(1)} h`;
+}
