@@ -8,10 +8,13 @@ import { Hono } from 'hono';
 import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
 import type { AppContext } from './context.ts';
+import { csrfProtection, csrfSecret } from './csrf.ts';
 import { renderPage } from './render.ts';
 import * as calculators from './routes/calculators.tsx';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
+import * as areas from './routes/areas.tsx';
+import * as imports from './routes/imports.tsx';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
@@ -21,13 +24,18 @@ const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
 
 /** Route modules, one per area of the product. Later areas add themselves here. */
-const ROUTES: RouteModule[] = [home, health, calculators];
+const ROUTES: RouteModule[] = [home, health, calculators, imports, areas];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();
   app.use(
     '*',
     logger((line: string) => ctx.log(line)),
+  );
+  // Every POST/PUT/PATCH/DELETE needs a same-origin browser and the form token (src/web/csrf.ts).
+  app.use(
+    '*',
+    csrfProtection({ secret: csrfSecret(ctx.db), streamingPaths: ['/imports'], version: ctx.version }),
   );
 
   const asset = (body: Buffer, type: string) => () =>

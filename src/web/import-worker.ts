@@ -12,7 +12,10 @@
  * The worker is started from a small bootstrap that registers tsx (the sources run as TypeScript,
  * as bin/voidcast.js does for the main thread) and then loads this module, which sees `workerData`.
  */
+import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
 import { importFile } from '../ingest/pipeline.ts';
 import type { ImportOptions, ImportProgress, ImportReport } from '../ingest/types.ts';
@@ -36,9 +39,20 @@ const require = createRequire(import.meta.url);
 // CommonJS, evaluated in the new thread: register tsx's loader, then import the worker module.
 const BOOTSTRAP = `
 const { workerData } = require('node:worker_threads');
-require(workerData.tsxApi).register();
-import(workerData.entry).catch((e) => { throw e; });
+import(workerData.tsxApi).then((tsx) => { tsx.register(); return import(workerData.entry); });
 `;
+
+/** File URL of tsx's ESM register API (package export "./esm/api", import condition). */
+function tsxApiUrl(): string {
+  const pkgPath = require.resolve('tsx/package.json');
+  const pkg = JSON.parse(readFileSync(pkgPath, 'utf8')) as {
+    exports: Record<string, string | { import?: { default?: string } }>;
+  };
+  const entry = pkg.exports['./esm/api'];
+  const rel = typeof entry === 'string' ? entry : entry?.import?.default;
+  if (!rel) throw new Error('tsx does not export ./esm/api');
+  return pathToFileURL(join(dirname(pkgPath), rel)).href;
+}
 
 /** The database's file, or null when it lives in memory (then there is nothing to share). */
 export function databaseFile(db: Db): string | null {
@@ -61,7 +75,7 @@ export function runImport(
       voidcastImportWorker: true,
       dbFile: file,
       request,
-      tsxApi: require.resolve('tsx/esm/api'),
+      tsxApi: tsxApiUrl(),
       entry: import.meta.url,
     };
     const worker = new Worker(BOOTSTRAP, { eval: true, workerData: input });

@@ -13,6 +13,8 @@ import type { Child } from 'hono/jsx';
 export interface KindOption {
   name: string;
   summary: string;
+  /** False when this build cannot import the kind yet (shown, not selectable). */
+  available: boolean;
 }
 
 export interface ImportFormProps {
@@ -78,8 +80,12 @@ export function ImportForm(props: ImportFormProps) {
       <label for="import-kind">Kind of file</label>
       <select id="import-kind" name="kind" required>
         {props.kinds.map((k) => (
-          <option value={k.name} selected={k.name === props.values.kind}>
-            {k.summary ? `${k.name} — ${k.summary}` : k.name}
+          <option value={k.name} selected={k.name === props.values.kind} disabled={!k.available}>
+            {k.available
+              ? k.summary
+                ? `${k.name} — ${k.summary}`
+                : k.name
+              : `${k.name} (not available in this build)`}
           </option>
         ))}
       </select>

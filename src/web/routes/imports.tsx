@@ -13,8 +13,7 @@
  * with their HTTP status (400, 403, 413, 422) and an explanation as HTML; the page tells htmx to swap
  * those (views/partials/import-form.tsx).
  */
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
+import { mkdir, mkdtemp, rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Context, Hono } from 'hono';
 import { ImportsPage, type ImportsPageProps } from '../../../views/pages/imports.tsx';
@@ -36,6 +35,9 @@ import { runImport } from '../import-worker.ts';
 import { createJobRegistry, DEFAULT_JOB_TTL_MS, type Job } from '../jobs.ts';
 import { isFragmentRequest, renderPage } from '../render.ts';
 import { formatBytes, multipartBoundary, readMultipart, UploadError, uploadLimitBytes } from '../upload.ts';
+
+/** Where uploads wait for their import, under the data directory (removed once imported). */
+export const UPLOAD_DIR = 'uploads-in-progress';
 
 /** How many imports the history shows. */
 const HISTORY_ROWS = 50;
@@ -78,7 +80,15 @@ function historyView(db: AppContext['db']): { rows: HistoryRowView[]; total: num
 }
 
 function kindOptions() {
-  return IMPORT_KIND_NAMES.map((name) => ({ name, summary: getKind(name)?.summary ?? '' }));
+  return IMPORT_KIND_NAMES.map((name) => {
+    const kind = getKind(name);
+    return { name, summary: kind?.summary ?? '', available: kind !== undefined };
+  });
+}
+
+/** The kind preselected in a fresh form: the first one this build can import. */
+function defaultKind(): string {
+  return IMPORT_KIND_NAMES.find((k) => getKind(k) !== undefined) ?? IMPORT_KIND_NAMES[0]!;
 }
 
 const isKind = (v: string | undefined): v is ImportKindName =>
@@ -95,7 +105,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const props: ImportsPageProps = {
       form: {
         kinds: kindOptions(),
-        values: { kind: IMPORT_KIND_NAMES[0]!, acceptValidRows: false },
+        values: { kind: defaultKind(), acceptValidRows: false },
         csrf: csrfField(c),
         csrfHeaders: csrfHeaders(c),
         limitBytes: limit,
@@ -124,7 +134,7 @@ export function register(app: Hono, ctx: AppContext): void {
         errors: { heading, errors },
         form: {
           kinds: kindOptions(),
-          values: values ?? { kind: IMPORT_KIND_NAMES[0]!, acceptValidRows: false },
+          values: values ?? { kind: defaultKind(), acceptValidRows: false },
           csrf: csrfField(c),
           csrfHeaders: csrfHeaders(c),
           limitBytes: limit,
@@ -154,7 +164,9 @@ export function register(app: Hono, ctx: AppContext): void {
       return refuse(c, 413, 'The upload is too large', tooLarge(` (${formatBytes(declared)})`));
 
     const deferred = csrfDeferred(c);
-    const dir = await mkdtemp(join(tmpdir(), 'voidcast-upload-'));
+    // Uploads wait in the data directory (same disk as the database, a place the operator chose).
+    await mkdir(join(ctx.dataDir, UPLOAD_DIR), { recursive: true });
+    const dir = await mkdtemp(join(ctx.dataDir, UPLOAD_DIR, 'upload-'));
     let parsed: Awaited<ReturnType<typeof readMultipart>>;
     try {
       parsed = await readMultipart(c.req.raw.body, {
@@ -193,11 +205,12 @@ export function register(app: Hono, ctx: AppContext): void {
           ? `“${kindText}” is not a kind of file voidcast imports; choose one of: ${IMPORT_KIND_NAMES.join(', ')}.`
           : `Choose the kind of file: one of ${IMPORT_KIND_NAMES.join(', ')}.`,
       );
+    else if (!getKind(kindText)) errors.push(`This build of voidcast cannot import ${kindText} files yet.`);
     if (files.length === 0) errors.push('Choose at least one file to import.');
     if (errors.length > 0 || !isKind(kindText)) {
       await rm(dir, { recursive: true, force: true });
       return refuse(c, 422, 'Nothing was imported', errors, {
-        kind: kindText ?? IMPORT_KIND_NAMES[0]!,
+        kind: kindText ?? defaultKind(),
         acceptValidRows,
       });
     }
