@@ -193,7 +193,12 @@ function density(fn: string, rho: unknown): number {
  * @example settlingVelocity(1e-6) // 3.48e-5 m/s
  */
 export function settlingVelocity(diameterM: number, conditions: ParticleConditions = {}): number {
-  const fn = 'settlingVelocity';
+  return settlingFor('settlingVelocity', diameterM, conditions);
+}
+
+// The internal forms take the public function's name so that an error names the function the
+// caller called (depositionVelocity, not a helper it uses).
+function settlingFor(fn: string, diameterM: unknown, conditions: ParticleConditions): number {
   const d = diameter(fn, diameterM);
   requireObject(fn, 'conditions', conditions);
   const rho = density(fn, conditions.densityKgM3);
@@ -215,7 +220,10 @@ export function settlingVelocity(diameterM: number, conditions: ParticleConditio
  * @example brownianDiffusivity(1e-7) // 6.95e-10 m²/s
  */
 export function brownianDiffusivity(diameterM: number, conditions: ParticleConditions = {}): number {
-  const fn = 'brownianDiffusivity';
+  return diffusivityFor('brownianDiffusivity', diameterM, conditions);
+}
+
+function diffusivityFor(fn: string, diameterM: unknown, conditions: ParticleConditions): number {
   const d = diameter(fn, diameterM);
   requireObject(fn, 'conditions', conditions);
   const a = airFor(fn, d, conditions);
@@ -254,7 +262,10 @@ export interface DownflowConditions {
  * @example stagnationDiffusionVelocity(2e-7, { downflowMps: 0.3, waferDiameterM: 0.3 }) // ≈ 2.25e-6 m/s
  */
 export function stagnationDiffusionVelocity(diameterM: number, flow: DownflowConditions): number {
-  const fn = 'stagnationDiffusionVelocity';
+  return diffusionVelocityFor('stagnationDiffusionVelocity', diameterM, flow);
+}
+
+function diffusionVelocityFor(fn: string, diameterM: unknown, flow: DownflowConditions): number {
   const d = diameter(fn, diameterM);
   requireObject(fn, 'flow', flow);
   const u = requireNumber(fn, 'downflowMps', flow.downflowMps, 'm/s', {
@@ -266,7 +277,7 @@ export function stagnationDiffusionVelocity(diameterM: number, flow: DownflowCon
   const t = temperature(fn, flow.temperatureK);
   const p = pressure(fn, flow.pressurePa);
   const nu = airViscosity(t) / airDensity(t, p);
-  const db = brownianDiffusivity(d, { temperatureK: t, pressurePa: p, slip: flow.slip ?? 'hinds' });
+  const db = diffusivityFor(fn, d, { temperatureK: t, pressurePa: p, slip: flow.slip ?? 'hinds' });
   const a = (4 * u) / (Math.PI * dw);
   return finiteResult(fn, 0.85 * Math.sqrt(a * nu) * (nu / db) ** (-2 / 3));
 }
@@ -325,14 +336,14 @@ export function depositionVelocity(diameterM: number, c: DepositionConditions): 
     minExclusive: true,
     max: 100,
   });
-  const vDiff = fe * stagnationDiffusionVelocity(d, c);
-  if (orientation === 'vertical') return vDiff;
-  const vs = settlingVelocity(d, {
+  const vDiff = fe * diffusionVelocityFor(fn, d, c);
+  const vs = settlingFor(fn, d, {
     densityKgM3: c.densityKgM3,
     temperatureK: c.temperatureK,
     pressurePa: c.pressurePa,
     slip: c.slip ?? 'hinds',
   });
+  if (orientation === 'vertical') return vDiff;
   const x = vs / vDiff;
   // expm1 keeps full precision when v_s ≪ v_diff (x → 0, where 1 − e^{−x} cancels);
   // for x beyond ~709 expm1(x) is Infinity and the face-down velocity is exactly 0.

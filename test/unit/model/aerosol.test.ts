@@ -343,6 +343,17 @@ describe('aerosol functions reject bad input with ModelInputError', () => {
       'depositionVelocity: orientation = "up" is out of range; allowed one of faceUp, faceDown, vertical',
     );
     expect(() => depositionVelocity(1e-7, { ...flow300, densityKgM3: Number.NaN })).toThrow(ModelInputError);
+    // errors name the function the caller called, also for checks made by the parts it combines,
+    // and the density is checked even where it does not enter (vertical)
+    expect(() => depositionVelocity(1e-7, { ...flow300, downflowMps: 0 })).toThrow(
+      'depositionVelocity: downflowMps = 0 m/s',
+    );
+    expect(() => depositionVelocity(1e-7, { ...flow300, orientation: 'vertical', densityKgM3: -1 })).toThrow(
+      'depositionVelocity: densityKgM3 = -1 kg/m³',
+    );
+    expect(() => depositionVelocity(1e-7, { ...flow300, temperatureK: 100 })).toThrow(
+      'depositionVelocity: temperatureK',
+    );
     expect(() => depositionVelocity(Number.NaN, flow300)).toThrow('depositionVelocity: diameterM = NaN m');
     expect(() => depositionVelocity(1e-7, undefined as unknown as DepositionConditions)).toThrow(
       ModelInputError,
