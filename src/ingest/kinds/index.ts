@@ -3,11 +3,13 @@
  * once; `importFile` finds it by name. To add a kind: import it below and add it to KINDS.
  */
 import type { ImportKind, ImportKindName } from '../types.ts';
+import { counterSamples } from './counter-samples.ts';
 import { locations } from './locations.ts';
 // — kinds of the ingest core above; further kinds below, one import line each —
 
 export const KINDS: readonly ImportKind[] = [
   locations,
+  counterSamples,
   // — further kinds below, one line each —
 ];
 
