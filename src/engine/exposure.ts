@@ -127,22 +127,34 @@ function lastStartAtOrBefore(ix: ExposureIndex, t: number): number {
   return ans;
 }
 
-/** Cumulative usable dose per channel and usable time up to instant t (writes into doseOut). */
-function cumulativeAt(ix: ExposureIndex, t: number, doseOut: Float64Array): number {
-  const i = lastStartAtOrBefore(ix, t);
-  const k = ix.k;
-  if (i < 0) {
-    doseOut.fill(0);
-    return 0;
+/** First index whose running maximum end exceeds t (n if none): every sample before it has ended by t. */
+function firstNotEndedBy(ix: ExposureIndex, t: number): number {
+  let lo = 0;
+  let hi = ix.n;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (ix.maxEndMs[mid]! <= t) lo = mid + 1;
+    else hi = mid;
   }
-  // Samples 0…i−1 started before sample i; with non-overlapping samples they have ended by its start.
-  for (let c = 0; c < k; c++) doseOut[c] = ix.prefixDose[i * k + c]!;
-  let usableS = ix.prefixUsableS[i]!;
-  const s = ix.startMs[i]!;
-  const e = ix.endMs[i]!;
-  const whole = ix.prefixUsableS[i + 1]! - ix.prefixUsableS[i]!;
-  if (whole > 0 && e > s) {
-    const frac = Math.min(1, (t - s) / (e - s));
+  return lo;
+}
+
+/**
+ * Cumulative usable dose per channel and usable time up to instant t (writes into doseOut):
+ * F(t) = Σ_j C_j · clamp(t − start_j, 0, Δt_j) over usable samples. Samples that ended by t come
+ * from the prefix sums; the few still running at t (one, or more where samples overlap) are added.
+ */
+function cumulativeAt(ix: ExposureIndex, t: number, doseOut: Float64Array): number {
+  const k = ix.k;
+  const j = firstNotEndedBy(ix, t);
+  for (let c = 0; c < k; c++) doseOut[c] = ix.prefixDose[j * k + c]!;
+  let usableS = ix.prefixUsableS[j]!;
+  for (let i = j; i < ix.n && ix.startMs[i]! < t; i++) {
+    const whole = ix.prefixUsableS[i + 1]! - ix.prefixUsableS[i]!;
+    if (!(whole > 0)) continue;
+    const s = ix.startMs[i]!;
+    const e = ix.endMs[i]!;
+    const frac = Math.min(1, Math.max(0, (t - s) / (e - s)));
     for (let c = 0; c < k; c++)
       doseOut[c]! += (ix.prefixDose[(i + 1) * k + c]! - ix.prefixDose[i * k + c]!) * frac;
     usableS += whole * frac;
