@@ -20,6 +20,7 @@ import type { Db } from '../store/db.ts';
 import { runCell } from './cells.ts';
 import { type ByteSource, CsvReadError, CsvReader, fileSource } from './csv.ts';
 import { matchHeader } from './header.ts';
+import { importConfigSource } from './kinds/config-import.ts';
 import { getKind } from './kinds/index.ts';
 import { parseMetadata } from './metadata.ts';
 import type {
@@ -105,6 +106,7 @@ class Rejection {
 
 /** The synchronous core of importFile, on any byte source (tests use buffers). */
 export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions): ImportReport {
+  if (kind.config) return importConfigSource(db, kind, opts);
   const file = opts.displayName;
   const report: ImportReport = {
     file,
@@ -304,6 +306,7 @@ function runInTransaction(
     header: header.columns,
     headerLine: reader.headerLine,
   };
+  if (!kind.begin) throw new Error(`import kind ${kind.name} has no CSV reader (begin)`);
   const begun = kind.begin(ctx);
   if (Array.isArray(begun)) {
     for (const i of begun) addIssue(i);

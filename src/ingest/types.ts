@@ -241,4 +241,21 @@ export interface ImportKind {
   metadata?: readonly MetadataSpec[];
   /** Checks the header and metadata, prepares statements; called inside the transaction. */
   begin: (ctx: FileContext) => KindSession | KindIssue[];
+  /**
+   * Configuration kinds (JSON files: products, tools) read the whole file instead of CSV rows:
+   * the pipeline hands them to src/ingest/kinds/config-import.ts (same idempotency, transaction and
+   * bookkeeping). `columns` is then empty and `begin` is never called.
+   */
+  config?: ConfigKindHandler;
+}
+
+/** What a configuration kind does with a whole file (inside the import's transaction). */
+export interface ConfigKindHandler {
+  /** Parses, validates, normalises and stores the file; issues reject it (nothing is kept). */
+  apply: (
+    ctx: { db: Db; file: string; importId: number },
+    text: string,
+  ) =>
+    | { issues: KindIssue[] }
+    | { rowsRead: number; rowsStored: number; duplicates: number; updated: number; flags: ImportFlag[]; notes: string[] };
 }
