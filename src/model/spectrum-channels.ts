@@ -121,6 +121,7 @@ function truncatedFraction(beta: number, lo: number, hi: number, a: number, b: n
 
 const fmtUm = (m: number) => `${Number((m * 1e6).toPrecision(4))} µm`;
 const fmtSlope = (s: number) => String(Number(s.toFixed(3)));
+const fmtCount = (n: number) => String(Number(n.toPrecision(4)));
 
 /**
  * Size spectrum from counter channels (power-law interpolation of the cumulative concentration).
@@ -243,7 +244,7 @@ export function spectrumFromChannels(reading: ChannelReading): ChannelSpectrum {
       const { slope, from } = slopeBelow(i - 1);
       place(out, lo, hi, (a, b) => ni * truncatedFraction(slope, lo, hi, a, b));
       flags.push(
-        `zero-channel: ≥ ${fmtUm(hi)} is 0, so the ${ni} between ${fmtUm(lo)} and ${fmtUm(hi)} are spread ` +
+        `zero-channel: ≥ ${fmtUm(hi)} is 0, so the ${fmtCount(ni)} between ${fmtUm(lo)} and ${fmtUm(hi)} are spread ` +
           `with slope ${fmtSlope(slope)} (${from}) truncated at ${fmtUm(hi)}`,
       );
     }
@@ -274,7 +275,7 @@ export function spectrumFromChannels(reading: ChannelReading): ChannelSpectrum {
     const s = aboveSlope;
     place(out, dTop, ceiling, (a, b) => nTop * truncatedFraction(s, dTop, ceiling, a, b));
     flags.push(
-      `above-extrapolated: the ${nTop} ≥ ${fmtUm(dTop)} are spread up to ${fmtUm(ceiling)} with slope ` +
+      `above-extrapolated: the ${fmtCount(nTop)} ≥ ${fmtUm(dTop)} are spread up to ${fmtUm(ceiling)} with slope ` +
         `${fmtSlope(s)} (${from}), truncated so that none are lost`,
     );
   }
@@ -286,7 +287,7 @@ export function spectrumFromChannels(reading: ChannelReading): ChannelSpectrum {
     place(out, floorM, d0, (a, b) => n0 * ((a / d0) ** -belowSlope - (b / d0) ** -belowSlope));
     const added = n0 * ((floorM / d0) ** -belowSlope - 1);
     flags.push(
-      `below-extrapolated: ${Number(added.toPrecision(4))} added between ${fmtUm(floorM)} and ${fmtUm(d0)} ` +
+      `below-extrapolated: ${fmtCount(added)} added between ${fmtUm(floorM)} and ${fmtUm(d0)} ` +
         `with slope ${fmtSlope(belowSlope)} — not measured`,
     );
   } else {
