@@ -1,0 +1,244 @@
+/**
+ * Areas: ISO 14644-1 status per location, the trend panel (htmx swap at /areas/trend), and the
+ * excursion log. Thin: read (src/store/views-areas.ts), classify (src/model/iso14644.ts), render.
+ */
+import type { Context, Hono } from 'hono';
+import {
+  type AreaGroup,
+  AreasPage,
+  type ExcursionRow,
+  type LocationStatus,
+} from '../../../views/pages/areas.tsx';
+import {
+  parseTrendWindow,
+  sameSize,
+  TREND_WINDOWS,
+  TrendPanel,
+  type TrendPanelProps,
+  type TrendWindow,
+} from '../../../views/partials/trend-panel.tsx';
+import { bestClassAchieved, isoClassLimit, isoTable1Value, roundIsoLimit } from '../../model/iso14644.ts';
+import {
+  type CumulativeSample,
+  type LocationView,
+  listLocationsWithAreas,
+  readCumulativeSamples,
+  sampleSpan,
+  wafersExposedAt,
+} from '../../store/views-areas.ts';
+import type { AppContext } from '../context.ts';
+import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
+
+/** Samples flagged as instrument fault (1) or sentinel values (4) are not used (src/engine/types.ts SAMPLE_FLAG). */
+const UNUSABLE_FLAGS = 1 | 4;
+/** The classification uses the last 30 days of each location's data. */
+const CLASS_WINDOW_MS = 30 * 86_400_000;
+const MAX_EXCURSIONS = 50;
+const ISO_MIN_M = 0.1e-6;
+const ISO_MAX_M = 5e-6;
+
+export function register(app: Hono, ctx: AppContext): void {
+  app.get('/areas', (c) => {
+    const locations = listLocationsWithAreas(ctx.db);
+    const groups = new Map<string, AreaGroup>();
+    const excursions: ExcursionRow[] = [];
+    for (const loc of locations) {
+      const span = sampleSpan(ctx.db, loc.locationId);
+      const samples =
+        span.lastMs === null
+          ? []
+          : readCumulativeSamples(ctx.db, loc.locationId, span.lastMs - CLASS_WINDOW_MS, span.lastMs + 1);
+      const status = classifyLocation(loc, samples, span.count, span.lastMs);
+      const g = groups.get(loc.areaId) ?? { area: loc.areaName, locations: [] };
+      g.locations.push(status);
+      groups.set(loc.areaId, g);
+      excursions.push(...findExcursions(ctx, loc, samples));
+    }
+    excursions.sort((a, b) => b.startMs - a.startMs);
+    const trend = trendProps(ctx, c, locations);
+    return renderPage(c, ctx, {
+      title: 'Areas',
+      active: '/areas',
+      body: AreasPage({
+        groups: [...groups.values()],
+        classWindow:
+          'the last 30 days of each location’s samples; instrument-fault and sentinel samples left out',
+        trend,
+        excursions: excursions.slice(0, MAX_EXCURSIONS),
+        excursionsOmitted: Math.max(0, excursions.length - MAX_EXCURSIONS),
+      }),
+    });
+  });
+
+  app.get('/areas/trend', (c) => {
+    const locations = listLocationsWithAreas(ctx.db);
+    const props = trendProps(ctx, c, locations);
+    if (isFragmentRequest(c)) return renderFragment(c, TrendPanel(props));
+    // Without script the form's action is /areas itself; this URL still answers with the page.
+    const q = new URL(c.req.url).search;
+    return c.redirect(`/areas${q}#trend-panel`, 303);
+  });
+}
+
+function usable(s: CumulativeSample): boolean {
+  return (s.flags & UNUSABLE_FLAGS) === 0;
+}
+
+/** Sizes every usable sample reports, ascending (m). */
+function commonSizes(samples: CumulativeSample[]): number[] {
+  const u = samples.filter(usable);
+  if (u.length === 0) return [];
+  return u[0]!.sizesM.filter((d) => u.every((s) => s.sizesM.some((x) => sameSize(x, d))));
+}
+
+function valueAt(s: CumulativeSample, d: number): number | null {
+  const j = s.sizesM.findIndex((x) => sameSize(x, d));
+  return j < 0 ? null : (s.cumulativePerM3[j] ?? null);
+}
+
+/**
+ * ISO 14644-1:2015 status of one location: the mean concentration at each considered size over
+ * the window, the cleanest class those means meet (bestClassAchieved, steps of 0.1), and pass
+ * when that class is at or below the target. Considered sizes: the channels in 0.1–5 µm that
+ * every usable sample reports and, for a target class, where its Table 1 cell is applicable.
+ */
+export function classifyLocation(
+  loc: LocationView,
+  samples: CumulativeSample[],
+  count: number,
+  lastMs: number | null,
+): LocationStatus {
+  const base = {
+    locationId: loc.locationId,
+    name: loc.name,
+    environment: loc.environment,
+    targetClass: loc.isoClass,
+    samples: count,
+    lastSampleMs: lastMs,
+  };
+  const u = samples.filter(usable);
+  let sizes = commonSizes(samples).filter((d) => d >= ISO_MIN_M * (1 - 1e-9) && d <= ISO_MAX_M * (1 + 1e-9));
+  if (loc.isoClass !== null) {
+    const n = Math.round(loc.isoClass);
+    sizes = sizes.filter((d) => {
+      try {
+        return isoTable1Value(n, d) !== null;
+      } catch {
+        return true; // not a Table 1 size: the formula applies (ISO 14644-1:2015 eq. (1))
+      }
+    });
+  }
+  if (u.length === 0 || sizes.length === 0)
+    return {
+      ...base,
+      achievedClass: null,
+      pass: null,
+      sizesM: sizes,
+      note: u.length === 0 ? 'no usable samples' : 'no channel in 0.1–5 µm applicable to the class',
+    };
+  const means = sizes.map((d) => u.reduce((a, s) => a + (valueAt(s, d) ?? 0), 0) / u.length);
+  const achieved = bestClassAchieved({ sizesM: sizes, locationMeansPerM3: [means] });
+  return {
+    ...base,
+    achievedClass: achieved,
+    pass: loc.isoClass === null ? null : achieved !== null && achieved <= loc.isoClass + 1e-9,
+    sizesM: sizes,
+    note: loc.isoClass === null ? 'no target class' : achieved === null ? 'above ISO 9' : null,
+  };
+}
+
+function findExcursions(ctx: AppContext, loc: LocationView, samples: CumulativeSample[]): ExcursionRow[] {
+  const out: ExcursionRow[] = [];
+  for (const lv of loc.levels) {
+    if (lv.actionPerM3 === null) continue;
+    for (const s of samples) {
+      if (!usable(s)) continue;
+      const v = valueAt(s, lv.diameterM);
+      if (v === null || v <= lv.actionPerM3) continue;
+      out.push({
+        locationId: loc.locationId,
+        locationName: loc.name,
+        startMs: s.startMs,
+        diameterM: lv.diameterM,
+        valuePerM3: v,
+        actionPerM3: lv.actionPerM3,
+        wafers: wafersExposedAt(ctx.db, loc.locationId, s.startMs, s.startMs + s.durationMs),
+      });
+    }
+  }
+  return out;
+}
+
+function trendProps(ctx: AppContext, c: Context, locations: LocationView[]): TrendPanelProps {
+  const q = c.req.query();
+  const window: TrendWindow = parseTrendWindow(q.window);
+  const withData = locations.filter((l) => sampleSpan(ctx.db, l.locationId).count > 0);
+  const chosen =
+    locations.find((l) => l.locationId === q.location) ??
+    withData.find((l) => l.levels.some((x) => x.actionPerM3 !== null)) ??
+    withData[0] ??
+    locations[0] ??
+    null;
+  const list = locations.map((l) => ({ locationId: l.locationId, name: l.name, area: l.areaName }));
+  const empty = {
+    locations: list,
+    locationId: chosen?.locationId ?? null,
+    channels: [],
+    channelM: null,
+    window,
+    fromMs: 0,
+    toMs: 0,
+    points: [],
+    alertPerM3: null,
+    actionPerM3: null,
+    levelsAtM: null,
+    classLimit: null,
+  };
+  if (!chosen) return { ...empty, problem: 'No locations yet: import a locations file and counter samples.' };
+  const span = sampleSpan(ctx.db, chosen.locationId);
+  if (span.lastMs === null || span.firstMs === null)
+    return { ...empty, problem: `No counter samples for ${chosen.name} yet.` };
+  const w = TREND_WINDOWS.find((x) => x.key === window)!;
+  const toMs = span.lastMs + 1;
+  const fromMs = Number.isFinite(w.ms) ? Math.max(span.firstMs, toMs - w.ms) : span.firstMs;
+  const samples = readCumulativeSamples(ctx.db, chosen.locationId, fromMs, toMs);
+  const channels = [...new Set(samples.flatMap((s) => s.sizesM))].sort((a, b) => a - b);
+  const uniq = channels.filter((d, i) => i === 0 || !sameSize(d, channels[i - 1]!));
+  const askedUm = Number(q.channel);
+  const level = chosen.levels.find((l) => l.actionPerM3 !== null) ?? chosen.levels[0] ?? null;
+  const channelM =
+    (Number.isFinite(askedUm) && askedUm > 0 ? uniq.find((d) => sameSize(d, askedUm * 1e-6)) : undefined) ??
+    (level ? uniq.find((d) => sameSize(d, level.diameterM)) : undefined) ??
+    uniq.find((d) => sameSize(d, 0.5e-6)) ??
+    uniq[0] ??
+    null;
+  if (channelM === null)
+    return { ...empty, channels: uniq, problem: `No channels in ${chosen.name}'s samples.` };
+  const points = samples.map((s) => ({ tMs: s.startMs, value: usable(s) ? valueAt(s, channelM) : null }));
+  const lv = chosen.levels.find((l) => sameSize(l.diameterM, channelM)) ?? level;
+  return {
+    ...empty,
+    locationId: chosen.locationId,
+    channels: uniq,
+    channelM,
+    fromMs,
+    toMs,
+    points,
+    alertPerM3: lv?.alertPerM3 ?? null,
+    actionPerM3: lv?.actionPerM3 ?? null,
+    levelsAtM: lv?.diameterM ?? null,
+    classLimit: classLimitAt(chosen.isoClass, channelM),
+  };
+}
+
+/** The target class's limit at a channel size, where ISO 14644-1:2015 defines one. */
+function classLimitAt(classN: number | null, d: number): { value: number; label: string } | null {
+  if (classN === null || d < ISO_MIN_M * (1 - 1e-9) || d > ISO_MAX_M * (1 + 1e-9)) return null;
+  try {
+    if (Number.isInteger(classN) && isoTable1Value(classN, d) === null) return null;
+  } catch {
+    // not a Table 1 size: the formula still applies
+  }
+  const label = `ISO ${Number.isInteger(classN) ? classN : classN.toFixed(1)} limit`;
+  return { value: roundIsoLimit(isoClassLimit(classN, d)), label };
+}
