@@ -14,6 +14,11 @@
  *    (`csrfHeaders(c)` for `hx-headers`). Another site can neither read the cookie nor compute the
  *    token; the secret lives in this installation's settings.
  *
+ * The token is required of requests another site's page could send without a CORS preflight:
+ * bodies of type application/x-www-form-urlencoded, multipart/form-data, text/plain or none
+ * (WHATWG Fetch, CORS-safelisted request headers). A JSON body needs a preflight, which this
+ * server never grants across origins, so JSON API clients need only pass the origin check.
+ *
  * Large multipart bodies are not read here (they would have to be buffered): a route that streams
  * uploads lists itself in `streamingPaths` and must check the `_csrf` field itself with
  * `verifyCsrfToken` before it accepts a file (src/web/upload.ts `beforeFile`). Every other large
@@ -44,6 +49,8 @@ export const CSRF_FIELD = '_csrf';
 export const CSRF_HEADER = 'X-CSRF-Token';
 const SECRET_SETTING = 'web.csrf_secret';
 const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+/** Content types a cross-site page may send without a preflight (WHATWG Fetch, CORS-safelisted), and none. */
+const SIMPLE_TYPES = new Set(['', 'application/x-www-form-urlencoded', 'multipart/form-data', 'text/plain']);
 /** Bodies up to this size are parsed here to find the field (hono caches the parse for the route). */
 const SMALL_BODY_BYTES = 1024 * 1024;
 
@@ -126,6 +133,13 @@ export function csrfProtection(options: CsrfOptions): MiddlewareHandler {
       allowed,
     );
     if (problem) return forbidden(c, version, `The request was refused because ${problem}.`);
+
+    // Only a "simple" request (WHATWG Fetch: a CORS-safelisted Content-Type, or none) can be sent
+    // by another site's page without a CORS preflight, which this server never grants. Those need
+    // the token; a JSON body (an API client, or a preflighted request) does not.
+    const type = (c.req.header('content-type') ?? '').split(';')[0]!.trim().toLowerCase();
+    if (!SIMPLE_TYPES.has(type)) return next();
+
     if (!hadCookie)
       return forbidden(
         c,
@@ -138,7 +152,6 @@ export function csrfProtection(options: CsrfOptions): MiddlewareHandler {
       if (tokensEqual(header, expected)) return next();
       return forbidden(c, version, 'The form token did not match. Reload the page and send the form again.');
     }
-    const type = (c.req.header('content-type') ?? '').split(';')[0]!.trim().toLowerCase();
     const length = Number(c.req.header('content-length') ?? Number.NaN);
     const isForm = type === 'application/x-www-form-urlencoded' || type === 'multipart/form-data';
     if (isForm && Number.isFinite(length) && length <= SMALL_BODY_BYTES) {

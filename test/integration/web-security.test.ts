@@ -206,6 +206,32 @@ describe('CSRF: the token', () => {
     expect(html).toContain('This request was refused');
   });
 
+  it('asks no token of a JSON body (a cross-site page cannot send one without a CORS preflight), but checks its origin', async () => {
+    const h = await harness();
+    const json = (headers: Record<string, string>) =>
+      h.app.request('/test-echo', {
+        method: 'POST',
+        body: '{"a":1}',
+        headers: { 'content-type': 'application/json', ...headers },
+      });
+    expect((await json({})).status).toBe(200);
+    expect((await json({ origin: 'https://evil.example' })).status).toBe(403);
+    expect((await json({ 'sec-fetch-site': 'cross-site' })).status).toBe(403);
+  });
+
+  it('asks the token of text/plain and of bodies without a type (a cross-site form can send those)', async () => {
+    const h = await harness();
+    for (const headers of [{ 'content-type': 'text/plain' }, {}] as Record<string, string>[]) {
+      const res = await h.app.request('/test-echo', {
+        method: 'POST',
+        body: new Blob(['{"a":1}']),
+        headers: { cookie: h.cookie, origin: ORIGIN, ...headers },
+      });
+      expect(res.status).toBe(403);
+    }
+    expect(h.posted).toEqual([]);
+  });
+
   it('lets GET, HEAD and OPTIONS through whatever their origin', async () => {
     const h = await harness();
     for (const method of ['GET', 'HEAD', 'OPTIONS']) {
