@@ -6,11 +6,15 @@ import type { ImportKind, ImportKindName } from '../types.ts';
 import { counterSamples } from './counter-samples.ts';
 import { locations } from './locations.ts';
 // — kinds of the ingest core above; further kinds below, one import line each —
+import { products } from './products.ts';
+import { tools } from './tools.ts';
 
 export const KINDS: readonly ImportKind[] = [
   locations,
   counterSamples,
   // — further kinds below, one line each —
+  products,
+  tools,
 ];
 
 export function getKind(name: string): ImportKind | undefined {

@@ -19,8 +19,8 @@
 import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { hToS, mmToM, umToM } from '../../model/units.ts';
-import type { ProductDefinition, StepKind } from '../../store/products.ts';
-import type { KindIssue } from '../types.ts';
+import { type ProductDefinition, type StepKind, storeProduct } from '../../store/products.ts';
+import type { ImportFlag, ImportKind, KindIssue } from '../types.ts';
 import {
   formatField,
   num,
@@ -31,7 +31,7 @@ import {
   signedMmToM,
   text,
 } from './config-fields.ts';
-import { type JsonSource, jsonIssue, parseJsonSource, validateJson } from './json-source.ts';
+import { type JsonSource, parseJsonSource, validateJson } from './json-source.ts';
 
 export const STEP_KINDS = [
   'process',
@@ -329,4 +329,37 @@ export function parseProductFile(textIn: string): ParsedConfig<ProductDefinition
   };
 }
 
-export { jsonIssue };
+/** The `products` import kind (a configuration kind: one JSON file per product). */
+export const products: ImportKind = {
+  name: 'products',
+  summary: 'a product: wafer, bonded stack, surface preparation and energy, die layout, spec, Q-times (JSON)',
+  columns: [],
+  begin: () => [{ line: 0, column: null, value: null, rule: 'products files are JSON (read whole)' }],
+  config: {
+    apply(ctx, textIn) {
+      const parsed = parseProductFile(textIn);
+      if ('issues' in parsed) return { issues: parsed.issues };
+      const def = parsed.value;
+      const flags: ImportFlag[] = [];
+      if (def.recleanCleanId !== null) {
+        const known = ctx.db.prepare('SELECT 1 FROM cleans WHERE id = ?').get(def.recleanCleanId);
+        if (known === undefined)
+          flags.push({
+            code: 'clean-unknown',
+            count: 1,
+            detail: `recleanClean "${def.recleanCleanId}" is not among the stored cleans yet (import the tools file that defines it)`,
+          });
+      }
+      const r = storeProduct(ctx.db, def, textIn, parsed.contentSha256, ctx.importId);
+      return {
+        rowsRead: 1,
+        rowsStored: r === 'duplicate' ? 0 : 1,
+        duplicates: r === 'duplicate' ? 1 : 0,
+        updated: r === 'updated' ? 1 : 0,
+        flags,
+        notes:
+          r === 'duplicate' ? [`product "${def.productId}" is stored with the same content already`] : [],
+      };
+    },
+  },
+};

@@ -19,10 +19,10 @@
 import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { nmToM } from '../../model/units.ts';
-import type { AdderLevel, StoredClean, StoredTool } from '../../store/tools.ts';
-import type { KindIssue } from '../types.ts';
+import { type AdderLevel, type StoredClean, type StoredTool, toolWriter } from '../../store/tools.ts';
+import type { ImportFlag, ImportKind, KindIssue } from '../types.ts';
 import { formatField, num, obj, oneOf, powerLawToSi, text } from './config-fields.ts';
-import { type JsonSource, parseJsonSource, validateJson } from './json-source.ts';
+import { type JsonSource, jsonIssue, parseJsonSource, validateJson } from './json-source.ts';
 import type { ParsedConfig } from './products.ts';
 
 export const TOOL_KINDS = [
@@ -321,3 +321,42 @@ export function parseToolsFile(
     contentSha256: createHash('sha256').update(JSON.stringify(def)).digest('hex'),
   };
 }
+
+/** The `tools` import kind (a configuration kind: one JSON file of tools, chambers and cleans). */
+export const tools: ImportKind = {
+  name: 'tools',
+  summary: 'tools and chambers with adders per wafer pass, and cleans with their removal curves (JSON)',
+  columns: [],
+  begin: () => [{ line: 0, column: null, value: null, rule: 'tools files are JSON (read whole)' }],
+  config: {
+    apply(ctx, textIn) {
+      const parsed = parseToolsFile(textIn);
+      if ('issues' in parsed) return { issues: parsed.issues };
+      const def = parsed.value;
+      // A clean's tool: in this file or stored already.
+      const inFile = new Set(def.tools.map((t) => t[0]!.toolId));
+      const stored = ctx.db.prepare('SELECT 1 FROM tools WHERE tool_id = ? LIMIT 1');
+      const issues: KindIssue[] = [];
+      for (const ref of def.cleanToolRefs)
+        if (!inFile.has(ref.toolId) && stored.get(ref.toolId) === undefined)
+          issues.push(
+            jsonIssue(parsed.source, ref.path, `tool "${ref.toolId}" is neither in this file nor stored`),
+          );
+      if (issues.length > 0) return { issues };
+      const w = toolWriter(ctx.db, ctx.importId);
+      let updated = 0;
+      for (const entries of def.tools) if (w.replaceTool(entries)) updated++;
+      for (const c of def.cleans) if (w.upsertClean(c)) updated++;
+      const flags: ImportFlag[] = [];
+      const noAdders = def.tools.filter((t) => t.every((e) => e.adders === null)).map((t) => t[0]!.toolId);
+      if (noAdders.length > 0)
+        flags.push({
+          code: 'no-adders',
+          count: noAdders.length,
+          detail: `tools without any adder level (they add nothing known): ${noAdders.join(', ')}`,
+        });
+      const n = def.tools.length + def.cleans.length;
+      return { rowsRead: n, rowsStored: n, duplicates: 0, updated, flags, notes: [] };
+    },
+  },
+};
