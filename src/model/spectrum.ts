@@ -176,7 +176,7 @@ export function powerLawSpectrum(opts: {
     const lo = Math.max(SPECTRUM_EDGES_M[i]!, from);
     const hi = Math.min(SPECTRUM_EDGES_M[i + 1]!, to);
     if (hi <= lo) continue;
-    const v = cum(lo) - (hi >= SPECTRUM_MAX_DIAMETER_M && to >= SPECTRUM_MAX_DIAMETER_M ? cum(hi) : cum(hi));
+    const v = cum(lo) - cum(hi);
     if (!Number.isFinite(v))
       throw new ModelInputError(fn, 'countAbove', 'count', 'a size that does not overflow', n0);
     out[i] = Math.max(v, 0);
