@@ -301,6 +301,7 @@ function runInTransaction(
     file: report.file,
     importId,
     metadata: meta.entries,
+    metadataLines: meta.lines,
     units: meta.units,
     dialect,
     header: header.columns,
@@ -364,7 +365,7 @@ function runInTransaction(
   dialect.decimal = decimal.mode === ',' ? ',' : '.';
   dialect.decimalSource = decimal.source;
   if (fileLevelProblem) return;
-  if (report.rowsRead === 0) {
+  if (report.rowsRead === 0 && !kind.allowNoRows) {
     addIssue({
       line: reader.headerLine,
       column: null,

@@ -196,6 +196,8 @@ export interface FileContext {
   file: string;
   importId: number;
   metadata: ReadonlyMap<string, string>;
+  /** Line of each metadata entry (same keys as `metadata`), for issues about a metadata value. */
+  metadataLines?: ReadonlyMap<string, number>;
   /** `# units:` entries, lower-cased quantity → unit as written. */
   units: ReadonlyMap<string, string>;
   dialect: CsvDialect;
@@ -247,6 +249,8 @@ export interface ImportKind {
    * bookkeeping). `columns` is then empty and `begin` is never called.
    */
   config?: ConfigKindHandler;
+  /** A file with a header and no data rows is valid for this kind (e.g. a scan without defects). */
+  allowNoRows?: boolean;
 }
 
 /** What a configuration kind does with a whole file (inside the import's transaction). */
