@@ -152,6 +152,12 @@ export function csrfProtection(options: CsrfOptions): MiddlewareHandler {
       if (tokensEqual(header, expected)) return next();
       return forbidden(c, version, 'The form token did not match. Reload the page and send the form again.');
     }
+    if (type === 'multipart/form-data' && streaming.has(c.req.path)) {
+      // A streaming route reads its own body (never buffered here, whatever its size) and checks the
+      // field (verifyCsrfToken) before it keeps any file byte.
+      c.set('csrfDeferred', true);
+      return next();
+    }
     const length = Number(c.req.header('content-length') ?? Number.NaN);
     const isForm = type === 'application/x-www-form-urlencoded' || type === 'multipart/form-data';
     if (isForm && Number.isFinite(length) && length <= SMALL_BODY_BYTES) {
@@ -163,11 +169,6 @@ export function csrfProtection(options: CsrfOptions): MiddlewareHandler {
         version,
         'The form token was missing or did not match. Reload the page and send the form again.',
       );
-    }
-    if (type === 'multipart/form-data' && streaming.has(c.req.path)) {
-      // The route checks the field as it streams (verifyCsrfToken) before it accepts any file.
-      c.set('csrfDeferred', true);
-      return next();
     }
     return forbidden(c, version, `The request carried no form token (send it in the ${CSRF_HEADER} header).`);
   };

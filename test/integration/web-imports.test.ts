@@ -156,6 +156,27 @@ describe('the Imports page', () => {
     expect(readdirSync(join(h.dir, 'uploads-in-progress'))).toEqual([]);
   });
 
+  it('imports a browser-like upload: Content-Length declared, the token only in its field (no script)', async () => {
+    const h = await harness();
+    const encoded = new Request('http://x/', {
+      method: 'POST',
+      body: form({ _csrf: h.token, kind: 'locations' }, [{ name: 'plain.csv', content: GOOD }]),
+    });
+    const bytes = new Uint8Array(await encoded.clone().arrayBuffer());
+    const res = await h.app.request('/imports', {
+      method: 'POST',
+      body: bytes,
+      headers: {
+        cookie: h.cookie,
+        origin: ORIGIN,
+        'content-type': encoded.headers.get('content-type')!,
+        'content-length': String(bytes.length),
+      },
+    });
+    expect(res.status).toBe(303);
+    expect(await finished(h, res.headers.get('location')!)).toContain('Imported');
+  });
+
   it('answers an htmx upload with the progress partial (200), pushes the job URL, then polls to the report', async () => {
     const h = await harness();
     const res = await post(h, form({ kind: 'locations' }, [{ name: 'locations.csv', content: GOOD }]), {
