@@ -3,7 +3,8 @@
  * into `_` (so " Location ID " and "location_id" are the same column); a name given twice after that
  * is an error; each name is matched to a fixed column of the kind, then to its column families
  * (patterns such as `ge_0.1um`). Columns starting with `x_` are kept in the file but ignored by
- * voidcast; empty names at the end of the header (a trailing delimiter) are ignored.
+ * voidcast, unless the kind has a column of that very name (the `x_mm` of a scan); empty names at
+ * the end of the header (a trailing delimiter) are ignored.
  */
 import type { ColumnSpec, HeaderColumn, ImportKind, KindIssue } from './types.ts';
 
@@ -48,7 +49,8 @@ export function matchHeader(
       continue;
     }
     seen.set(key, i);
-    if (key.startsWith('x_')) continue;
+    // A kind's own column wins over the ignore prefix (scans and void inspections have x_mm, x_um).
+    if (key.startsWith('x_') && !byKey.has(key)) continue;
     const spec = byKey.get(key) ?? null;
     let pattern: HeaderColumn['pattern'] = null;
     if (!spec) {

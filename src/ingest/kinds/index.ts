@@ -7,6 +7,7 @@ import { counterSamples } from './counter-samples.ts';
 import { locations } from './locations.ts';
 // — kinds of the ingest core above; further kinds below, one import line each —
 import { products } from './products.ts';
+import { scans } from './scans.ts';
 import { tools } from './tools.ts';
 
 export const KINDS: readonly ImportKind[] = [
@@ -15,6 +16,7 @@ export const KINDS: readonly ImportKind[] = [
   // — further kinds below, one line each —
   products,
   tools,
+  scans,
 ];
 
 export function getKind(name: string): ImportKind | undefined {
