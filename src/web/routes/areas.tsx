@@ -134,7 +134,12 @@ export function classifyLocation(
       achievedClass: null,
       pass: null,
       sizesM: sizes,
-      note: u.length === 0 ? 'no usable samples' : 'no channel in 0.1–5 µm applicable to the class',
+      note:
+        count === 0
+          ? 'no counter samples'
+          : u.length === 0
+            ? 'no usable samples'
+            : 'no channel in 0.1–5 µm applicable to the class',
     };
   const means = sizes.map((d) => u.reduce((a, s) => a + (valueAt(s, d) ?? 0), 0) / u.length);
   const achieved = bestClassAchieved({ sizesM: sizes, locationMeansPerM3: [means] });
