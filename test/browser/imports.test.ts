@@ -112,6 +112,7 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
     await running.waitFor();
     expect(await running.locator('progress.vc-progress').count()).toBe(1);
     expect(await running.getAttribute('hx-trigger')).toBe('load delay:500ms');
+    await page.screenshot({ path: screenshotPath('imports-progress'), fullPage: true });
     await page.locator('#import-job .vc-job-done').waitFor({ timeout: 30_000 });
     expect(await page.locator('#import-job .vc-status').first().textContent()).toBe('Imported');
     // htmx swapped in place (the window survived) and pushed the job's address.

@@ -273,6 +273,47 @@ describe('the Imports page', () => {
     expect(count(h.db, 'imports')).toBe(imports);
   });
 
+  it('lists a long list of rejected rows 100 to a page; the pager works as a swap and as a page', async () => {
+    const h = await harness();
+    const rows = ['location_id,parent_id,level,name,environment,iso_class,floor_area_m2'];
+    for (let i = 0; i < 250; i++) rows.push(`site-${i},,site,S,open-room,12,`);
+    const res = await post(
+      h,
+      form({ _csrf: h.token, kind: 'locations' }, [{ name: 'many.csv', content: rows.join('\n') }]),
+    );
+    const url = res.headers.get('location')!;
+    const html = await finished(h, url);
+    const lines = (text: string) =>
+      [...text.matchAll(/<td class="num">(\d+)<\/td><td><code>iso_class/g)].map((m) => Number(m[1]));
+    expect(html).toContain('Showing 1–100 of 250 listed problems.');
+    expect(lines(html)).toEqual(Array.from({ length: 100 }, (_, i) => i + 2));
+    const next =
+      /<a href="([^"]+)" hx-get="([^"]+)" hx-target="#issues-0" hx-swap="outerHTML" rel="next">Next<\/a>/.exec(
+        html,
+      );
+    expect(next).not.toBeNull();
+    const swap = await h.app.request(next![2]!.replaceAll('&amp;', '&'), {
+      headers: { cookie: h.cookie, 'HX-Request': 'true' },
+    });
+    const part = await swap.text();
+    expect(part.startsWith('<section class="vc-issues" id="issues-0">')).toBe(true);
+    expect(part).toContain('Showing 101–200 of 250 listed problems.');
+    expect(lines(part)).toEqual(Array.from({ length: 100 }, (_, i) => i + 102));
+    // Without script the link is a full page showing page 2 of that file.
+    const full = await (
+      await h.app.request(next![1]!.replaceAll('&amp;', '&'), { headers: { cookie: h.cookie } })
+    ).text();
+    expect(full.startsWith('<!doctype html>')).toBe(true);
+    expect(full).toContain('Showing 101–200 of 250 listed problems.');
+    // The last page holds the rest; a page number beyond it shows the last page.
+    const last = await (
+      await h.app.request(`${url}/files/0/issues?page=99`, {
+        headers: { cookie: h.cookie, 'HX-Request': 'true' },
+      })
+    ).text();
+    expect(lines(last)).toEqual(Array.from({ length: 50 }, (_, i) => i + 202));
+  });
+
   it('imports several files of one upload in order, one report each', async () => {
     const h = await harness();
     const res = await post(

@@ -13,6 +13,7 @@
  * with their HTTP status (400, 403, 413, 422) and an explanation as HTML; the page tells htmx to swap
  * those (views/partials/import-form.tsx).
  */
+import { rmSync } from 'node:fs';
 import { mkdir, mkdtemp, rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Context, Hono } from 'hono';
@@ -97,6 +98,8 @@ const isKind = (v: string | undefined): v is ImportKindName =>
 const truthy = (v: string | undefined) => v === 'on' || v === '1' || v === 'true' || v === 'yes';
 
 export function register(app: Hono, ctx: AppContext): void {
+  // Uploads left by a server that stopped mid-import belong to no job any more.
+  rmSync(join(ctx.dataDir, UPLOAD_DIR), { recursive: true, force: true });
   const jobs = createJobRegistry<ImportJobProgress, null>({ log: ctx.log, ttlMs: DEFAULT_JOB_TTL_MS });
 
   const page = (c: Context, extra: Partial<ImportsPageProps>, status: 200 | 400 | 404 | 413 | 422 = 200) => {
