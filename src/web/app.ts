@@ -15,6 +15,7 @@ import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as areas from './routes/areas.tsx';
 import * as imports from './routes/imports.tsx';
+import * as tools from './routes/tools.tsx';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
@@ -24,7 +25,7 @@ const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
 
 /** Route modules, one per area of the product. Later areas add themselves here. */
-const ROUTES: RouteModule[] = [home, health, calculators, imports, areas];
+const ROUTES: RouteModule[] = [home, health, calculators, imports, areas, tools];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();

@@ -54,6 +54,81 @@ export function counterCsv(): string {
   return `${rows.join('\n')}\n`;
 }
 
+/** Tools with adders (power law, bands, none) and three cleans: stated logistic, fittable bands, too few bands. */
+export const TOOLS_JSON = JSON.stringify(
+  {
+    format: 'voidcast tools 1',
+    tools: [
+      {
+        id: 'BOND-1',
+        name: `Bonder ${HOSTILE}`,
+        kind: 'bonder',
+        adders: { model: 'power-law', countAbove: 1.5, atDiameterNm: 45, slope: 1.8 },
+        adderUncertaintyFactor: 2,
+        chambers: [
+          { chamber: 'ALN', adders: { model: 'power-law', countAbove: 0.6, atDiameterNm: 45, slope: 2 } },
+        ],
+      },
+      {
+        id: 'ACT-1',
+        name: 'Plasma activation',
+        kind: 'activation',
+        adders: {
+          model: 'bands',
+          bands: [
+            { fromNm: 45, toNm: 100, count: 2 },
+            { fromNm: 100, toNm: 1000, count: 0.5 },
+          ],
+        },
+      },
+      { id: 'STK-1', name: 'Stocker', kind: 'storage', adders: null },
+      {
+        id: 'CLN-1',
+        name: 'Single-wafer clean',
+        kind: 'clean',
+        adders: { model: 'power-law', countAbove: 0.3, atDiameterNm: 45, slope: 2 },
+      },
+    ],
+    cleans: [
+      {
+        id: 'PBC-MEG',
+        name: 'Pre-bond megasonic clean',
+        tool: 'CLN-1',
+        recipe: 'MEG-A',
+        removal: { model: 'logistic-log-d', maxEfficiency: 0.99, d50Nm: 30, widthDecades: 0.2 },
+      },
+      {
+        id: 'RINSE',
+        name: `Rinse ${HOSTILE}`,
+        tool: null,
+        removal: {
+          model: 'bands',
+          bands: [
+            { fromNm: 30, toNm: 50, before: 400, after: 220 },
+            { fromNm: 50, toNm: 100, before: 300, after: 80 },
+            { fromNm: 100, toNm: 300, before: 200, after: 16 },
+            { fromNm: 300, toNm: 1000, before: 100, after: 3 },
+          ],
+        },
+      },
+      {
+        id: 'DIW',
+        name: 'Water rinse',
+        tool: null,
+        removal: {
+          model: 'bands',
+          bands: [
+            { fromNm: 50, toNm: 100, before: 100, after: 60 },
+            { fromNm: 100, toNm: 300, before: 80, after: 30 },
+          ],
+        },
+      },
+    ],
+  },
+  null,
+  2,
+);
+
 export interface LineFiles {
   dir: string;
   reports: ImportReport[];
@@ -69,6 +144,7 @@ export async function importPageLine(
   const files: { kind: ImportKindName; name: string; text: string }[] = [
     { kind: 'locations', name: 'locations.csv', text: LOCATIONS_CSV },
     { kind: 'counter-samples', name: 'counters.csv', text: counterCsv() },
+    { kind: 'tools', name: 'tools.json', text: TOOLS_JSON },
     ...extra,
   ];
   const reports: ImportReport[] = [];

@@ -23,8 +23,10 @@ export interface CleanView {
   toolId: string | null;
   recipe: string | null;
   curveKind: string;
-  /** Model parameters for a logistic curve. */
+  /** Parameters of the logistic curve drawn (stated in the file, or fitted to its bands). */
   params: { maxEfficiency: number; halfSizeM: number; widthDecades: number } | null;
+  /** True when the curve was fitted to measured bands. */
+  fitted: boolean;
   curve: { diameterM: number; efficiency: number }[];
   measured: { fromM: number; toM: number; efficiency: number; lo?: number; hi?: number; n?: number }[];
   /** Efficiency at reference sizes (45 nm, 100 nm, 300 nm), for the table. */
@@ -98,8 +100,8 @@ export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[] }) {
                 {c.toolId ? ` on ${c.toolId}` : ''}
                 {c.recipe ? `, recipe ${c.recipe}` : ''}.{' '}
                 {c.params
-                  ? `Logistic in log d: maximum ${fmtPct(c.params.maxEfficiency)}, half of it at ${fmtDiameter(c.params.halfSizeM)}, width ${fmtNum(c.params.widthDecades)} decades.`
-                  : 'Measured size bands only.'}{' '}
+                  ? `${c.fitted ? 'Logistic fitted to the measured bands' : 'Logistic in log d'}: maximum ${fmtPct(c.params.maxEfficiency)}, half of it at ${fmtDiameter(c.params.halfSizeM)}, width ${fmtNum(c.params.widthDecades)} decades.`
+                  : 'Measured size bands only (too few to fit a curve).'}{' '}
                 {c.at.map((p) => `${fmtDiameter(p.diameterM)}: ${fmtPct(p.efficiency)}`).join(' · ')}
               </figcaption>
             </figure>

@@ -1,0 +1,119 @@
+/**
+ * Tools & cleans: adders per wafer pass per tool and chamber (src/store/tools.ts), and each
+ * clean's removal efficiency PRE(d) from the model library (src/model/clean.ts). A clean stated
+ * by its logistic parameters is drawn from them; a clean stated by measured size bands shows the
+ * bands (PRE = 1 − after/before) and the logistic fitted to them by binomial maximum likelihood
+ * (fitRemovalCurve), when three or more bands can be used.
+ *
+ * The tools file writes the logistic in log10 d with a width w in decades,
+ * PRE = E/(1 + exp(−(log10 d − log10 d50)/w)); the model writes it in ln d with a steepness k,
+ * PRE = E/(1 + (d50/d)^k). They are the same curve with k = 1/(w · ln 10).
+ */
+import type { Hono } from 'hono';
+import { type CleanView, type ToolRow, ToolsPage } from '../../../views/pages/tools.tsx';
+import { fitRemovalCurve, type RemovalCurveParams, removalEfficiency } from '../../model/clean.ts';
+import { ModelInputError } from '../../model/errors.ts';
+import { SPECTRUM_CENTRES_M } from '../../model/spectrum.ts';
+import { listTools, readCleans, type StoredClean, toolKey } from '../../store/tools.ts';
+import { ledgerPassesByTool } from '../../store/views-tools.ts';
+import type { AppContext } from '../context.ts';
+import { renderPage } from '../render.ts';
+
+/** Reference sizes for the table under each curve: a scan threshold, 100 nm, 300 nm. */
+const REFERENCE_SIZES_M = [45e-9, 100e-9, 300e-9];
+
+/** The model's parameters of a logistic stated with a width in decades of log10 d. */
+export function paramsFromWidth(
+  maxEfficiency: number,
+  halfSizeM: number,
+  widthDecades: number,
+): RemovalCurveParams {
+  return { d50M: halfSizeM, maxEfficiency, steepness: 1 / (widthDecades * Math.LN10) };
+}
+
+function curveOf(p: RemovalCurveParams) {
+  const pre = (d: number) => removalEfficiency(d, p);
+  return {
+    curve: Array.from(SPECTRUM_CENTRES_M)
+      .filter((d) => d <= 10e-6)
+      .map((d) => ({ diameterM: d, efficiency: pre(d) })),
+    at: REFERENCE_SIZES_M.map((d) => ({ diameterM: d, efficiency: pre(d) })),
+  };
+}
+
+export function cleanView(c: StoredClean): CleanView {
+  const r = c.removal;
+  const base = { cleanId: c.cleanId, name: c.name, toolId: c.toolId, recipe: c.recipe, curveKind: r.model };
+  if (r.model === 'logistic-log-d') {
+    const p = paramsFromWidth(r.maxEfficiency, r.halfSizeM, r.widthDecades);
+    return {
+      ...base,
+      params: { maxEfficiency: r.maxEfficiency, halfSizeM: r.halfSizeM, widthDecades: r.widthDecades },
+      fitted: false,
+      measured: [],
+      ...curveOf(p),
+    };
+  }
+  const measured = r.bands
+    .filter((b) => b.before > 0)
+    .map((b) => ({ fromM: b.fromM, toM: b.toM, efficiency: 1 - b.after / b.before, n: b.before }));
+  try {
+    const fit = fitRemovalCurve(
+      r.bands.map((b) => ({ lowerM: b.fromM, upperM: b.toM, before: b.before, after: b.after })),
+    );
+    const p = fit.params;
+    return {
+      ...base,
+      params: {
+        maxEfficiency: p.maxEfficiency,
+        halfSizeM: p.d50M,
+        widthDecades: 1 / (p.steepness * Math.LN10),
+      },
+      fitted: true,
+      measured,
+      ...curveOf(p),
+    };
+  } catch (e) {
+    // Fewer than three usable bands: show the bands alone.
+    if (!(e instanceof ModelInputError)) throw e;
+    return { ...base, params: null, fitted: false, measured, curve: [], at: [] };
+  }
+}
+
+export function register(app: Hono, ctx: AppContext): void {
+  app.get('/tools', (c) => {
+    const passes = ledgerPassesByTool(ctx.db);
+    const tools: ToolRow[] = listTools(ctx.db).map((t) => {
+      const a = t.adders;
+      let adders: ToolRow['adders'] = null;
+      if (a?.model === 'power-law')
+        adders = { countAbove: a.countAbove, atDiameterM: a.atDiameterM, slope: a.slope, model: a.model };
+      else if (a?.model === 'bands' && a.bands.length > 0) {
+        const lowest = Math.min(...a.bands.map((b) => b.fromM));
+        adders = {
+          countAbove: a.bands.reduce((s, b) => s + b.count, 0),
+          atDiameterM: lowest,
+          slope: null,
+          model: a.model,
+        };
+      }
+      return {
+        toolId: t.toolId,
+        chamber: t.chamber,
+        name: t.name,
+        kind: t.toolKind,
+        adders,
+        uncertaintyFactor: t.adderUncertaintyFactor,
+        passes: passes.get(toolKey(t.toolId, t.chamber)) ?? 0,
+      };
+    });
+    const cleans = Object.values(readCleans(ctx.db))
+      .sort((a, b) => a.cleanId.localeCompare(b.cleanId))
+      .map(cleanView);
+    return renderPage(c, ctx, {
+      title: 'Tools & cleans',
+      active: '/tools',
+      body: ToolsPage({ tools, cleans }),
+    });
+  });
+}
