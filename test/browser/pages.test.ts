@@ -79,4 +79,15 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     await page.screenshot({ path: screenshotPath('areas'), fullPage: true });
     expect(errors).toEqual([]);
   });
+
+  it('Tools & cleans: adders table and one removal-curve chart per clean with marks', async () => {
+    const { page, errors } = await open('tools');
+    expect(await page.locator('h1').textContent()).toBe('Tools & cleans');
+    expect(await page.locator('table.vc-adders tbody tr').count()).toBe(5);
+    expect(await page.locator('svg[data-chart="removal-curve"]').count()).toBe(3);
+    expect(await page.locator('[data-clean="RINSE"] .vc-band').count()).toBe(4);
+    expect(await page.locator('[data-clean="PBC-MEG"] .vc-curve').count()).toBe(1);
+    await page.screenshot({ path: screenshotPath('tools'), fullPage: true });
+    expect(errors).toEqual([]);
+  });
 });

@@ -54,7 +54,7 @@ export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[] }) {
               <th>Chamber</th>
               <th>Kind</th>
               <th class="num">Adders per pass</th>
-              <th class="num">Slope α</th>
+              <th class="num">Power-law slope</th>
               <th class="num">Uncertainty (95 %)</th>
               <th class="num">Passes in ledger</th>
             </tr>
