@@ -49,24 +49,25 @@ function inRange(v: number, r: NumberRule): boolean {
  * A character-level check equivalent to NUMBER_TEXT (no regex engine on the hot path).
  * Exported for the agreement test.
  */
+function isDigitAt(s: string, k: number): boolean {
+  const c = s.charCodeAt(k);
+  return c >= 48 && c <= 57;
+}
+
 export function isNumberText(s: string): boolean {
   const n = s.length;
-  const isDigit = (k: number) => {
-    const c = s.charCodeAt(k);
-    return c >= 48 && c <= 57;
-  };
   let i = 0;
   if (n === 0) return false;
   const c0 = s.charCodeAt(0);
   if (c0 === 43 || c0 === 45) i++;
   let digits = 0;
-  while (i < n && isDigit(i)) {
+  while (i < n && isDigitAt(s, i)) {
     i++;
     digits++;
   }
   if (i < n && s.charCodeAt(i) === 46) {
     i++;
-    while (i < n && isDigit(i)) {
+    while (i < n && isDigitAt(s, i)) {
       i++;
       digits++;
     }
@@ -76,7 +77,7 @@ export function isNumberText(s: string): boolean {
     i++;
     if (i < n && (s.charCodeAt(i) === 43 || s.charCodeAt(i) === 45)) i++;
     let e = 0;
-    while (i < n && isDigit(i)) {
+    while (i < n && isDigitAt(s, i)) {
       i++;
       e++;
     }
@@ -158,6 +159,7 @@ export function enumCell<T extends string>(values: readonly T[]): Cell<T> {
   return {
     schema,
     fast: (s) => {
+      if (set.has(s)) return s as T;
       const v = normaliseToken(s);
       return set.has(v) ? (v as T) : CELL_FAIL;
     },

@@ -305,6 +305,8 @@ export class CsvReader {
 }
 
 function isBlank(row: string[]): boolean {
+  const first = row[0]!;
+  if (first.length > 0 && first.charCodeAt(0) > 32) return false;
   for (const c of row) if (c.trim() !== '') return false;
   return true;
 }

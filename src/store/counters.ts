@@ -45,6 +45,8 @@ export interface CounterSamples {
   importId: Int32Array;
 }
 
+const LITTLE_ENDIAN = new Uint8Array(new Float64Array([1]).buffer)[7] === 0x3f;
+
 interface Statements {
   location: { get: (id: string) => unknown };
   range: { raw: (on: boolean) => { all: (...a: unknown[]) => unknown[][] } };
@@ -124,6 +126,8 @@ export function readCounterSamples(
     roomState: new Uint8Array(n),
     importId: new Int32Array(n),
   };
+  if (!LITTLE_ENDIAN) throw new Error('readCounterSamples needs a little-endian platform');
+  const countBytes = new Uint8Array(out.counts.buffer);
   let i = 0;
   for (const r of rows) {
     const start = r[0] as number;
@@ -145,7 +149,9 @@ export function readCounterSamples(
     const blob = r[5] as Buffer;
     const k = blob.length >> 3;
     const base = i * width;
-    for (let c = 0; c < k; c++) out.counts[base + c] = blob.readDoubleLE(c * 8);
+    // One copy of the little-endian doubles into the array's bytes (every platform Node supports
+    // in production is little-endian; checked once below).
+    countBytes.set(blob, base * 8);
     for (let c = k; c < width; c++) out.counts[base + c] = Number.NaN;
     out.flags[i] = r[6] as number;
     out.roomState[i] = r[7] as number;

@@ -324,7 +324,12 @@ interface Series {
   longestGapMs: number;
   backwards: number;
   zero: { from: number; to: number; volume: number; n: number; flagged: boolean } | null;
-  repeat: { key: string; from: number; to: number; n: number } | null;
+  repeat: { counts: Float64Array; from: number; to: number; n: number } | null;
+}
+
+function sameCounts(a: Float64Array, b: Float64Array): boolean {
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
 }
 
 const FLAG_TEXT = {
@@ -779,8 +784,8 @@ export const counterSamples: ImportKind = {
         if (s.typical !== null && dt > QUALITY.gapFactor * s.typical) flags |= SAMPLE_FLAGS.gapBefore;
         const zero = total === 0;
         if (zero && s.zero && s.zero.flagged) flags |= SAMPLE_FLAGS.zeroRun;
-        const repeatKey = !zero && total >= QUALITY.repeatMinTotal ? counts.join(',') : '';
-        const repeating = repeatKey !== '' && s.repeat !== null && s.repeat.key === repeatKey;
+        const repeatable = !zero && total >= QUALITY.repeatMinTotal;
+        const repeating = repeatable && s.repeat !== null && sameCounts(s.repeat.counts, counts);
         if (repeating && s.repeat!.n + 1 >= QUALITY.repeatRun) flags |= SAMPLE_FLAGS.sentinel;
 
         const roomCode = row.room_state
@@ -842,7 +847,7 @@ export const counterSamples: ImportKind = {
           }
         } else if (s.zero) closeZeroRun(s);
         // Repeated identical rows.
-        if (repeatKey === '') s.repeat = null;
+        if (!repeatable) s.repeat = null;
         else if (repeating) {
           const r = s.repeat!;
           r.n++;
@@ -852,7 +857,12 @@ export const counterSamples: ImportKind = {
             tally.sentinel += r.n;
           } else if (r.n > QUALITY.repeatRun) tally.sentinel++;
         } else {
-          s.repeat = { key: repeatKey, from: start, to: start, n: 1 };
+          if (s.repeat) {
+            s.repeat.counts.set(counts);
+            s.repeat.from = start;
+            s.repeat.to = start;
+            s.repeat.n = 1;
+          } else s.repeat = { counts: Float64Array.from(counts), from: start, to: start, n: 1 };
           if (flags & SAMPLE_FLAGS.sentinel) tally.sentinel++;
         }
         return 'stored';

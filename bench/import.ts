@@ -1,0 +1,215 @@
+/**
+ * Import benchmark (not a test): counter-sample files end to end through importFile, against the
+ * sqlite3 command-line shell's `.import` of the same file into an equivalent table, in the same run.
+ *
+ *   node --import tsx bench/import.ts [--rows 1000000] [--rss-rows 5000000] [--keep]
+ *
+ * 1. Generates a counter-samples file (12 locations, one counter each, one-minute samples,
+ *    6 cumulative channels) in a temp directory.
+ * 2. Imports it through importFile into a fresh database file (locations first); reports rows/s.
+ * 3. Imports the same file with `/usr/bin/sqlite3` (`.mode csv`, `.import --skip`) into a table with
+ *    the same columns and the same primary key (the de-duplication key, clustered WITHOUT ROWID);
+ *    reports rows/s and the ratio ours / sqlite3 (target ≥ 0.5).
+ * 4. Reads two weeks of one-minute data at all 12 locations with readCounterSamples and reports the time.
+ * 5. In a child process, imports a --rss-rows file and reports its peak resident set size
+ *    (process.resourceUsage().maxRSS; target < 250 MB).
+ */
+import { execFileSync, spawnSync } from 'node:child_process';
+import { closeSync, mkdtempSync, openSync, rmSync, statSync, writeSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { importFile } from '../src/ingest/pipeline.ts';
+import { readCounterSamples } from '../src/store/counters.ts';
+import { migrate, openDatabase } from '../src/store/db.ts';
+
+const LOCATIONS = 12;
+const CHANNELS = ['ge_0.1um', 'ge_0.2um', 'ge_0.3um', 'ge_0.5um', 'ge_1um', 'ge_5um'];
+const START_MS = Date.UTC(2026, 1, 1);
+const METADATA_LINES = 3;
+
+/** Deterministic xorshift32 (Marsaglia 2003), for reproducible files. */
+function rng(seed: number) {
+  let x = seed >>> 0 || 1;
+  return () => {
+    x ^= x << 13;
+    x >>>= 0;
+    x ^= x >>> 17;
+    x ^= x << 5;
+    x >>>= 0;
+    return x / 4294967296;
+  };
+}
+
+export function writeLocations(path: string): void {
+  const lines = ['# format: voidcast locations 1', 'location_id,parent_id,level,environment,iso_class'];
+  lines.push('FAB,,site,open-room,');
+  for (let l = 0; l < LOCATIONS; l++) lines.push(`LOC-${l + 1},FAB,point,mini-environment,4`);
+  const fd = openSync(path, 'w');
+  writeSync(fd, `${lines.join('\n')}\n`);
+  closeSync(fd);
+}
+
+/** Writes `rows` samples: location-interleaved, one-minute samples, cumulative counts falling with size. */
+export function writeCounterFile(path: string, rows: number): void {
+  const rand = rng(20260201);
+  const fd = openSync(path, 'w');
+  let buf = [
+    '# format: voidcast counter-samples 1',
+    '# units: counts=raw',
+    '# rated_max: 4000000 per_ft3',
+    `counter_id,location_id,start,duration_s,volume_L,${CHANNELS.join(',')},status,room_state`,
+    '',
+  ].join('\n');
+  for (let i = 0; i < rows; i++) {
+    const l = i % LOCATIONS;
+    const minute = Math.floor(i / LOCATIONS);
+    const start = new Date(START_MS + minute * 60_000).toISOString().replace('.000Z', 'Z');
+    let c = Math.floor(200 + rand() * 800);
+    const counts: number[] = [];
+    for (let k = 0; k < CHANNELS.length; k++) {
+      counts.push(c);
+      c = Math.floor(c * (0.2 + rand() * 0.4));
+    }
+    buf += `PC-${l + 1},LOC-${l + 1},${start},60,28.3,${counts.join(',')},ok,operational\n`;
+    if (buf.length > 1 << 20) {
+      writeSync(fd, buf);
+      buf = '';
+    }
+  }
+  writeSync(fd, buf);
+  closeSync(fd);
+}
+
+function sqliteImport(dir: string, csv: string): number {
+  const db = join(dir, 'sqlite3-baseline.db');
+  rmSync(db, { force: true });
+  const script = join(dir, 'baseline.sql');
+  const fd = openSync(script, 'w');
+  writeSync(
+    fd,
+    [
+      'PRAGMA journal_mode = WAL;',
+      'PRAGMA synchronous = NORMAL;',
+      `CREATE TABLE samples (counter_id TEXT NOT NULL, location_id TEXT NOT NULL, start TEXT NOT NULL,
+        duration_s REAL NOT NULL, volume_l REAL NOT NULL, ${CHANNELS.map((c) => `"${c}" INTEGER NOT NULL`).join(', ')},
+        status TEXT, room_state TEXT, PRIMARY KEY (location_id, start, counter_id, duration_s)) WITHOUT ROWID;`,
+      '.mode csv',
+      `.import --skip ${METADATA_LINES + 1} ${csv} samples`,
+      'SELECT count(*) FROM samples;',
+      '',
+    ].join('\n'),
+  );
+  closeSync(fd);
+  const t0 = performance.now();
+  const out = execFileSync('/usr/bin/sqlite3', [db, `.read ${script}`], { encoding: 'utf8' });
+  const ms = performance.now() - t0;
+  const n = Number(out.trim().split('\n').at(-1));
+  if (!Number.isFinite(n) || n <= 0) throw new Error(`sqlite3 baseline imported nothing: ${out}`);
+  return ms;
+}
+
+async function importOurs(dir: string, csv: string, name: string) {
+  const dbFile = join(dir, `${name}.db`);
+  for (const ext of ['', '-wal', '-shm']) rmSync(dbFile + ext, { force: true });
+  const db = openDatabase(dbFile);
+  migrate(db);
+  const locs = join(dir, 'locations.csv');
+  writeLocations(locs);
+  const lr = await importFile(db, { kind: 'locations', path: locs });
+  if (lr.status !== 'imported') throw new Error(`locations: ${JSON.stringify(lr.issues)}`);
+  const t0 = performance.now();
+  const r = await importFile(db, { kind: 'counter-samples', path: csv });
+  const ms = performance.now() - t0;
+  if (r.status !== 'imported')
+    throw new Error(`counter samples: ${r.status} ${JSON.stringify(r.issues.slice(0, 3))}`);
+  return { db, ms, report: r };
+}
+
+async function child(csv: string, dir: string) {
+  const { ms, report, db } = await importOurs(dir, csv, 'rss');
+  db.close();
+  const maxRssKb = process.resourceUsage().maxRSS;
+  process.stdout.write(`${JSON.stringify({ ms, rows: report.rowsStored, maxRssKb })}\n`);
+}
+
+async function main() {
+  const args = process.argv.slice(2);
+  if (args[0] === '--child') return child(args[1]!, args[2]!);
+  const opt = (name: string, def: number) => {
+    const i = args.indexOf(name);
+    return i === -1 ? def : Number(args[i + 1]);
+  };
+  const rows = opt('--rows', 1_000_000);
+  const rssRows = opt('--rss-rows', 5_000_000);
+  const dir = mkdtempSync(join(tmpdir(), 'voidcast-bench-'));
+  try {
+    const csv = join(dir, 'counters.csv');
+    let t = performance.now();
+    writeCounterFile(csv, rows);
+    const mb = statSync(csv).size / 1e6;
+    console.log(
+      `generated ${rows.toLocaleString('en-US')} rows, ${mb.toFixed(1)} MB in ${((performance.now() - t) / 1000).toFixed(1)} s`,
+    );
+
+    const ours = await importOurs(dir, csv, 'voidcast');
+    const oursRate = rows / (ours.ms / 1000);
+    console.log(
+      `importFile:      ${(ours.ms / 1000).toFixed(2)} s  ${Math.round(oursRate).toLocaleString('en-US')} rows/s`,
+    );
+    const baseMs = sqliteImport(dir, csv);
+    const baseRate = rows / (baseMs / 1000);
+    console.log(
+      `sqlite3 .import: ${(baseMs / 1000).toFixed(2)} s  ${Math.round(baseRate).toLocaleString('en-US')} rows/s`,
+    );
+    console.log(`ratio importFile / sqlite3 = ${(oursRate / baseRate).toFixed(2)} (target ≥ 0.5)`);
+
+    // The engine's read: two weeks of one-minute data at every location.
+    const from = START_MS;
+    const to = START_MS + 14 * 86_400_000;
+    t = performance.now();
+    let n = 0;
+    for (let l = 0; l < LOCATIONS; l++) n += readCounterSamples(ours.db, `LOC-${l + 1}`, from, to).n;
+    const readMs = performance.now() - t;
+    console.log(
+      `readCounterSamples: ${n.toLocaleString('en-US')} samples (14 days × ${LOCATIONS} locations) in ${readMs.toFixed(0)} ms`,
+    );
+    ours.db.close();
+
+    if (rssRows > 0) {
+      const big = join(dir, 'counters-big.csv');
+      t = performance.now();
+      writeCounterFile(big, rssRows);
+      rmSync(csv, { force: true });
+      console.log(
+        `generated ${rssRows.toLocaleString('en-US')} rows, ${(statSync(big).size / 1e6).toFixed(0)} MB in ${((performance.now() - t) / 1000).toFixed(1)} s`,
+      );
+      const self = fileURLToPath(import.meta.url);
+      const r = spawnSync(process.execPath, ['--import', 'tsx', self, '--child', big, dir], {
+        encoding: 'utf8',
+        cwd: join(dirname(self), '..'),
+      });
+      if (r.status !== 0) throw new Error(`child failed: ${r.stderr}`);
+      const res = JSON.parse(r.stdout.trim().split('\n').at(-1)!) as {
+        ms: number;
+        rows: number;
+        maxRssKb: number;
+      };
+      console.log(
+        `${res.rows.toLocaleString('en-US')} rows in a child process: ${(res.ms / 1000).toFixed(1)} s, ${Math.round(res.rows / (res.ms / 1000)).toLocaleString('en-US')} rows/s, peak RSS ${(res.maxRssKb / 1024).toFixed(0)} MB (target < 250 MB)`,
+      );
+    }
+  } finally {
+    if (!args.includes('--keep')) rmSync(dir, { recursive: true, force: true });
+    else console.log(`kept ${dir}`);
+  }
+}
+
+function dirname(p: string): string {
+  return p.slice(0, p.lastIndexOf('/'));
+}
+
+export const name = 'import';
+export { main as run };
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) await main();
