@@ -6,7 +6,7 @@
  * freedom k need not be an integer.
  */
 import { requireNumber } from '../errors.ts';
-import { logGammaPrefactor, regularizedGammaP, regularizedGammaQ } from './gamma.ts';
+import { logGamma, logGammaPrefactor, regularizedGammaP, regularizedGammaQ } from './gamma.ts';
 
 /** Smallest degrees of freedom accepted (below it the quantile underflows for ordinary p). */
 export const CHI_SQUARE_MIN_DF = 0.1;
@@ -76,9 +76,7 @@ function startValue(p: number, a: number): number {
   const c = 2 / (9 * k);
   const base = 1 - c + approxNormalQuantile(p) * Math.sqrt(c);
   if (base > 0 && (k >= 1 || p >= 0.5)) return (k * base ** 3) / 2;
-  // ln Γ(a + 1) = ln Γ(a) + ln a; logGammaPrefactor(a, 1) = −1 − ln Γ(a).
-  const lnGammaA = -1 - logGammaPrefactor(a, 1);
-  return Math.exp((Math.log(p) + lnGammaA + Math.log(a)) / a);
+  return Math.exp((Math.log(p) + logGamma(a + 1)) / a);
 }
 
 /**
@@ -116,8 +114,10 @@ function gammaQuantile(p: number, a: number): number {
   if (y === 0) return 0; // the quantile underflows
   let previousAbsF = Number.POSITIVE_INFINITY;
   for (let iter = 0; iter < 300; iter++) {
+    if (y === 0) return 0; // bisection toward 0 underflowed: the quantile is below the smallest double
     const fy = f(y);
-    if (fy === 0) return y;
+    // Converged when f is within the precision of the target tail probability itself.
+    if (Math.abs(fy) <= 1e-13 * (upper ? q : p)) return y;
     if (fy < 0) lo = y;
     else hi = y;
     // Halley step. P'(y) = y^(a−1) e^(−y) / Γ(a);  P''/P' = (a − 1)/y − 1.
@@ -132,8 +132,9 @@ function gammaQuantile(p: number, a: number): number {
     // |f| did not at least halve (Halley crawling where the density is tiny, far from the root).
     const stalled = Math.abs(fy) > 0.5 * previousAbsF;
     if (!(next > lo && next < hi) || stalled) {
-      if (!Number.isFinite(hi)) next = Math.max(y, 1) * 4;
-      else if (lo === 0) next = hi / 4;
+      // Expand or shrink geometrically when one side is still open (fast across many decades).
+      if (!Number.isFinite(hi)) next = Math.max(4 * y, Math.sqrt(y));
+      else if (lo === 0) next = Math.min(hi / 4, hi * hi);
       else if (hi / lo > 10) next = Math.sqrt(lo * hi);
       else next = 0.5 * (lo + hi);
     }

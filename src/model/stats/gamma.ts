@@ -74,10 +74,25 @@ function log1pMinus(t: number): number {
 }
 
 /**
- * Natural log of the prefactor x^a e^(−x) / Γ(a) shared by the series and the continued fraction.
- * Exported for the chi-square quantile (it is the density of the gamma law times x).
+ * Natural logarithm of the gamma-law prefactor x^a e^(−x) / Γ(a) (= x times the gamma density
+ * with shape a at x), shared by the series, the continued fraction and the chi-square quantile.
+ *
+ * For a < 10: a ln x − x − ln Γ(a). For a ≥ 10: Stirling's series,
+ * a·[ln(x/a) − (x/a − 1)] + ½ ln(a / 2π) − c(a), with c(a) = 1/(12a) − 1/(360a³) + …, and the bracket
+ * by its cancellation-free series near x ≈ a (Press et al. 2007, §6.1 for Stirling's series).
+ *
+ * @param a shape, dimensionless, 0 < a ≤ 10⁹
+ * @param x dimensionless, finite and > 0
+ * @throws ModelInputError for a or x non-finite or out of range
+ * @example logGammaPrefactor(1, 2) // −2 + ln 2 = −1.3068528194400546
  */
 export function logGammaPrefactor(a: number, x: number): number {
+  requireNumber('logGammaPrefactor', 'a', a, '', { min: 0, minExclusive: true, max: GAMMA_MAX_SHAPE });
+  requireNumber('logGammaPrefactor', 'x', x, '', { min: 0, minExclusive: true });
+  return prefactorUnchecked(a, x);
+}
+
+function prefactorUnchecked(a: number, x: number): number {
   if (a < 10) return a * Math.log(x) - x - logGammaUnchecked(a);
   const r = x / a;
   // a·[ln(x/a) − (x/a − 1)]: via the cancellation-free series near x ≈ a, directly elsewhere
@@ -102,7 +117,7 @@ function seriesP(a: number, x: number): number {
     ap += 1;
     del *= x / ap;
     sum += del;
-    if (Math.abs(del) < Math.abs(sum) * EPS) return sum * Math.exp(logGammaPrefactor(a, x));
+    if (Math.abs(del) < Math.abs(sum) * EPS) return sum * Math.exp(prefactorUnchecked(a, x));
   }
   throw new ModelInputError('regularizedGammaP', 'a', '', 'a value for which the series converges', a);
 }
@@ -124,7 +139,7 @@ function continuedFractionQ(a: number, x: number): number {
     d = 1 / d;
     const del = d * c;
     h *= del;
-    if (Math.abs(del - 1) <= EPS) return Math.exp(logGammaPrefactor(a, x)) * h;
+    if (Math.abs(del - 1) <= EPS) return Math.exp(prefactorUnchecked(a, x)) * h;
   }
   throw new ModelInputError(
     'regularizedGammaQ',

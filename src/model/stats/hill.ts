@@ -122,10 +122,9 @@ export interface TruncatedPowerLawEstimate {
 
 /*
  * The truncated power law in y = ln(x / L) ∈ [0, c], c = ln(U / L), is a truncated exponential
- * law with density α e^(−αy) / Z(α)·α … written here with Z(α) = (1 − e^(−cα)) / α (Z(0) = c):
- *   f_Y(y) = e^(−αy) / Z(α).
- * It is an exponential family in α, so the log-likelihood is concave, the score equation is
- * "model mean of Y = sample mean of Y", and the Fisher information is n·Var(Y).
+ * law, f_Y(y) = e^(−αy) / Z(α) with Z(α) = (1 − e^(−cα)) / α (Z(0) = c). It is an exponential
+ * family in α, so the log-likelihood is concave, the score equation reads "model mean of Y =
+ * sample mean of Y", and the Fisher information is n·Var(Y).
  */
 
 /** ln Z(α) with Z = (1 − e^(−u)) / α, u = cα; stable for all real α. */

@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { ModelInputError } from '../../../../src/model/errors.ts';
-import { logGamma, regularizedGammaP, regularizedGammaQ } from '../../../../src/model/stats/gamma.ts';
+import {
+  logGamma,
+  logGammaPrefactor,
+  regularizedGammaP,
+  regularizedGammaQ,
+} from '../../../../src/model/stats/gamma.ts';
 import { jStat } from './jstat.ts';
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), Number.MIN_VALUE);
@@ -107,5 +112,23 @@ describe('regularizedGammaP / regularizedGammaQ', () => {
       for (const x of [-1e-9, Number.NaN, Number.POSITIVE_INFINITY])
         expect(() => fn(1, x)).toThrow(new RegExp(`${fn.name}: x = .*allowed ≥ 0`));
     }
+  });
+});
+
+describe('logGammaPrefactor', () => {
+  it('equals a ln x − x − ln Γ(a) computed directly, on both sides of the Stirling switch at a = 10', () => {
+    // Direct form loses ~|a ln x|·1e-16 absolutely; 1e-11 absolute covers a ≤ 1000 here.
+    for (const a of [0.3, 2, 9.99, 10, 37.5, 1000])
+      for (const f of [0.01, 0.4, 0.9, 1, 1.2, 1.6, 5]) {
+        const x = a * f;
+        expect(Math.abs(logGammaPrefactor(a, x) - (a * Math.log(x) - x - logGamma(a)))).toBeLessThan(1e-11);
+      }
+    expect(logGammaPrefactor(1, 2)).toBeCloseTo(Math.log(2) - 2, 15);
+  });
+
+  it('rejects bad a and x with ModelInputError', () => {
+    expect(() => logGammaPrefactor(0, 1)).toThrow(/logGammaPrefactor: a = 0/);
+    expect(() => logGammaPrefactor(1, 0)).toThrow(/logGammaPrefactor: x = 0 is out of range; allowed > 0/);
+    expect(() => logGammaPrefactor(1, Number.NaN)).toThrow(ModelInputError);
   });
 });
