@@ -13,6 +13,10 @@ export const DEFAULT_ASSESS_CONFIG: Readonly<AssessConfig> = Object.freeze({
   // 20 nm compact particle still holds a void of tens of µm in the small-gap regime, so stopping
   // higher would hide risk. Configurable.
   tailFloorM: 20e-9,
+  // 10 particles: the exact 95 % interval of α̂ is then about [0.48 α̂, 1.71 α̂] (2αS ~ χ²(20),
+  // Clauset et al. 2009); with fewer the slope is so loose that its upper end alone would hold
+  // every wafer, so the product's stated incoming slope is used instead and the note says so.
+  minTailParticles: 10,
   // 400 draws: the 2.5 % / 97.5 % quantiles then rest on 10 draws each side — enough for a
   // decision interval (their Monte Carlo standard error is ≈ 1.6 % of the spread), fast per pair.
   draws: 400,
@@ -34,6 +38,7 @@ export const DEFAULT_ASSESS_CONFIG: Readonly<AssessConfig> = Object.freeze({
   // Typical unidirectional cleanroom downflow 0.3–0.5 m/s (common practice, no source); 0.3 m/s
   // is the lower end (lower flow → thicker boundary layer → less diffusion, conservative for size).
   defaultAirVelocityMps: 0.3,
+  fixedDepositionVelocityMps: null,
   // Unit density, the convention of aerosol size statistics (Hinds 1999).
   particleDensityKgM3: 1000,
   maxMapDiscs: 5000,

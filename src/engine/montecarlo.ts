@@ -10,7 +10,8 @@
  * - each tool's adder level ~ lognormal, median its stated level, 95 % within ×/÷ its uncertainty factor
  *   (one factor per tool per draw: a tool's mean level is what is uncertain);
  * - each scan tail's Hill slope α ~ Gamma(n, 1/S): the distribution of the exact pivot 2αS ~ χ²(2n)
- *   of Clauset, Shalizi & Newman (2009), so α lands in its exact interval with the stated probability;
+ *   of Clauset, Shalizi & Newman (2009), so α lands in its exact interval with the stated probability
+ *   (a tail with too few particles for a fit keeps the assumed slope);
  * then counting noise: reportable voids ~ Poisson(expected voids) (detected particles' Bernoulli
  * survivals are taken as Poisson: the same mean and a variance at least as large, the conservative
  * side); for the unbonded area the particle count of each bin ~ Poisson and the Boolean exponent is
@@ -125,7 +126,7 @@ export function simulate(args: {
       const v = c.variation;
       if (c.detected) continue;
       if (v.type === 'tail') {
-        const a = rng.gamma(v.n, 1 / v.sumLog);
+        const a = v.fixedAlpha ?? rng.gamma(v.n, 1 / v.sumLog);
         const s = propagation.tailSpectrum(v.n, a, v.thresholdM, v.floorM);
         for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += (s[k]! * c.survivalBins[k]!) / c.areaBasisM2;
         continue;

@@ -36,7 +36,7 @@ import type {
 
 /** How a contribution's spectrum varies in the Monte Carlo. */
 export type Variation =
-  | { type: 'tail'; n: number; sumLog: number; thresholdM: number; floorM: number }
+  | { type: 'tail'; n: number; sumLog: number; thresholdM: number; floorM: number; fixedAlpha: number | null }
   | { type: 'wait' }
   | { type: 'tool'; toolKey: string; uncertaintyFactor: number }
   | { type: 'incoming' }
@@ -236,15 +236,28 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
     });
     const fit = p.count > 0 ? physics.hill(p.diameterM, scan.thresholdM, a.confidence) : null;
     const floor = Math.min(config.tailFloorM, scan.thresholdM);
-    if (fit && fit.n >= 2 && floor < scan.thresholdM) {
-      tail = {
-        scanId: scan.scanId,
-        n: fit.n,
-        thresholdM: scan.thresholdM,
-        alpha: fit.alpha,
-        lower: fit.lower,
-        upper: fit.upper,
-      };
+    const nAbove = fit?.n ?? 0;
+    if (floor < scan.thresholdM && nAbove > 0) {
+      const fitted = fit !== null && nAbove >= config.minTailParticles;
+      const alpha = fitted ? fit.alpha : product.incoming.slope;
+      tail = fitted
+        ? {
+            scanId: scan.scanId,
+            n: nAbove,
+            thresholdM: scan.thresholdM,
+            alpha: fit.alpha,
+            lower: fit.lower,
+            upper: fit.upper,
+          }
+        : { scanId: scan.scanId, n: nAbove, thresholdM: scan.thresholdM, alpha, lower: alpha, upper: alpha };
+      if (!fitted)
+        notes.push({
+          code: 'tail-slope-assumed',
+          text: `Scan ${scan.scanId} of ${roleWords} has ${nAbove} particle(s) at or above its threshold, fewer than the ${config.minTailParticles} a tail fit needs: the tail below it takes the product's incoming slope ${alpha}.`,
+          waferId: wafer.waferId,
+          locationId: null,
+          stepSeq: null,
+        });
       contributions.push({
         key: `${role}:tail`,
         kind: 'tail',
@@ -259,20 +272,19 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         scanId: scan.scanId,
         stepSeq: null,
         lastCleanId: null,
-        base: physics.tailSpectrum(fit.n, fit.alpha, scan.thresholdM, floor),
+        base: physics.tailSpectrum(nAbove, alpha, scan.thresholdM, floor),
         survivalBins: ones(),
         areaBasisM2: physics.scanAreaM2(scan.edgeExclusionM),
-        variation: { type: 'tail', n: fit.n, sumLog: fit.sumLog, thresholdM: scan.thresholdM, floorM: floor },
+        variation: {
+          type: 'tail',
+          n: nAbove,
+          sumLog: fit?.sumLog ?? 0,
+          thresholdM: scan.thresholdM,
+          floorM: floor,
+          fixedAlpha: fitted ? null : alpha,
+        },
         atBond: false,
         detected: null,
-      });
-    } else if (floor < scan.thresholdM) {
-      notes.push({
-        code: 'no-tail-fit',
-        text: `Scan ${scan.scanId} of ${roleWords} has ${fit?.n ?? 0} particle(s) at or above its threshold: too few to fit a tail; none is extrapolated below it.`,
-        waferId: wafer.waferId,
-        locationId: null,
-        stepSeq: null,
       });
     }
   } else {

@@ -224,6 +224,8 @@ export interface ToolInput {
   adders: PowerLawLevel | null;
   /** Relative uncertainty of the adder level: 95 % of passes within ×/÷ this factor (≥ 1). */
   adderUncertaintyFactor: number;
+  /** Adders per pass stated per size band instead of a power law (used when `adders` is null). */
+  adderBands?: { fromM: number; toM: number; count: number }[] | null;
 }
 
 /** A clean's removal-efficiency curve (logistic in log d — a modelling choice, Rooney, Pui & Grant 1990 data). */
@@ -236,8 +238,16 @@ export interface CleanInput {
   maxEfficiency: number;
   /** Diameter at which removal is half of maxEfficiency, m. */
   halfSizeM: number;
-  /** Logistic width in decades of diameter (larger: a softer transition). */
+  /**
+   * Logistic width w in decades of diameter: PRE(d) = E_max / (1 + exp(−(log10 d − log10 d50) / w))
+   * (larger: a softer transition; the steepness in ln d is k = 1/(w·ln 10)).
+   */
   widthDecades: number;
+  /**
+   * Measured before/after counts per size band instead of the logistic parameters; when present and
+   * non-empty the logistic curve is fitted to them (binomial maximum likelihood) and used.
+   */
+  removalBands?: { fromM: number; toM: number; before: number; after: number }[] | null;
 }
 
 /** Alert and action levels of a location: concentration ≥ a size. */
@@ -310,6 +320,11 @@ export interface LotInput {
 export interface AssessConfig {
   /** Smallest diameter the scan tail is extrapolated down to, m. */
   tailFloorM: number;
+  /**
+   * Fewest detected particles at or above a scan's threshold for a Hill fit of its tail; with fewer,
+   * the tail takes the product's incoming slope (stated in the notes).
+   */
+  minTailParticles: number;
   /** Monte Carlo draws for the intervals. */
   draws: number;
   /** Seed of the Monte Carlo (same inputs + seed → same intervals). */
@@ -318,7 +333,7 @@ export interface AssessConfig {
   closedIsolation: number;
   /** Isolation factor of a purged carrier. */
   purgedIsolation: number;
-  /** Deposition velocity multiplier (electrostatic charge etc.), nominal. */
+  /** Electrostatic multiplier on the diffusive deposition velocity, nominal (1: none). */
   depositionFactor: number;
   /** 95 % of the deposition uncertainty within ×/÷ this factor. */
   depositionUncertaintyFactor: number;
@@ -330,6 +345,11 @@ export interface AssessConfig {
   maxGapFraction: number;
   /** Default downflow velocity when a location states none, m/s. */
   defaultAirVelocityMps: number;
+  /**
+   * An effective deposition velocity for every size and orientation, m/s (e.g. measured on witness
+   * wafers); null: the physics (settling + stagnation-flow diffusion, Hinds 1999) per size bin.
+   */
+  fixedDepositionVelocityMps: number | null;
   /** Particle density for deposition, kg/m³. */
   particleDensityKgM3: number;
   /** Most void-map discs returned (largest expected void area first); the rest are counted. */

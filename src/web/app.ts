@@ -13,6 +13,7 @@ import { renderPage } from './render.ts';
 import * as calculators from './routes/calculators.tsx';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
+import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as imports from './routes/imports.tsx';
 import * as tools from './routes/tools.tsx';
@@ -25,7 +26,7 @@ const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
 
 /** Route modules, one per area of the product. Later areas add themselves here. */
-const ROUTES: RouteModule[] = [home, health, calculators, imports, areas, tools];
+const ROUTES: RouteModule[] = [home, health, calculators, imports, areas, tools, api];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();

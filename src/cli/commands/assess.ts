@@ -1,0 +1,204 @@
+/**
+ * `voidcast assess --lot <id> | --pair <id> [--json] [--as-of TIME] [--data DIR]`
+ */
+
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
+import { assessLotFromDb, assessPairFromDb } from '../../engine/loader.ts';
+import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
+import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
+import { parseOptions } from '../args.ts';
+import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
+import { resolveDataDir } from './serve.ts';
+
+/** Parses --as-of: an ISO 8601 time with a zone (Z or ±hh:mm) or UTC milliseconds; default now. */
+export function parseAsOf(value: string | undefined, nowMs: number): number {
+  if (value === undefined) return nowMs;
+  if (/^\d{10,}$/.test(value)) return Number(value);
+  if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(value))
+    throw new UsageError(
+      `--as-of must be UTC milliseconds or an ISO 8601 time with its zone (Z or ±hh:mm), got "${value}"`,
+    );
+  const t = Date.parse(value);
+  if (!Number.isFinite(t)) throw new UsageError(`--as-of is not a valid time: "${value}"`);
+  return t;
+}
+
+export function openExisting(dataFlag: string | undefined, io: CliIo) {
+  const dir = resolveDataDir(dataFlag, io);
+  const file = join(dir, DATABASE_FILE_NAME);
+  if (!existsSync(file)) return { db: null, file };
+  const db = openDatabase(file);
+  migrate(db);
+  return { db, file };
+}
+
+const CALL_WORD: Record<Call, string> = { bond: 'BOND', 're-clean': 'RE-CLEAN', hold: 'HOLD' };
+
+function est(e: Estimate | null, f: (x: number) => string = fmtCount): string {
+  if (!e) return '—';
+  return `${f(e.value)} [${f(e.low)}–${f(e.high)}]`;
+}
+
+function table(rows: string[][]): string {
+  const widths = rows[0]!.map((_, i) => Math.max(...rows.map((r) => (r[i] ?? '').length)));
+  return rows
+    .map((r) => r.map((c, i) => (i === r.length - 1 ? c : c.padEnd(widths[i]!))).join('  '))
+    .join('\n');
+}
+
+function figureLines(f: PairFigures, conf: number): string[] {
+  const pc = `${Math.round(conf * 100)} %`;
+  return [
+    `  particles at the interface   ${fmtCount(f.particles)}`,
+    `  reportable voids (${pc})      ${est(f.voids)}`,
+    `  unbonded area (${pc})         ${est(f.unbondedAreaM2, fmtMm2)}  (${est(f.unbondedFraction, fmtPercent)})`,
+    `  die kills Poisson (${pc})     ${est(f.dieKillsPoisson)}${f.dieCount ? ` of ${f.dieCount} dies` : ''}`,
+    `  die kills NB (${pc})          ${est(f.dieKillsNB)}`,
+    `  die yield (${pc})             ${est(f.dieYield, fmtPercent)}`,
+  ];
+}
+
+export function renderPair(a: PairAssessment): string {
+  const conf = a.figures.voids.confidence;
+  const out: string[] = [];
+  out.push(
+    `Pair ${a.pairId} (lot ${a.lotId}, product ${a.productId}): top ${a.topWaferId}, bottom ${a.bottomWaferId}`,
+    `assessed ${new Date(a.asOfMs).toISOString()} · model ${a.modelVersion} · spec ${a.specVersion} · ${a.draws} Monte Carlo draws (seed ${a.seed})`,
+    `inputs ${a.inputsHash}`,
+    '',
+    `CALL: ${CALL_WORD[a.call]}`,
+    ...a.reasons.map((r) => `  ${r.blocking ? '!' : '-'} ${r.text}`),
+    '',
+    `Figures (voids ≥ ${fmtSize(a.smallestReportableVoidM)}, from particles ≥ ${fmtSize(a.reportableParticleM)}; tail floor ${fmtSize(a.tailFloorM)}):`,
+    ...figureLines(a.figures, conf),
+  );
+  if (a.reclean) {
+    out.push(
+      '',
+      `After one more ${a.reclean.cleanLabel} (modelled${a.reclean.allowed ? '' : '; NOT allowed by the re-clean limit'}; ${a.reclean.meetsSpec ? 'meets' : 'does not meet'} spec):`,
+      ...figureLines(a.reclean.after, conf),
+    );
+  }
+  if (a.dominant)
+    out.push(
+      '',
+      `Dominant source: ${a.dominant.label} — ${fmtPercent(a.dominant.share)} of ${a.dominant.metric === 'dieKillEvents' ? 'die loss' : 'expected voids'}`,
+    );
+  const top = [...a.contributions]
+    .sort((x, y) => y.shareVoids + y.shareDieLoss - (x.shareVoids + x.shareDieLoss))
+    .slice(0, 12);
+  out.push(
+    '',
+    'Sources (largest first):',
+    table([
+      ['source', 'particles', 'voids', 'share voids', 'share area', 'share die loss'],
+      ...top.map((c) => [
+        c.label,
+        fmtCount(c.particles),
+        fmtCount(c.expectedVoids),
+        fmtPercent(c.shareVoids),
+        fmtPercent(c.shareArea),
+        fmtPercent(c.shareDieLoss),
+      ]),
+    ]),
+  );
+  const pareto = (title: string, es: { label: string; share: number }[]) => {
+    if (!es.length) return;
+    out.push('', `${title}:`, ...es.map((e) => `  ${fmtPercent(e.share).padStart(8)}  ${e.label}`));
+  };
+  pareto('Pareto by tool', a.pareto.byTool);
+  pareto('Pareto by wait location', a.pareto.byWaitLocation);
+  pareto('Pareto by clean (residual)', a.pareto.byClean);
+  pareto(
+    'Pareto by size band',
+    a.pareto.bySizeBand.filter((e) => e.share > 0),
+  );
+  if (a.qTimes.length)
+    out.push(
+      '',
+      'Q-times:',
+      ...a.qTimes.map(
+        (q) =>
+          `  ${q.waferId}  ${q.label}: ${q.elapsedS === null ? 'no such step' : fmtHours(q.elapsedS)} of ${fmtHours(q.limitS)}${q.exceeded ? '  EXCEEDED' : ''}`,
+      ),
+    );
+  if (a.notes.length) out.push('', 'Data notes:', ...a.notes.map((n) => `  - ${n.text}`));
+  if (a.caution) out.push('', `Caution: ${a.caution}`);
+  return `${out.join('\n')}\n`;
+}
+
+export function renderLot(l: LotAssessment): string {
+  const out: string[] = [];
+  out.push(
+    `Lot ${l.lotId} (product ${l.productId}), assessed ${new Date(l.asOfMs).toISOString()} · model ${l.modelVersion} · spec ${l.specVersion}`,
+    `CALL: ${CALL_WORD[l.call]}   (${l.counts.bond} bond, ${l.counts.reclean} re-clean, ${l.counts.hold} hold)`,
+    '',
+    table([
+      ['pair', 'call', 'voids', 'unbonded', 'die kills NB', 'dominant source'],
+      ...l.pairs.map((p) => [
+        p.pairId,
+        p.call,
+        est(p.figures.voids),
+        est(p.figures.unbondedFraction, fmtPercent),
+        est(p.figures.dieKillsNB),
+        p.dominant ? `${p.dominant.label} (${fmtPercent(p.dominant.share)})` : '—',
+      ]),
+    ]),
+  );
+  if (l.dominant)
+    out.push('', `Dominant source over the lot: ${l.dominant.label} — ${fmtPercent(l.dominant.share)}`);
+  out.push('', 'Reasons:', ...l.reasons.map((r) => `  ${r.blocking ? '!' : '-'} ${r.text}`));
+  if (l.caution) out.push('', `Caution: ${l.caution}`);
+  return `${out.join('\n')}\n`;
+}
+
+export const assess: Command = {
+  name: 'assess',
+  summary: 'assess a lot or a pair: expected voids, unbonded area, die loss and the call',
+  usage: `voidcast assess --lot <id> | --pair <id> [--json] [--as-of TIME] [--data DIR]
+
+  --lot ID     assess every pair of the lot
+  --pair ID    assess one pair in full (sources, Paretos, re-clean before/after)
+  --json       print the assessment as JSON (the same document as the JSON API)
+  --as-of T    assessment time: ISO 8601 with zone, or UTC ms (default now)
+  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)`,
+  async run(argv, io) {
+    const { values } = parseOptions(argv, {
+      lot: { type: 'string' },
+      pair: { type: 'string' },
+      json: { type: 'boolean' },
+      'as-of': { type: 'string' },
+      data: { type: 'string' },
+    });
+    if ((values.lot === undefined) === (values.pair === undefined))
+      throw new UsageError('give exactly one of --lot or --pair');
+    const asOfMs = parseAsOf(values['as-of'], Date.now());
+    const { db, file } = openExisting(values.data, io);
+    if (!db) {
+      io.err(`voidcast assess: no database at ${file} (import data or start the server first)\n`);
+      return EXIT.notFound;
+    }
+    try {
+      if (values.pair !== undefined) {
+        const a = assessPairFromDb(db, values.pair, { asOfMs, detail: values.json ? 'full' : 'full' });
+        if (!a) {
+          io.err(`voidcast assess: no pair "${values.pair}"\n`);
+          return EXIT.notFound;
+        }
+        io.out(values.json ? `${JSON.stringify(a)}\n` : renderPair(a));
+        return EXIT.ok;
+      }
+      const l = assessLotFromDb(db, values.lot!, { asOfMs });
+      if (!l) {
+        io.err(`voidcast assess: no lot "${values.lot}"\n`);
+        return EXIT.notFound;
+      }
+      io.out(values.json ? `${JSON.stringify(l)}\n` : renderLot(l));
+      return EXIT.ok;
+    } finally {
+      db.close();
+    }
+  },
+};

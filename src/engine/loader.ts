@@ -1,0 +1,285 @@
+/**
+ * The engine's only database access: reads a lot or a pair with everything its assessment needs
+ * through the store's helpers and hands plain inputs (src/engine/types.ts) to the pure engine; and
+ * stores sign-offs. Everything else in src/engine is pure.
+ */
+import { readCounterSeries } from '../store/counters.ts';
+import type { Db } from '../store/db.ts';
+import { insertDisposition } from '../store/dispositions.ts';
+import { getLocation } from '../store/locations.ts';
+import { listLots, readLot } from '../store/lots.ts';
+import { readProduct } from '../store/products.ts';
+import { latestScanBefore, readScanInput } from '../store/scans.ts';
+import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
+import { assessLotInSession } from './lot.ts';
+import { assessPairInSession, createSession } from './pair.ts';
+import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
+import type {
+  AssessOptions,
+  CleanInput,
+  CounterSeriesInput,
+  LedgerStepInput,
+  LineData,
+  LocationInput,
+  LotAssessment,
+  LotInput,
+  PairAssessment,
+  PairInput,
+  ProductInput,
+  ToolInput,
+  WaferInput,
+} from './types.ts';
+
+interface PairRow {
+  id: string;
+  product_id: string;
+  lot_id: string;
+  top_wafer_id: string;
+  bottom_wafer_id: string;
+  flip_axis: 'x' | 'y';
+  rotation_rad: number;
+  offset_x_m: number;
+  offset_y_m: number;
+  bonder_tool_id: string | null;
+  planned_bond_ms: number | null;
+}
+
+interface LedgerRow {
+  id: number;
+  wafer_id: string | null;
+  step: string;
+  kind: LedgerStepInput['kind'];
+  tool_id: string | null;
+  chamber: string | null;
+  recipe: string | null;
+  clean_id: string | null;
+  location_id: string | null;
+  carrier: LedgerStepInput['carrier'];
+  orientation: LedgerStepInput['orientation'];
+  start_ms: number;
+  end_ms: number | null;
+  reclean_count: number;
+}
+
+function tableExists(db: Db, name: string): boolean {
+  return Boolean(db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = ?").get(name));
+}
+
+function toToolInput(t: StoredTool): ToolInput {
+  return {
+    toolId: t.toolId,
+    chamber: t.chamber,
+    name: t.name,
+    adders:
+      t.adders?.model === 'power-law'
+        ? {
+            countAbove: t.adders.countAbove,
+            atDiameterM: t.adders.atDiameterM,
+            slope: t.adders.slope,
+            fromM: t.adders.fromM,
+          }
+        : null,
+    adderBands: t.adders?.model === 'bands' ? t.adders.bands : null,
+    adderUncertaintyFactor: t.adderUncertaintyFactor,
+  };
+}
+
+function toCleanInput(c: StoredClean): CleanInput {
+  const r = c.removal;
+  if (r.model === 'logistic-log-d')
+    return {
+      cleanId: c.cleanId,
+      name: c.name,
+      toolId: c.toolId,
+      maxEfficiency: r.maxEfficiency,
+      halfSizeM: r.halfSizeM,
+      widthDecades: r.widthDecades,
+      removalBands: null,
+    };
+  return {
+    cleanId: c.cleanId,
+    name: c.name,
+    toolId: c.toolId,
+    maxEfficiency: 0,
+    halfSizeM: 1e-7,
+    widthDecades: 1,
+    removalBands: r.bands,
+  };
+}
+
+function readLocations(db: Db, ids: string[]): Record<string, LocationInput> {
+  const out: Record<string, LocationInput> = {};
+  for (const id of ids) {
+    const r = getLocation(db, id);
+    if (!r) continue;
+    // The engine checks one action level per location: the smallest size that has one.
+    const l =
+      [...r.levels].filter((x) => x.actionPerM3 !== null).sort((x, y) => x.diameterM - y.diameterM)[0] ??
+      r.levels[0];
+    out[id] = {
+      locationId: r.locationId,
+      name: r.name,
+      environment: r.environment,
+      isoClass: r.isoClass,
+      airVelocityMps: r.airVelocityMps,
+      levels: l ? { atDiameterM: l.diameterM, alertPerM3: l.alertPerM3, actionPerM3: l.actionPerM3 } : null,
+    };
+  }
+  return out;
+}
+
+function readPairRow(db: Db, pairId: string): PairRow | null {
+  if (!tableExists(db, 'pairs')) return null;
+  return (db.prepare('SELECT * FROM pairs WHERE id = ?').get(pairId) as PairRow | undefined) ?? null;
+}
+
+function readLedgerRows(db: Db, lotId: string): LedgerRow[] {
+  return db
+    .prepare(
+      `SELECT id, wafer_id, step, kind, tool_id, chamber, recipe, clean_id, location_id, carrier, orientation,
+              start_ms, end_ms, reclean_count
+         FROM ledger_steps WHERE lot_id = ? ORDER BY start_ms, id`,
+    )
+    .all(lotId) as LedgerRow[];
+}
+
+/** Builds inputs for a set of pair rows of one lot (shared line data). */
+function loadPairs(db: Db, rows: PairRow[], asOfMs: number): { pairs: PairInput[]; line: LineData } {
+  const toolsStored = readTools(db);
+  const cleansStored = readCleans(db);
+  const tools: Record<string, ToolInput> = {};
+  for (const [k, t] of Object.entries(toolsStored)) tools[k] = toToolInput(t);
+  const cleans: Record<string, CleanInput> = {};
+  for (const [k, c] of Object.entries(cleansStored)) cleans[k] = toCleanInput(c);
+  const products: Record<string, ProductInput> = {};
+  const ledgerByLot = new Map<string, LedgerRow[]>();
+  const windows = new Map<string, [number, number]>();
+
+  const wafer = (waferId: string, lotId: string, endMs: number): WaferInput => {
+    let rows = ledgerByLot.get(lotId);
+    if (!rows) {
+      rows = readLedgerRows(db, lotId);
+      ledgerByLot.set(lotId, rows);
+    }
+    const mine = rows.filter((r) => r.wafer_id === waferId || r.wafer_id === null);
+    let recleanCount = 0;
+    const ledger: LedgerStepInput[] = mine.map((r, i) => {
+      recleanCount = Math.max(recleanCount, r.reclean_count);
+      let cleanId = r.clean_id;
+      if (r.kind === 'clean' && !cleanId && r.tool_id)
+        cleanId = findCleanFor(db, r.tool_id, r.recipe)?.cleanId ?? null;
+      if (r.location_id && (r.kind === 'wait' || r.kind === 'transfer') && r.start_ms < endMs) {
+        const to = Math.min(r.end_ms ?? endMs, endMs);
+        const w = windows.get(r.location_id);
+        windows.set(r.location_id, w ? [Math.min(w[0], r.start_ms), Math.max(w[1], to)] : [r.start_ms, to]);
+      }
+      return {
+        seq: i,
+        step: r.step,
+        kind: r.kind,
+        toolId: r.tool_id,
+        chamber: r.chamber,
+        cleanId,
+        startMs: r.start_ms,
+        endMs: r.end_ms,
+        locationId: r.location_id,
+        carrier: r.carrier,
+        orientation: r.orientation,
+      };
+    });
+    const head = latestScanBefore(db, waferId, endMs);
+    const scan = head ? readScanInput(db, head.scanId) : null;
+    return { waferId, lotId, latestScan: scan, ledger, recleanCount };
+  };
+
+  const pairs: PairInput[] = rows.map((r) => {
+    if (!products[r.product_id]) {
+      const p = readProduct(db, r.product_id);
+      if (p) products[r.product_id] = p;
+    }
+    const endMs = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs ? r.planned_bond_ms : asOfMs;
+    const bonded = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs;
+    return {
+      pairId: r.id,
+      lotId: r.lot_id,
+      productId: r.product_id,
+      top: wafer(r.top_wafer_id, r.lot_id, endMs),
+      bottom: wafer(r.bottom_wafer_id, r.lot_id, endMs),
+      flipAxis: r.flip_axis,
+      rotationRad: r.rotation_rad,
+      offsetXM: r.offset_x_m,
+      offsetYM: r.offset_y_m,
+      bonderToolId: r.bonder_tool_id,
+      bondTimeMs: bonded ? r.planned_bond_ms : null,
+      smallestReportableVoidM: null,
+    };
+  });
+  const counters: Record<string, CounterSeriesInput> = {};
+  for (const [loc, [from, to]] of windows) counters[loc] = readCounterSeries(db, loc, from, to);
+  const locations = readLocations(db, [...windows.keys()]);
+  return { pairs, line: { products, tools, cleans, locations, counters } };
+}
+
+/** A pair with its line data, or null when the pair is unknown. */
+export function loadPair(db: Db, pairId: string, asOfMs: number): { pair: PairInput; line: LineData } | null {
+  const row = readPairRow(db, pairId);
+  if (!row) return null;
+  const { pairs, line } = loadPairs(db, [row], asOfMs);
+  return { pair: pairs[0]!, line };
+}
+
+/** A lot with its pairs and line data, or null when the lot is unknown. */
+export function loadLot(db: Db, lotId: string, asOfMs: number): { lot: LotInput; line: LineData } | null {
+  const lot = readLot(db, lotId);
+  if (!lot) return null;
+  const rows = tableExists(db, 'pairs')
+    ? (db.prepare('SELECT * FROM pairs WHERE lot_id = ? ORDER BY id').all(lotId) as PairRow[])
+    : [];
+  const { pairs, line } = loadPairs(db, rows, asOfMs);
+  const productId = lot.productId ?? rows[0]?.product_id ?? '';
+  return { lot: { lotId, productId, pairs }, line };
+}
+
+export function assessPairFromDb(db: Db, pairId: string, opts: AssessOptions): PairAssessment | null {
+  const loaded = loadPair(db, pairId, opts.asOfMs);
+  if (!loaded) return null;
+  return assessPairInSession(loaded.pair, createSession(loaded.line, opts.config), opts);
+}
+
+export function assessLotFromDb(db: Db, lotId: string, opts: AssessOptions): LotAssessment | null {
+  const loaded = loadLot(db, lotId, opts.asOfMs);
+  if (!loaded) return null;
+  return assessLotInSession(loaded.lot, createSession(loaded.line, opts.config), opts);
+}
+
+/** Lots for the API's list: id, product, wafer and pair counts. */
+export function listLotsForApi(
+  db: Db,
+): { lotId: string; productId: string | null; waferCount: number; pairCount: number }[] {
+  const hasPairs = tableExists(db, 'pairs');
+  const count = hasPairs ? db.prepare('SELECT COUNT(*) AS n FROM pairs WHERE lot_id = ?') : null;
+  return listLots(db).map((l) => ({
+    lotId: l.lotId,
+    productId: l.productId,
+    waferCount: l.waferCount,
+    pairCount: count ? (count.get(l.lotId) as { n: number }).n : 0,
+  }));
+}
+
+/**
+ * Signs a pair's call off: re-runs the assessment at the time the signer saw (same seed → the same
+ * figures) and stores the record unless the inputs' hash changed since. Null when the pair is unknown.
+ */
+export function signOffPairInDb(
+  db: Db,
+  pairId: string,
+  req: SignoffRequest,
+  nowMs: number = Date.now(),
+): { ok: true; record: SignoffRecord; id: number } | Extract<SignoffOutcome, { ok: false }> | null {
+  const current = assessPairFromDb(db, pairId, { asOfMs: req.asOfMs, detail: 'summary' });
+  if (!current) return null;
+  const out = prepareSignoff(current, req, nowMs);
+  if (!out.ok) return out;
+  const id = insertDisposition(db, out.record);
+  return { ok: true, record: out.record, id };
+}

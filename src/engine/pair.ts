@@ -1,0 +1,623 @@
+/**
+ * assessPair: the risk of one bonded pair and its call (bond / re-clean / hold), pure over loaded data.
+ *
+ * Both wafers are propagated (propagate.ts), the top wafer's detected particles are mirrored into
+ * the bond frame (geometry.ts), both wafers' particles are summed at the interface, and the figures
+ * (evaluate.ts) get intervals from the seeded Monte Carlo (montecarlo.ts). Attribution and the
+ * Paretos are in attribution.ts. The call compares the figures' bounds at the spec's confidence
+ * with the spec, and a modelled extra run of the product's designated pre-bond clean shows what a
+ * re-clean would buy.
+ */
+import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
+import { buildPareto, dominantSource, paretoMetric, sourceContributions } from './attribution.ts';
+import { MODEL_VERSION, resolveConfig } from './config.ts';
+import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
+import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
+import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
+import { mirrorIntoBondFrame } from './geometry.ts';
+import { canonicalHash } from './hash.ts';
+import { boundFrom, type DrawSet, estimateFrom, simulate, sorted } from './montecarlo.ts';
+import { buildProductPhysics, type ProductPhysics } from './physics.ts';
+import {
+  applyClean,
+  type Contribution,
+  cloneContributions,
+  type ExposureLookup,
+  findTool,
+  interfaceSpectrum,
+  propagateWafer,
+  toolKeyOf,
+  type WaferPropagation,
+} from './propagate.ts';
+import {
+  type AssessConfig,
+  type AssessOptions,
+  type Call,
+  type DieGrid,
+  type LineData,
+  type PairAssessment,
+  type PairFigures,
+  type PairInput,
+  type ProductInput,
+  type QTimeStatus,
+  RECLEAN_CAUTION,
+  type Reason,
+  type RecleanScenario,
+  type SpecCheck,
+  type StackedSpectrum,
+  type VoidDisc,
+  type VoidMap,
+} from './types.ts';
+
+/** Bad or inconsistent loaded data the engine cannot assess (names what is missing). */
+export class EngineInputError extends Error {
+  override readonly name = 'EngineInputError';
+}
+
+/**
+ * Caches shared by the pairs of one assessment run (a lot): exposure indexes per location and the
+ * per-product physics (void radii per bin, critical areas, clean survival curves). Pure, in memory.
+ */
+export interface EngineSession {
+  line: LineData;
+  config: AssessConfig;
+  exposure: Map<string, ExposureIndex>;
+  physics: Map<string, ProductPhysics>;
+}
+
+export function createSession(line: LineData, config?: Partial<AssessConfig>): EngineSession {
+  return { line, config: resolveConfig(config), exposure: new Map(), physics: new Map() };
+}
+
+function exposureIndexOf(session: EngineSession, locationId: string): ExposureIndex | null {
+  const hit = session.exposure.get(locationId);
+  if (hit) return hit;
+  const series = session.line.counters[locationId];
+  if (!series) return null;
+  const ix = buildExposureIndex(series, session.line.locations[locationId]);
+  session.exposure.set(locationId, ix);
+  return ix;
+}
+
+function physicsOf(session: EngineSession, product: ProductInput, minVoidM: number): ProductPhysics {
+  const key = `${product.productId}|${minVoidM}`;
+  const hit = session.physics.get(key);
+  if (hit) return hit;
+  const p = buildProductPhysics(product, session.config, minVoidM);
+  session.physics.set(key, p);
+  return p;
+}
+
+/** Counter samples of the windows a pair's route used (for the inputs' hash). */
+function counterSlices(session: EngineSession, windows: Map<string, [number, number][]>): unknown[] {
+  const out: unknown[] = [];
+  for (const [loc, ws] of [...windows.entries()].sort((a, b) => a[0].localeCompare(b[0]))) {
+    const s = session.line.counters[loc];
+    if (!s) continue;
+    const lo = Math.min(...ws.map((w) => w[0]));
+    const hi = Math.max(...ws.map((w) => w[1]));
+    let i0 = 0;
+    while (i0 < s.startMs.length && s.endMs[i0]! <= lo) i0++;
+    let i1 = i0;
+    while (i1 < s.startMs.length && s.startMs[i1]! < hi) i1++;
+    const k = s.channelSizesM.length;
+    out.push({
+      loc,
+      ws,
+      channels: s.channelSizesM,
+      start: s.startMs.subarray(i0, i1),
+      end: s.endMs.subarray(i0, i1),
+      conc: s.cumulativePerM3.subarray(i0 * k, i1 * k),
+      flags: s.flags.subarray(i0, i1),
+    });
+  }
+  return out;
+}
+
+function qTimes(pair: PairInput, product: ProductInput, endMs: number): QTimeStatus[] {
+  const out: QTimeStatus[] = [];
+  for (const q of product.spec.qTimes)
+    for (const w of [pair.top, pair.bottom]) {
+      let last: number | null = null;
+      for (const s of w.ledger) {
+        if (s.kind !== q.fromKind || s.startMs >= endMs) continue;
+        const e = Math.min(s.endMs ?? endMs, endMs);
+        if (last === null || e > last) last = e;
+      }
+      const elapsedS = last === null ? null : (endMs - last) / 1000;
+      out.push({
+        label: q.label,
+        waferId: w.waferId,
+        fromKind: q.fromKind,
+        elapsedS,
+        limitS: q.maxS,
+        exceeded: elapsedS !== null && elapsedS > q.maxS,
+      });
+    }
+  return out;
+}
+
+interface Scenario {
+  contributions: Contribution[];
+  detected: DetectedFlat;
+  evaluation: Evaluation;
+  draws: DrawSet;
+  figures: PairFigures;
+  checks: SpecCheck[];
+  pass: boolean;
+}
+
+/** Void radii of detected particles, per diameter array (shared by the scenarios of a pair). */
+const radiiOfDetected = new WeakMap<Float64Array, Float64Array>();
+
+function flattenDetected(
+  contributions: Contribution[],
+  pair: PairInput,
+  physics: ProductPhysics,
+): DetectedFlat {
+  let n = 0;
+  for (const c of contributions) if (c.detected) n += c.detected.survival.length;
+  const flat: DetectedFlat = {
+    xM: new Float64Array(n),
+    yM: new Float64Array(n),
+    diameterM: new Float64Array(n),
+    rM: new Float64Array(n),
+    survival: new Float64Array(n),
+    source: new Uint16Array(n),
+  };
+  let o = 0;
+  contributions.forEach((c, i) => {
+    const d = c.detected;
+    if (!d) return;
+    const pos = c.wafer === 'top' ? mirrorIntoBondFrame(d.xM, d.yM, pair) : { xM: d.xM, yM: d.yM };
+    flat.xM.set(pos.xM, o);
+    flat.yM.set(pos.yM, o);
+    flat.diameterM.set(d.diameterM, o);
+    flat.survival.set(d.survival, o);
+    let r = radiiOfDetected.get(d.diameterM);
+    if (!r) {
+      r = new Float64Array(d.diameterM.length);
+      for (let j = 0; j < r.length; j++) r[j] = physics.radiusAt(d.diameterM[j]!);
+      radiiOfDetected.set(d.diameterM, r);
+    }
+    flat.rM.set(r, o);
+    flat.source.fill(i, o, o + d.survival.length);
+    o += d.survival.length;
+  });
+  return flat;
+}
+
+function runScenario(
+  contributions: Contribution[],
+  pair: PairInput,
+  product: ProductInput,
+  physics: ProductPhysics,
+  cfg: AssessConfig,
+  stream: number,
+): Scenario {
+  const detected = flattenDetected(contributions, pair, physics);
+  const spec = product.spec;
+  const evaluation = evaluate(
+    contributions,
+    detected,
+    physics,
+    physics.radiiNominal,
+    physics.reportableNominalM,
+    physics.dieGrid,
+    product.clusterAlpha,
+  );
+  const draws = simulate({
+    contributions,
+    evaluation,
+    physics,
+    propagation: physics,
+    grid: physics.gridPhysics,
+    config: cfg,
+    clusterAlpha: product.clusterAlpha,
+    stream,
+  });
+  const c = spec.confidence;
+  const sv = sorted(draws.voids);
+  const su = sorted(draws.unbondedFraction);
+  const ab = physics.bondedAreaM2;
+  const unbondedFraction = -Math.expm1(-evaluation.exponent);
+  const uf = estimateFrom(unbondedFraction, su, c);
+  const nd = evaluation.dieCount;
+  const kp = draws.killsPoisson ? sorted(draws.killsPoisson) : null;
+  const kn = draws.killsNB ? sorted(draws.killsNB) : null;
+  const dieKillsPoisson =
+    kp && evaluation.dieKillsPoisson !== null ? estimateFrom(evaluation.dieKillsPoisson, kp, c) : null;
+  const dieKillsNB = kn && evaluation.dieKillsNB !== null ? estimateFrom(evaluation.dieKillsNB, kn, c) : null;
+  const yieldKills = spec.yieldModel === 'poisson' ? dieKillsPoisson : dieKillsNB;
+  const dieYield =
+    yieldKills && nd > 0
+      ? {
+          value: 1 - yieldKills.value / nd,
+          low: 1 - yieldKills.high / nd,
+          high: 1 - yieldKills.low / nd,
+          confidence: c,
+        }
+      : null;
+  const figures: PairFigures = {
+    particles: evaluation.particles,
+    voids: estimateFrom(evaluation.voids, sv, c),
+    unbondedAreaM2: { value: uf.value * ab, low: uf.low * ab, high: uf.high * ab, confidence: c },
+    unbondedFraction: uf,
+    dieKillsPoisson,
+    dieKillsNB,
+    dieYield,
+    dieCount: nd,
+  };
+  const checks: SpecCheck[] = [];
+  if (spec.maxVoids !== null) {
+    const b = boundFrom(sv, c, true);
+    checks.push({ metric: 'voids', bound: b, limit: spec.maxVoids, pass: b <= spec.maxVoids });
+  }
+  if (spec.maxUnbondedFraction !== null) {
+    const b = boundFrom(su, c, true);
+    checks.push({
+      metric: 'unbondedFraction',
+      bound: b,
+      limit: spec.maxUnbondedFraction,
+      pass: b <= spec.maxUnbondedFraction,
+    });
+  }
+  if (spec.minDieYield !== null && nd > 0) {
+    const ks = spec.yieldModel === 'poisson' ? kp : kn;
+    if (ks) {
+      const b = 1 - boundFrom(ks, c, true) / nd;
+      checks.push({ metric: 'dieYield', bound: b, limit: spec.minDieYield, pass: b >= spec.minDieYield });
+    }
+  }
+  return { contributions, detected, evaluation, draws, figures, checks, pass: checks.every((x) => x.pass) };
+}
+
+function checkWords(ch: SpecCheck, confidence: number): string {
+  const conf = `${Math.round(confidence * 100)} %`;
+  if (ch.metric === 'voids')
+    return `reportable voids: ${conf} upper bound ${fmtCount(ch.bound)}, spec ≤ ${fmtCount(ch.limit)}`;
+  if (ch.metric === 'unbondedFraction')
+    return `unbonded area: ${conf} upper bound ${fmtPercent(ch.bound)}, spec ≤ ${fmtPercent(ch.limit)}`;
+  return `die yield: ${conf} lower bound ${fmtPercent(ch.bound)}, spec ≥ ${fmtPercent(ch.limit)}`;
+}
+
+/** Assesses one pair. Pure: the same inputs, options and seed give the same result. */
+export function assessPair(pair: PairInput, line: LineData, opts: AssessOptions): PairAssessment {
+  return assessPairInSession(pair, createSession(line, opts.config), opts);
+}
+
+export function assessPairInSession(
+  pair: PairInput,
+  session: EngineSession,
+  opts: AssessOptions,
+): PairAssessment {
+  const { line, config: cfg } = session;
+  const product = line.products[pair.productId];
+  if (!product) throw new EngineInputError(`pair ${pair.pairId}: product "${pair.productId}" is not loaded`);
+  const spec = product.spec;
+  const detail = opts.detail ?? 'full';
+  const asOfMs = opts.asOfMs;
+  const endMs = pair.bondTimeMs ?? asOfMs;
+  const minVoidM = pair.smallestReportableVoidM ?? spec.smallestReportableVoidM;
+  const physics = physicsOf(session, product, minVoidM);
+
+  const windows = new Map<string, [number, number][]>();
+  const exposure: ExposureLookup = {
+    dose(locationId, fromMs, toMs) {
+      const ix = exposureIndexOf(session, locationId);
+      const ws = windows.get(locationId) ?? [];
+      ws.push([fromMs, toMs]);
+      windows.set(locationId, ws);
+      if (!ix) return null;
+      const loc = line.locations[locationId];
+      const limits = physics.classLimits(loc?.isoClass ?? null, ix.channelSizesM);
+      return { d: intervalDose(ix, fromMs, toMs, limits), channelSizesM: ix.channelSizesM };
+    },
+  };
+  const common = {
+    product,
+    line,
+    physics,
+    exposure,
+    config: cfg,
+    endMs,
+    bonderToolId: pair.bonderToolId,
+    confidence: spec.confidence,
+  };
+  const props: WaferPropagation[] = [
+    propagateWafer({ ...common, wafer: pair.top, role: 'top' }),
+    propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
+  ];
+  const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
+  const asIs = runScenario(contributions, pair, product, physics, cfg, 1);
+
+  // A modelled extra run of the designated pre-bond clean on both wafers, before the bond step.
+  let reclean: RecleanScenario | null = null;
+  let after: Scenario | null = null;
+  const rc = product.recleanCleanId ? line.cleans[product.recleanCleanId] : undefined;
+  if (rc && (detail === 'full' || !asIs.pass)) {
+    const cs = cloneContributions(contributions);
+    applyClean(cs, rc, physics);
+    const tool = findTool(line, rc.toolId, null);
+    if (tool?.adders && tool.adders.countAbove > 0)
+      for (const role of ['top', 'bottom'] as const) {
+        const w = role === 'top' ? pair.top : pair.bottom;
+        cs.push({
+          key: `${role}:tool:reclean`,
+          kind: 'tool',
+          label: `${tool.name}: adders of the modelled re-clean (${role} wafer ${w.waferId})`,
+          wafer: role,
+          waferId: w.waferId,
+          groupKey: `tool:${toolKeyOf(tool.toolId, tool.chamber)}`,
+          groupLabel: tool.name,
+          toolId: tool.toolId,
+          chamber: tool.chamber,
+          locationId: null,
+          scanId: null,
+          stepSeq: null,
+          lastCleanId: null,
+          base: physics.adderSpectrum(tool),
+          survivalBins: new Float64Array(SPECTRUM_BIN_COUNT).fill(1),
+          areaBasisM2: physics.waferAreaM2,
+          variation: {
+            type: 'tool',
+            toolKey: toolKeyOf(tool.toolId, tool.chamber),
+            uncertaintyFactor: tool.adderUncertaintyFactor,
+          },
+          atBond: false,
+          detected: null,
+        });
+      }
+    after = runScenario(cs, pair, product, physics, cfg, 2);
+    const allowed = Math.max(pair.top.recleanCount, pair.bottom.recleanCount) < spec.maxRecleans;
+    reclean = {
+      cleanId: rc.cleanId,
+      cleanLabel: rc.name,
+      allowed,
+      after: after.figures,
+      meetsSpec: after.pass,
+    };
+  }
+
+  // Blocking conditions.
+  const reasons: Reason[] = [];
+  const q = qTimes(pair, product, endMs);
+  for (const s of q)
+    if (s.exceeded)
+      reasons.push({
+        code: 'q-time',
+        text: `Q-time ${s.label} for wafer ${s.waferId} is ${fmtHours(s.elapsedS!)}; the limit is ${fmtHours(s.limitS)}.`,
+        blocking: true,
+      });
+  const excursions = props.flatMap((p) => p.excursions);
+  for (const x of excursions) {
+    const loc = line.locations[x.locationId];
+    reasons.push({
+      code: 'action-level',
+      text: `Wafer ${x.waferId} was exposed at ${loc?.name ?? x.locationId} (step ${x.stepSeq}) while the counter read ${fmtCount(x.peakPerM3)} /m³ ≥ ${fmtSize(loc?.levels?.atDiameterM ?? 0)}, above the action level ${fmtCount(x.actionPerM3)} /m³.`,
+      blocking: true,
+    });
+  }
+  for (const p of props)
+    for (const d of p.dataProblems) reasons.push({ code: d.code, text: d.text, blocking: true });
+  if (spec.maxScanAgeS !== null)
+    for (const w of [pair.top, pair.bottom]) {
+      const s = w.latestScan;
+      if (s && (endMs - s.timeMs) / 1000 > spec.maxScanAgeS)
+        reasons.push({
+          code: 'stale-scan',
+          text: `The scan of wafer ${w.waferId} (${s.scanId}) is ${fmtHours((endMs - s.timeMs) / 1000)} old at bonding; the spec accepts ${fmtHours(spec.maxScanAgeS)}.`,
+          blocking: true,
+        });
+    }
+  const blocking = reasons.some((r) => r.blocking);
+  const specWords = asIs.checks.map((ch) => checkWords(ch, spec.confidence)).join('; ');
+  let call: Call;
+  if (asIs.pass) {
+    reasons.push({
+      code: 'within-spec',
+      text: asIs.checks.length ? `Within spec: ${specWords}.` : 'The spec states no limit to check.',
+      blocking: false,
+    });
+    call = blocking ? 'hold' : 'bond';
+  } else {
+    reasons.push({
+      code: 'fails-spec',
+      text: `Outside spec: ${asIs.checks
+        .filter((x) => !x.pass)
+        .map((ch) => checkWords(ch, spec.confidence))
+        .join('; ')}.`,
+      blocking: false,
+    });
+    if (!reclean || !after) {
+      reasons.push({
+        code: 'no-reclean',
+        text: 'The product names no pre-bond clean to re-run.',
+        blocking: true,
+      });
+      call = 'hold';
+    } else if (!reclean.allowed) {
+      reasons.push({
+        code: 'reclean-limit',
+        text: `A re-clean is not allowed: the wafers already had ${Math.max(pair.top.recleanCount, pair.bottom.recleanCount)} re-clean(s); the limit is ${spec.maxRecleans}.`,
+        blocking: true,
+      });
+      call = 'hold';
+    } else if (after.pass) {
+      reasons.push({
+        code: 'reclean-fixes',
+        text: `One more ${reclean.cleanLabel} brings it within spec: ${after.checks.map((ch) => checkWords(ch, spec.confidence)).join('; ')}.`,
+        blocking: false,
+      });
+      call = blocking ? 'hold' : 're-clean';
+    } else {
+      reasons.push({
+        code: 'reclean-insufficient',
+        text: `Even after one more ${reclean.cleanLabel} it stays outside spec: ${after.checks
+          .filter((x) => !x.pass)
+          .map((ch) => checkWords(ch, spec.confidence))
+          .join('; ')}.`,
+        blocking: true,
+      });
+      call = 'hold';
+    }
+  }
+  // Blocking reasons first, then the spec status.
+  reasons.sort((a, b) => Number(b.blocking) - Number(a.blocking));
+
+  const ev = asIs.evaluation;
+  const items = sourceContributions(contributions, ev, physics.bondedAreaM2);
+  const metric = paretoMetric(spec.minDieYield !== null && physics.dieGrid !== null);
+  const pareto = buildPareto(items, ev, physics.bondedAreaM2, metric, line);
+  const dominant = dominantSource(items, metric);
+
+  const tails = props.flatMap((p, i) => {
+    if (!p.tail) return [];
+    const w = i === 0 ? pair.top : pair.bottom;
+    const t = p.tail;
+    const floor = Math.min(cfg.tailFloorM, t.thresholdM);
+    const nTail = (a: number) => t.n * ((floor / t.thresholdM) ** -a - 1);
+    return [
+      {
+        waferId: w.waferId,
+        scanId: t.scanId,
+        n: t.n,
+        thresholdM: t.thresholdM,
+        alpha: { value: t.alpha, low: t.lower, high: t.upper, confidence: spec.confidence },
+        tailParticles: {
+          value: nTail(t.alpha),
+          low: nTail(t.lower),
+          high: nTail(t.upper),
+          confidence: spec.confidence,
+        },
+      },
+    ];
+  });
+
+  const notes = props.flatMap((p) => p.notes);
+  const inputsHash = canonicalHash({
+    modelVersion: MODEL_VERSION,
+    config: cfg,
+    pair: { ...pair, top: pair.top.waferId, bottom: pair.bottom.waferId },
+    top: pair.top,
+    bottom: pair.bottom,
+    product,
+    tools: Object.fromEntries(
+      contributions.filter((c) => c.toolId).map((c) => [c.toolId, findTool(line, c.toolId, c.chamber)]),
+    ),
+    cleans: line.cleans,
+    locations: Object.fromEntries([...windows.keys()].map((k) => [k, line.locations[k] ?? null])),
+    counters: counterSlices(session, windows),
+    // Before bonding the route ends at the assessment time; after it the bond time fixes it.
+    routeEnd: pair.bondTimeMs === null ? 'as-of' : pair.bondTimeMs,
+  });
+
+  return {
+    pairId: pair.pairId,
+    lotId: pair.lotId,
+    productId: pair.productId,
+    topWaferId: pair.top.waferId,
+    bottomWaferId: pair.bottom.waferId,
+    inputsHash,
+    modelVersion: MODEL_VERSION,
+    specVersion: spec.version,
+    asOfMs,
+    draws: cfg.draws,
+    seed: cfg.seed,
+    smallestReportableVoidM: minVoidM,
+    reportableParticleM: physics.reportableNominalM,
+    tailFloorM: cfg.tailFloorM,
+    figures: asIs.figures,
+    specChecks: asIs.checks,
+    contributions: items,
+    pareto,
+    dominant,
+    tails,
+    qTimes: q,
+    excursions,
+    notes,
+    reclean,
+    call,
+    reasons,
+    caution: call === 're-clean' ? RECLEAN_CAUTION : null,
+    voidMap: detail === 'full' ? buildVoidMap(asIs, product, physics, cfg) : null,
+    spectrum: detail === 'full' ? buildSpectrum(asIs, physics) : null,
+  };
+}
+
+function buildVoidMap(
+  s: Scenario,
+  product: ProductInput,
+  physics: ProductPhysics,
+  cfg: AssessConfig,
+): VoidMap {
+  const det = s.detected;
+  const n = det.survival.length;
+  const order = Array.from({ length: n }, (_, i) => i).filter((i) => det.survival[i]! > 0);
+  const w = (i: number) => det.survival[i]! * det.rM[i]! * det.rM[i]!;
+  order.sort((a, b) => w(b) - w(a));
+  const keep = order.slice(0, cfg.maxMapDiscs);
+  const discs: VoidDisc[] = keep.map((i) => {
+    const c = s.contributions[det.source[i]!]!;
+    return {
+      xM: det.xM[i]!,
+      yM: det.yM[i]!,
+      rM: det.rM[i]!,
+      survival: det.survival[i]!,
+      sourceKey: c.key,
+      wafer: c.wafer,
+      diameterM: det.diameterM[i]!,
+    };
+  });
+  let dieGrid: DieGrid | null = null;
+  const g = physics.dieGrid;
+  const ev = s.evaluation;
+  if (g && product.die && ev.detSurvivePerDie) {
+    const yP = physics.poissonYield(ev.randomMeanPerDie);
+    const yNB = physics.negativeBinomialYield(ev.randomMeanPerDie, product.clusterAlpha);
+    const L = product.die;
+    dieGrid = {
+      widthM: L.widthM,
+      heightM: L.heightM,
+      pitchXM: L.pitchXM,
+      pitchYM: L.pitchYM,
+      pad: L.pad,
+      dies: Array.from({ length: g.count }, (_, d) => {
+        const surv = ev.detSurvivePerDie![d]!;
+        const pP = 1 - surv * yP;
+        const pNB = 1 - surv * yNB;
+        return {
+          col: g.dieCol[d]!,
+          row: g.dieRow[d]!,
+          xM: L.originXM + g.dieCol[d]! * L.pitchXM,
+          yM: L.originYM + g.dieRow[d]! * L.pitchYM,
+          killProbabilityDetected: 1 - surv,
+          killProbabilityPoisson: pP,
+          killProbabilityNB: pNB,
+          killed: (product.spec.yieldModel === 'poisson' ? pP : pNB) >= cfg.killedDieThreshold,
+        };
+      }),
+    };
+  }
+  return {
+    waferDiameterM: product.waferDiameterM,
+    edgeExclusionM: product.edgeExclusionM,
+    discs,
+    discsOmitted: order.length - keep.length,
+    dieGrid,
+  };
+}
+
+function buildSpectrum(s: Scenario, physics: ProductPhysics): StackedSpectrum {
+  return {
+    edgesM: Array.from(SPECTRUM_EDGES_M),
+    centresM: Array.from(SPECTRUM_CENTRES_M),
+    voidRadiusM: Array.from(physics.radiiNominal),
+    series: s.contributions.map((c, i) => ({
+      sourceKey: c.key,
+      label: c.label,
+      kind: c.kind,
+      counts: Array.from(s.evaluation.perContribution[i]?.spectrum ?? interfaceSpectrum(c)),
+    })),
+  };
+}

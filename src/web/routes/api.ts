@@ -1,0 +1,85 @@
+/**
+ * The JSON API of the assessment engine.
+ *
+ *   GET  /api/lots                      lots with their product and pair count
+ *   GET  /api/lots/:id/assessment       LotAssessment (pairs in summary detail; ?detail=full for all maps)
+ *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
+ *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
+ *
+ * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default now. Errors are JSON
+ * {error, detail} with 400 (bad request), 404 (unknown id), 409 (inputs changed since the assessment
+ * that is being signed); never a stack trace.
+ */
+import type { Context, Hono } from 'hono';
+import { assessLotFromDb, assessPairFromDb, listLotsForApi, signOffPairInDb } from '../../engine/loader.ts';
+import type { Call } from '../../engine/types.ts';
+import type { AppContext } from '../context.ts';
+
+function asOfFrom(c: Context): number | { error: string } {
+  const v = c.req.query('asOf');
+  if (v === undefined || v === '') return Date.now();
+  if (/^\d{10,}$/.test(v)) return Number(v);
+  if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(v))
+    return { error: 'asOf must be UTC milliseconds or ISO 8601 with its zone' };
+  const t = Date.parse(v);
+  return Number.isFinite(t) ? t : { error: `asOf is not a valid time: ${v}` };
+}
+
+export function register(app: Hono, ctx: AppContext): void {
+  app.get('/api/lots', (c) => c.json({ lots: listLotsForApi(ctx.db) }));
+
+  app.get('/api/lots/:id/assessment', (c) => {
+    const asOf = asOfFrom(c);
+    if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
+    const detail = c.req.query('detail') === 'full' ? 'full' : 'summary';
+    const a = assessLotFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail });
+    if (!a) return c.json({ error: 'not found', detail: `There is no lot "${c.req.param('id')}".` }, 404);
+    return c.json(a);
+  });
+
+  app.get('/api/pairs/:id/assessment', (c) => {
+    const asOf = asOfFrom(c);
+    if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
+    const a = assessPairFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail: 'full' });
+    if (!a) return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
+    return c.json(a);
+  });
+
+  app.post('/api/pairs/:id/signoff', async (c) => {
+    let body: unknown;
+    try {
+      body = await c.req.json();
+    } catch {
+      return c.json({ error: 'bad request', detail: 'The body must be JSON.' }, 400);
+    }
+    const b = (body ?? {}) as Record<string, unknown>;
+    const asOfMs = typeof b.asOfMs === 'number' ? b.asOfMs : Number.NaN;
+    if (!Number.isFinite(asOfMs))
+      return c.json(
+        {
+          error: 'bad request',
+          detail: 'asOfMs: the assessment time (UTC ms) of the assessment signed is required.',
+        },
+        400,
+      );
+    const r = signOffPairInDb(ctx.db, c.req.param('id'), {
+      inputsHash: String(b.inputsHash ?? ''),
+      asOfMs,
+      signedBy: String(b.signedBy ?? ''),
+      call: b.call === undefined ? undefined : (String(b.call) as Call),
+      comment: typeof b.comment === 'string' ? b.comment : null,
+    });
+    if (r === null)
+      return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
+    if (!r.ok)
+      return c.json(
+        {
+          error: r.code === 'hash-changed' ? 'inputs changed' : 'bad request',
+          detail: r.message,
+          currentHash: r.currentHash ?? null,
+        },
+        r.code === 'hash-changed' ? 409 : 400,
+      );
+    return c.json({ id: r.id, record: r.record }, 201);
+  });
+}
