@@ -273,6 +273,18 @@ describe('the Imports page', () => {
     expect(count(h.db, 'imports')).toBe(imports);
   });
 
+  it('lists jobs still running on the plain Imports page, with a link to follow each', async () => {
+    const h = await harness();
+    const res = await post(h, form({ _csrf: h.token, kind: 'locations' }, [{ name: 'slow & "big".csv', content: GOOD }]));
+    const url = res.headers.get('location')!;
+    // The worker thread needs far longer to start than this request takes: the job is still running.
+    const during = await (await h.app.request('/imports', { headers: { cookie: h.cookie } })).text();
+    expect(during).toContain(`An import is still running: <a href="${url}">slow &amp; &quot;big&quot;.csv</a>.`);
+    await finished(h, url);
+    const after = await (await h.app.request('/imports', { headers: { cookie: h.cookie } })).text();
+    expect(after).not.toContain('still running');
+  });
+
   it('lists a long list of rejected rows 100 to a page; the pager works as a swap and as a page', async () => {
     const h = await harness();
     const rows = ['location_id,parent_id,level,name,environment,iso_class,floor_area_m2'];

@@ -148,7 +148,27 @@ export function register(app: Hono, ctx: AppContext): void {
     );
   };
 
-  app.get('/imports', (c) => page(c, {}));
+  app.get('/imports', (c) => {
+    // Jobs still running (e.g. started in another tab) are listed so they can be followed.
+    const active = jobs.list().filter((j) => j.state === 'queued' || j.state === 'running');
+    if (active.length === 0) return page(c, {});
+    return page(c, {
+      notice: (
+        <div class="vc-note" role="status">
+          <p>
+            {active.length === 1 ? 'An import is' : `${active.length} imports are`} still running:{' '}
+            {active.map((j, i) => (
+              <>
+                {i > 0 ? ', ' : ''}
+                <a href={`/imports/jobs/${j.id}`}>{j.progress.files.map((f) => f.name).join(', ')}</a>
+              </>
+            ))}
+            .
+          </p>
+        </div>
+      ),
+    });
+  });
 
   app.post('/imports', async (c) => {
     const limit = uploadLimitBytes(ctx.db);
