@@ -9,6 +9,18 @@ import { parseIsoTime, parseZone, type Zone } from '../time.ts';
 import type { Cell, FileContext, KindIssue, MetadataSpec } from '../types.ts';
 import { type FrameConvention, parseCoordinates } from './wafer-frame.ts';
 
+/**
+ * v · 10^(−digits) as the double nearest to the decimal result ("-120.4" mm → −0.1204 m), by shifting
+ * the exponent in the number's shortest text form; plain division (−120.4 / 1000 = −0.12040000000000001)
+ * can land one unit in the last place away. Falls back to division for numbers already written with
+ * an exponent.
+ */
+export function shiftDecimal(v: number, digits: number): number {
+  const t = String(v);
+  if (t.includes('e')) return v / 10 ** digits;
+  return Number(`${t}e-${digits}`);
+}
+
 export interface HeaderFieldReader {
   issues: KindIssue[];
   zone: Zone | null;

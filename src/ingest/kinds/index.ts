@@ -4,11 +4,14 @@
  */
 import type { ImportKind, ImportKindName } from '../types.ts';
 import { counterSamples } from './counter-samples.ts';
-import { locations } from './locations.ts';
 // — kinds of the ingest core above; further kinds below, one import line each —
+import { ledger } from './ledger.ts';
+import { locations } from './locations.ts';
+import { pairs } from './pairs.ts';
 import { products } from './products.ts';
 import { scans } from './scans.ts';
 import { tools } from './tools.ts';
+import { voidInspections } from './void-inspections.ts';
 
 export const KINDS: readonly ImportKind[] = [
   locations,
@@ -17,6 +20,9 @@ export const KINDS: readonly ImportKind[] = [
   products,
   tools,
   scans,
+  ledger,
+  pairs,
+  voidInspections,
 ];
 
 export function getKind(name: string): ImportKind | undefined {

@@ -53,16 +53,16 @@ import type {
   MetadataSpec,
   ParsedRow,
 } from '../types.ts';
-import { headerFields } from './header-fields.ts';
+import { headerFields, shiftDecimal } from './header-fields.ts';
 import { conventionText, type FrameConvention, frameTransform } from './wafer-frame.ts';
 
 /** Relative slack of the radius and threshold comparisons (unit-conversion rounding). */
 const REL_EPS = 1e-12;
 
-/** Length units of coordinate columns: value in metres = value / divide. */
-const LENGTH_DIVIDE: Record<string, number> = { mm: 1e3, um: 1e6 };
-/** Size units of the size column. */
-const SIZE_DIVIDE: Record<string, number> = { nm: 1e9, um: 1e6 };
+/** Decimal digits to shift a length in the column's unit to metres. */
+const LENGTH_DIGITS: Record<string, number> = { mm: 3, um: 6 };
+/** Decimal digits to shift a size to metres. */
+const SIZE_DIGITS: Record<string, number> = { nm: 9, um: 6 };
 
 const text = () => textCell();
 const signedMm = (unit: string) => () => numberCell({ unit });
@@ -353,13 +353,13 @@ export const scans: ImportKind = {
     )
       return issues.sort((a, b) => a.line - b.line);
 
-    const radiusM = diameterMm / 1e3 / 2;
-    const edgeM = edgeMm / 1e3;
+    const radiusM = shiftDecimal(diameterMm, 3) / 2;
+    const edgeM = shiftDecimal(edgeMm, 3);
     const usableM = radiusM - edgeM;
     const tf = frameTransform(conv as FrameConvention, radiusM);
-    const xDiv = LENGTH_DIVIDE[xCol.unit]!;
-    const yDiv = LENGTH_DIVIDE[yCol.unit]!;
-    const sizeDiv = SIZE_DIVIDE[sizeCol.unit]!;
+    const xDig = LENGTH_DIGITS[xCol.unit]!;
+    const yDig = LENGTH_DIGITS[yCol.unit]!;
+    const sizeDig = SIZE_DIGITS[sizeCol.unit]!;
     const sizeShown = sizeCol.unit === 'um' ? 'µm' : 'nm';
     const lenShown = (u: string) => (u === 'um' ? 'µm' : 'mm');
     const convText = conventionText(conv);
@@ -390,7 +390,7 @@ export const scans: ImportKind = {
       timeMs: time.ms,
       timeText: time.text,
       thresholdNm,
-      thresholdM: thresholdNm / 1e9,
+      thresholdM: shiftDecimal(thresholdNm, 9),
       x: [],
       y: [],
       d: [],
@@ -436,7 +436,7 @@ export const scans: ImportKind = {
             rule: 'must not be empty in a defect row',
           });
       if (miss.length) return miss;
-      tf.apply(xv! / xDiv, yv! / yDiv, out);
+      tf.apply(shiftDecimal(xv!, xDig), shiftDecimal(yv!, yDig), out);
       const r = Math.hypot(out[0]!, out[1]!);
       if (r > radiusM * (1 + REL_EPS)) {
         return [
@@ -448,7 +448,7 @@ export const scans: ImportKind = {
           },
         ];
       }
-      const dM = sv! / sizeDiv;
+      const dM = shiftDecimal(sv!, sizeDig);
       if (dM < b.thresholdM * (1 - REL_EPS)) {
         return [
           {
@@ -640,7 +640,7 @@ export const scans: ImportKind = {
             film: b.film,
             timeMs: b.timeMs,
             timeText: b.timeText,
-            waferDiameterM: diameterMm / 1e3,
+            waferDiameterM: shiftDecimal(diameterMm, 3),
             edgeExclusionM: edgeM,
             thresholdM: b.thresholdM,
             convention: convText,
