@@ -275,11 +275,16 @@ describe('the Imports page', () => {
 
   it('lists jobs still running on the plain Imports page, with a link to follow each', async () => {
     const h = await harness();
-    const res = await post(h, form({ _csrf: h.token, kind: 'locations' }, [{ name: 'slow & "big".csv', content: GOOD }]));
+    const res = await post(
+      h,
+      form({ _csrf: h.token, kind: 'locations' }, [{ name: 'slow & "big".csv', content: GOOD }]),
+    );
     const url = res.headers.get('location')!;
     // The worker thread needs far longer to start than this request takes: the job is still running.
     const during = await (await h.app.request('/imports', { headers: { cookie: h.cookie } })).text();
-    expect(during).toContain(`An import is still running: <a href="${url}">slow &amp; &quot;big&quot;.csv</a>.`);
+    expect(during).toContain(
+      `An import is still running: <a href="${url}">slow &amp; &quot;big&quot;.csv</a>.`,
+    );
     await finished(h, url);
     const after = await (await h.app.request('/imports', { headers: { cookie: h.cookie } })).text();
     expect(after).not.toContain('still running');
