@@ -9,8 +9,8 @@
  *
  * Real-world variants handled here:
  * - a UTF-8 byte-order mark (stripped, reported);
- * - LF, CRLF and lone-CR line breaks (detected from the first break, reported); with CRLF the
- *   parser splits on LF and the trailing CR is trimmed from the last cell, so mixed endings still work;
+ * - LF, CRLF and lone-CR line breaks (detected from the first break, reported); the parser splits on
+ *   LF and the CR of a CRLF is trimmed from the last cell, so files mixing LF and CRLF still work;
  * - quoted fields with delimiters, doubled quotes and line breaks (a record then spans several
  *   physical lines: the next record's line number counts the breaks inside the quoted fields);
  * - a leading metadata block of `#` lines and blank lines before the header (see metadata.ts);
@@ -231,7 +231,10 @@ export class CsvReader {
    * returned (the rest are kept for the next call).
    */
   nextBatch(max = Number.POSITIVE_INFINITY): CsvBatch | null {
-    if (!this.parser) throw new Error('CsvReader: readPreamble() first');
+    if (!this.parser) {
+      if (this.eof && this.pending === '') return null; // nothing after the metadata: no header, no rows
+      throw new Error('CsvReader: readPreamble() first');
+    }
     for (;;) {
       if (this.carry && this.carry.rows.length > 0) {
         const c = this.carry;
@@ -279,11 +282,10 @@ export class CsvReader {
         let spanned = 0;
         if (quoted) for (const cell of row) spanned += countNewlines(cell, 0, cell.length);
         if (!isBlank(row)) {
-          if (this.lineBreak === '\r\n') {
-            const li = row.length - 1;
-            const lastCell = row[li]!;
-            if (lastCell.endsWith('\r')) row[li] = lastCell.slice(0, -1);
-          }
+          // The CR of a CRLF break (the parser splits on LF; files may mix both).
+          const li = row.length - 1;
+          const lastCell = row[li]!;
+          if (lastCell.charCodeAt(lastCell.length - 1) === 13) row[li] = lastCell.slice(0, -1);
           rows.push(row);
           lines.push(line);
         }

@@ -165,6 +165,7 @@ export function parseIsoTime(text: string, zone: Zone | null): TimeResult {
   const minute = Number(m[5]);
   const second = m[6] === undefined ? 0 : Number(m[6]);
   if (
+    year < 1900 ||
     month < 1 ||
     month > 12 ||
     day < 1 ||
