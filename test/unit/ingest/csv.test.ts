@@ -6,8 +6,10 @@ function readAll(text: string | Buffer, chunkBytes = 1 << 20, delimiter: ',' | '
   const r = new CsvReader(bufferSource(text), { chunkBytes, delimiter });
   const meta = r.readPreamble();
   const rows: { line: number; cells: string[] }[] = [];
-  for (let b = r.nextBatch(); b; b = r.nextBatch())
-    b.rows.forEach((cells, i) => rows.push({ line: b!.lines[i]!, cells }));
+  for (let b = r.nextBatch(); b; b = r.nextBatch()) {
+    for (let i = 0; i < b.rows.length; i++) rows.push({ line: b.lines[i]!, cells: b.rows[i]! });
+  }
+  b.rows.forEach((cells, i) => rows.push({ line: b!.lines[i]!, cells }));
   r.close();
   return { meta, header: r.header, headerLine: r.headerLine, rows, reader: r };
 }
