@@ -9,7 +9,6 @@ function readAll(text: string | Buffer, chunkBytes = 1 << 20, delimiter: ',' | '
   for (let b = r.nextBatch(); b; b = r.nextBatch()) {
     for (let i = 0; i < b.rows.length; i++) rows.push({ line: b.lines[i]!, cells: b.rows[i]! });
   }
-  b.rows.forEach((cells, i) => rows.push({ line: b!.lines[i]!, cells }));
   r.close();
   return { meta, header: r.header, headerLine: r.headerLine, rows, reader: r };
 }
