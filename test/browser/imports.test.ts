@@ -185,6 +185,8 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
       expect(await page.locator('script').count()).toBe(1);
       expect(await page.locator('main img, main svg[onload]').count()).toBe(0);
       expect(await pwned(page)).toBeUndefined();
+      if (path === 'tools')
+        await page.screenshot({ path: screenshotPath('imports-names-tools'), fullPage: true });
     }
     expect(checked).toContain('/');
     expect(checked).toContain('/areas');
@@ -238,9 +240,9 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
     await page.screenshot({ path: screenshotPath('imports-refused'), fullPage: true });
   });
 
-  it('refuses a form posted from another origin (403), shown in place', async () => {
+  it('refuses a form whose token was forged (403), and shows the refusal in place', async () => {
     const page = await open();
-    // A request that carries our cookie but not the token, as a forged form would: the token field blanked.
+    // A request that carries our cookie but not our token, as a forged form would.
     await page.evaluate(`document.querySelector('#import-form input[name=_csrf]').value = 'forged';
       document.getElementById('import-form').setAttribute('hx-headers', '{"X-CSRF-Token":"forged"}');
       htmx.process(document.getElementById('import-form'));`);
