@@ -339,7 +339,7 @@ export function assessPairInSession(
     const cs = cloneContributions(contributions);
     applyClean(cs, rc, physics);
     const tool = findTool(line, rc.toolId, null);
-    if (tool?.adders && tool.adders.countAbove > 0)
+    if (tool && physics.adderSpectrum(tool).some((v) => v > 0))
       for (const role of ['top', 'bottom'] as const) {
         const w = role === 'top' ? pair.top : pair.bottom;
         cs.push({
@@ -356,7 +356,7 @@ export function assessPairInSession(
           scanId: null,
           stepSeq: null,
           lastCleanId: null,
-          base: physics.adderSpectrum(tool),
+          base: Float64Array.from(physics.adderSpectrum(tool)),
           survivalBins: new Float64Array(SPECTRUM_BIN_COUNT).fill(1),
           areaBasisM2: physics.waferAreaM2,
           variation: {

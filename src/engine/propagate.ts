@@ -328,7 +328,10 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
   let sawBond = false;
 
   const addTool = (tool: ToolInput, step: LedgerStepInput | null, atBond: boolean) => {
-    if (!tool.adders || tool.adders.countAbove <= 0) return;
+    const base = physics.adderSpectrum(tool);
+    let total = 0;
+    for (let i = 0; i < SPECTRUM_BIN_COUNT; i++) total += base[i]!;
+    if (!(total > 0)) return;
     const key = toolKeyOf(tool.toolId, tool.chamber);
     contributions.push({
       key: `${role}:tool:${step ? step.seq : 'bonder'}`,
@@ -344,7 +347,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
       scanId: null,
       stepSeq: step?.seq ?? null,
       lastCleanId: null,
-      base: physics.adderSpectrum(tool),
+      base: Float64Array.from(base),
       survivalBins: ones(),
       areaBasisM2: physics.waferAreaM2,
       variation: { type: 'tool', toolKey: key, uncertaintyFactor: tool.adderUncertaintyFactor },

@@ -212,7 +212,8 @@ describe('assessPair: calls', () => {
     const exc = (startMin: number) =>
       standard({
         n: 3,
-        concScale: 1e-3,
+        concScale: 1e-4,
+        clean: true,
         line: {
           locations: {
             BAY: location('BAY', { levels: { atDiameterM: 0.5e-6, alertPerM3: 10, actionPerM3: 100 } }),
@@ -236,21 +237,19 @@ describe('assessPair: calls', () => {
   });
 
   it('calls re-clean when one more pre-bond clean brings the pair within spec, with the caution, and respects the re-clean limit', () => {
-    // A dirty scan (many particles left by a weak first clean) that the designated clean fixes.
-    const weak = {
-      PBC: {
-        cleanId: 'PBC',
-        name: 'Pre-bond clean',
-        toolId: null,
-        maxEfficiency: 0.995,
-        halfSizeM: 30e-9,
-        widthDecades: 0.1,
-      },
-    };
+    // 20 large particles (0.5–2 µm, each a reportable void of millimetres) left by a weak first rinse;
+    // the designated pre-bond clean removes 99.5 % of them.
     const mk = (recleans: number) => {
       const data = line({
         cleans: {
-          ...weak,
+          PBC: {
+            cleanId: 'PBC',
+            name: 'Pre-bond clean',
+            toolId: null,
+            maxEfficiency: 0.995,
+            halfSizeM: 30e-9,
+            widthDecades: 0.1,
+          },
           WEAK: {
             cleanId: 'WEAK',
             name: 'Weak rinse',
@@ -261,10 +260,12 @@ describe('assessPair: calls', () => {
           },
         },
         counters: { BAY: counterSeries('BAY', T0, T0 + 8 * H, CH, () => ISO5.map((v) => v * 1e-4)) },
-        tools: { ACT: tool('ACT', 0.01), BONDER: tool('BONDER', 0.01) },
+        tools: { ACT: tool('ACT', 0.05), BONDER: tool('BONDER', 0.05) },
+        products: { 'HB-1': product({}, { minDieYield: 0.8 }) },
       });
       const w = (id: string, shift: number) => {
-        const x = standardWafer(id, someParticles(150, shift), recleans);
+        const pos = someParticles(20, shift);
+        const x = standardWafer(id, { ...pos, d: pos.d.map((_, i) => 0.5e-6 * 4 ** (i / 20)) }, recleans);
         x.ledger[0] = { ...x.ledger[0]!, cleanId: 'WEAK' };
         return x;
       };
@@ -275,11 +276,16 @@ describe('assessPair: calls', () => {
     expect(a.call).toBe('re-clean');
     expect(a.caution).toBe(RECLEAN_CAUTION);
     expect(a.reclean!.meetsSpec).toBe(true);
-    expect(a.reclean!.after.voids.value).toBeLessThan(a.figures.voids.value);
+    expect(a.reclean!.allowed).toBe(true);
+    // hand computation: 40 particles × (1 − 0.3) survive the rinse ≈ 28 voids; ×0.005 after the clean
+    expect(a.figures.voids.value).toBeGreaterThan(25);
+    expect(a.reclean!.after.voids.value).toBeLessThan(1);
     expect(a.reasons.map((r) => r.code)).toEqual(expect.arrayContaining(['fails-spec', 'reclean-fixes']));
+    expect(a.pareto.byClean[0]!.key).toBe('clean:WEAK');
     const limit = mk(1);
     const b = assessPair(limit.p, limit.data, { asOfMs: AS_OF });
     expect(b.call).toBe('hold');
+    expect(b.reclean!.allowed).toBe(false);
     expect(b.reasons.find((r) => r.code === 'reclean-limit')!.text).toMatch(
       /already had 1 re-clean\(s\); the limit is 1/,
     );
@@ -290,7 +296,8 @@ describe('assessPair: calls', () => {
     const mk = (gapMin: number) =>
       standard({
         n: 3,
-        concScale: 1e-3,
+        concScale: 1e-4,
+        clean: true,
         line: {
           counters: {
             BAY: counterSeries(
