@@ -15,6 +15,8 @@ import { ModelInputError, requireNumber } from '../errors.ts';
 
 /** Largest shape a accepted by the incomplete gamma functions (χ² with k ≤ 2·10⁹ degrees of freedom). */
 export const GAMMA_MAX_SHAPE = 1e9;
+/** Smallest shape a accepted (below it 1/a overflows in the series). */
+export const GAMMA_MIN_SHAPE = 1e-300;
 
 const EPS = Number.EPSILON;
 const FPMIN = Number.MIN_VALUE / EPS;
@@ -43,6 +45,8 @@ export function logGamma(x: number): number {
 }
 
 function logGammaUnchecked(xx: number): number {
+  // Γ(x) = Γ(x + 1)/x: avoids the overflow of ser/x below ~1e-300 and is exact to rounding.
+  if (xx < 1e-8) return logGammaUnchecked(xx + 1) - Math.log(xx);
   let y = xx;
   const tmp0 = xx + 671 / 128;
   const tmp = (xx + 0.5) * Math.log(tmp0) - tmp0;
@@ -81,13 +85,13 @@ function log1pMinus(t: number): number {
  * a·[ln(x/a) − (x/a − 1)] + ½ ln(a / 2π) − c(a), with c(a) = 1/(12a) − 1/(360a³) + …, and the bracket
  * by its cancellation-free series near x ≈ a (Press et al. 2007, §6.1 for Stirling's series).
  *
- * @param a shape, dimensionless, 0 < a ≤ 10⁹
+ * @param a shape, dimensionless, 10⁻³⁰⁰ ≤ a ≤ 10⁹
  * @param x dimensionless, finite and > 0
  * @throws ModelInputError for a or x non-finite or out of range
  * @example logGammaPrefactor(1, 2) // −2 + ln 2 = −1.3068528194400546
  */
 export function logGammaPrefactor(a: number, x: number): number {
-  requireNumber('logGammaPrefactor', 'a', a, '', { min: 0, minExclusive: true, max: GAMMA_MAX_SHAPE });
+  requireNumber('logGammaPrefactor', 'a', a, '', { min: GAMMA_MIN_SHAPE, max: GAMMA_MAX_SHAPE });
   requireNumber('logGammaPrefactor', 'x', x, '', { min: 0, minExclusive: true });
   return prefactorUnchecked(a, x);
 }
@@ -151,7 +155,7 @@ function continuedFractionQ(a: number, x: number): number {
 }
 
 function checkArgs(fn: string, a: number, x: number): void {
-  requireNumber(fn, 'a', a, '', { min: 0, minExclusive: true, max: GAMMA_MAX_SHAPE });
+  requireNumber(fn, 'a', a, '', { min: GAMMA_MIN_SHAPE, max: GAMMA_MAX_SHAPE });
   requireNumber(fn, 'x', x, '', { min: 0 });
 }
 
@@ -161,7 +165,7 @@ function checkArgs(fn: string, a: number, x: number): void {
  * Series for x < a + 1, 1 − Q by continued fraction otherwise (Press et al. 2007, §6.2).
  * Relative accuracy about 10⁻¹⁴ for a ≤ 10⁴, degrading slowly (≈ 10⁻¹² at a = 10⁹).
  *
- * @param a shape, dimensionless, 0 < a ≤ 10⁹
+ * @param a shape, dimensionless, 10⁻³⁰⁰ ≤ a ≤ 10⁹
  * @param x upper limit, dimensionless, x ≥ 0 (finite)
  * @returns P in [0, 1]
  * @throws ModelInputError for a or x non-finite or out of range
@@ -180,7 +184,7 @@ export function regularizedGammaP(a: number, x: number): number {
  * Continued fraction for x ≥ a + 1 (keeps full relative precision far in the upper tail), 1 − P by
  * series otherwise (Press et al. 2007, §6.2).
  *
- * @param a shape, dimensionless, 0 < a ≤ 10⁹
+ * @param a shape, dimensionless, 10⁻³⁰⁰ ≤ a ≤ 10⁹
  * @param x lower limit, dimensionless, x ≥ 0 (finite)
  * @returns Q in [0, 1]
  * @throws ModelInputError for a or x non-finite or out of range

@@ -7,7 +7,7 @@
  * differential density falls as x^(−α−1)). α is the same slope as the cumulative slope of a
  * counter spectrum or of ISO 14644-1 (2.08 there).
  */
-import { ModelInputError, requireNumber, requireOneOf, requirePositive } from '../errors.ts';
+import { finiteResult, ModelInputError, requireNumber, requireOneOf, requirePositive } from '../errors.ts';
 import { chiSquareQuantile } from './chi-square.ts';
 
 export type HillEstimatorForm = 'mle' | 'unbiased';
@@ -244,5 +244,14 @@ export function hillEstimatorTruncated(
   step = se;
   while (deficit(alpha - step) > 0) step *= 2;
   const lower = bisectDecreasing((a) => -deficit(a), alpha - step, alpha);
-  return { alpha, se, lower, upper, n, excluded: sizes.length - n, logLikelihood: lMax, confidence };
+  return {
+    alpha: finiteResult(fn, alpha, 'alpha'),
+    se: finiteResult(fn, se, 'se'),
+    lower: finiteResult(fn, lower, 'lower'),
+    upper: finiteResult(fn, upper, 'upper'),
+    n,
+    excluded: sizes.length - n,
+    logLikelihood: finiteResult(fn, lMax, 'logLikelihood'),
+    confidence,
+  };
 }

@@ -32,6 +32,11 @@ describe('logGamma', () => {
       expect(rel(logGamma(x), jStat.gammaln(x))).toBeLessThan(1e-12);
   });
 
+  it('stays finite for the smallest positive x: ln Γ(x) → −ln x (Γ(x) ~ 1/x)', () => {
+    expect(logGamma(Number.MIN_VALUE)).toBeCloseTo(-Math.log(Number.MIN_VALUE), 10);
+    expect(logGamma(1e-300)).toBeCloseTo(300 * Math.LN10, 10);
+  });
+
   it('satisfies the recurrence ln Γ(x + 1) = ln Γ(x) + ln x (invariant)', () => {
     for (const x of [0.001, 0.2, 0.9, 3.3, 12.5, 80, 4000])
       expect(Math.abs(logGamma(x + 1) - logGamma(x) - Math.log(x))).toBeLessThan(
@@ -107,8 +112,8 @@ describe('regularizedGammaP / regularizedGammaQ', () => {
 
   it('rejects bad a and x with ModelInputError naming the function, parameter and range', () => {
     for (const fn of [regularizedGammaP, regularizedGammaQ]) {
-      for (const a of [0, -2, 2e9, Number.NaN, Number.POSITIVE_INFINITY])
-        expect(() => fn(a, 1)).toThrow(new RegExp(`${fn.name}: a = .*allowed > 0 and ≤ 1000000000`));
+      for (const a of [0, 5e-324, -2, 2e9, Number.NaN, Number.POSITIVE_INFINITY])
+        expect(() => fn(a, 1)).toThrow(new RegExp(`${fn.name}: a = .*allowed ≥ 1e-300 and ≤ 1000000000`));
       for (const x of [-1e-9, Number.NaN, Number.POSITIVE_INFINITY])
         expect(() => fn(1, x)).toThrow(new RegExp(`${fn.name}: x = .*allowed ≥ 0`));
     }
