@@ -4,7 +4,8 @@
  * and a screenshot of it is saved (test-results/screenshots/<name>.png).
  *
  * The server's data directory is filled beforehand through the real import paths
- * (test/helpers/pages-data.ts), then the server starts with --empty so nothing else is loaded.
+ * (test/helpers/pages-data.ts: two lots, four pairs whose calls are bond, re-clean, hold and a
+ * bonded pair), then the server starts with --empty so nothing else is loaded.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -12,6 +13,8 @@ import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDataDir } from '../../src/store/db.ts';
+import { setSetting } from '../../src/store/settings.ts';
+import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
 import {
   chromiumAvailable,
   launchBrowser,
@@ -19,7 +22,7 @@ import {
   startTestServer,
   type TestServer,
 } from '../helpers/browser.ts';
-import { importPageLine } from '../helpers/pages-data.ts';
+import { AS_OF_MS, importPageLine, lineFiles } from '../helpers/pages-data.ts';
 
 const run = chromiumAvailable();
 
@@ -31,8 +34,10 @@ describe.skipIf(!run)('the pages in Chromium', () => {
   beforeAll(async () => {
     dataDir = mkdtempSync(join(tmpdir(), 'voidcast-pages-browser-'));
     const db = openDataDir(dataDir);
-    const files = await importPageLine(db);
+    const files = await importPageLine(db, lineFiles());
     files.cleanup();
+    // The test line is a recorded day: the pages assess it at its own "now".
+    setSetting(db, AS_OF_SETTING, new Date(AS_OF_MS).toISOString());
     db.close();
     server = await startTestServer({ args: ['--empty'], env: { VOIDCAST_EMPTY: '1' }, dataDir });
     browser = await launchBrowser();
@@ -88,6 +93,75 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     expect(await page.locator('[data-clean="RINSE"] .vc-band').count()).toBe(4);
     expect(await page.locator('[data-clean="PBC-MEG"] .vc-curve').count()).toBe(1);
     await page.screenshot({ path: screenshotPath('tools'), fullPage: true });
+    expect(errors).toEqual([]);
+  });
+
+  it('Lots: the queue with each lot’s call told by word, and the bonded lots', async () => {
+    const { page, errors } = await open('lots');
+    expect(await page.locator('h1').textContent()).toBe('Lots');
+    const waiting = page.locator('table[data-table="waiting"] tbody tr');
+    expect(await waiting.count()).toBe(1);
+    expect(await waiting.first().locator('[data-call]').first().textContent()).toBe('hold');
+    expect(await waiting.first().textContent()).toContain('1 bond');
+    expect(await waiting.first().textContent()).toContain('1 re-clean');
+    expect(await page.locator('table[data-table="bonded"] tbody tr').count()).toBe(1);
+    await page.screenshot({ path: screenshotPath('lots'), fullPage: true });
+    expect(errors).toEqual([]);
+  });
+
+  it('Lot: each pair’s call and figures, a lot Pareto whose grouping swaps in place', async () => {
+    const { page, errors } = await open('lots/L-01');
+    const rows = page.locator('table.vc-pair-table tbody tr');
+    expect(await rows.count()).toBe(3);
+    expect(await rows.locator('[data-call]').allTextContents()).toEqual(['bond', 're-clean', 'hold']);
+    expect(await page.locator('#pareto-panel svg[data-chart="pareto"] .vc-bar').count()).toBeGreaterThan(0);
+    await page.evaluate('window.__marker = 3');
+    await page.getByRole('link', { name: 'by size band' }).click();
+    await page.waitForSelector('#pareto-panel[data-by="size"]');
+    expect(await page.evaluate('window.__marker')).toBe(3);
+    expect(await page.locator('#pareto-panel .vc-bar').count()).toBeGreaterThan(0);
+    await page.screenshot({ path: screenshotPath('lot'), fullPage: true });
+    expect(errors).toEqual([]);
+  });
+
+  it('Pair: maps (top mirrored and labelled), void map, spectrum, Pareto, re-clean with caution, sign-off', async () => {
+    const { page, errors } = await open('pairs/P-02');
+    expect(await page.locator('.vc-call-box [data-call="re-clean"]').count()).toBe(1);
+    expect(await page.locator('.vc-call-box .vc-reclean-caution').textContent()).toContain(
+      'authorised recipes',
+    );
+    const bottom = page.locator('svg#map-bottom');
+    const top = page.locator('svg#map-top');
+    expect(await bottom.locator('.vc-particle').count()).toBe(25);
+    expect(await top.locator('.vc-particle').count()).toBe(30);
+    expect(await top.locator('.vc-mirror-note').textContent()).toContain(
+      'Seen from the bond interface: mirrored',
+    );
+    expect(await page.locator('svg#void-map .vc-void').count()).toBeGreaterThan(0);
+    expect(await page.locator('svg#void-map .vc-die').count()).toBeGreaterThan(100);
+    expect(await page.locator('svg#spectrum-chart .vc-layer').count()).toBeGreaterThan(1);
+    expect(await page.locator('.vc-before-after tbody tr').count()).toBe(5);
+    expect(await page.locator('.vc-reclean .vc-reclean-caution').count()).toBe(1);
+    await page.screenshot({ path: screenshotPath('pair'), fullPage: true });
+
+    // The spectrum swaps to the cumulative view in place.
+    await page.getByRole('link', { name: 'Show cumulative N(≥ d)' }).click();
+    await page.waitForSelector('#spectrum[data-mode="cumulative"]');
+
+    // Sign-off: refused without a comment when overriding the call, then stored, in place.
+    await page.fill('#signoff-name', 'A. Engineer');
+    await page.selectOption('#signoff-call', 'bond');
+    await page.click('#signoff button[type="submit"]');
+    await page.waitForSelector('#signoff .vc-error');
+    expect(await page.locator('#signoff .vc-error').textContent()).toContain('needs a comment');
+    await page.fill('#signoff-name', 'A. Engineer');
+    await page.selectOption('#signoff-call', 're-clean');
+    await page.click('#signoff button[type="submit"]');
+    await page.waitForSelector('#signoff .vc-success');
+    expect(await page.locator('#signoff .vc-signoff-records tbody tr').count()).toBe(1);
+    expect(await page.locator('#signoff .vc-signoff-records').textContent()).toContain(
+      'A. Engineer (bonding process engineer)',
+    );
     expect(errors).toEqual([]);
   });
 });

@@ -3,10 +3,11 @@
  * read what an import stores. Names carry markup, quotes and ampersands on purpose: pages must
  * show them escaped.
  *
- * Counter data: two locations sampled every 15 min for 24 h from 2025-03-03T00:00Z with a
- * 2¾-hour gap (samples 41–51 missing) and one excursion in Bay 3 at 17:30 (sample 70).
+ * Counter data: two locations sampled continuously in 15-min samples (424.5 L each, a 28.3 L/min
+ * counter) for 24 h from 2025-03-03T00:00Z, with a 2¾-hour gap (samples 41–51 missing) and one
+ * excursion in Bay 3 at 17:30 (sample 70). Concentrations are stated per 28.3 L below.
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { importFile } from '../../src/ingest/pipeline.ts';
@@ -30,7 +31,7 @@ export const LOCATIONS_CSV = [
   '',
 ].join('\n');
 
-/** Deterministic counts (no randomness): Bay 3 ~300 ≥ 0.5 µm per 28.3 L sample, the mini-environment ~0–1. */
+/** Deterministic counts (no randomness): Bay 3 ~300 ≥ 0.5 µm per 28.3 L, the mini-environment ~0–1 per 28.3 L. */
 export function counterCsv(): string {
   const rows = [
     '# units: counts=raw',
@@ -48,7 +49,10 @@ export function counterCsv(): string {
         (i % 7) * (base > 0 ? 5 : 0) +
         (loc === 'me-1' && i % 5 === 0 ? 1 : 0) +
         (loc === 'bay-3' && i === 70 ? 80 : 0);
-      rows.push(`CPC-${loc},${loc},${t},60,28.3,ok,${c05 * 8},${c05 * 2},${c05},${Math.floor(c05 / 4)}`);
+      const k = 15; // 15 × 28.3 L per sample
+      rows.push(
+        `CPC-${loc},${loc},${t},900,424.5,ok,${c05 * 8 * k},${c05 * 2 * k},${c05 * k},${Math.floor(c05 / 4) * k}`,
+      );
     }
   }
   return `${rows.join('\n')}\n`;
@@ -128,6 +132,122 @@ export const TOOLS_JSON = JSON.stringify(
   null,
   2,
 );
+
+/**
+ * The product: test/fixtures/good/products-hybrid-300.json (HB300-LOGIC, re-clean PBC-MEG) with a
+ * looser spec than that fixture's zero-void one, so that the page line shows all three calls.
+ */
+export const PRODUCT_JSON = (() => {
+  const p = JSON.parse(
+    readFileSync(new URL('../fixtures/good/products-hybrid-300.json', import.meta.url), 'utf8'),
+  );
+  p.spec = {
+    ...p.spec,
+    version: 'page-test spec 1',
+    maxVoids: 8,
+    maxUnbondedFraction: 0.05,
+    minDieYield: 0.6,
+  };
+  return JSON.stringify(p, null, 2);
+})();
+
+/**
+ * Lot L-01 waits to bond (three pairs: few particles → bond; many → re-clean; many with the
+ * re-clean limit reached → hold); lot L-02 is bonded (one pair, bonded before AS_OF_MS).
+ */
+export const LOT = 'L-01';
+export const WAFERS = ['L-01-01', 'L-01-02', 'L-01-03', 'L-01-04', 'L-01-05', 'L-01-06'];
+export const BONDED_LOT = 'L-02';
+export const BONDED_WAFERS = ['L-02-01', 'L-02-02'];
+/** Detected particles per wafer in its pre-bond scan. */
+const PARTICLES: Record<string, number> = {
+  'L-01-01': 3,
+  'L-01-02': 4,
+  'L-01-03': 25,
+  'L-01-04': 30,
+  'L-01-05': 25,
+  'L-01-06': 30,
+  'L-02-01': 2,
+  'L-02-02': 3,
+};
+/** The pages assess at this time: after the last step, before L-01's planned bonds, after L-02's. */
+export const AS_OF_MS = Date.UTC(2025, 2, 3, 20, 0);
+
+const iso = (h: number, m = 0) => new Date(T0_MS + (h * 60 + m) * MIN).toISOString().replace('.000Z', 'Z');
+const lotOf = (w: string) => w.slice(0, 4);
+
+/** One pre-bond scan per wafer at 14:00 (45 nm threshold, centre origin), particles on a spiral, 45–400 nm. */
+export function scansCsv(): string {
+  const rows = [
+    '# format: voidcast scans 1',
+    '# tool: SCN-1',
+    '# recipe: PREBOND-45',
+    '# threshold_nm: 45',
+    '# wafer_diameter_mm: 300',
+    '# edge_exclusion_mm: 3',
+    '# coordinates: origin=centre x=right y=up view=front',
+    '# notch_deg: 270',
+    'record,scan_id,lot,wafer,step,scan_time,x_mm,y_mm,size_nm,class',
+  ];
+  [...WAFERS, ...BONDED_WAFERS].forEach((w, k) => {
+    const n = PARTICLES[w]!;
+    rows.push(`scan,${w}-PB,${lotOf(w)},${w},pre-bond inspection,${iso(14)},,,,`);
+    for (let i = 0; i < n; i++) {
+      const r = 12 + (125 * (i + 1)) / n;
+      const a = i * 2.399 + k;
+      const size = 46 * (400 / 46) ** ((((i * 7) % n) / n) ** 2);
+      rows.push(
+        `defect,${w}-PB,,,,,${(r * Math.cos(a)).toFixed(3)},${(r * Math.sin(a)).toFixed(3)},${size.toFixed(1)},particle`,
+      );
+    }
+  });
+  return `${rows.join('\n')}\n`;
+}
+
+/**
+ * Every wafer: clean on CLN-1 (PBC-MEG) 12:00–12:30, scan, a closed-carrier wait in Bay 3
+ * 14:30–17:30, activation on ACT-1, an open wait in the bonder's mini-environment 18:15–19:30.
+ * L-01-05 and L-01-06 have had two re-cleans already (the product's limit).
+ */
+export function ledgerCsv(): string {
+  const rows = [
+    'lot,wafer,step,step_kind,tool,chamber,recipe,clean,location,carrier,orientation,start,end,reclean_count',
+  ];
+  for (const w of [...WAFERS, ...BONDED_WAFERS]) {
+    const rc = w === 'L-01-05' || w === 'L-01-06' ? 2 : 0;
+    const lot = lotOf(w);
+    rows.push(
+      `${lot},${w},post-CMP clean,clean,CLN-1,,MEG-A,PBC-MEG,,in-tool,,${iso(12)},${iso(12, 30)},${rc}`,
+    );
+    rows.push(`${lot},${w},pre-bond inspection,inspection,SCN-1,,,,,in-tool,,${iso(14)},${iso(14, 5)},${rc}`);
+    rows.push(`${lot},${w},Q-time wait,wait,,,,,bay-3,closed,,${iso(14, 30)},${iso(17, 30)},${rc}`);
+    rows.push(`${lot},${w},plasma activation,activation,ACT-1,,,,,in-tool,,${iso(18)},${iso(18, 10)},${rc}`);
+    rows.push(`${lot},${w},load at bonder,wait,,,,,me-1,open,,${iso(18, 15)},${iso(19, 30)},${rc}`);
+  }
+  return `${rows.join('\n')}\n`;
+}
+
+/** L-01's pairs are planned for 21:00 (after AS_OF_MS: waiting); L-02's pair bonded at 19:40. */
+export function pairsCsv(): string {
+  return [
+    'pair,product,top_wafer,bottom_wafer,flip_axis,rotation_deg,offset_x_mm,offset_y_mm,bonder,planned_bond_time,lot',
+    `P-01,HB300-LOGIC,L-01-02,L-01-01,y,0,0,0,BOND-1,${iso(21)},${LOT}`,
+    `P-02,HB300-LOGIC,L-01-04,L-01-03,y,0,0,0,BOND-1,${iso(21)},${LOT}`,
+    `P-03,HB300-LOGIC,L-01-06,L-01-05,y,0,0,0,BOND-1,${iso(21)},${LOT}`,
+    `P-04,HB300-LOGIC,L-02-02,L-02-01,y,0,0,0,BOND-1,${iso(19, 40)},${BONDED_LOT}`,
+    '',
+  ].join('\n');
+}
+
+/** The files of the full line, in import order. */
+export function lineFiles(): { kind: ImportKindName; name: string; text: string }[] {
+  return [
+    { kind: 'products', name: 'product.json', text: PRODUCT_JSON },
+    { kind: 'scans', name: 'scans.csv', text: scansCsv() },
+    { kind: 'ledger', name: 'ledger.csv', text: ledgerCsv() },
+    { kind: 'pairs', name: 'pairs.csv', text: pairsCsv() },
+  ];
+}
 
 export interface LineFiles {
   dir: string;

@@ -59,7 +59,7 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
   const mode = input.mode ?? 'per-bin';
   const edges = Array.from(input.edgesM ?? SPECTRUM_EDGES_M);
   const nb = edges.length - 1;
-  const legendRows = Math.ceil(input.series.length / 2);
+  const legendRows = input.series.length;
   const width = input.width ?? 560;
   const height = (input.height ?? 300) + legendRows * 16;
   const frame = { width, height, margin: { top: 14, right: 26, bottom: 50 + legendRows * 16, left: 66 } };
@@ -183,10 +183,8 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
       <Legend
         x={box.x0}
         y={box.y1 + 40}
-        columns={2}
-        columnWidth={(box.x1 - box.x0) / 2}
         entries={layers.map((l) => ({
-          label: `${clip(l.source, 34)} — ${fmtNum(l.total)}`,
+          label: `${clip(l.source, Math.floor((box.x1 - box.x0) / 6.4) - 12)} — ${fmtNum(l.total)}`,
           swatch: (
             <rect
               x={0}

@@ -57,7 +57,7 @@ export function voidMap(input: VoidMapInput) {
   const expected = shown.reduce((a, v) => a + clamp01(v.survival), 0);
   const hatch = `${id}-kill`;
   const desc =
-    `${shown.length} predicted void${shown.length === 1 ? '' : 's'} (expected ${expected.toFixed(2)} after survival), ` +
+    `${shown.length} predicted void${shown.length === 1 ? '' : 's'} of any size from detected particles (expected ${expected.toFixed(2)} after survival), ` +
     `${killed} of ${input.dies.length} dies killed` +
     (input.frameNote ? `; ${input.frameNote}` : '') +
     '. Disc radius to scale; opacity = survival probability; killed dies hatched.';
@@ -212,7 +212,7 @@ export function voidMap(input: VoidMapInput) {
         ]}
       />
       <text class="vc-void-summary" x={lx} y={top + 4 + 14 + 3 * 19 + 12 + 14 + 3 * 19 + 18}>
-        {`expected voids ${expected.toFixed(2)}`}
+        {`expected discs ${expected.toFixed(1)} (all sizes)`}
       </text>
     </ChartSvg>
   );

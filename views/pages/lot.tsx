@@ -135,7 +135,13 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
         for random particles, negative binomial (Stapper) for clustered ones.
       </p>
       <h2>Lot Pareto</h2>
-      <ParetoPanel pareto={lot.pareto} by={props.paretoBy} base={base} subject={`Lot ${lot.lotId}`} />
+      <ParetoPanel
+        pareto={lot.pareto}
+        by={props.paretoBy}
+        base={base}
+        subject={`Lot ${lot.lotId}`}
+        asOfMs={lot.asOfMs}
+      />
     </section>
   );
 }

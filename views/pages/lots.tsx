@@ -19,7 +19,8 @@ export interface LotRow {
   dies: number;
   dominant: { label: string; share: number } | null;
   bondedAtMs: number | null;
-  signed: { call: CallName; signedBy: string; signedAtMs: number } | null;
+  /** Pairs whose latest sign-off is for the current inputs. */
+  signedPairs: number;
   /** Why the lot has no figures (missing data), in plain words. */
   problem: string | null;
 }
@@ -81,9 +82,9 @@ function LotTable(props: { rows: LotRow[]; bonded: boolean }) {
             <td>
               {props.bonded ? (
                 fmtUtc(r.bondedAtMs)
-              ) : r.signed ? (
+              ) : r.signedPairs > 0 ? (
                 <span>
-                  <CallBadge call={r.signed.call} /> {r.signed.signedBy}
+                  {r.signedPairs} of {r.pairs} pairs
                 </span>
               ) : (
                 <span class="vc-small">not signed</span>

@@ -194,9 +194,15 @@ export function PairPage(props: PairPageProps) {
           {a.dominant.metric === 'expectedVoids' ? 'expected voids' : 'expected die kills'}).
         </p>
       ) : null}
-      <ParetoPanel pareto={a.pareto} by={props.paretoBy} base={base} subject={`Pair ${a.pairId}`} />
+      <ParetoPanel
+        pareto={a.pareto}
+        by={props.paretoBy}
+        base={base}
+        subject={`Pair ${a.pairId}`}
+        asOfMs={a.asOfMs}
+      />
 
-      {a.reclean ? <RecleanSection a={a} /> : null}
+      {a.reclean && a.call === 're-clean' ? <RecleanSection a={a} /> : null}
 
       <div class="vc-grid2">
         <QTimes a={a} />
@@ -359,8 +365,8 @@ export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cum
       <p class="vc-small">
         {props.mode === 'per-bin' ? 'Count per size bin.' : 'Cumulative count N(≥ d).'}{' '}
         <a
-          href={`${base}?spectrum=${other}#spectrum-panel`}
-          hx-get={`${base}/spectrum?mode=${other}`}
+          href={`${base}?spectrum=${other}&asOf=${a.asOfMs}#spectrum-panel`}
+          hx-get={`${base}/spectrum?mode=${other}&asOf=${a.asOfMs}`}
           hx-target="#spectrum"
           hx-swap="outerHTML"
         >

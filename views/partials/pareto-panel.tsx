@@ -44,20 +44,28 @@ const METRIC_LABEL = { expectedVoids: 'expected voids', dieKillEvents: 'expected
  * @param base the subject's URL ("/pairs/P1" or "/lots/L1"); tabs link to `${base}?pareto=…`
  *   for the full page and `${base}/pareto?by=…` for the swap.
  */
-export function ParetoPanel(props: { pareto: ParetoLike; by: ParetoBy; base: string; subject: string }) {
+export function ParetoPanel(props: {
+  pareto: ParetoLike;
+  by: ParetoBy;
+  base: string;
+  subject: string;
+  /** Assessment time the panel's swaps re-use, so they show the same figures as the page. */
+  asOfMs?: number;
+}) {
   const group = PARETO_GROUPS.find((g) => g.by === props.by)!;
   const entries = props.pareto[group.field];
   const metric = props.pareto.metric;
   const value = (e: ParetoEntryLike) => (metric === 'expectedVoids' ? e.expectedVoids : e.dieKillEvents);
   const sorted = [...entries].sort((a, b) => value(b) - value(a));
   const id = `pareto-${props.by}`;
+  const at = props.asOfMs !== undefined ? `&asOf=${props.asOfMs}` : '';
   return (
     <section class="vc-pareto-panel" id="pareto-panel" data-by={props.by}>
       <nav class="vc-tabs" aria-label="Pareto grouping">
         {PARETO_GROUPS.map((g) => (
           <a
-            href={`${props.base}?pareto=${g.by}#pareto-panel`}
-            hx-get={`${props.base}/pareto?by=${g.by}`}
+            href={`${props.base}?pareto=${g.by}${at}#pareto-panel`}
+            hx-get={`${props.base}/pareto?by=${g.by}${at}`}
             hx-target="#pareto-panel"
             hx-swap="outerHTML"
             hx-push-url="false"

@@ -1,0 +1,190 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
+import { readDispositions } from '../../src/store/dispositions.ts';
+import { setSetting } from '../../src/store/settings.ts';
+import { createApp } from '../../src/web/app.ts';
+import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
+import { AS_OF_MS, importPageLine, type LineFiles, lineFiles } from '../helpers/pages-data.ts';
+
+let db: Db;
+let files: LineFiles;
+let app: ReturnType<typeof createApp>;
+
+beforeAll(async () => {
+  db = openDatabase(':memory:');
+  migrate(db);
+  files = await importPageLine(db, lineFiles());
+  setSetting(db, AS_OF_SETTING, new Date(AS_OF_MS).toISOString());
+  app = createApp({ db, dataDir: files.dir, version: 'test', log: () => {} });
+});
+afterAll(() => {
+  files?.cleanup();
+  db?.close();
+});
+
+/** A session: the cookie and form token the CSRF middleware hands a page (src/web/csrf.ts). */
+async function session(
+  path: string,
+): Promise<{ cookie: string; token: string; hash: string; asOf: string; html: string }> {
+  const res = await app.request(path);
+  const cookie = (res.headers.get('set-cookie') ?? '').split(';')[0]!;
+  const html = await res.text();
+  const field = (name: string) => new RegExp(`name="${name}" value="([^"]+)"`).exec(html)![1]!;
+  return { cookie, token: field('_csrf'), hash: field('inputsHash'), asOf: field('asOfMs'), html };
+}
+
+function post(path: string, s: { cookie: string }, form: Record<string, string>, htmx = false) {
+  const body = new URLSearchParams(form).toString();
+  return app.request(path, {
+    method: 'POST',
+    headers: {
+      cookie: s.cookie,
+      'content-type': 'application/x-www-form-urlencoded',
+      'content-length': String(Buffer.byteLength(body)),
+      origin: 'http://localhost',
+      'sec-fetch-site': 'same-origin',
+      ...(htmx ? { 'HX-Request': 'true' } : {}),
+    },
+    body,
+  });
+}
+
+describe('GET /pairs/:id', () => {
+  it('shows the call with its reasons and, for a re-clean, the caution beside it', async () => {
+    const res = await app.request('/pairs/P-02');
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    const box = /<div class="vc-call-box" data-call="re-clean">([\s\S]*?)<\/div>/.exec(html)![1]!;
+    expect(box).toContain('vc-reasons');
+    expect(box).toContain('authorised recipes');
+    expect(box).toContain('qualified people');
+    expect(box).toContain('safety data sheets');
+  });
+
+  it('draws both wafer maps (the top mirrored, said in words), the void map, the spectrum and the Pareto', async () => {
+    const html = await (await app.request('/pairs/P-02')).text();
+    const svg = (id: string) => new RegExp(`<svg[^>]*id="${id}"[\\s\\S]*?</svg>`).exec(html)?.[0] ?? '';
+    expect(svg('map-bottom').match(/class="vc-mark vc-particle"/g)).toHaveLength(25);
+    expect(svg('map-top').match(/class="vc-mark vc-particle"/g)).toHaveLength(30);
+    expect(svg('map-top')).toContain('Seen from the bond interface: mirrored (x → −x)');
+    expect(svg('map-bottom')).not.toContain('mirrored');
+    expect(svg('void-map')).toContain('class="vc-mark vc-void"');
+    expect(svg('void-map')).toContain('vc-die vc-die-killed');
+    expect(svg('spectrum-chart')).toContain('class="vc-mark vc-layer"');
+    expect(html).toContain('id="pareto-panel" data-by="tool"');
+    expect(html).toContain('Modelled re-clean: Pre-bond megasonic clean');
+    expect(html.match(/<table class="vc-table vc-table-compact vc-before-after">/g)).toHaveLength(1);
+  });
+
+  it('escapes names from files (tool and location names) everywhere on the page', async () => {
+    const html = await (await app.request('/pairs/P-02')).text();
+    expect(html).not.toContain('<script>alert(1)</script>');
+    expect(html).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
+  });
+
+  it('shows no caution box for a bond call, and 404 for an unknown pair', async () => {
+    const html = await (await app.request('/pairs/P-01')).text();
+    const box = /<div class="vc-call-box" data-call="bond">([\s\S]*?)<\/div>/.exec(html)![1]!;
+    expect(box).not.toContain('vc-reclean-caution');
+    expect(html).not.toContain('Modelled re-clean');
+    expect((await app.request('/pairs/P-99')).status).toBe(404);
+  });
+
+  it('swaps the spectrum mode and the Pareto grouping as fragments', async () => {
+    const sp = await app.request(`/pairs/P-02/spectrum?mode=cumulative&asOf=${AS_OF_MS}`, {
+      headers: { 'HX-Request': 'true' },
+    });
+    const h = await sp.text();
+    expect(h.startsWith('<div class="vc-spectrum" id="spectrum" data-mode="cumulative">')).toBe(true);
+    expect(h).toContain('particles per pair ≥ d');
+    const pa = await app.request(`/pairs/P-02/pareto?by=wait&asOf=${AS_OF_MS}`, {
+      headers: { 'HX-Request': 'true' },
+    });
+    expect(
+      (await pa.text()).startsWith('<section class="vc-pareto-panel" id="pareto-panel" data-by="wait">'),
+    ).toBe(true);
+  });
+});
+
+describe('POST /pairs/:id/signoff', () => {
+  it('refuses a sign-off without a name, in place for htmx (200 with the error)', async () => {
+    const s = await session('/pairs/P-01');
+    const res = await post(
+      '/pairs/P-01/signoff',
+      s,
+      { _csrf: s.token, inputsHash: s.hash, asOfMs: s.asOf, name: ' ', role: 'bonding process engineer' },
+      true,
+    );
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    expect(html.startsWith('<section class="vc-signoff vc-panel" id="signoff">')).toBe(true);
+    expect(html).toContain('Name: the name of the person signing is required.');
+    expect(readDispositions(db, 'pair', 'P-01')).toHaveLength(0);
+  });
+
+  it('refuses when the inputs changed since the page was drawn (409 without script)', async () => {
+    const s = await session('/pairs/P-01');
+    const stale = s.hash.replace(/^./, (c) => (c === '0' ? '1' : '0'));
+    const res = await post('/pairs/P-01/signoff', s, {
+      _csrf: s.token,
+      inputsHash: stale,
+      asOfMs: s.asOf,
+      name: 'A. Engineer',
+      role: 'bonding process engineer',
+    });
+    expect(res.status).toBe(409);
+    const html = await res.text();
+    expect(html).toContain('The inputs changed since this assessment');
+    expect(readDispositions(db, 'pair', 'P-01')).toHaveLength(0);
+  });
+
+  it('refuses an overridden call without a comment, then stores a signed call with name and role', async () => {
+    const s = await session('/pairs/P-01');
+    const base = { _csrf: s.token, inputsHash: s.hash, asOfMs: s.asOf, role: 'line or yield owner' };
+    const refused = await post('/pairs/P-01/signoff', s, { ...base, name: 'B. Owner', call: 'hold' }, true);
+    expect(await refused.text()).toContain('needs a comment');
+    const ok = await post(
+      '/pairs/P-01/signoff',
+      s,
+      { ...base, name: 'B. <Owner> & "Co"', call: 'bond', comment: '' },
+      true,
+    );
+    expect(ok.status).toBe(200);
+    const html = await ok.text();
+    expect(html).toContain('class="vc-success"');
+    expect(html).toContain('B. &lt;Owner&gt; &amp; &quot;Co&quot; (line or yield owner)');
+    const stored = readDispositions(db, 'pair', 'P-01');
+    expect(stored).toHaveLength(1);
+    expect(stored[0]).toMatchObject({
+      call: 'bond',
+      proposedCall: 'bond',
+      signedBy: 'B. <Owner> & "Co" (line or yield owner)',
+      inputsHash: s.hash,
+    });
+  });
+
+  it('redirects a plain (no-script) sign-off back to the pair at the signed assessment time', async () => {
+    const s = await session('/pairs/P-04');
+    const res = await post('/pairs/P-04/signoff', s, {
+      _csrf: s.token,
+      inputsHash: s.hash,
+      asOfMs: s.asOf,
+      name: 'C. Engineer',
+      role: 'bonding process engineer',
+    });
+    expect(res.status).toBe(303);
+    expect(res.headers.get('location')).toBe(`/pairs/P-04?asOf=${s.asOf}#signoff`);
+    expect(readDispositions(db, 'pair', 'P-04')).toHaveLength(1);
+  });
+
+  it('is refused without the form token (CSRF)', async () => {
+    const s = await session('/pairs/P-01');
+    const res = await post('/pairs/P-01/signoff', s, {
+      inputsHash: s.hash,
+      asOfMs: s.asOf,
+      name: 'X',
+      role: 'line or yield owner',
+    });
+    expect(res.status).toBe(403);
+  });
+});
