@@ -85,6 +85,7 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
           label="dominant source"
           value={lot.dominant ? `${lot.dominant.label}` : '—'}
           sub={lot.dominant ? `${fmtShare(lot.dominant.share)} of the lot's risk` : undefined}
+          text
         />
       </div>
       <h2>Pairs</h2>
@@ -146,9 +147,9 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
   );
 }
 
-export function Figure(props: { label: string; value: string; sub?: string | undefined }) {
+export function Figure(props: { label: string; value: string; sub?: string | undefined; text?: boolean }) {
   return (
-    <div class="vc-tile vc-figure">
+    <div class={props.text ? 'vc-tile vc-figure vc-figure-text' : 'vc-tile vc-figure'}>
       <span class="vc-tile-value">{props.value}</span>
       <span class="vc-tile-label">{props.label}</span>
       {props.sub ? <span class="vc-small">{props.sub}</span> : null}
