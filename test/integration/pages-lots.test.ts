@@ -64,8 +64,8 @@ describe('GET /lots/:id', () => {
     expect(rows.map((r) => r[1])).toEqual(['P-01', 'P-02', 'P-03']);
     expect(rows.map((r) => /data-call="([^"]+)"/.exec(r[2]!)![1])).toEqual(['bond', 're-clean', 'hold']);
     for (const r of rows) {
-      // expected voids "v (low–high)", die loss Poisson and NB, both with intervals
-      expect(r[2]!.match(/\(\d[^)]*–[^)]*\)/g)!.length).toBeGreaterThanOrEqual(3);
+      // expected voids, unbonded fraction, die loss Poisson and NB, each over its interval "low–high"
+      expect(r[2]!.match(/<span class="vc-small">[^<]*\d[^<]*–[^<]*<\/span>/g)).toHaveLength(4);
       expect(r[2]).toContain('class="vc-reasons"');
     }
     expect(rows[2]![2]).toContain('A re-clean is not allowed');

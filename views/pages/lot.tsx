@@ -115,17 +115,17 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
               <td>
                 <CallBadge call={p.call} />
               </td>
-              <td class="num">{fmtEstimate(p.figures.voids)}</td>
+              <EstimateCell e={p.figures.voids} f={(v) => fmtNum(v)} />
               <td class="num">
                 {fmtAreaM2(p.figures.unbondedAreaM2.value)}
                 <br />
                 <span class="vc-small">{fmtEstimate(p.figures.unbondedFraction, fmtPct)}</span>
               </td>
-              <td class="num">{fmtEstimate(p.figures.dieKillsPoisson, fmtDies)}</td>
-              <td class="num">{fmtEstimate(p.figures.dieKillsNB, fmtDies)}</td>
+              <EstimateCell e={p.figures.dieKillsPoisson} f={fmtDies} />
+              <EstimateCell e={p.figures.dieKillsNB} f={fmtDies} />
               <td>{p.dominant ? `${p.dominant.label} (${fmtShare(p.dominant.share)})` : '—'}</td>
               <td>
-                <ReasonList reasons={p.reasons} />
+                <ShortReasons reasons={p.reasons} href={`/pairs/${encodeURIComponent(p.pairId)}`} />
               </td>
             </tr>
           ))}
@@ -144,6 +144,37 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
         asOfMs={lot.asOfMs}
       />
     </section>
+  );
+}
+
+/** A figure over its interval, in one table cell. */
+function EstimateCell(props: { e: EstimateLike | null; f: (v: number) => string }) {
+  if (!props.e) return <td class="num">—</td>;
+  return (
+    <td class="num vc-estimate">
+      {props.f(props.e.value)}
+      <br />
+      <span class="vc-small">
+        {props.f(props.e.low)}–{props.f(props.e.high)}
+      </span>
+    </td>
+  );
+}
+
+/** The first reason (blocking ones first) and how many more the pair page gives. */
+function ShortReasons(props: { reasons: ReasonLike[]; href: string }) {
+  const sorted = [...props.reasons].sort((a, b) => Number(b.blocking) - Number(a.blocking));
+  const first = sorted[0];
+  if (!first) return <span class="vc-small">—</span>;
+  return (
+    <div class="vc-short-reasons">
+      <ReasonList reasons={[first]} />
+      {sorted.length > 1 ? (
+        <a class="vc-small" href={props.href}>
+          {sorted.length - 1} more reason{sorted.length > 2 ? 's' : ''} on the pair page
+        </a>
+      ) : null}
+    </div>
   );
 }
 

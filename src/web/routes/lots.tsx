@@ -42,13 +42,63 @@ export function asOfFrom(c: Context, ctx: AppContext): number {
   );
 }
 
+/**
+ * A small memo of assessments for the pages: the engine is deterministic (seeded), so the same
+ * subject at the same time on the same data gives the same figures. The data's version is the
+ * imports table (every stored change comes through an import). Bounded; oldest entries go first.
+ */
+const MEMO_MAX = 64;
+const memos = new WeakMap<object, Map<string, unknown>>();
+
+function dataVersion(ctx: AppContext): string {
+  try {
+    const r = ctx.db.prepare('SELECT COUNT(*) AS n, MAX(id) AS m FROM imports').get() as {
+      n: number;
+      m: number | null;
+    };
+    return `${r.n}:${r.m ?? 0}`;
+  } catch {
+    return '0:0';
+  }
+}
+
+export function memoised<T>(ctx: AppContext, key: string, compute: () => T): T {
+  let memo = memos.get(ctx.db);
+  if (!memo) {
+    memo = new Map();
+    memos.set(ctx.db, memo);
+  }
+  const k = `${dataVersion(ctx)}|${key}`;
+  if (memo.has(k)) return memo.get(k) as T;
+  const v = compute();
+  memo.set(k, v);
+  while (memo.size > MEMO_MAX) memo.delete(memo.keys().next().value as string);
+  return v;
+}
+
+type LotForPage =
+  | { lot: LotAssessment; bonded: boolean; bondedAtMs: number | null }
+  | { problem: string }
+  | null;
+
 /** Lot assessment, or the reason there is none (unknown lot: null). */
 export function assessLotForPage(
   ctx: AppContext,
   lotId: string,
   asOfMs: number,
   detail: 'summary' | 'full' = 'summary',
-): { lot: LotAssessment; bonded: boolean; bondedAtMs: number | null } | { problem: string } | null {
+): LotForPage {
+  return memoised(ctx, `lot|${lotId}|${asOfMs}|${detail}`, () =>
+    assessLotUncached(ctx, lotId, asOfMs, detail),
+  );
+}
+
+function assessLotUncached(
+  ctx: AppContext,
+  lotId: string,
+  asOfMs: number,
+  detail: 'summary' | 'full',
+): LotForPage {
   const loaded = loadLot(ctx.db, lotId, asOfMs);
   if (!loaded) return null;
   if (loaded.lot.pairs.length === 0) return { problem: 'no pairs yet (import a pairs file)' };

@@ -21,7 +21,7 @@ import { readDispositions } from '../../store/dispositions.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
-import { asOfFrom, notFound } from './lots.tsx';
+import { asOfFrom, memoised, notFound } from './lots.tsx';
 
 interface Loaded {
   a: PairAssessment;
@@ -31,6 +31,10 @@ interface Loaded {
 }
 
 function assess(ctx: AppContext, id: string, asOfMs: number): Loaded | { problem: string } | null {
+  return memoised(ctx, `pair|${id}|${asOfMs}`, () => assessUncached(ctx, id, asOfMs));
+}
+
+function assessUncached(ctx: AppContext, id: string, asOfMs: number): Loaded | { problem: string } | null {
   const loaded = loadPair(ctx.db, id, asOfMs);
   if (!loaded) return null;
   try {
