@@ -58,6 +58,7 @@ export function activity(utcMs: number): number {
 export interface AirPath {
   locationId: string;
   slope: number;
+  slopeLarge: number;
   /** Room component ≥ 0.1 µm, particles/m³, per minute. */
   room: Float64Array;
   /** Burst component ≥ 0.1 µm, per minute. */
@@ -111,6 +112,7 @@ export function airPath(loc: LineLocation): AirPath {
   const path: AirPath = {
     locationId: loc.id,
     slope: air.slope,
+    slopeLarge: air.slopeLarge,
     room,
     burst,
     excess,
@@ -120,12 +122,24 @@ export function airPath(loc: LineLocation): AirPath {
   return path;
 }
 
-/** Truth: concentration ≥ d (m) at minute index m, particles/m³. */
-export function concentrationAbove(p: AirPath, m: number, dM: number): number {
-  const x = 0.1e-6 / dM;
+/** Largest airborne particle of the truth, m (counters' top channel is ≥ 5 µm). */
+export const AIR_CEILING_M = 20e-6;
+const KNEE_M = 0.5e-6;
+
+function above(p: AirPath, m: number, dM: number): number {
+  const room =
+    dM <= KNEE_M ? (0.1e-6 / dM) ** p.slope : (0.1e-6 / KNEE_M) ** p.slope * (KNEE_M / dM) ** p.slopeLarge;
   return (
-    p.room[m]! * x ** p.slope + p.burst[m]! * x ** BURST_SLOPE + p.excess[m]! * (0.5e-6 / dM) ** p.excessSlope
+    p.room[m]! * room +
+    p.burst[m]! * (0.1e-6 / dM) ** BURST_SLOPE +
+    p.excess[m]! * (0.5e-6 / dM) ** p.excessSlope
   );
+}
+
+/** Truth: concentration ≥ d (m) at minute index m, particles/m³ (none above AIR_CEILING_M). */
+export function concentrationAbove(p: AirPath, m: number, dM: number): number {
+  if (dM >= AIR_CEILING_M) return 0;
+  return above(p, m, dM) - above(p, m, AIR_CEILING_M);
 }
 
 /** Minute index of an instant (floor), clamped into the window. */

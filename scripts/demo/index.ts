@@ -7,8 +7,18 @@
  */
 import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import { INSPECTIONS, pairInterface } from './bonded.ts';
 import { COUNTED_LOCATIONS, DEMO_AS_OF_MS, DEMO_SEED, lineClean, lineTool, PRODUCT } from './line.ts';
-import { LOTS, type LotPlan, MONITOR_LOT, MONITORS, WAFERS_PER_LOT, waferId, waferLedger } from './lots.ts';
+import {
+  LOTS,
+  type LotPlan,
+  MONITOR_LOT,
+  MONITORS,
+  PAIRS_PER_LOT,
+  WAFERS_PER_LOT,
+  waferId,
+  waferLedger,
+} from './lots.ts';
 import { survivalThrough } from './physics.ts';
 import { stream } from './random.ts';
 import {
@@ -21,6 +31,7 @@ import {
 } from './surfaces.ts';
 import { json } from './text.ts';
 import { AREAS, countersCsv, locationsCsv, productJson, toolsJson } from './write-reference.ts';
+import { ledgerCsv, monitorLedgerCsv, pairsCsv, voidInspectionCsv } from './write-route.ts';
 import {
   MONITOR_SCANNER,
   POST_CLEAN_SCANNER,
@@ -195,6 +206,34 @@ export function demoFiles(): DemoFile[] {
       'Monitor lot TRMON1 on LSCN-1: pre and post scans around one pass',
     ),
   );
+  for (const lot of LOTS) add('ledger', `ledger/${lot.id}.csv`, `${lot.id} exposure ledger`, ledgerCsv(lot));
+  add(
+    'ledger',
+    `ledger/${MONITOR_LOT}.csv`,
+    'Monitor wafers: their one pass between two scans',
+    monitorLedgerCsv(),
+  );
+  add('pairs', 'pairs.csv', 'Bond pairs of every lot', pairsCsv());
+  for (const lot of LOTS.filter((l) => l.role === 'earlier')) {
+    const surf = surfacesOf(lot);
+    for (let p = 0; p < PAIRS_PER_LOT; p++) {
+      const truth = pairInterface(
+        lot,
+        p,
+        (slot) => surf[slot - 1]!.preBond,
+        (slot) => waferLedger(lot, slot),
+      );
+      for (const spec of INSPECTIONS) {
+        const f = voidInspectionCsv(lot, truth, spec);
+        add(
+          'void-inspections',
+          `void-inspections/${lot.id}/${f.id}.csv`,
+          `${f.id}: ${spec.method} ${spec.stage}`,
+          f.text,
+        );
+      }
+    }
+  }
   files.sort((a, b) => KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind));
   return files;
 }

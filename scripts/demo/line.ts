@@ -74,8 +74,13 @@ export interface LineLocation {
 export interface AirSpec {
   /** Median concentration ≥ 0.1 µm at full activity, particles/m³. */
   c01PerM3: number;
-  /** Cumulative power-law slope α in C(≥ d) ∝ d^(−α) (ISO 14644-1's nominal is 2.08). */
+  /** Cumulative power-law slope α in C(≥ d) ∝ d^(−α) up to 0.5 µm (ISO 14644-1's nominal is 2.08). */
   slope: number;
+  /**
+   * Slope above 0.5 µm. Mini-environments behind ULPA filters hold few large particles (they settle
+   * and are not re-entrained), so their spectrum steepens there; open rooms keep one slope.
+   */
+  slopeLarge: number;
   /** How much of the concentration follows people's activity (0: none, 1: all). */
   activityCoupling: number;
   /** Amplitude of the log-normal minute-to-minute variation (σ of ln C). */
@@ -114,10 +119,17 @@ function levelsMini(isoClass: number) {
 }
 
 function openRoom(c01: number, slope: number, bursts: number): AirSpec {
-  return { c01PerM3: c01, slope, activityCoupling: 0.65, sigmaLn: 0.22, burstsPerHour: bursts };
+  return {
+    c01PerM3: c01,
+    slope,
+    slopeLarge: slope,
+    activityCoupling: 0.65,
+    sigmaLn: 0.22,
+    burstsPerHour: bursts,
+  };
 }
 function mini(c01: number, slope: number): AirSpec {
-  return { c01PerM3: c01, slope, activityCoupling: 0.25, sigmaLn: 0.25, burstsPerHour: 0 };
+  return { c01PerM3: c01, slope, slopeLarge: 3, activityCoupling: 0.25, sigmaLn: 0.25, burstsPerHour: 0 };
 }
 
 export const LOCATIONS: LineLocation[] = [
@@ -173,12 +185,12 @@ export const LOCATIONS: LineLocation[] = [
   point('LEV-SCN-ME', 'LSCN-1 pre-bond scanner EFEM', 'LEV-B1', 'efem', 2, ['cleaned'], {
     id: 'PC-L2',
     flowM3PerS: CFM,
-    air: mini(40, 1.8),
+    air: mini(25, 1.4),
   }),
   point('LEV-ACT-ME', 'LACT-1 activation tool EFEM', 'LEV-B1', 'efem', 2, ['cleaned', 'activated'], {
     id: 'PC-L3',
     flowM3PerS: CFM,
-    air: mini(45, 1.8),
+    air: mini(25, 1.4),
   }),
   point(
     'LEV-RIN-ME',
@@ -190,7 +202,7 @@ export const LOCATIONS: LineLocation[] = [
     {
       id: 'PC-L4',
       flowM3PerS: CFM,
-      air: mini(50, 1.85),
+      air: mini(28, 1.4),
     },
   ),
   bay('BOR-B1', 'Boreas bay 1 (bonder, anneal, void inspection)', 'BOREAS', 4, 180, [], {
@@ -203,7 +215,7 @@ export const LOCATIONS: LineLocation[] = [
   bay('BOR-B2', 'Boreas bay 2 (buffer carts and spare load ports)', 'BOREAS', 5, 120, ['activated'], {
     id: 'PC-B2',
     flowM3PerS: CFM,
-    air: openRoom(26000, 1.95, 4),
+    air: openRoom(9000, 1.95, 4),
   }),
   point(
     'BOR-QUE-ME',
@@ -215,13 +227,13 @@ export const LOCATIONS: LineLocation[] = [
     {
       id: 'PC-B3',
       flowM3PerS: CFM,
-      air: mini(55, 1.9),
+      air: mini(16, 1.3),
     },
   ),
   point('BOR-BND-EFEM', 'BBND-1 bonder EFEM and aligner', 'BOR-B1', 'efem', 2, ['activated', 'bonded'], {
     id: 'PC-B4',
     flowM3PerS: CFM,
-    air: mini(35, 1.7),
+    air: mini(14, 1.3),
   }),
 ];
 
@@ -344,6 +356,8 @@ export interface AdderSpec {
   slope: number;
   /** 95 % of passes within ×/÷ this factor of the level. */
   uncertaintyFactor: number;
+  /** Smallest size the level applies to, m (null: carried down to the engine's tail floor). */
+  fromM?: number;
 }
 
 export interface LineTool {
@@ -412,7 +426,7 @@ export const TOOLS: LineTool[] = [
     'Levant plasma activation 1, chamber A',
     'activation',
     'LEV-ACT-ME',
-    { countAbove: 1.2, atDiameterM: ADDER_SIZE_M, slope: 1.9, uncertaintyFactor: 2 },
+    { countAbove: 0.5, atDiameterM: ADDER_SIZE_M, slope: 1.8, uncertaintyFactor: 2 },
     'monitor wafers 12 October (TRMON1-01, -02)',
   ),
   // Chamber B sheds flakes from a liner past its cleaning interval: many adders, flat spectrum.
@@ -422,7 +436,7 @@ export const TOOLS: LineTool[] = [
     'Levant plasma activation 1, chamber B',
     'activation',
     'LEV-ACT-ME',
-    { countAbove: 38, atDiameterM: ADDER_SIZE_M, slope: 1.15, uncertaintyFactor: 1.8 },
+    { countAbove: 25, atDiameterM: ADDER_SIZE_M, slope: 1.0, uncertaintyFactor: 1.8, fromM: 40e-9 },
     'monitor wafers 12 October (TRMON1-03, -04)',
   ),
   tool(
@@ -431,7 +445,7 @@ export const TOOLS: LineTool[] = [
     'Levant megasonic rinse-dry 1',
     'clean',
     'LEV-RIN-ME',
-    { countAbove: 0.6, atDiameterM: ADDER_SIZE_M, slope: 1.8, uncertaintyFactor: 2 },
+    { countAbove: 0.3, atDiameterM: ADDER_SIZE_M, slope: 1.8, uncertaintyFactor: 2 },
     'monitor wafers 12 October (TRMON1-05, -06)',
   ),
   tool(
@@ -440,7 +454,7 @@ export const TOOLS: LineTool[] = [
     'Levant megasonic rinse-dry 2',
     'clean',
     'LEV-RIN-ME',
-    { countAbove: 0.6, atDiameterM: ADDER_SIZE_M, slope: 1.8, uncertaintyFactor: 2 },
+    { countAbove: 0.3, atDiameterM: ADDER_SIZE_M, slope: 1.8, uncertaintyFactor: 2 },
     'monitor wafers 12 October (TRMON1-07, -08)',
   ),
   tool(
@@ -449,7 +463,7 @@ export const TOOLS: LineTool[] = [
     'Boreas wafer bonder 1 (alignment and room-temperature contact)',
     'bond',
     'BOR-BND-EFEM',
-    { countAbove: 0.7, atDiameterM: ADDER_SIZE_M, slope: 1.7, uncertaintyFactor: 2 },
+    { countAbove: 0.4, atDiameterM: ADDER_SIZE_M, slope: 1.7, uncertaintyFactor: 2 },
     'monitor wafers, September qualification',
   ),
   tool(
@@ -568,15 +582,14 @@ export const PRODUCT = {
   },
   heightFactor: 1,
   die: {
-    widthM: 12e-3,
-    heightM: 9e-3,
-    pitchXM: 12.1e-3,
-    pitchYM: 9.1e-3,
-    // Die (0, 0) has its lower-left corner at (−6.05 mm, −4.55 mm) minus half a street: the grid is
-    // centred on the wafer.
-    originXM: -6.0e-3,
-    originYM: -4.5e-3,
-    pad: { xM: 1.0e-3, yM: 1.0e-3, widthM: 10e-3, heightM: 7e-3 },
+    widthM: 8e-3,
+    heightM: 6e-3,
+    pitchXM: 8.1e-3,
+    pitchYM: 6.1e-3,
+    // Die (0, 0) is centred on the wafer centre.
+    originXM: -4e-3,
+    originYM: -3e-3,
+    pad: { xM: 1.0e-3, yM: 1.0e-3, widthM: 6e-3, heightM: 4e-3 },
   },
   clusterAlpha: 1.5,
   incoming: { countAbove: 20, atDiameterM: 45e-9, slope: 1.5 },

@@ -15,10 +15,10 @@
  *
  * Every wafer's route (one ledger step per row; contiguous in time, each wafer):
  *   CMP (ZCMP-1) → wait in closed FOUP → post-CMP clean (ZCLN-1) → post-clean scan (ZSCN-1, 45 nm)
- *   → stocker (ZSTK-1, closed) → wait → pre-bond scan (LSCN-1, 37 nm) → wait → plasma activation
- *   (LACT-1 A or B) → megasonic rinse-dry (LRIN-1 or -2) → wait → transfer to Boreas (closed)
- *   → Q-time wait in open cassettes (bond queue mini-environment, or Boreas bay 2 for TR2653)
- *   → bond (BBND-1; earlier lots only).
+ *   → stocker (ZSTK-1, closed) → wait → pre-bond scan (LSCN-1, 37 nm) → wait → pre-bond clean
+ *   (megasonic rinse-dry, LRIN-1 or -2) → plasma activation with in-situ hydration (LACT-1 A or B)
+ *   → wait → transfer to Boreas (closed) → Q-time wait (open cassettes in the bond queue
+ *   mini-environment; TR2653: closed FOUPs on a cart in Boreas bay 2) → bond (BBND-1; earlier lots).
  */
 import { at, DEMO_AS_OF_MS } from './line.ts';
 
@@ -70,14 +70,15 @@ export interface LotPlan {
     stockerIn: number;
     stockerOut: number;
     preBondScan: number;
-    activation: number;
+    /** First wafer's pre-bond clean; each wafer is rinsed (4 min) then activated (3 min). */
     rinse: number;
     leaveLevant: number;
     /** First pair's bond start (earlier lots); null while waiting. */
     bond: number | null;
   };
-  /** Where the lot waits for the bonder, open cassettes. */
+  /** Where the lot waits for the bonder, and how (open cassettes on the queue shelves, or closed FOUPs). */
   queueLocationId: string;
+  queueCarrier: Carrier;
   /** Re-cleans each wafer already had. */
   recleanCount: number;
 }
@@ -95,6 +96,7 @@ export const LOTS: LotPlan[] = [
     rinseTool: 'LRIN-1',
     t: times('2026-10-07', { bond: '14:30' }),
     queueLocationId: 'BOR-QUE-ME',
+    queueCarrier: 'open',
     recleanCount: 0,
   },
   {
@@ -110,6 +112,7 @@ export const LOTS: LotPlan[] = [
     rinseTool: 'LRIN-2',
     t: times('2026-10-09', { bond: '16:00' }),
     queueLocationId: 'BOR-QUE-ME',
+    queueCarrier: 'open',
     recleanCount: 0,
   },
   {
@@ -132,11 +135,11 @@ export const LOTS: LotPlan[] = [
       stockerIn: '08:30',
       stockerOut: '10:30',
       preBondScan: '10:45',
-      activation: '13:00',
-      rinse: '13:05',
+      rinse: '13:00',
       leaveLevant: '15:00',
     }),
     queueLocationId: 'BOR-QUE-ME',
+    queueCarrier: 'open',
     recleanCount: 0,
   },
   {
@@ -144,7 +147,7 @@ export const LOTS: LotPlan[] = [
     role: 'waiting',
     intent: { call: 're-clean', dominant: 'LACT-1 chamber B adders' },
     story:
-      'Activated in LACT-1 chamber B, whose liner is past its cleaning interval and sheds particles; the rinse after it (LRIN-1) takes most but not enough. One more LRIN-1 rinse would bring the pairs within spec.',
+      'Activated in LACT-1 chamber B, whose liner is past its cleaning interval and sheds flakes onto the freshly rinsed wafers. One more LRIN-1 rinse would take most of them off and bring the pairs within spec.',
     resident: { meanAbove20nm: 22, slope: 1.35, alpha: 3 },
     clusters: [],
     edgeSlots: [6, 7],
@@ -156,11 +159,11 @@ export const LOTS: LotPlan[] = [
       stockerIn: '10:00',
       stockerOut: '11:30',
       preBondScan: '11:45',
-      activation: '13:10',
-      rinse: '13:15',
+      rinse: '13:10',
       leaveLevant: '15:10',
     }),
     queueLocationId: 'BOR-QUE-ME',
+    queueCarrier: 'open',
     recleanCount: 0,
   },
   {
@@ -168,7 +171,7 @@ export const LOTS: LotPlan[] = [
     role: 'waiting',
     intent: { call: 'hold', dominant: 'the wait in Boreas bay 2' },
     story:
-      'Rinsed on Saturday evening; the bonder went down and the lot was parked on a buffer cart in Boreas bay 2 in open cassettes. It sat there through the night the bay’s fan-filter unit failed — an action-level excursion — and is now far past its activation → bond Q-time.',
+      'Activated on Saturday evening; the bonder went down and the lot was parked, in its closed FOUPs, on a buffer cart in Boreas bay 2. It sat there through the night the bay’s fan-filter unit failed — an action-level excursion — and is now far past its activation → bond Q-time.',
     resident: { meanAbove20nm: 24, slope: 1.35, alpha: 3 },
     clusters: [{ slot: 5, count: 14, radiusM: 2e-3 }],
     edgeSlots: [],
@@ -180,11 +183,11 @@ export const LOTS: LotPlan[] = [
       stockerIn: '13:30',
       stockerOut: '15:30',
       preBondScan: '15:45',
-      activation: '17:00',
       rinse: '17:05',
       leaveLevant: '19:00',
     }),
     queueLocationId: 'BOR-B2',
+    queueCarrier: 'closed',
     recleanCount: 0,
   },
 ];
@@ -213,7 +216,6 @@ function times(
     stockerIn: t(o.stockerIn ?? '07:30'),
     stockerOut: t(o.stockerOut ?? '09:30'),
     preBondScan: t(o.preBondScan ?? '09:45'),
-    activation: t(o.activation ?? '11:00'),
     rinse: t(o.rinse ?? '11:05'),
     leaveLevant: t(o.leaveLevant ?? '13:00'),
     bond: o.bond ? t(o.bond) : null,
@@ -342,21 +344,9 @@ export function waferLedger(lot: LotPlan, slot: number): LedgerStep[] {
     },
     'LEV-B1',
   );
-  // Activation holds the wafer in the tool until the rinse takes it (one pass, one set of adders).
-  const actStart = T.activation + 2 * i * MIN;
+  // The pre-bond clean (megasonic rinse and dry), then plasma activation with in-situ hydration.
   const rinseStart = T.rinse + 4 * i * MIN;
-  waitUntil(actStart, 'LEV-B1');
-  push({
-    step: 'plasma activation',
-    kind: 'activation',
-    toolId: 'LACT-1',
-    chamber: lot.chamber,
-    cleanId: null,
-    startMs: actStart,
-    endMs: rinseStart,
-    locationId: 'LEV-ACT-ME',
-    carrier: 'in-tool',
-  });
+  waitUntil(rinseStart, 'LEV-B1');
   push({
     step: 'megasonic rinse and dry',
     kind: 'clean',
@@ -366,6 +356,17 @@ export function waferLedger(lot: LotPlan, slot: number): LedgerStep[] {
     startMs: rinseStart,
     endMs: rinseStart + 4 * MIN,
     locationId: 'LEV-RIN-ME',
+    carrier: 'in-tool',
+  });
+  push({
+    step: 'plasma activation',
+    kind: 'activation',
+    toolId: 'LACT-1',
+    chamber: lot.chamber,
+    cleanId: null,
+    startMs: rinseStart + 4 * MIN,
+    endMs: rinseStart + 7 * MIN,
+    locationId: 'LEV-ACT-ME',
     carrier: 'in-tool',
   });
   waitUntil(T.leaveLevant, 'LEV-B1');
@@ -394,7 +395,7 @@ export function waferLedger(lot: LotPlan, slot: number): LedgerStep[] {
     startMs: now!,
     endMs: bond,
     locationId: lot.queueLocationId,
-    carrier: 'open',
+    carrier: lot.queueCarrier,
   });
   if (bond !== null)
     push({

@@ -75,10 +75,11 @@ export function drawPowerLaw(
 
 /** Adders of one pass of a tool (Poisson count of its power law above the truth floor). */
 export function drawAdders(rng: Rng, a: AdderSpec, origin: Origin): TruthParticle[] {
-  const mean = a.countAbove * (a.atDiameterM / TRUTH_FLOOR_M) ** a.slope;
+  const from = a.fromM ?? TRUTH_FLOOR_M;
+  const mean = a.countAbove * (a.atDiameterM / from) ** a.slope;
   // Pass-to-pass spread: a log-normal factor whose 95 % range is ×/÷ the stated uncertainty factor.
   const f = lognormal(rng, Math.log(a.uncertaintyFactor) / 1.96);
-  return drawPowerLaw(rng, rng.poisson(mean * f), a.slope, origin);
+  return drawPowerLaw(rng, rng.poisson(mean * f), a.slope, origin, from);
 }
 
 export interface WaferSurface {
