@@ -25,6 +25,9 @@ const FILE_NAME = `<script>alert(1)</script> "q" & 'a'.csv`;
 const TOOL_ID = 'B1<script>window.__pwned="tool"</script>&"T"';
 const TOOL_NAME = `<svg onload="alert('tool')"> Bonder & "Co"`;
 
+const LOT_ID = `L<script>alert('lot')</script>&"1"`;
+const WAFER_ID = `W<img src=x onerror="window.__pwned='wafer'">'01'`;
+
 const csvCell = (s: string) => `"${s.replaceAll('"', '""')}"`;
 const GOOD = [
   'location_id,parent_id,level,name,environment,iso_class,floor_area_m2',
@@ -51,6 +54,14 @@ const TOOLS = JSON.stringify({
     },
   ],
 });
+
+// One lot-level wait of the lot above in bay-3 (stored by GOOD); lot and wafer ids are free text in the ledger.
+const LEDGER = [
+  '# format: voidcast ledger 1',
+  'lot,wafer,step,step_kind,tool,location,carrier,start,end',
+  `${csvCell(LOT_ID)},${csvCell(WAFER_ID)},queue,wait,,bay-3,open,2026-03-01T08:00:00Z,2026-03-01T09:00:00Z`,
+  '',
+].join('\n');
 
 const LIMIT = 256 * 1024;
 
@@ -164,11 +175,16 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
     await uploadThroughForm(page, 'tools', [{ name: 'tools.json', body: TOOLS }]);
     await page.locator('#import-job .vc-job-done').waitFor({ timeout: 30_000 });
     expect(await page.locator('#import-job .vc-status').first().textContent()).toBe('Imported');
-    // Pages that list locations or tools, where they exist in this build.
+    await page.goto(`${server.url}imports`);
+    await uploadThroughForm(page, 'ledger', [{ name: 'ledger.csv', body: LEDGER }]);
+    await page.locator('#import-job .vc-job-done').waitFor({ timeout: 30_000 });
+    expect(await page.locator('#import-job .vc-status').first().textContent()).toBe('Imported');
+    // Pages that list locations, tools or lots, where they exist in this build.
     const checks: [string, string[]][] = [
       ['', []],
       ['areas', [SCRIPT_NAME, IMG_NAME]],
       ['tools', [TOOL_NAME, TOOL_ID]],
+      ['lots', [LOT_ID]],
     ];
     const checked: string[] = [];
     for (const [path, names] of checks) {
