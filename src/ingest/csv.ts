@@ -148,9 +148,18 @@ export class CsvReader {
         text = this.decoder.decode(bytes, { stream: true });
       }
     } catch {
+      // Find the first undecodable byte: decode leniently and look for the replacement character.
+      const lenient = new TextDecoder('utf-8').decode(this.buf.subarray(0, n));
+      const bad = lenient.indexOf('\uFFFD');
+      const before = bad === -1 ? lenient : lenient.slice(0, bad);
+      const line =
+        this.line +
+        countNewlines(this.pending, 0, this.pending.length) +
+        countNewlines(before, 0, before.length);
+      const offset = this.bytesRead + Buffer.byteLength(before, 'utf8');
       throw new CsvReadError(
-        this.line,
-        `the file is not valid UTF-8 text (invalid bytes within the first ${this.bytesRead + n} bytes); save it as UTF-8`,
+        line,
+        `the file is not valid UTF-8 text (byte ${offset + 1} is not part of a UTF-8 character); save it as UTF-8`,
       );
     }
     this.bytesRead += n;

@@ -70,20 +70,27 @@ export function matchHeader(
   }
   const present = new Set(columns.map((c) => c.key));
   const missing = kind.columns.filter((c) => c.required && !present.has(c.name.toLowerCase()));
-  for (const m of missing) {
-    issues.push({ line, column: m.name, value: null, rule: `missing column "${m.name}" (${m.description})` });
-  }
-  if (missing.length > 0 && last === 0) {
+  if (missing.length > 0 && last === 0 && /[,;\t|]/.test(cells[0]!)) {
+    // One column that holds delimiters: the file is split on something else. Say that, not more.
     const other = [',', ';', '\t'].filter((d) => d !== delimiter && cells[0]!.includes(d));
     const shown = (d: string) => (d === '\t' ? 'tab' : d);
-    if (other.length > 0) {
-      issues.push({
-        line,
-        column: null,
-        value: cells[0]!.trim(),
-        rule: `the header is one column when split on "${shown(delimiter)}"; if the file uses "${shown(other[0]!)}", declare it: # delimiter: ${shown(other[0]!)}`,
-      });
-    }
+    return {
+      columns: [],
+      issues: [
+        {
+          line,
+          column: null,
+          value: cells[0]!.trim(),
+          rule:
+            other.length > 0
+              ? `the header is one column when split on "${shown(delimiter)}"; if the file uses "${shown(other[0]!)}", declare it: # delimiter: ${shown(other[0]!)}`
+              : 'the header is one column: voidcast reads files delimited by "," ";" or tab',
+        },
+      ],
+    };
+  }
+  for (const m of missing) {
+    issues.push({ line, column: m.name, value: null, rule: `missing column "${m.name}" (${m.description})` });
   }
   return { columns, issues };
 }

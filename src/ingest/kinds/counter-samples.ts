@@ -360,7 +360,7 @@ function unitFromMeta(
     return {
       unit: null,
       issue: {
-        line: 0,
+        line: ctx.metadataLines?.get('units') ?? 0,
         column: null,
         value: w,
         rule: `unknown ${quantity} unit "${w}" in # units: (allowed: ${allowed})`,
@@ -390,6 +390,7 @@ export const counterSamples: ImportKind = {
 
     // Units of the counts.
     const countsWritten = ctx.units.get('counts');
+    const metaLine = (key: string) => ctx.metadataLines?.get(key) ?? 0;
     let concUnit: UnitDef | null = null;
     if (countsWritten === undefined) {
       issues.push({
@@ -402,7 +403,7 @@ export const counterSamples: ImportKind = {
       concUnit = findUnit(CONCENTRATION_UNITS, countsWritten);
       if (!concUnit)
         issues.push({
-          line: 0,
+          line: metaLine('units'),
           column: null,
           value: countsWritten,
           rule: `unknown counts unit "${countsWritten}" in # units: (allowed: raw, per_m3, per_L, per_ft3)`,
@@ -411,7 +412,7 @@ export const counterSamples: ImportKind = {
     for (const q of ctx.units.keys()) {
       if (!['counts', 'volume', 'duration', 'flow'].includes(q))
         issues.push({
-          line: 0,
+          line: metaLine('units'),
           column: null,
           value: q,
           rule: `# units: has an entry for "${q}"; counter-samples files declare counts, volume, duration or flow`,
@@ -542,7 +543,7 @@ export const counterSamples: ImportKind = {
       const v = m ? Number(m[1]) : Number.NaN;
       if (!u || !(v > 0)) {
         issues.push({
-          line: 0,
+          line: metaLine('rated_max'),
           column: null,
           value: rated,
           rule: '# rated_max: must read "<number> <per_m3|per_L|per_ft3>", e.g. 4000000 per_ft3',
@@ -555,7 +556,7 @@ export const counterSamples: ImportKind = {
       const r = enumCell(ROOM_STATES).fast!(roomMeta);
       if (r === CELL_FAIL)
         issues.push({
-          line: 0,
+          line: metaLine('room_state'),
           column: null,
           value: roomMeta,
           rule: `# room_state: must be one of ${ROOM_STATES.join(', ')}`,
