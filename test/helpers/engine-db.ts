@@ -148,7 +148,7 @@ function seedWafer(db: Db, w: WaferInput, imp: number): void {
     `INSERT INTO ledger_steps (lot_id, wafer_id, step, kind, tool_id, chamber, recipe, clean_id, location_id, carrier, orientation,
        start_ms, end_ms, reclean_count, import_id, line) VALUES (?, ?, ?, ?, ?, ?, NULL, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
-  w.ledger.forEach((st, i) =>
+  w.ledger.forEach((st, i) => {
     ins.run(
       w.lotId,
       w.waferId,
@@ -165,8 +165,8 @@ function seedWafer(db: Db, w: WaferInput, imp: number): void {
       w.recleanCount,
       imp,
       i + 1,
-    ),
-  );
+    );
+  });
 }
 
 export function seedPairs(db: Db, pairs: PairInput[]): void {

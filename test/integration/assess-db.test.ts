@@ -10,7 +10,7 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/main.ts';
 import { assessPairFromDb, loadPair } from '../../src/engine/loader.ts';
 import { assessPair } from '../../src/engine/pair.ts';
-import type { PairAssessment } from '../../src/engine/types.ts';
+import type { LotAssessment, PairAssessment } from '../../src/engine/types.ts';
 import { DATABASE_FILE_NAME, type Db, openDataDir } from '../../src/store/db.ts';
 import { readDispositions } from '../../src/store/dispositions.ts';
 import { createApp } from '../../src/web/app.ts';
@@ -91,9 +91,9 @@ describe('JSON API', () => {
     expect(lots).toEqual({ lots: [{ lotId: 'LOT-1', productId: 'HB-1', waferCount: 6, pairCount: 3 }] });
     const lot = await a.request(`/api/lots/LOT-1/assessment?asOf=${AS_OF}`);
     expect(lot.status).toBe(200);
-    const lj = await lot.json();
+    const lj = (await lot.json()) as LotAssessment;
     expect(lj.pairs).toHaveLength(3);
-    expect(lj.pairs[0].voidMap).toBeNull(); // summary detail in the lot
+    expect(lj.pairs[0]!.voidMap).toBeNull(); // summary detail in the lot
     expect(['bond', 're-clean', 'hold']).toContain(lj.call);
     const p = await a.request(`/api/pairs/P0/assessment?asOf=${new Date(AS_OF).toISOString()}`);
     const pj = (await p.json()) as PairAssessment;
@@ -163,7 +163,7 @@ describe('JSON API', () => {
     db.prepare("UPDATE scans SET x_m = ? WHERE scan_key = 'S-W2-T'").run(x);
     const refused = await post({ inputsHash: assessed.inputsHash, asOfMs: AS_OF, signedBy: 'A. Engineer' });
     expect(refused.status).toBe(409);
-    const body = await refused.json();
+    const body = (await refused.json()) as { error: string; currentHash: string };
     expect(body.error).toBe('inputs changed');
     expect(body.currentHash).not.toBe(assessed.inputsHash);
     expect(readDispositions(db, 'pair', 'P2')).toHaveLength(2);
