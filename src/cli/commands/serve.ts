@@ -1,6 +1,7 @@
 import { resolve } from 'node:path';
 import { startServer } from '../../web/server.ts';
 import { parseOptions, parsePort } from '../args.ts';
+import { loadDemoOnce } from '../demo.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 
 export const DEFAULT_HOST = '127.0.0.1';
@@ -37,8 +38,19 @@ export const serve: Command = {
     if (host.trim() === '') throw new UsageError('--host must not be empty');
     const dataDir = resolveDataDir(values.data, io);
     const loadDemo = !(values.empty || io.env.VOIDCAST_EMPTY === '1');
-    void loadDemo; // the demo loader (src/cli/demo.ts) hooks in through startServer's beforeListen
-    const server = await startServer({ host, port, dataDir, log: (l) => io.out(`${l}\n`) });
+    const log = (l: string) => io.out(`${l}\n`);
+    const server = await startServer({
+      host,
+      port,
+      dataDir,
+      log,
+      // First start on a fresh data directory: import the demo line once (src/cli/demo.ts).
+      beforeListen: loadDemo
+        ? async (db) => {
+            await loadDemoOnce(db, { log });
+          }
+        : undefined,
+    });
     io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
     await new Promise<void>((done) => {
       const stop = () => {
