@@ -77,11 +77,17 @@ async function pickLink(page: Page, rowSelector: string, calls: string[]): Promi
   return null;
 }
 
-async function shoot(page: Page, url: string, name: string): Promise<void> {
+/** Full-page shots, except that a very long page is cut at `maxHeight` px (the README shows its top). */
+async function shoot(page: Page, url: string, name: string, maxHeight = 2400): Promise<void> {
   const res = await page.goto(url, { waitUntil: 'networkidle' });
   if (!res || res.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
   const file = join(OUT, `${name}.png`);
-  await page.screenshot({ path: file, fullPage: true });
+  const height = (await page.evaluate('document.documentElement.scrollHeight')) as number;
+  await page.screenshot({
+    path: file,
+    fullPage: true,
+    clip: { x: 0, y: 0, width: 1360, height: Math.min(height, maxHeight) },
+  });
   console.log(`wrote ${file}`);
 }
 
@@ -105,7 +111,7 @@ async function main(): Promise<number> {
     await shoot(page, new URL(lot, server.url).href, 'lot');
     const pair = await pickLink(page, 'table.vc-pair-table tbody tr', ['re-clean', 'hold']);
     if (!pair) throw new Error(`no pair on ${lot}`);
-    await shoot(page, new URL(pair, server.url).href, 'pair');
+    await shoot(page, new URL(pair, server.url).href, 'pair', 2050);
     await shoot(page, new URL('areas', server.url).href, 'areas');
     await shoot(page, new URL('tools', server.url).href, 'tools');
     return 0;

@@ -10,7 +10,7 @@
  * A sample with a null value (a flagged or rejected sample) also breaks the line.
  */
 import { scaleLinear, scaleLog, scaleUtc } from 'd3-scale';
-import { line } from 'd3-shape';
+import { area, line } from 'd3-shape';
 import {
   ChartSvg,
   fmtNum,
@@ -48,6 +48,11 @@ export interface TrendInput {
   fromMs?: number;
   toMs?: number;
   yScale?: 'linear' | 'log' | 'auto';
+  /**
+   * Above this many samples the line is drawn through bucket means with a min–max band (one
+   * bucket per pixel column group), and only samples above the alert level keep their own mark.
+   */
+  maxPoints?: number;
   id?: string;
   width?: number;
   height?: number;
@@ -88,6 +93,42 @@ export function segmentTrend(points: TrendPoint[], gapMs?: number): TrendSegment
   }
   if (cur.length) segments.push(cur);
   return { segments, gaps, gapMs: gap };
+}
+
+export interface TrendBucket {
+  tMs: number;
+  mean: number;
+  min: number;
+  max: number;
+  n: number;
+}
+
+/**
+ * Groups a run of samples into at most `buckets` equal time slices of [t0, t1]: each slice's mean
+ * time, mean, minimum and maximum value. Display only: what a chart column can show.
+ */
+export function bucketTrend(points: TrendPoint[], t0: number, t1: number, buckets: number): TrendBucket[] {
+  const width = Math.max((t1 - t0) / Math.max(1, buckets), 1);
+  const out: TrendBucket[] = [];
+  let cur: { k: number; st: number; sv: number; min: number; max: number; n: number } | null = null;
+  const flush = () => {
+    if (cur) out.push({ tMs: cur.st / cur.n, mean: cur.sv / cur.n, min: cur.min, max: cur.max, n: cur.n });
+  };
+  for (const p of points) {
+    const v = p.value as number;
+    const k = Math.floor((p.tMs - t0) / width);
+    if (!cur || cur.k !== k) {
+      flush();
+      cur = { k, st: 0, sv: 0, min: v, max: v, n: 0 };
+    }
+    cur.st += p.tMs;
+    cur.sv += v;
+    cur.min = Math.min(cur.min, v);
+    cur.max = Math.max(cur.max, v);
+    cur.n++;
+  }
+  flush();
+  return out;
 }
 
 export function trend(input: TrendInput) {
@@ -160,11 +201,40 @@ export function trend(input: TrendInput) {
   const pts = segments.flat();
   const nAction = pts.filter((p) => classify(p.value as number) === 'action').length;
   const nAlert = pts.filter((p) => classify(p.value as number) === 'alert').length;
+  const maxPoints = input.maxPoints ?? 720;
+  const dense = pts.length > maxPoints;
+  const columns = Math.max(1, Math.floor((box.x1 - box.x0) / 2));
+  const bucketed = dense ? segments.map((sg) => bucketTrend(sg, t0, t0 + span, columns)) : [];
+  const band = area<TrendBucket>()
+    .x((b) => x(new Date(b.tMs)))
+    .y0((b) => yOf(b.min))
+    .y1((b) => yOf(b.max));
+  const meanLine = line<TrendBucket>()
+    .x((b) => x(new Date(b.tMs)))
+    .y((b) => yOf(b.mean));
+  // In a dense chart only the samples above a level keep their own mark (action ones always).
+  const marked = dense
+    ? pts.filter((p) => {
+        const c = classify(p.value as number);
+        return c === 'action' || (c === 'alert' && nAlert <= 400);
+      })
+    : pts;
+  // Level labels at the right end, nudged apart when two levels lie within a line of text.
+  const labelY = new Map<string, number>();
+  [...levels]
+    .sort((a, b) => yOf(b.value) - yOf(a.value))
+    .forEach((l, i, arr) => {
+      let yy = yOf(l.value) + 4;
+      const prev = i > 0 ? labelY.get(arr[i - 1]!.kind) : undefined;
+      if (prev !== undefined && prev - yy < 11) yy = prev - 11;
+      labelY.set(l.kind, yy);
+    });
   const xticks = x.ticks(6).map((d) => ({ at: x(d), label: fmtUtcTick(d.getTime(), span) }));
   const desc =
     `${input.channelLabel} concentration in ${input.unit}, ${pts.length} samples, ` +
     `${nAction} above the action level, ${nAlert} between alert and action, ${gaps.length} gap${gaps.length === 1 ? '' : 's'} in the data` +
     (wantLog ? `; log scale, values below ${fmtNum(floorV)} drawn on the floor` : '') +
+    (dense ? `; ${pts.length} samples drawn as the mean with the min–max band per time slice` : '') +
     '. Times in UTC.';
   return (
     <ChartSvg kind="trend" id={id} width={width} height={height} title={input.title} desc={desc}>
@@ -220,7 +290,7 @@ export function trend(input: TrendInput) {
               stroke-width={l.w}
               stroke-dasharray={l.dash ?? undefined}
             />
-            <text x={box.x1 + 5} y={r(yOf(l.value)) + 4} fill={l.colour}>
+            <text x={box.x1 + 5} y={r(labelY.get(l.kind) ?? yOf(l.value) + 4)} fill={l.colour}>
               {`${l.label} ${fmtNum(l.value)}`}
             </text>
           </g>
@@ -230,10 +300,29 @@ export function trend(input: TrendInput) {
         <NoData x={(box.x0 + box.x1) / 2} y={(box.y0 + box.y1) / 2} text="no samples in this window" />
       ) : null}
       <g class="vc-marks" clip-path={`url(#${id}-plot)`}>
-        {segments.map((s) => (
-          <path class="vc-trend-line" d={path(s) ?? ''} fill="none" stroke="#1f6f8b" stroke-width="1.3" />
-        ))}
-        {pts.map((p) => {
+        {dense
+          ? bucketed.map((b) => (
+              <g class="vc-trend-dense">
+                <path
+                  class="vc-trend-band"
+                  d={band(b) ?? ''}
+                  fill="#1f6f8b"
+                  fill-opacity="0.22"
+                  stroke="none"
+                />
+                <path
+                  class="vc-trend-line"
+                  d={meanLine(b) ?? ''}
+                  fill="none"
+                  stroke="#1f6f8b"
+                  stroke-width="1.2"
+                />
+              </g>
+            ))
+          : segments.map((s) => (
+              <path class="vc-trend-line" d={path(s) ?? ''} fill="none" stroke="#1f6f8b" stroke-width="1.3" />
+            ))}
+        {marked.map((p) => {
           const px = r(x(new Date(p.tMs)));
           const py = r(yOf(p.value as number));
           const c = classify(p.value as number);

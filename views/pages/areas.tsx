@@ -3,7 +3,7 @@
  * the class its counter data achieve, pass or fail), the trend panel, and the excursion log
  * (samples above an action level, with the wafers exposed at that time).
  */
-import { fmtDiameter, fmtNum, fmtUtc } from '../partials/format.ts';
+import { fmtDiameter, fmtDurationS, fmtNum, fmtUtc } from '../partials/format.ts';
 import { TrendPanel, type TrendPanelProps } from '../partials/trend-panel.tsx';
 
 export interface LocationStatus {
@@ -30,8 +30,12 @@ export interface AreaGroup {
 export interface ExcursionRow {
   locationId: string;
   locationName: string;
+  /** First sample above the action level starts, last one ends, UTC ms; how many samples. */
   startMs: number;
+  endMs: number;
+  samples: number;
   diameterM: number;
+  /** Peak concentration during the excursion. */
   valuePerM3: number;
   actionPerM3: number;
   wafers: { waferId: string; lotId: string; step: string }[];
@@ -129,16 +133,23 @@ export function AreasPage(props: {
         <table class="vc-table vc-table-compact vc-excursions">
           <thead>
             <tr>
-              <th>Sample start</th>
+              <th>Excursion (UTC)</th>
               <th>Location</th>
-              <th class="num">Concentration / action (per m³)</th>
+              <th class="num">Peak / action (per m³)</th>
               <th>Wafers exposed</th>
             </tr>
           </thead>
           <tbody>
             {props.excursions.map((e) => (
               <tr>
-                <td>{fmtUtc(e.startMs)}</td>
+                <td>
+                  {fmtUtc(e.startMs)}
+                  <br />
+                  <span class="vc-small">
+                    {fmtDurationS((e.endMs - e.startMs) / 1000)}, {e.samples} sample
+                    {e.samples === 1 ? '' : 's'}
+                  </span>
+                </td>
                 <td>
                   <a href={`/areas?location=${encodeURIComponent(e.locationId)}#trend-panel`}>
                     {e.locationName}
@@ -148,14 +159,7 @@ export function AreasPage(props: {
                   ▲ {fmtNum(e.valuePerM3)} / {fmtNum(e.actionPerM3)} at ≥ {fmtDiameter(e.diameterM)}
                 </td>
                 <td>
-                  {e.wafers.length === 0
-                    ? 'none recorded'
-                    : e.wafers.map((w, i) => (
-                        <span>
-                          {i > 0 ? ', ' : ''}
-                          <a href={`/lots/${encodeURIComponent(w.lotId)}`}>{w.waferId}</a> ({w.step})
-                        </span>
-                      ))}
+                  <ExposedWafers wafers={e.wafers} />
                 </td>
               </tr>
             ))}
@@ -166,6 +170,28 @@ export function AreasPage(props: {
         <p class="vc-small">{props.excursionsOmitted} older excursions not shown.</p>
       ) : null}
     </section>
+  );
+}
+
+/** Exposed wafers grouped by lot: "TR2653: 24 wafers (parked on buffer cart)", the lot linked. */
+function ExposedWafers(props: { wafers: ExcursionRow['wafers'] }) {
+  if (props.wafers.length === 0) return <span>none recorded</span>;
+  const byLot = new Map<string, { ids: string[]; steps: Set<string> }>();
+  for (const w of props.wafers) {
+    const g = byLot.get(w.lotId) ?? { ids: [], steps: new Set<string>() };
+    g.ids.push(w.waferId);
+    g.steps.add(w.step);
+    byLot.set(w.lotId, g);
+  }
+  return (
+    <ul class="vc-exposed">
+      {[...byLot.entries()].map(([lot, g]) => (
+        <li>
+          <a href={`/lots/${encodeURIComponent(lot)}`}>{lot}</a>:{' '}
+          {g.ids.length <= 3 ? g.ids.join(', ') : `${g.ids.length} wafers`} ({[...g.steps].join('; ')})
+        </li>
+      ))}
+    </ul>
   );
 }
 

@@ -55,7 +55,8 @@ export function register(app: Hono, ctx: AppContext): void {
       excursions.push(...findExcursions(ctx, loc, samples));
     }
     excursions.sort((a, b) => b.startMs - a.startMs);
-    const trend = trendProps(ctx, c, locations);
+    // Without a choice, the trend opens on the location of the newest excursion.
+    const trend = trendProps(ctx, c, locations, excursions[0]?.locationId);
     return renderPage(c, ctx, {
       title: 'Areas',
       active: '/areas',
@@ -152,34 +153,62 @@ export function classifyLocation(
   };
 }
 
+/**
+ * Excursions: runs of consecutive usable samples above a level's action value at one location
+ * (one event from the first such sample's start to the last one's end, with its peak), and the
+ * wafers whose ledger puts them in that air during the event.
+ */
 function findExcursions(ctx: AppContext, loc: LocationView, samples: CumulativeSample[]): ExcursionRow[] {
   const out: ExcursionRow[] = [];
   for (const lv of loc.levels) {
     if (lv.actionPerM3 === null) continue;
-    for (const s of samples) {
-      if (!usable(s)) continue;
-      const v = valueAt(s, lv.diameterM);
-      if (v === null || v <= lv.actionPerM3) continue;
+    const action = lv.actionPerM3;
+    let run: { startMs: number; endMs: number; peak: number; n: number } | null = null;
+    const close = () => {
+      if (!run) return;
       out.push({
         locationId: loc.locationId,
         locationName: loc.name,
-        startMs: s.startMs,
+        startMs: run.startMs,
+        endMs: run.endMs,
+        samples: run.n,
         diameterM: lv.diameterM,
-        valuePerM3: v,
-        actionPerM3: lv.actionPerM3,
-        wafers: wafersExposedAt(ctx.db, loc.locationId, s.startMs, s.startMs + s.durationMs),
+        valuePerM3: run.peak,
+        actionPerM3: action,
+        wafers: wafersExposedAt(ctx.db, loc.locationId, run.startMs, run.endMs),
       });
+      run = null;
+    };
+    for (const s of samples) {
+      if (!usable(s)) continue;
+      const v = valueAt(s, lv.diameterM);
+      if (v === null || v <= action) {
+        close();
+        continue;
+      }
+      if (run) {
+        run.endMs = s.startMs + s.durationMs;
+        run.peak = Math.max(run.peak, v);
+        run.n++;
+      } else run = { startMs: s.startMs, endMs: s.startMs + s.durationMs, peak: v, n: 1 };
     }
+    close();
   }
   return out;
 }
 
-function trendProps(ctx: AppContext, c: Context, locations: LocationView[]): TrendPanelProps {
+function trendProps(
+  ctx: AppContext,
+  c: Context,
+  locations: LocationView[],
+  preferredId?: string,
+): TrendPanelProps {
   const q = c.req.query();
   const window: TrendWindow = parseTrendWindow(q.window);
   const withData = locations.filter((l) => sampleSpan(ctx.db, l.locationId).count > 0);
   const chosen =
     locations.find((l) => l.locationId === q.location) ??
+    locations.find((l) => l.locationId === preferredId) ??
     withData.find((l) => l.levels.some((x) => x.actionPerM3 !== null)) ??
     withData[0] ??
     locations[0] ??

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { segmentTrend, trend } from '../../../views/charts/trend.tsx';
+import { bucketTrend, segmentTrend, trend } from '../../../views/charts/trend.tsx';
 import { byClass, svgOf, textOf } from './svg-query.ts';
 
 const T0 = Date.UTC(2025, 2, 3, 0, 0);
@@ -133,5 +133,55 @@ describe('trend', () => {
       }),
     );
     expect(out).not.toMatch(/<x>|<c>|<ISO>/);
+  });
+});
+
+describe('bucketTrend and the dense trend', () => {
+  it('keeps each slice’s mean, minimum and maximum and the sample count', () => {
+    const pts = Array.from({ length: 10 }, (_, i) => ({ tMs: T0 + i * MIN, value: i }));
+    const b = bucketTrend(pts, T0, T0 + 10 * MIN, 2);
+    expect(b.map((x) => [x.n, x.min, x.max, x.mean])).toEqual([
+      [5, 0, 4, 2],
+      [5, 5, 9, 7],
+    ]);
+    expect(b.reduce((a, x) => a + x.n, 0)).toBe(10);
+  });
+
+  it('draws many samples as a band and a mean line, keeping a mark for every sample above action', () => {
+    const pts = Array.from({ length: 5000 }, (_, i) => ({
+      tMs: T0 + i * MIN,
+      value: i === 2500 ? 500 : 20 + (i % 10),
+    }));
+    const svg = svgOf(
+      trend({
+        title: 't',
+        channelLabel: 'c',
+        unit: 'u',
+        points: pts,
+        alert: 100,
+        action: 200,
+        yScale: 'linear',
+      }),
+    );
+    expect(byClass(svg, 'vc-trend-band')).toHaveLength(1);
+    expect(byClass(svg, 'vc-point')).toHaveLength(1);
+    expect(byClass(svg, 'vc-point-action')).toHaveLength(1);
+    expect(textOf(svg.children.find((c) => c.name === 'desc')!)).toContain('5000 samples drawn as the mean');
+  });
+
+  it('nudges level labels apart when two levels coincide', () => {
+    const svg = svgOf(
+      trend({
+        title: 't',
+        channelLabel: 'c',
+        unit: 'u',
+        points: series(10, () => 10),
+        action: 352,
+        classLimit: { value: 352, label: 'ISO 4 limit' },
+        yScale: 'linear',
+      }),
+    );
+    const ys = byClass(svg, 'vc-level').map((l) => Number(l.children[1]!.attrs.y));
+    expect(Math.abs(ys[0]! - ys[1]!)).toBeGreaterThanOrEqual(11);
   });
 });
