@@ -116,7 +116,7 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
                 <CallBadge call={p.call} />
               </td>
               <EstimateCell e={p.figures.voids} f={(v) => fmtNum(v)} />
-              <td class="num">
+              <td class="num vc-estimate">
                 {fmtAreaM2(p.figures.unbondedAreaM2.value)}
                 <br />
                 <span class="vc-small">{fmtEstimate(p.figures.unbondedFraction, fmtPct)}</span>
