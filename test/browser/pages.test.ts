@@ -165,3 +165,52 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     expect(errors).toEqual([]);
   });
 });
+
+describe.skipIf(!run)('the demo line in Chromium', () => {
+  let server: TestServer;
+  let browser: Awaited<ReturnType<typeof launchBrowser>>;
+
+  beforeAll(async () => {
+    // A fresh data directory: the first start loads the demo line (sample-counts/).
+    server = await startTestServer();
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await server?.stop();
+  });
+
+  it('opens the queue, a lot, a pair, the areas and the tools without console errors, each with its charts', async () => {
+    const page = await browser.context.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    page.on('console', (m) => {
+      if (m.type() === 'error') errors.push(m.text());
+    });
+    const go = async (path: string) => {
+      const res = await page.goto(new URL(path, server.url).href);
+      expect(res?.status()).toBe(200);
+    };
+    await go('lots');
+    const lots = page.locator('table[data-table="waiting"] tbody tr');
+    expect(await lots.count()).toBeGreaterThan(0);
+    const calls = await page.locator('table[data-table="waiting"] [data-call]').allTextContents();
+    expect(calls.every((c) => ['bond', 're-clean', 'hold'].includes(c))).toBe(true);
+    const lotHref = await lots.first().locator('a').first().getAttribute('href');
+    await go(lotHref!.slice(1));
+    expect(await page.locator('table.vc-pair-table tbody tr').count()).toBeGreaterThan(0);
+    expect(await page.locator('svg[data-chart="pareto"] .vc-bar').count()).toBeGreaterThan(0);
+    const pairHref = await page.locator('table.vc-pair-table tbody tr a').first().getAttribute('href');
+    await go(pairHref!.slice(1));
+    expect(await page.locator('svg[data-chart="wafer-map"]').count()).toBe(2);
+    expect(await page.locator('svg#map-top .vc-mirror-note').count()).toBe(1);
+    expect(await page.locator('svg[data-chart="void-map"] .vc-die').count()).toBeGreaterThan(0);
+    expect(await page.locator('svg[data-chart="stacked-spectrum"] .vc-layer').count()).toBeGreaterThan(0);
+    await go('areas');
+    expect(await page.locator('.vc-iso-table tbody tr').count()).toBeGreaterThan(5);
+    expect(await page.locator('svg[data-chart="trend"] .vc-trend-line').count()).toBeGreaterThan(0);
+    await go('tools');
+    expect(await page.locator('svg[data-chart="removal-curve"]').count()).toBeGreaterThan(0);
+    expect(errors).toEqual([]);
+  });
+});
