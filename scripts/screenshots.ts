@@ -80,7 +80,7 @@ async function pickLink(page: Page, rowSelector: string, calls: string[]): Promi
 /** Full-page shots, except that a very long page is cut at `maxHeight` px (the README shows its top). */
 async function shoot(page: Page, url: string, name: string, maxHeight = 2400): Promise<void> {
   const res = await page.goto(url, { waitUntil: 'networkidle' });
-  if (!res || res.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
+  if (res?.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
   const file = join(OUT, `${name}.png`);
   const height = (await page.evaluate('document.documentElement.scrollHeight')) as number;
   await page.screenshot({

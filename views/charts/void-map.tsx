@@ -96,7 +96,8 @@ export function voidMap(input: VoidMapInput) {
                 y={r(p.y)}
                 width={r(p.w)}
                 height={r(p.h)}
-                fill={d.killed ? `url(#${hatch})` : '#ffffff'}
+                fill={d.killed ? `url(#${hatch})` : riskFill(d.pKill)}
+                fill-opacity={d.killed ? undefined : riskOpacity(d.pKill)}
                 stroke={d.killed ? '#18202e' : '#b9bec8'}
                 stroke-width={d.killed ? 1.4 : 0.6}
               >
@@ -187,8 +188,13 @@ export function voidMap(input: VoidMapInput) {
             ),
           },
           {
-            label: `good (${input.dies.length - killed})`,
-            swatch: <rect x={0} y={0} width={14} height={12} fill="#ffffff" stroke="#b9bec8" />,
+            label: `good (${input.dies.length - killed}), shaded by P(kill)`,
+            swatch: (
+              <g>
+                <rect x={0} y={0} width={7} height={12} fill="#ffffff" stroke="#b9bec8" />
+                <rect x={7} y={0} width={7} height={12} fill="#6b2a25" fill-opacity="0.35" stroke="#b9bec8" />
+              </g>
+            ),
           },
           ...(input.pad
             ? [
@@ -216,6 +222,14 @@ export function voidMap(input: VoidMapInput) {
       </text>
     </ChartSvg>
   );
+}
+
+/** A good die is shaded by its kill probability (darker = likelier), so risk reads in greyscale too. */
+function riskFill(p: number | undefined): string {
+  return p !== undefined && p > 0.02 ? '#6b2a25' : '#ffffff';
+}
+function riskOpacity(p: number | undefined): number | undefined {
+  return p !== undefined && p > 0.02 ? Math.round(Math.min(0.6, p * 0.9) * 100) / 100 : undefined;
 }
 
 function clamp01(v: number): number {

@@ -72,6 +72,23 @@ describe('voidMap', () => {
     expect(textOf(rect)).toContain('P(kill) 90 %');
   });
 
+  it('shades good dies by kill probability and leaves dies without one white', () => {
+    const svg = svgOf(
+      voidMap({
+        ...base,
+        voids: [],
+        dies: [
+          { xMm: 0, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.4 },
+          { xMm: 10, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.01 },
+          { xMm: 20, yMm: 0, wMm: 10, hMm: 10, killed: false },
+        ],
+      }),
+    );
+    const rects = byClass(svg, 'vc-die').map((g) => byName(g, 'rect')[0]!);
+    expect(rects.map((r) => r.attrs['fill-opacity'])).toEqual(['0.36', undefined, undefined]);
+    expect(rects[1]!.attrs.fill).toBe('#ffffff');
+  });
+
   it('draws the pad region inside every die when the product has one', () => {
     const pad = { xMm: 1, yMm: 1, wMm: 8, hMm: 6 };
     const svg = svgOf(voidMap({ ...base, dies, voids: [], pad }));
