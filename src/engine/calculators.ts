@@ -23,6 +23,8 @@ import {
 } from '../model/iso14644.ts';
 import { garwoodInterval } from '../model/stats/garwood.ts';
 import { cToK, M3_PER_FT3, m3ToL, mmToM, umToM } from '../model/units.ts';
+import { particleHeight, SI100_PLATE_MODULUS_PA, voidRadius, workOfAdhesion } from '../model/void.ts';
+import { criticalAreaRectangle, murphyYield, negativeBinomialYield, poissonYield } from '../model/yield.ts';
 
 export interface CalcChoice {
   value: string;
@@ -315,12 +317,131 @@ const cc1246: Calculator = {
   },
 };
 
+const VOID_MODELS: CalcChoice[] = [
+  { value: 'two-plate', label: 'two flexible wafers' },
+  { value: 'textbook', label: 'textbook preset (one wafer on a rigid flat, W read as γ)' },
+  { value: 'rigid-partner', label: 'die on a rigid wafer' },
+];
+const CONVENTIONS: CalcChoice[] = [
+  { value: 'per-surface-gamma', label: 'per-surface γ (razor blade): W = 2γ' },
+  { value: 'work-of-adhesion', label: 'work of adhesion W' },
+];
+
+const voidRadiusCalc: Calculator = {
+  id: 'void-radius',
+  title: 'Void radius around a trapped particle',
+  summary: 'The unbonded ring a particle of a given size holds open between two bonded plates.',
+  formula:
+    'thick plate (R ≥ 2t): R⁴ = 8 D_eff h² / W, D = E′t³/12, D_eff = D₁D₂/(D₁+D₂); small gap (R < 2t): R = D_eff h² / (W t³) (continuous at R = 2t); textbook: R = [2E′t³/(3γ)]^¼ h^½',
+  symbols:
+    'R void radius (m); h = k_h·d particle height (m); t thickness of the thinner flexible plate (m); E′ = E/(1−ν²) plate modulus (Pa); W work of adhesion (J/m²) = 2γ',
+  source:
+    'Stengl et al., J. Appl. Phys. 65 (1989) 1876 [M]; Tong & Gösele, Semiconductor Wafer Bonding (1999); small-gap closure: voidcast’s own (see docs/models.md)',
+  fields: [
+    { name: 'size', label: 'Particle diameter d', unit: 'µm', default: '1' },
+    {
+      name: 'kh',
+      label: 'Height factor k_h',
+      unit: '',
+      default: '1',
+      help: '1 for compact particles, < 1 for flakes',
+    },
+    { name: 'model', label: 'Plates', unit: '', default: 'two-plate', choices: VOID_MODELS },
+    { name: 'top', label: 'Top (or die) thickness', unit: 'µm', default: '775' },
+    { name: 'bottom', label: 'Bottom thickness', unit: 'µm', default: '775' },
+    {
+      name: 'modulus',
+      label: 'Plate modulus E′',
+      unit: 'GPa',
+      default: String(SI100_PLATE_MODULUS_PA / 1e9),
+    },
+    { name: 'energy', label: 'Interface energy', unit: 'J/m²', default: '0.1' },
+    {
+      name: 'convention',
+      label: 'Energy convention',
+      unit: '',
+      default: 'work-of-adhesion',
+      choices: CONVENTIONS,
+    },
+  ],
+  compute(v) {
+    const E = num(v.modulus!) * 1e9;
+    const w = workOfAdhesion(num(v.energy!), str(v.convention!) as 'work-of-adhesion');
+    const r = voidRadius({
+      heightM: particleHeight(umToM(num(v.size!)), num(v.kh!)),
+      workOfAdhesionJm2: w,
+      model: str(v.model!) as 'two-plate',
+      top: { thicknessM: umToM(num(v.top!)), plateModulusPa: E },
+      bottom: { thicknessM: umToM(num(v.bottom!)), plateModulusPa: E },
+    });
+    return {
+      outputs: [
+        { label: 'Void radius R', value: r.radiusM * 1e3, unit: 'mm', digits: 4 },
+        { label: 'Void diameter', value: 2 * r.radiusM * 1e3, unit: 'mm', digits: 4 },
+        {
+          label: 'Regime',
+          value: r.regime === 'thick-plate' ? 'thick plate (R ≥ 2t)' : 'small gap (R < 2t)',
+          unit: '',
+        },
+        { label: 'Crossover height', value: r.crossoverHeightM * 1e9, unit: 'nm', digits: 3 },
+        { label: 'Unbonded area', value: Math.PI * r.radiusM ** 2 * 1e6, unit: 'mm²', digits: 4 },
+      ],
+      notes: [
+        'The interface energies of surface preparations are literature values from memory; measure your own (razor-blade test) and enter them.',
+        ...(r.heightToThickness > 0.05
+          ? ['The particle is not small against the plate: the plate model loses accuracy.']
+          : []),
+      ],
+    };
+  },
+};
+
+const dieYield: Calculator = {
+  id: 'die-yield',
+  title: 'Die yield from a void density',
+  summary: 'Expected die yield when voids of one radius are spread over the interface at a given density.',
+  formula:
+    'A_c = WH + 2R(W+H) + πR²; λA = density × A_c; Poisson Y = e^(−λA); negative binomial Y = (1 + λA/α)^(−α); Murphy Y = [(1 − e^(−λA))/λA]²',
+  symbols:
+    'A_c critical area of a W × H die (or pad array) for a void of radius R; λ voids per cm² of interface; α cluster parameter',
+  source:
+    'Critical area: Minkowski sum (hand geometry); negative binomial: Stapper, IBM J. Res. Dev. 27 (1983); Murphy, Proc. IEEE 52 (1964) 1537',
+  fields: [
+    { name: 'density', label: 'Void density λ', unit: 'per cm²', default: '0.01' },
+    { name: 'radius', label: 'Void radius R', unit: 'mm', default: '1' },
+    { name: 'width', label: 'Die (pad array) width W', unit: 'mm', default: '10' },
+    { name: 'height', label: 'Die (pad array) height H', unit: 'mm', default: '5' },
+    { name: 'alpha', label: 'Cluster parameter α', unit: '', default: '2' },
+  ],
+  compute(v) {
+    const ac = criticalAreaRectangle(mmToM(num(v.width!)), mmToM(num(v.height!)), mmToM(num(v.radius!)));
+    const ad = num(v.density!) * 1e4 * ac;
+    return {
+      outputs: [
+        { label: 'Critical area A_c', value: ac * 1e6, unit: 'mm²', digits: 6 },
+        { label: 'Expected voids per die λA', value: ad, unit: '', digits: 4 },
+        { label: 'Poisson yield', value: poissonYield(ad), unit: '', digits: 4 },
+        {
+          label: 'Negative binomial yield',
+          value: negativeBinomialYield(ad, num(v.alpha!)),
+          unit: '',
+          digits: 4,
+        },
+        { label: 'Murphy yield', value: murphyYield(ad), unit: '', digits: 4 },
+      ],
+      notes: ['In hybrid bonding one void in the pad array kills the die: use the pad-array rectangle.'],
+    };
+  },
+};
+
 /** Every calculator, in the order the page and `voidcast calc --help` list them. */
 export const CALCULATORS: Calculator[] = [
   classLimit,
   sampleVolume,
   locations,
   deposition,
+  voidRadiusCalc,
+  dieYield,
   poissonInterval,
   cc1246,
 ];

@@ -30,20 +30,35 @@ describe.skipIf(!run)('the app shell in Chromium', () => {
     page.on('pageerror', (e) => errors.push(e.message));
     await page.goto(server.url);
     expect(await page.locator('h1').textContent()).toBe('Line overview');
-    expect(await page.evaluate(() => document.doctype?.name)).toBe('html');
+    expect(await page.evaluate('document.doctype && document.doctype.name')).toBe('html');
     // htmx is loaded from our own server, not a CDN.
-    expect(await page.evaluate(() => typeof (window as unknown as { htmx?: unknown }).htmx)).toBe('object');
-    await page.evaluate(() => {
-      (window as unknown as { __marker: number }).__marker = 42;
-    });
+    expect(await page.evaluate('typeof window.htmx')).toBe('object');
+    await page.evaluate('window.__marker = 42');
     await page.getByRole('link', { name: 'Calculators' }).click();
-    await page.waitForFunction(() => location.pathname === '/calculators');
+    await page.waitForFunction("location.pathname === '/calculators'");
     expect(await page.locator('h1').textContent()).toContain('Calculators');
     // hx-boost swapped the body in place: the window (and our marker) survived.
-    expect(await page.evaluate(() => (window as unknown as { __marker?: number }).__marker)).toBe(42);
+    expect(await page.evaluate('window.__marker')).toBe(42);
     expect(await page.locator('.vc-nav a.active').textContent()).toBe('Calculators');
     await page.screenshot({ path: screenshotPath('shell-calculators'), fullPage: true });
     expect(errors).toEqual([]);
+  });
+
+  it('updates a calculator result as the input changes (htmx), without a page load', async () => {
+    const page = await browser.context.newPage();
+    await page.goto(`${server.url}calculators`);
+    const cell = page.locator('#calc-class-limit-result td[data-output="Class limit"]').first();
+    expect(await cell.textContent()).toBe('3,516.76');
+    await page.fill('#class-limit-class', '4');
+    await page.waitForFunction(
+      `document.querySelector('#calc-class-limit-result td[data-output="Class limit"]')?.textContent === '351.676'`,
+    );
+    await page.fill('#class-limit-size', 'abc');
+    await page.waitForSelector('#calc-class-limit-result [role="alert"]');
+    expect(await page.locator('#calc-class-limit-result [role="alert"]').textContent()).toContain(
+      'size must be a number',
+    );
+    await page.screenshot({ path: screenshotPath('calculators-error'), fullPage: false });
   });
 
   it('shows its own 404 page without a stack trace', async () => {
