@@ -13,6 +13,8 @@
  * Units: SI inside (m, s, m/s, particles/m³), as in src/model; the writers convert at the edge.
  */
 
+import { isoClassLimit, minimumSampleVolumeM3 } from '../../src/model/iso14644.ts';
+
 // ───────────────────────────── calendar ─────────────────────────────
 
 /** The counter window: two weeks, Monday 5 October 2026 00:00 UTC to Monday 19 October 00:00 UTC. */
@@ -100,22 +102,25 @@ export interface CounterSpec {
 export const CHANNELS_M = [0.1e-6, 0.2e-6, 0.3e-6, 0.5e-6, 1.0e-6, 5.0e-6] as const;
 
 const CFM = 28.316846592e-3 / 60; // m³/s
-const L_05 = (isoClass: number) => 10 ** isoClass * (0.1 / 0.5) ** 2.08; // ISO 14644-1:2015 formula at 0.5 µm
+/** Sampled volume of one one-minute sample of a 1 CFM counter, m³. */
+const MINUTE_SAMPLE_M3 = 28.316846592e-3;
 
-function levelsAt05(isoClass: number) {
-  // Open rooms: alert and action at 50 % and 100 % of the class limit at ≥ 0.5 µm — one of the two
-  // common conventions (practice of the trade, no single source); rounded to whole particles.
-  const lim = L_05(isoClass);
-  return { atDiameterM: 0.5e-6, alertPerM3: Math.round(lim / 2), actionPerM3: Math.round(lim) };
-}
-
-function levelsMini(isoClass: number) {
-  // Mini-environments and EFEMs (ISO 1–3): a one-minute 28.3 L sample cannot resolve their own class
-  // limit — ISO 14644-1:2015 asks for ≥ 20/C_n × 1000 L in one sample (200 L for ISO 2 at 0.1 µm),
-  // and a single count is already 35 /m³. So their per-sample levels sit at ≥ 0.1 µm at 50 % and
-  // 100 % of the limit of the class above the target (voidcast demo convention).
-  const lim = 10 ** (isoClass + 1);
-  return { atDiameterM: 0.1e-6, alertPerM3: lim / 2, actionPerM3: lim };
+/**
+ * Per-sample alert and action levels at 50 % and 100 % of a class limit (one of the two common
+ * conventions; practice of the trade, no single source). The size: 0.5 µm in ISO 4 and dirtier air,
+ * 0.1 µm in ISO 1–3 air, where 0.5 µm counts are too sparse to act on. The class: the target, unless
+ * a one-minute 28.3 L sample is smaller than ISO 14644-1:2015's minimum single-sample volume
+ * (20 / C_n × 1000 L) at that size — then the first class above whose limit one sample can resolve
+ * (ISO 4 at 0.5 µm needs 57 L, so ISO 4 bays act at the ISO 5 limit; ISO 2 at 0.1 µm needs 200 L,
+ * so ISO 2 mini-environments act at the ISO 3 limit). Below that volume a single count already
+ * reads above the limit, and per-minute levels would alarm on noise.
+ */
+function levelsFor(isoClass: number) {
+  const atDiameterM = isoClass <= 3 ? 0.1e-6 : 0.5e-6;
+  let n = isoClass;
+  while (minimumSampleVolumeM3(n, atDiameterM) > MINUTE_SAMPLE_M3) n++;
+  const lim = isoClassLimit(n, atDiameterM);
+  return { atDiameterM, alertPerM3: Math.round(lim / 2), actionPerM3: Math.round(lim) };
 }
 
 function openRoom(c01: number, slope: number, bursts: number): AirSpec {
@@ -270,7 +275,7 @@ function bay(
     isoClass,
     floorAreaM2,
     airVelocityMps: 0.35,
-    levels: levelsAt05(isoClass),
+    levels: levelsFor(isoClass),
     exposes,
     counter,
   };
@@ -293,7 +298,7 @@ function point(
     isoClass,
     floorAreaM2: null,
     airVelocityMps: 0.4,
-    levels: isoClass <= 3 ? levelsMini(isoClass) : levelsAt05(isoClass),
+    levels: levelsFor(isoClass),
     exposes,
     counter,
   };
