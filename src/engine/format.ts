@@ -22,9 +22,11 @@ export function fmtMm2(areaM2: number): string {
 }
 
 export function fmtSize(dM: number): string {
-  if (dM < 1e-6) return `${(dM * 1e9).toPrecision(3).replace(/\.?0+$/, '')} nm`;
-  if (dM < 1e-3) return `${(dM * 1e6).toPrecision(3).replace(/\.?0+$/, '')} µm`;
-  return `${(dM * 1e3).toPrecision(3).replace(/\.?0+$/, '')} mm`;
+  // Three significant figures, trailing zeros after the decimal point dropped (500 nm stays 500).
+  const trim = (v: number) => String(Number(v.toPrecision(3)));
+  if (dM < 1e-6) return `${trim(dM * 1e9)} nm`;
+  if (dM < 1e-3) return `${trim(dM * 1e6)} µm`;
+  return `${trim(dM * 1e3)} mm`;
 }
 
 export function fmtHours(s: number): string {
