@@ -15,6 +15,8 @@ import {
   loadDemoOnce,
   readDemoManifest,
 } from '../../src/cli/demo.ts';
+import type { CliIo } from '../../src/cli/io.ts';
+import { main } from '../../src/cli/main.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 import { getSetting } from '../../src/store/settings.ts';
 import { readCumulativeSamples, wafersExposedAt } from '../../src/store/views-areas.ts';
@@ -130,5 +132,39 @@ describe('first start', () => {
     expect(second.loaded).toBeNull();
     expect(second.lines).toEqual([]);
     expect(second.imports).toBe(first.imports);
+  }, 120_000);
+});
+
+describe('voidcast demo load', () => {
+  it('loads the demo into a data directory, and a second run changes nothing', async () => {
+    const dataDir = mkdtempSync(join(tmpdir(), 'voidcast-demo-load-'));
+    try {
+      const run = async (argv: string[]) => {
+        let out = '';
+        let err = '';
+        const io: CliIo = {
+          out: (t) => (out += t),
+          err: (t) => (err += t),
+          isTty: false,
+          env: {},
+          cwd: dataDir,
+        };
+        const code = await main(argv, io);
+        return { code, out, err };
+      };
+      const first = await run(['demo', 'load', '--data', dataDir]);
+      expect(first.code).toBe(0);
+      expect(first.out).toMatch(
+        /demo loaded into .*: \d+ files, \d+ rows; assess it as of 2026-10-18T19:00:00Z/,
+      );
+      const second = await run(['demo', 'load', '--data', dataDir]);
+      expect(second.code).toBe(0);
+      expect(second.out).toMatch(/the demo was loaded already: \d+ files unchanged/);
+      const bad = await run(['demo', 'unload']);
+      expect(bad.code).toBe(2);
+      expect(bad.err).toMatch(/unknown action "unload"/);
+    } finally {
+      rmSync(dataDir, { recursive: true, force: true });
+    }
   }, 120_000);
 });
