@@ -15,10 +15,11 @@
  *   NB        P_kill = 1 − (1 − P_det) · (1 + m/α)^(−α)          (Stapper's cluster parameter α)
  * Every linear term (V, E, m, Σ s·hits) is a sum over contributions, so shares are exact.
  */
-import { binIndexOf, SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
+import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import type { DieGridIndex } from './geometry.ts';
 import { forEachDieHit } from './geometry.ts';
 import { type Contribution, interfaceSpectrum } from './propagate.ts';
+import { binOf } from './tables.ts';
 
 /** Per-product void and yield helpers (physics.ts builds them from the model library). */
 export interface VoidPhysics {
@@ -153,7 +154,7 @@ export function evaluate(
     if (s <= 0) continue;
     const r = detected.rM[j]!;
     const fig = per[detected.source[j]!]!;
-    const bin = Math.min(Math.max(binIndexOf(detected.diameterM[j]!), 0), SPECTRUM_BIN_COUNT - 1);
+    const bin = binOf(detected.diameterM[j]!);
     detectedCountBins[bin]! += s;
     const a = Math.PI * r * r;
     detAreaSum[bin]! += s * a;

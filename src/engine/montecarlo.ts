@@ -14,18 +14,18 @@
  *   (a tail with too few particles for a fit keeps the assumed slope);
  * then counting noise: reportable voids ~ Poisson(expected voids) (detected particles' Bernoulli
  * survivals are taken as Poisson: the same mean and a variance at least as large, the conservative
- * side); for the unbonded area the particle count of each bin ~ Poisson and the Boolean exponent is
- * taken over the drawn discs; each die is killed with its probability (Bernoulli per die), the random
- * part of the negative-binomial form drawn as Poisson with the die mean scaled by a wafer-level
+ * side); for the unbonded area the discs of each bin are a Poisson count and the Boolean exponent is
+ * taken over the drawn discs (drawExponent); each die is killed with its probability (drawKills),
+ * the random part of the negative-binomial form drawn with the die mean scaled by a wafer-level
  * Gamma(α, 1/α) factor — the gamma–Poisson mixture that defines it (Stapper).
  * Detected particles keep their nominal radii (their positions are fixed).
  */
 import { quantileSorted } from 'simple-statistics';
-import { createRng } from '../model/rng.ts';
-import { SPECTRUM_BIN_COUNT } from '../model/spectrum.ts';
+import { createRng, type Rng } from '../model/rng.ts';
+import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import type { Evaluation, VoidPhysics } from './evaluate.ts';
 import { fractionAbove } from './evaluate.ts';
-import type { Contribution, PropagationPhysics } from './propagate.ts';
+import type { Contribution } from './propagate.ts';
 import type { AssessConfig, Estimate } from './types.ts';
 
 const Z975 = 1.959963984540054;
@@ -67,18 +67,121 @@ export function buildGridPhysics(physics: VoidPhysics, grid: Float64Array, hasDi
   return { radii, frac, acrit };
 }
 
+/**
+ * Tail spectrum of one draw: N(≥ d) = n·(d/x_m)^(−α) placed in the bins between the floor and the
+ * threshold — the same power law as the model's powerLawSpectrum (test/unit/engine/montecarlo.test.ts
+ * checks the two agree), written out here without its argument checks because it runs once per
+ * draw per tail. Writes into `out` (zeroed first); returns it.
+ */
+export function tailBins(
+  n: number,
+  alpha: number,
+  xm: number,
+  floor: number,
+  out: Float64Array,
+): Float64Array {
+  out.fill(0);
+  const a = Math.min(Math.max(alpha, 0), 10);
+  for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
+    const lo = Math.max(SPECTRUM_EDGES_M[k]!, floor);
+    const hi = Math.min(SPECTRUM_EDGES_M[k + 1]!, xm);
+    if (hi <= lo) continue;
+    out[k] = Math.max(n * ((lo / xm) ** -a - (hi / xm) ** -a), 0);
+  }
+  return out;
+}
+
+/**
+ * Killed dies in one draw: Σ over dies of Bernoulli(p_d), p_d = 1 − S_d·q (S_d: no detected particle
+ * kills die d; q: no random one does). Exact Bernoulli draws where the count is small; otherwise:
+ * - dies no detected particle reaches share one p = 1 − q: their count is Binomial(n₁, p), drawn as
+ *   Poisson(n₁p) when p ≤ 0.01 (total-variation error ≤ p, Barbour & Hall 1984) or as a rounded
+ *   normal when n₁p(1 − p) ≥ 9 (the usual rule of thumb for the normal approximation);
+ * - the dies that detected particles reach: a rounded normal with their mean and variance when
+ *   that variance is ≥ 9, else one Bernoulli draw per die.
+ */
+function drawKills(rng: Rng, q: number, free: number, hitS: Float64Array, nDies: number): number {
+  let k = 0;
+  const p = 1 - q;
+  if (free > 0 && p > 0) {
+    const v = free * p * (1 - p);
+    if (p <= 0.01) k += Math.min(rng.poisson(free * p), free);
+    else if (v >= 9) k += Math.min(Math.max(Math.round(free * p + Math.sqrt(v) * rng.normal()), 0), free);
+    else for (let i = 0; i < free; i++) if (rng.nextUint32() < p * 4294967296) k++;
+  }
+  if (hitS.length > 0) {
+    let mu = 0;
+    let v = 0;
+    for (let i = 0; i < hitS.length; i++) {
+      const pd = 1 - hitS[i]! * q;
+      mu += pd;
+      v += pd * (1 - pd);
+    }
+    if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), hitS.length);
+    else for (let i = 0; i < hitS.length; i++) if (rng.nextUint32() < (1 - hitS[i]! * q) * 4294967296) k++;
+  }
+  return Math.min(k, nDies);
+}
+
+/**
+ * Unbonded area exponent of one draw, Σ (drawn disc areas) / A_b, as a compound Poisson sum:
+ * entries with an expected count ≥ 50 contribute through a normal with the compound mean Σμa and
+ * variance Σμa² (many discs: the central limit applies); the others are drawn exactly — their total
+ * count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means.
+ */
+function drawExponent(
+  rng: Rng,
+  mu: Float64Array,
+  area: Float64Array,
+  m: number,
+  ab: number,
+  cdf: Float64Array,
+): number {
+  let bigMean = 0;
+  let bigVar = 0;
+  let smallMu = 0;
+  for (let i = 0; i < m; i++) {
+    const u = mu[i]!;
+    if (!(u > 0)) {
+      cdf[i] = smallMu;
+      continue;
+    }
+    const a = area[i]!;
+    if (u >= 50) {
+      bigMean += u * a;
+      bigVar += u * a * a;
+    } else smallMu += u;
+    cdf[i] = smallMu;
+  }
+  let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
+  if (smallMu > 0) {
+    const n = rng.poisson(smallMu);
+    for (let j = 0; j < n; j++) {
+      const x = rng.uniform() * smallMu;
+      let lo = 0;
+      let hi = m - 1;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (cdf[mid]! > x) hi = mid;
+        else lo = mid + 1;
+      }
+      total += area[lo]!;
+    }
+  }
+  return total / ab;
+}
+
 export function simulate(args: {
   contributions: Contribution[];
   evaluation: Evaluation;
   physics: VoidPhysics;
-  propagation: PropagationPhysics;
   grid: GridPhysics;
   config: AssessConfig;
   clusterAlpha: number;
   /** Sub-seed so that scenarios of one pair draw independent streams (deterministic). */
   stream: number;
 }): DrawSet {
-  const { contributions, evaluation: ev, physics, propagation, grid, config: cfg } = args;
+  const { contributions, evaluation: ev, physics, grid, config: cfg } = args;
   const rng = createRng((cfg.seed * 1009 + args.stream) % Number.MAX_SAFE_INTEGER);
   const nDraws = cfg.draws;
   const ab = physics.bondedAreaM2;
@@ -86,82 +189,97 @@ export function simulate(args: {
   const sigGap = Math.log(Math.max(cfg.smallGapUncertaintyFactor, 1)) / Z975;
   const gridN = grid.radii.length;
 
-  // Fixed per-contribution densities (per m², per bin) for the non-tail random sources.
-  const fixedDens: (Float64Array | null)[] = contributions.map((c, i) => {
-    if (c.detected || c.variation.type === 'tail') return null;
-    const s = ev.perContribution[i]!.spectrum;
-    const d = new Float64Array(SPECTRUM_BIN_COUNT);
-    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) d[k] = s[k]! / c.areaBasisM2;
-    return d;
-  });
-  const toolKeys = [
-    ...new Set(contributions.flatMap((c) => (c.variation.type === 'tool' ? [c.variation.toolKey] : []))),
+  // Fixed densities (per m², per bin) summed per factor group: waits (deposition factor), each tool
+  // (its adder factor), everything else (incoming: no factor). Tails are drawn separately.
+  const groupKeys: string[] = ['wait', 'fixed'];
+  const groupSigma: number[] = [sigDep, 0];
+  const groupDens: Float64Array[] = [
+    new Float64Array(SPECTRUM_BIN_COUNT),
+    new Float64Array(SPECTRUM_BIN_COUNT),
   ];
-  const toolSigma = new Map<string, number>();
-  for (const c of contributions)
-    if (c.variation.type === 'tool')
-      toolSigma.set(c.variation.toolKey, Math.log(Math.max(c.variation.uncertaintyFactor, 1)) / Z975);
+  const tails: {
+    v: Extract<Contribution['variation'], { type: 'tail' }>;
+    surv: Float64Array;
+    area: number;
+  }[] = [];
+  contributions.forEach((c, i) => {
+    const v = c.variation;
+    if (c.detected) return;
+    if (v.type === 'tail') {
+      tails.push({ v, surv: c.survivalBins, area: c.areaBasisM2 });
+      return;
+    }
+    let g = v.type === 'wait' ? 0 : v.type === 'tool' ? groupKeys.indexOf(`tool:${v.toolKey}`) : 1;
+    if (g < 0) {
+      g = groupKeys.length;
+      groupKeys.push(`tool:${(v as { toolKey: string }).toolKey}`);
+      groupSigma.push(Math.log(Math.max((v as { uncertaintyFactor: number }).uncertaintyFactor, 1)) / Z975);
+      groupDens.push(new Float64Array(SPECTRUM_BIN_COUNT));
+    }
+    const s = ev.perContribution[i]!.spectrum;
+    const d = groupDens[g]!;
+    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) d[k]! += s[k]! / c.areaBasisM2;
+  });
+  const nGroups = groupKeys.length;
 
   const nDies = ev.dieCount;
   const det = ev.detSurvivePerDie;
+  // Dies no detected particle reaches (S_d = 1) are counted together; the others one by one.
+  const hit: number[] = [];
+  if (det) for (let d = 0; d < nDies; d++) if (det[d]! < 1) hit.push(det[d]!);
+  const free = det ? nDies - hit.length : 0;
+  const hitS = Float64Array.from(hit);
   const voids = new Float64Array(nDraws);
   const unb = new Float64Array(nDraws);
   const kP = det ? new Float64Array(nDraws) : null;
   const kNB = det ? new Float64Array(nDraws) : null;
   const lam = new Float64Array(SPECTRUM_BIN_COUNT);
-  const toolF = new Map<string, number>();
+  const tailTmp = new Float64Array(SPECTRUM_BIN_COUNT);
+  const factor = new Float64Array(nGroups);
+  const mu = new Float64Array(2 * SPECTRUM_BIN_COUNT);
+  const area = new Float64Array(2 * SPECTRUM_BIN_COUNT);
+  const cdf = new Float64Array(2 * SPECTRUM_BIN_COUNT);
+  for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
+    mu[SPECTRUM_BIN_COUNT + k] = ev.detectedCountBins[k]!;
+    area[SPECTRUM_BIN_COUNT + k] = ev.detectedAreaPerParticleBins[k]!;
+  }
   const alpha = args.clusterAlpha;
 
   for (let t = 0; t < nDraws; t++) {
-    const depF = Math.exp(sigDep * rng.normal());
+    for (let g = 0; g < nGroups; g++)
+      factor[g] = groupSigma[g]! > 0 ? Math.exp(groupSigma[g]! * rng.normal()) : 1;
     const z = rng.normal();
     const gi = Math.min(gridN - 1, Math.max(0, Math.round(((sigGap > 0 ? z : 0) + 4) * ((gridN - 1) / 8))));
     const radii = grid.radii[gi]!;
     const frac = grid.frac[gi]!;
     const acrit = grid.acrit[gi]!;
-    for (const key of toolKeys) toolF.set(key, Math.exp(toolSigma.get(key)! * rng.normal()));
     lam.fill(0);
-    for (let i = 0; i < contributions.length; i++) {
-      const c = contributions[i]!;
-      const v = c.variation;
-      if (c.detected) continue;
-      if (v.type === 'tail') {
-        const a = v.fixedAlpha ?? rng.gamma(v.n, 1 / v.sumLog);
-        const s = propagation.tailSpectrum(v.n, a, v.thresholdM, v.floorM);
-        for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += (s[k]! * c.survivalBins[k]!) / c.areaBasisM2;
-        continue;
-      }
-      const f = v.type === 'wait' ? depF : v.type === 'tool' ? toolF.get(v.toolKey)! : 1;
-      const d = fixedDens[i]!;
+    for (let g = 0; g < nGroups; g++) {
+      const d = groupDens[g]!;
+      const f = factor[g]!;
       for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += d[k]! * f;
     }
+    for (const tl of tails) {
+      const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
+      tailBins(tl.v.n, a, tl.v.thresholdM, tl.v.floorM, tailTmp);
+      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += (tailTmp[k]! * tl.surv[k]!) / tl.area;
+    }
     let meanVoids = ev.detectedVoids;
-    let expo = 0;
     let m = 0;
     for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
       const l = lam[k]!;
       const r = radii[k]!;
       meanVoids += l * ab * frac[k]!;
       m += l * acrit[k]!;
-      if (l > 0) expo += rng.poisson(l * ab) * Math.PI * r * r;
-      const dc = ev.detectedCountBins[k]!;
-      if (dc > 0) expo += rng.poisson(dc) * ev.detectedAreaPerParticleBins[k]!;
+      mu[k] = l * ab;
+      area[k] = Math.PI * r * r;
     }
     voids[t] = rng.poisson(meanVoids);
-    unb[t] = -Math.expm1(-expo / ab);
+    unb[t] = -Math.expm1(-drawExponent(rng, mu, area, 2 * SPECTRUM_BIN_COUNT, ab, cdf));
     if (det && kP && kNB) {
-      const qP = Math.exp(-m);
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
-      const qNB = Math.exp(-m * g);
-      let nP = 0;
-      let nNB = 0;
-      for (let d = 0; d < nDies; d++) {
-        const sd = det[d]!;
-        if (rng.uniform() >= sd * qP) nP++;
-        if (rng.uniform() >= sd * qNB) nNB++;
-      }
-      kP[t] = nP;
-      kNB[t] = nNB;
+      kP[t] = drawKills(rng, Math.exp(-m), free, hitS, nDies);
+      kNB[t] = drawKills(rng, Math.exp(-m * g), free, hitS, nDies);
     }
   }
   return { voids, unbondedFraction: unb, killsPoisson: kP, killsNB: kNB };

@@ -210,7 +210,6 @@ function runScenario(
     contributions,
     evaluation,
     physics,
-    propagation: physics,
     grid: physics.gridPhysics,
     config: cfg,
     clusterAlpha: product.clusterAlpha,

@@ -10,7 +10,6 @@ import { cleanSurvival, fitRemovalCurve, type RemovalCurveParams } from '../mode
 import { depositDuringExposure } from '../model/deposition.ts';
 import { isoClassLimit } from '../model/iso14644.ts';
 import {
-  binIndexOf,
   powerLawSpectrum,
   SPECTRUM_BIN_COUNT,
   SPECTRUM_CENTRES_M,
@@ -34,6 +33,7 @@ import type { VoidPhysics } from './evaluate.ts';
 import { buildDieGrid, type DieGridIndex } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
+import { binOf, interpLogLin, interpLogLog, sizeTable } from './tables.ts';
 import type {
   AssessConfig,
   CleanInput,
@@ -120,10 +120,24 @@ export function buildProductPhysics(
   const critH = dieGrid ? dieGrid.critH : 0;
   const floor = cfg.tailFloorM;
 
-  const survivalCache = new WeakMap<CleanInput, Float64Array>();
+  // Clean and tool caches are keyed by content (sessions bring new objects with the same values).
+  const survivalCache = new Map<string, Float64Array>();
+  const survivalTables = new Map<string, Float64Array>();
+  const survivalTable = (clean: CleanInput): Float64Array => {
+    const key = JSON.stringify(clean);
+    let t = survivalTables.get(key);
+    if (!t) {
+      const params = cleanParams(clean);
+      t = sizeTable((d) => cleanSurvival(d, params));
+      survivalTables.set(key, t);
+    }
+    return t;
+  };
+
   const velocityCache = new Map<string, Float64Array>();
-  const adderCache = new WeakMap<ToolInput, Spectrum>();
+  const adderCache = new Map<string, Spectrum>();
   const nominalF = cfg.smallGapFactor;
+  const radiusTable = sizeTable((d) => radiusFor(d, nominalF));
 
   const level = (l: { countAbove: number; atDiameterM: number; slope: number; fromM: number | null }) =>
     l.countAbove > 0
@@ -159,30 +173,35 @@ export function buildProductPhysics(
     dieGrid,
     scanAreaM2: (ee) => Math.PI * (radiusW - ee) ** 2,
     binRadii,
-    radiusAt: (d) => radiusFor(d, nominalF),
+    radiusAt: (d) => interpLogLog(radiusTable, d),
     reportableParticleM,
     criticalArea: (r) => (dieGrid ? criticalAreaRectangle(critW, critH, r) : 0),
     poissonYield: (m) => poissonYield(m),
     negativeBinomialYield: (m, a) => negativeBinomialYield(m, a),
     cleanSurvivalBins(clean) {
-      const hit = survivalCache.get(clean);
+      const key = JSON.stringify(clean);
+      const hit = survivalCache.get(key);
       if (hit) return hit;
       const s = new Float64Array(SPECTRUM_BIN_COUNT);
       for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)
         s[k] = cleanSurvival(SPECTRUM_CENTRES_M[k]!, cleanParams(clean));
-      survivalCache.set(clean, s);
+      survivalCache.set(key, s);
       return s;
     },
-    cleanSurvivalAt: (clean, d) => cleanSurvival(d, cleanParams(clean)),
+    applySurvival(clean, d, survival) {
+      const t = survivalTable(clean);
+      for (let j = 0; j < d.length; j++) survival[j]! *= interpLogLin(t, d[j]!);
+    },
     adderSpectrum(tool) {
-      const hit = adderCache.get(tool);
+      const key = JSON.stringify([tool.adders, tool.adderBands ?? null]);
+      const hit = adderCache.get(key);
       if (hit) return hit;
       const s = tool.adders
         ? level(tool.adders)
         : tool.adderBands?.length
           ? bands(tool.adderBands)
           : zeroSpectrum();
-      adderCache.set(tool, s);
+      adderCache.set(key, s);
       return s;
     },
     tailSpectrum: (n, alpha, xm, fl) =>
@@ -197,7 +216,7 @@ export function buildProductPhysics(
     binDetected(d, s) {
       const out = zeroSpectrum();
       for (let j = 0; j < d.length; j++) {
-        const k = Math.min(Math.max(binIndexOf(d[j]!), 0), SPECTRUM_BIN_COUNT - 1);
+        const k = binOf(d[j]!);
         out[k]! += s[j]!;
       }
       return out;
@@ -250,7 +269,7 @@ export function buildProductPhysics(
         airborneDoseM3s: dose,
         areaM2: waferAreaM2,
         isolationFactor: Math.max(isolation, 1),
-        velocity: (d) => vel[Math.min(Math.max(binIndexOf(d), 0), SPECTRUM_BIN_COUNT - 1)]!,
+        velocity: (d) => vel[binOf(d)]!,
       });
     },
     hill(sizes, thresholdM, confidence) {

@@ -82,8 +82,8 @@ export interface Contribution {
 export interface PropagationPhysics {
   /** Clean survival per bin (1 − PRE at the bin centre). */
   cleanSurvivalBins(clean: CleanInput): Float64Array;
-  /** Clean survival at a diameter. */
-  cleanSurvivalAt(clean: CleanInput, diameterM: number): number;
+  /** Multiplies each particle's survival by the clean's survival at its diameter (in place). */
+  applySurvival(clean: CleanInput, diameterM: Float64Array, survival: Float64Array): void;
   /** Adders per pass of a tool as a spectrum per wafer (floored at the tail floor). */
   adderSpectrum(tool: ToolInput): Spectrum;
   /** A tail spectrum: n particles ≥ threshold extended with slope α from floor up to the threshold. */
@@ -508,8 +508,7 @@ export function applyClean(
     c.lastCleanId = clean.cleanId;
     if (c.detected) {
       const det = c.detected;
-      for (let j = 0; j < det.survival.length; j++)
-        det.survival[j]! *= physics.cleanSurvivalAt(clean, det.diameterM[j]!);
+      physics.applySurvival(clean, det.diameterM, det.survival);
       c.base = physics.binDetected(det.diameterM, det.survival);
       c.survivalBins.fill(1); // the detected spectrum is rebuilt from the particles' own survivals
     }

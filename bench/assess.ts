@@ -1,0 +1,181 @@
+/**
+ * Bench: assess a lot end to end from the database.
+ *
+ * Data (invented, written into a temporary database through direct inserts into the real tables):
+ * a lot of 25 pairs, 20 000 detected particles per wafer, 12 ledger steps per wafer, two weeks of
+ * one-minute counter data at 12 locations (241 920 samples).
+ *
+ * Measured in the same run:
+ * - floor: a bare loop that only reads the same rows the assessment needs — the 50 scans' packed
+ *   particle columns (readScanDefects) and the counter samples of every exposure window
+ *   (readCounterSamples) — and touches every value;
+ * - assess: assessLotFromDb (loader + engine, 400 Monte Carlo draws per scenario).
+ * Targets: p50(assess) < 300 ms and p50(assess) < 10 × p50(floor).
+ *
+ * Run: npm run bench -- assess   (or: node --import tsx bench/assess.ts)
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { assessLotFromDb } from '../src/engine/loader.ts';
+import type { LedgerStepInput, PairInput } from '../src/engine/types.ts';
+import { createRng } from '../src/model/rng.ts';
+import { readCounterSamples } from '../src/store/counters.ts';
+import { openDataDir } from '../src/store/db.ts';
+import { readScanDefects } from '../src/store/scans.ts';
+import { seedLine, seedPairs } from '../test/helpers/engine-db.ts';
+import {
+  clean,
+  counterSeries,
+  H,
+  line,
+  location,
+  pair,
+  scan,
+  step,
+  T0,
+  tool,
+  wafer,
+} from '../test/helpers/engine-inputs.ts';
+
+const PAIRS = 25;
+const PARTICLES = 20_000;
+const LOCATIONS = 12;
+const DAYS = 14;
+const RUNS = Number(process.env.BENCH_RUNS ?? 15);
+const CH = [0.1e-6, 0.2e-6, 0.3e-6, 0.5e-6, 1e-6, 5e-6];
+const ISO5 = [100000, 23700, 10200, 3520, 832, 29];
+
+function particles(seed: number) {
+  const rng = createRng(seed);
+  const x: number[] = [];
+  const y: number[] = [];
+  const d: number[] = [];
+  for (let i = 0; i < PARTICLES; i++) {
+    const r = 0.147 * Math.sqrt(rng.uniform());
+    const t = 2 * Math.PI * rng.uniform();
+    x.push(r * Math.cos(t));
+    y.push(r * Math.sin(t));
+    d.push(Math.min(45e-9 * (1 - rng.uniform()) ** -0.5, 20e-6)); // power law, slope 2, from the 45 nm threshold
+  }
+  return { x, y, d };
+}
+
+/** 12 steps over about a day, starting on day 10 of the counter data. */
+function ledger(start: number, k: number): LedgerStepInput[] {
+  const L = (i: number) => `L${(i + k) % LOCATIONS}`;
+  return [
+    step(0, 'clean', start, start + 0.3 * H, { cleanId: 'POSTCMP', toolId: 'CLN-1' }),
+    step(1, 'wait', start + 0.3 * H, start + 2.3 * H, { locationId: L(0) }),
+    step(2, 'process', start + 2.3 * H, start + 2.8 * H, { toolId: 'DEP-1' }),
+    step(3, 'transfer', start + 2.8 * H, start + 3 * H, { locationId: L(1), carrier: 'closed' }),
+    step(4, 'wait', start + 3 * H, start + 7 * H, { locationId: L(2), carrier: 'closed' }),
+    step(5, 'clean', start + 7 * H, start + 7.3 * H, { cleanId: 'PBC', toolId: 'CLN-2' }),
+    step(6, 'wait', start + 7.3 * H, start + 9 * H, { locationId: L(3) }),
+    step(7, 'activation', start + 9 * H, start + 9.2 * H, { toolId: 'ACT' }),
+    step(8, 'transfer', start + 9.2 * H, start + 9.4 * H, { locationId: L(4) }),
+    step(9, 'wait', start + 9.4 * H, start + 12 * H, { locationId: L(5) }),
+    step(10, 'transfer', start + 12 * H, start + 12.2 * H, { locationId: L(6), toolId: 'EFEM' }),
+    step(11, 'bond', start + 12.3 * H, start + 12.4 * H, { toolId: 'BONDER' }),
+  ];
+}
+
+function build() {
+  const counters: Record<string, ReturnType<typeof counterSeries>> = {};
+  const locations: Record<string, ReturnType<typeof location>> = {};
+  for (let i = 0; i < LOCATIONS; i++) {
+    const id = `L${i}`;
+    const rng = createRng(100 + i);
+    const noise = Float64Array.from({ length: DAYS * 24 * 60 }, () => 0.5 + rng.uniform());
+    counters[id] = counterSeries(id, T0, T0 + DAYS * 24 * H, CH, (j) => ISO5.map((v) => v * 0.01 * noise[j]!));
+    locations[id] = location(id, { levels: { atDiameterM: 0.5e-6, alertPerM3: 1000, actionPerM3: 1e6 } });
+  }
+  const data = line({
+    tools: {
+      'CLN-1': tool('CLN-1', 0.5),
+      'CLN-2': tool('CLN-2', 0.5),
+      'DEP-1': tool('DEP-1', 2),
+      ACT: tool('ACT', 1),
+      EFEM: tool('EFEM', 0.2),
+      BONDER: tool('BONDER', 0.5),
+    },
+    cleans: { POSTCMP: clean('POSTCMP', { maxEfficiency: 0.9 }), PBC: clean('PBC') },
+    locations,
+    counters,
+  });
+  const pairs: PairInput[] = [];
+  for (let i = 0; i < PAIRS; i++) {
+    const start = T0 + 10 * 24 * H + i * 0.2 * H;
+    const w = (id: string, seed: number) =>
+      wafer(id, scan(`S-${id}`, start - 0.5 * H, ...Object.values(particles(seed)) as [number[], number[], number[]]), ledger(start, i));
+    pairs.push(pair(`P${i}`, w(`W${i}T`, 2 * i + 1), w(`W${i}B`, 2 * i + 2), { bondTimeMs: start + 12.4 * H, bonderToolId: null }));
+  }
+  return { data, pairs };
+}
+
+function p50(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.floor(s.length / 2)]!;
+}
+
+export async function run(): Promise<void> {
+  const dir = mkdtempSync(join(tmpdir(), 'voidcast-bench-assess-'));
+  const db = openDataDir(dir);
+  try {
+    const t0 = performance.now();
+    const { data, pairs } = build();
+    db.transaction(() => seedLine(db, data))();
+    seedPairs(db, pairs);
+    console.log(`seeded ${PAIRS} pairs × 2 wafers × ${PARTICLES} particles, ${LOCATIONS} locations × ${DAYS} d of 1-min samples in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    const asOfMs = T0 + 12 * 24 * H;
+    // The rows the assessment reads: every scan of the lot, and each location's samples over its exposure windows.
+    const windows = new Map<string, [number, number]>();
+    for (const p of pairs)
+      for (const w of [p.top, p.bottom])
+        for (const s of w.ledger)
+          if (s.locationId && (s.kind === 'wait' || s.kind === 'transfer')) {
+            const x = windows.get(s.locationId);
+            windows.set(s.locationId, x ? [Math.min(x[0], s.startMs), Math.max(x[1], s.endMs!)] : [s.startMs, s.endMs!]);
+          }
+    const scanIds = pairs.flatMap((p) => [p.top.latestScan!.scanId, p.bottom.latestScan!.scanId]);
+    let sink = 0;
+    const floor = () => {
+      for (const id of scanIds) {
+        const d = readScanDefects(db, id)!;
+        for (let i = 0; i < d.count; i++) sink += d.xM[i]! + d.yM[i]! + d.diameterM[i]!;
+      }
+      for (const [loc, [a, b]] of windows) {
+        const s = readCounterSamples(db, loc, a, b);
+        for (let i = 0; i < s.counts.length; i++) sink += s.counts[i]!;
+      }
+    };
+    const floors: number[] = [];
+    const times: number[] = [];
+    let call = '';
+    for (let r = 0; r < RUNS + 2; r++) {
+      let t = performance.now();
+      floor();
+      const f = performance.now() - t;
+      t = performance.now();
+      const lot = assessLotFromDb(db, 'LOT-1', { asOfMs })!;
+      const e = performance.now() - t;
+      call = `${lot.call} (${lot.counts.bond} bond, ${lot.counts.reclean} re-clean, ${lot.counts.hold} hold)`;
+      if (r >= 2) {
+        // the first two runs warm the JIT and SQLite's page cache
+        floors.push(f);
+        times.push(e);
+      }
+    }
+    const pf = p50(floors);
+    const pa = p50(times);
+    console.log(`floor (read the same particle and counter rows): p50 ${pf.toFixed(1)} ms`);
+    console.log(`assessLotFromDb (${PAIRS} pairs, 400 draws):     p50 ${pa.toFixed(1)} ms  → ${(pa / pf).toFixed(1)} × floor; call ${call}`);
+    console.log(`targets: p50 < 300 ms ${pa < 300 ? 'met' : 'NOT met'}; ≤ 10 × floor ${pa <= 10 * pf ? 'met' : 'NOT met'}  (checksum ${sink.toExponential(3)})`);
+  } finally {
+    db.close();
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) await run();
