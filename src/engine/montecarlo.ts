@@ -100,7 +100,15 @@ export function tailBins(
  * - the dies that detected particles reach: a rounded normal with their mean and variance when
  *   that variance is ≥ 9, else one Bernoulli draw per die.
  */
-function drawKills(rng: Rng, q: number, free: number, hitS: Float64Array, nDies: number): number {
+function drawKills(
+  rng: Rng,
+  q: number,
+  free: number,
+  hitS: Float64Array,
+  sumS: number,
+  sumS2: number,
+  nDies: number,
+): number {
   let k = 0;
   const p = 1 - q;
   if (free > 0 && p > 0) {
@@ -110,13 +118,9 @@ function drawKills(rng: Rng, q: number, free: number, hitS: Float64Array, nDies:
     else for (let i = 0; i < free; i++) if (rng.nextUint32() < p * 4294967296) k++;
   }
   if (hitS.length > 0) {
-    let mu = 0;
-    let v = 0;
-    for (let i = 0; i < hitS.length; i++) {
-      const pd = 1 - hitS[i]! * q;
-      mu += pd;
-      v += pd * (1 - pd);
-    }
+    // Σ p_d = H − qΣS and Σ p_d(1 − p_d) = qΣS − q²ΣS², from sums kept once per scenario.
+    const mu = hitS.length - q * sumS;
+    const v = q * sumS - q * q * sumS2;
     if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), hitS.length);
     else for (let i = 0; i < hitS.length; i++) if (rng.nextUint32() < (1 - hitS[i]! * q) * 4294967296) k++;
   }
@@ -229,6 +233,12 @@ export function simulate(args: {
   if (det) for (let d = 0; d < nDies; d++) if (det[d]! < 1) hit.push(det[d]!);
   const free = det ? nDies - hit.length : 0;
   const hitS = Float64Array.from(hit);
+  let sumS = 0;
+  let sumS2 = 0;
+  for (const x of hit) {
+    sumS += x;
+    sumS2 += x * x;
+  }
   const voids = new Float64Array(nDraws);
   const unb = new Float64Array(nDraws);
   const kP = det ? new Float64Array(nDraws) : null;
@@ -278,8 +288,8 @@ export function simulate(args: {
     unb[t] = -Math.expm1(-drawExponent(rng, mu, area, 2 * SPECTRUM_BIN_COUNT, ab, cdf));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
-      kP[t] = drawKills(rng, Math.exp(-m), free, hitS, nDies);
-      kNB[t] = drawKills(rng, Math.exp(-m * g), free, hitS, nDies);
+      kP[t] = drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, nDies);
+      kNB[t] = drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, nDies);
     }
   }
   return { voids, unbondedFraction: unb, killsPoisson: kP, killsNB: kNB };

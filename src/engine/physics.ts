@@ -33,7 +33,7 @@ import type { VoidPhysics } from './evaluate.ts';
 import { buildDieGrid, type DieGridIndex } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
-import { binOf, interpLogLin, interpLogLog, sizeTable } from './tables.ts';
+import { binOf, interpLogLog, sizeIndexOf, sizeTable } from './tables.ts';
 import type {
   AssessConfig,
   CleanInput,
@@ -62,11 +62,32 @@ const ORIENTATION: Record<FaceOrientation, Orientation> = {
   vertical: 'vertical',
 };
 
+/**
+ * Built physics by content (product, settings, reportable void size): the tables are deterministic,
+ * so a later assessment of the same product reuses them. At most 32 kept; likewise Hill fits by
+ * their sufficient statistics.
+ */
+const memo = new Map<string, ProductPhysics>();
+const hillMemo = new Map<
+  string,
+  { alpha: number; lower: number; upper: number; n: number; sumLog: number } | null
+>();
+
 export function buildProductPhysics(
   product: ProductInput,
   cfg: AssessConfig,
   minVoidM: number,
 ): ProductPhysics {
+  const key = JSON.stringify([product, cfg, minVoidM]);
+  const hit = memo.get(key);
+  if (hit) return hit;
+  const built = buildUncached(product, cfg, minVoidM);
+  if (memo.size >= 32) memo.delete(memo.keys().next().value!);
+  memo.set(key, built);
+  return built;
+}
+
+function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: number): ProductPhysics {
   const radiusW = product.waferDiameterM / 2;
   const waferAreaM2 = Math.PI * radiusW * radiusW;
   const rb = radiusW - product.edgeExclusionM;
@@ -190,7 +211,11 @@ export function buildProductPhysics(
     },
     applySurvival(clean, d, survival) {
       const t = survivalTable(clean);
-      for (let j = 0; j < d.length; j++) survival[j]! *= interpLogLin(t, d[j]!);
+      const { cell, weight } = sizeIndexOf(d);
+      for (let j = 0; j < d.length; j++) {
+        const i = cell[j]!;
+        survival[j]! *= t[i]! + (t[i + 1]! - t[i]!) * weight[j]!;
+      }
     },
     adderSpectrum(tool) {
       const key = JSON.stringify([tool.adders, tool.adderBands ?? null]);
@@ -215,10 +240,8 @@ export function buildProductPhysics(
     incomingSpectrum: (p) => level(p.incoming),
     binDetected(d, s) {
       const out = zeroSpectrum();
-      for (let j = 0; j < d.length; j++) {
-        const k = binOf(d[j]!);
-        out[k]! += s[j]!;
-      }
+      const { bin } = sizeIndexOf(d);
+      for (let j = 0; j < d.length; j++) out[bin[j]!]! += s[j]!;
       return out;
     },
     deposition({ channelSizesM, dosePerChannel, airVelocityMps, orientation, isolation }) {
@@ -273,15 +296,29 @@ export function buildProductPhysics(
       });
     },
     hill(sizes, thresholdM, confidence) {
+      // The fit depends on the sizes only through n and S = Σ ln(x/x_m); the same (n, S) was fitted
+      // before when the same scan is assessed again, so the result is kept under that key.
       let n = 0;
-      for (let j = 0; j < sizes.length; j++) if (sizes[j]! >= thresholdM) n++;
+      let sum = 0;
+      for (let j = 0; j < sizes.length; j++)
+        if (sizes[j]! >= thresholdM) {
+          n++;
+          sum += Math.log(sizes[j]! / thresholdM);
+        }
       if (n < 1) return null;
+      const key = `${thresholdM}|${confidence}|${n}|${sum}`;
+      const hit = hillMemo.get(key);
+      if (hit !== undefined) return hit;
+      let out: ReturnType<PropagationPhysics['hill']> = null;
       try {
         const h = hillEstimator(Array.from(sizes), thresholdM, confidence);
-        return { alpha: h.alpha, lower: h.lower, upper: h.upper, n: h.n, sumLog: h.sumLogExcess };
+        out = { alpha: h.alpha, lower: h.lower, upper: h.upper, n: h.n, sumLog: h.sumLogExcess };
       } catch {
-        return null; // every size exactly at the threshold: no slope to fit
+        out = null; // every size exactly at the threshold: no slope to fit
       }
+      if (hillMemo.size >= 4096) hillMemo.delete(hillMemo.keys().next().value!);
+      hillMemo.set(key, out);
+      return out;
     },
     classLimits(isoClass, channels) {
       if (isoClass === null) return null;

@@ -63,3 +63,31 @@ export function binOf(d: number): number {
   const k = Math.floor(Math.log10(d / SPECTRUM_MIN_DIAMETER_M) * SPECTRUM_BINS_PER_DECADE + 1e-12);
   return k >= SPECTRUM_BIN_COUNT ? SPECTRUM_BIN_COUNT - 1 : k;
 }
+
+/** Per-particle table cell, weight and spectrum bin of a diameter array, computed once and cached. */
+export interface SizeIndex {
+  cell: Uint16Array;
+  weight: Float64Array;
+  bin: Uint8Array;
+}
+
+const indexCache = new WeakMap<Float64Array, SizeIndex>();
+
+export function sizeIndexOf(d: Float64Array): SizeIndex {
+  const hit = indexCache.get(d);
+  if (hit) return hit;
+  const n = d.length;
+  const cell = new Uint16Array(n);
+  const weight = new Float64Array(n);
+  const bin = new Uint8Array(n);
+  for (let j = 0; j < n; j++) {
+    const u = position(d[j]!);
+    const i = Math.min(Math.floor(u), TABLE_POINTS - 2);
+    cell[j] = i;
+    weight[j] = u - i;
+    bin[j] = binOf(d[j]!);
+  }
+  const out = { cell, weight, bin };
+  indexCache.set(d, out);
+  return out;
+}
