@@ -19,7 +19,6 @@ import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import type { DieGridIndex } from './geometry.ts';
 import { forEachDieHit } from './geometry.ts';
 import { type Contribution, interfaceSpectrum } from './propagate.ts';
-import { binOf } from './tables.ts';
 
 /** Per-product void and yield helpers (physics.ts builds them from the model library). */
 export interface VoidPhysics {
@@ -59,6 +58,41 @@ export interface DetectedFlat {
   survival: Float64Array;
   /** Index into the contributions array. */
   source: Uint16Array;
+  /** Spectrum bin of each particle. */
+  bin: Uint8Array;
+  /**
+   * Dies each particle's disc reaches, compressed rows (hitDie[hitStart[j] … hitStart[j+1]−1]); null
+   * without a die grid. Positions and radii do not change between scenarios, so this is built once.
+   */
+  hitStart: Int32Array | null;
+  hitDie: Int32Array | null;
+}
+
+/** Builds the compressed die-hit rows of detected particles (direct die-grid index ranges). */
+export function buildHits(
+  grid: DieGridIndex,
+  xM: Float64Array,
+  yM: Float64Array,
+  rM: Float64Array,
+): { hitStart: Int32Array; hitDie: Int32Array } {
+  const n = xM.length;
+  const hitStart = new Int32Array(n + 1);
+  let buf = new Int32Array(Math.max(16, 2 * n));
+  let m = 0;
+  const push = (die: number) => {
+    if (m === buf.length) {
+      const b = new Int32Array(2 * buf.length);
+      b.set(buf);
+      buf = b;
+    }
+    buf[m++] = die;
+  };
+  for (let j = 0; j < n; j++) {
+    hitStart[j] = m;
+    forEachDieHit(grid, xM[j]!, yM[j]!, rM[j]!, push);
+  }
+  hitStart[n] = m;
+  return { hitStart, hitDie: buf.slice(0, m) };
 }
 
 export interface ContributionFigures {
@@ -154,7 +188,7 @@ export function evaluate(
     if (s <= 0) continue;
     const r = detected.rM[j]!;
     const fig = per[detected.source[j]!]!;
-    const bin = binOf(detected.diameterM[j]!);
+    const bin = detected.bin[j]!;
     detectedCountBins[bin]! += s;
     const a = Math.PI * r * r;
     detAreaSum[bin]! += s * a;
@@ -166,15 +200,17 @@ export function evaluate(
       voidsBins[bin]! += s;
       detectedVoids += s;
     }
-    if (grid && detSurvivePerDie && detEventsPerDie) {
-      let hits = 0;
-      forEachDieHit(grid, detected.xM[j]!, detected.yM[j]!, r, (die) => {
-        detSurvivePerDie[die]! *= 1 - s;
+    if (detSurvivePerDie && detEventsPerDie && detected.hitStart && detected.hitDie) {
+      const h0 = detected.hitStart[j]!;
+      const h1 = detected.hitStart[j + 1]!;
+      const keep = 1 - s;
+      for (let h = h0; h < h1; h++) {
+        const die = detected.hitDie[h]!;
+        detSurvivePerDie[die]! *= keep;
         detEventsPerDie[die]! += s;
-        hits++;
-      });
-      fig.dieEvents += s * hits;
-      eventsBins[bin]! += s * hits;
+      }
+      fig.dieEvents += s * (h1 - h0);
+      eventsBins[bin]! += s * (h1 - h0);
     }
   }
   const detectedAreaPerParticleBins = new Float64Array(SPECTRUM_BIN_COUNT);

@@ -228,10 +228,18 @@ export function simulate(args: {
 
   const nDies = ev.dieCount;
   const det = ev.detSurvivePerDie;
-  // Dies no detected particle reaches (S_d = 1) are counted together; the others one by one.
+  // Dies no detected particle reaches (S_d = 1) are counted together; dies a detected particle kills
+  // for certain (S_d < 1e-12: a kill probability within 1e-12 of 1) are counted as killed; the
+  // others one by one.
   const hit: number[] = [];
-  if (det) for (let d = 0; d < nDies; d++) if (det[d]! < 1) hit.push(det[d]!);
-  const free = det ? nDies - hit.length : 0;
+  let certain = 0;
+  if (det)
+    for (let d = 0; d < nDies; d++) {
+      const x = det[d]!;
+      if (x < 1e-12) certain++;
+      else if (x < 1) hit.push(x);
+    }
+  const free = det ? nDies - hit.length - certain : 0;
   const hitS = Float64Array.from(hit);
   let sumS = 0;
   let sumS2 = 0;
@@ -288,8 +296,8 @@ export function simulate(args: {
     unb[t] = -Math.expm1(-drawExponent(rng, mu, area, 2 * SPECTRUM_BIN_COUNT, ab, cdf));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
-      kP[t] = drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, nDies);
-      kNB[t] = drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, nDies);
+      kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, nDies - certain);
+      kNB[t] = certain + drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, nDies - certain);
     }
   }
   return { voids, unbondedFraction: unb, killsPoisson: kP, killsNB: kNB };

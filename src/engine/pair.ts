@@ -11,7 +11,7 @@
 import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import { buildPareto, dominantSource, paretoMetric, sourceContributions } from './attribution.ts';
 import { MODEL_VERSION, resolveConfig } from './config.ts';
-import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
+import { buildHits, type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
 import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
 import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
 import { mirrorIntoBondFrame } from './geometry.ts';
@@ -29,6 +29,7 @@ import {
   toolKeyOf,
   type WaferPropagation,
 } from './propagate.ts';
+import { sizeIndexOf } from './tables.ts';
 import {
   type AssessConfig,
   type AssessOptions,
@@ -147,25 +148,38 @@ interface Scenario {
   pass: boolean;
 }
 
-/** Void radii of detected particles, per diameter array (shared by the scenarios of a pair). */
-const radiiOfDetected = new WeakMap<Float64Array, Float64Array>();
-
+/**
+ * Detected particles of both wafers in the bond frame. Positions, sizes, radii, bins and die hits
+ * are built once per pair (`geometry`); each scenario only brings its own survivals.
+ */
 function flattenDetected(
   contributions: Contribution[],
   pair: PairInput,
   physics: ProductPhysics,
+  geometry: DetectedFlat | null,
 ): DetectedFlat {
   let n = 0;
   for (const c of contributions) if (c.detected) n += c.detected.survival.length;
+  const survival = new Float64Array(n);
+  let o = 0;
+  for (const c of contributions)
+    if (c.detected) {
+      survival.set(c.detected.survival, o);
+      o += c.detected.survival.length;
+    }
+  if (geometry) return { ...geometry, survival };
   const flat: DetectedFlat = {
     xM: new Float64Array(n),
     yM: new Float64Array(n),
     diameterM: new Float64Array(n),
     rM: new Float64Array(n),
-    survival: new Float64Array(n),
+    survival,
     source: new Uint16Array(n),
+    bin: new Uint8Array(n),
+    hitStart: null,
+    hitDie: null,
   };
-  let o = 0;
+  o = 0;
   contributions.forEach((c, i) => {
     const d = c.detected;
     if (!d) return;
@@ -173,17 +187,17 @@ function flattenDetected(
     flat.xM.set(pos.xM, o);
     flat.yM.set(pos.yM, o);
     flat.diameterM.set(d.diameterM, o);
-    flat.survival.set(d.survival, o);
-    let r = radiiOfDetected.get(d.diameterM);
-    if (!r) {
-      r = new Float64Array(d.diameterM.length);
-      for (let j = 0; j < r.length; j++) r[j] = physics.radiusAt(d.diameterM[j]!);
-      radiiOfDetected.set(d.diameterM, r);
-    }
-    flat.rM.set(r, o);
+    const ix = sizeIndexOf(d.diameterM);
+    flat.bin.set(ix.bin, o);
+    for (let j = 0; j < d.diameterM.length; j++) flat.rM[o + j] = physics.radiusAt(d.diameterM[j]!);
     flat.source.fill(i, o, o + d.survival.length);
     o += d.survival.length;
   });
+  if (physics.dieGrid) {
+    const h = buildHits(physics.dieGrid, flat.xM, flat.yM, flat.rM);
+    flat.hitStart = h.hitStart;
+    flat.hitDie = h.hitDie;
+  }
   return flat;
 }
 
@@ -194,8 +208,9 @@ function runScenario(
   physics: ProductPhysics,
   cfg: AssessConfig,
   stream: number,
+  geometry: DetectedFlat | null,
 ): Scenario {
-  const detected = flattenDetected(contributions, pair, physics);
+  const detected = flattenDetected(contributions, pair, physics, geometry);
   const spec = product.spec;
   const evaluation = evaluate(
     contributions,
@@ -328,7 +343,7 @@ export function assessPairInSession(
     propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
-  const asIs = runScenario(contributions, pair, product, physics, cfg, 1);
+  const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null);
 
   // A modelled extra run of the designated pre-bond clean on both wafers, before the bond step.
   let reclean: RecleanScenario | null = null;
@@ -367,7 +382,7 @@ export function assessPairInSession(
           detected: null,
         });
       }
-    after = runScenario(cs, pair, product, physics, cfg, 2);
+    after = runScenario(cs, pair, product, physics, cfg, 2, asIs.detected);
     const allowed = Math.max(pair.top.recleanCount, pair.bottom.recleanCount) < spec.maxRecleans;
     reclean = {
       cleanId: rc.cleanId,
