@@ -98,8 +98,21 @@ export function numberCell(rule: NumberRule): Cell<number> {
     schema,
     numeric: true,
     fast: (s) => {
+      // Plain digits (most cells: raw counts, durations) are read in the same pass that checks them;
+      // anything else goes through the full check. 15 digits stay below 2^53, so the sum is exact.
+      const n = s.length;
+      let v = 0;
+      if (n > 0 && n <= 15) {
+        let i = 0;
+        for (; i < n; i++) {
+          const c = s.charCodeAt(i) - 48;
+          if (c < 0 || c > 9) break;
+          v = v * 10 + c;
+        }
+        if (i === n) return inRange(v, rule) ? v : CELL_FAIL;
+      }
       if (!isNumberText(s)) return CELL_FAIL;
-      const v = Number(s);
+      v = Number(s);
       return inRange(v, rule) ? v : CELL_FAIL;
     },
   };

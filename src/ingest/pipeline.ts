@@ -502,7 +502,7 @@ export function parseRow(
       continue;
     }
     let t = text;
-    if (slot.cell.numeric) {
+    if (slot.cell.numeric && (decimal.mode !== '.' || text.indexOf(',') !== -1)) {
       const n = decimal.normalise(text, line);
       if (typeof n !== 'string') {
         issues = addTo(issues, { line, column: slot.written, value: text, rule: n.rule });

@@ -121,9 +121,8 @@ function quickUtc(s: string): number | null {
   if (s.length !== 20 || s.charCodeAt(19) !== 90 /* Z */ || s.charCodeAt(10) !== 84 /* T */) return null;
   if (s.charCodeAt(4) !== 45 || s.charCodeAt(7) !== 45 || s.charCodeAt(13) !== 58 || s.charCodeAt(16) !== 58)
     return null;
-  const day = s.slice(0, 10);
   let dayMs: number;
-  if (day === lastDay) dayMs = lastDayMs;
+  if (lastDay !== '' && s.startsWith(lastDay)) dayMs = lastDayMs;
   else {
     const y1 = digits2(s, 0);
     const y2 = digits2(s, 2);
@@ -134,7 +133,7 @@ function quickUtc(s: string): number | null {
     if (year < 1900) return null;
     if (d > daysIn(year, mo)) return null;
     dayMs = Date.UTC(year, mo - 1, d);
-    lastDay = day;
+    lastDay = s.slice(0, 10);
     lastDayMs = dayMs;
   }
   const h = digits2(s, 11);

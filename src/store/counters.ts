@@ -49,6 +49,7 @@ const LITTLE_ENDIAN = new Uint8Array(new Float64Array([1]).buffer)[7] === 0x3f;
 
 interface Statements {
   location: { get: (id: string) => unknown };
+  packed: { get: (...a: unknown[]) => unknown };
   range: { raw: (on: boolean) => { all: (...a: unknown[]) => unknown[][] } };
   set: { get: (id: number) => unknown };
   counter: { get: (id: number) => unknown };
@@ -63,7 +64,20 @@ function statements(db: Db): Statements {
       location: db.prepare('SELECT id FROM locations WHERE location_id = ?').pluck(),
       range: db.prepare(
         `SELECT start_ms, duration_ms, volume_m3, counter, channel_set, counts, flags, room_state, import_id
-         FROM counter_samples WHERE location = ? AND start_ms > ? AND start_ms < ? ORDER BY start_ms, counter`,
+          FROM counter_samples WHERE location = ? AND start_ms > ? AND start_ms < ?
+         ORDER BY start_ms, counter, duration_ms`,
+      ),
+      // One row per read: each column as a JSON array (SQLite writes REALs with 17 significant digits,
+      // so they round-trip exactly) and the counts as one hex string. Far fewer JS objects than one
+      // row (and one Buffer) per sample; the order is verified after parsing.
+      packed: db.prepare(
+        `SELECT count(*) AS n, json_group_array(start_ms) AS s, json_group_array(duration_ms) AS d,
+           json_group_array(volume_m3) AS v, json_group_array(counter) AS c, json_group_array(channel_set) AS cs,
+           json_group_array(flags) AS f, json_group_array(room_state) AS r, json_group_array(import_id) AS i,
+           group_concat(hex(counts), '') AS x
+         FROM (SELECT start_ms, duration_ms, volume_m3, counter, channel_set, flags, room_state, import_id, counts
+               FROM counter_samples WHERE location = ? AND start_ms > ? AND start_ms < ? AND start_ms + duration_ms > ?
+               ORDER BY start_ms, counter, duration_ms)`,
       ),
       set: db.prepare('SELECT id, mode, sizes FROM counter_channel_sets WHERE id = ?'),
       counter: db.prepare('SELECT counter_id FROM counters WHERE id = ?').pluck(),
@@ -73,9 +87,25 @@ function statements(db: Db): Statements {
   return s;
 }
 
+interface Packed {
+  n: number;
+  s: string;
+  d: string;
+  v: string;
+  c: string;
+  cs: string;
+  f: string;
+  r: string;
+  i: string;
+  x: string | null;
+}
+
 /**
- * Samples of one location overlapping [fromUtcMs, toUtcMs) — start < to and end > from — in start order.
- * An unknown location gives an empty result (n = 0).
+ * Samples of one location overlapping [fromUtcMs, toUtcMs) — start < to and end > from — in
+ * (start, counter, duration) order. An unknown location gives an empty result (n = 0).
+ *
+ * Reads the range as one packed row (see the `packed` statement); if the rows did not arrive in key
+ * order it falls back to readCounterSamplesByRows (the same result, one JS row per sample).
  */
 export function readCounterSamples(
   db: Db,
@@ -85,17 +115,140 @@ export function readCounterSamples(
 ): CounterSamples {
   const st = statements(db);
   const loc = st.location.get(locationId) as number | undefined;
-  const rows =
+  if (loc === undefined) return readCounterSamplesByRows(db, locationId, fromUtcMs, toUtcMs);
+  const p = st.packed.get(loc, fromUtcMs - MAX_SAMPLE_DURATION_MS, toUtcMs, fromUtcMs) as Packed;
+  const n = p.n;
+  const start = JSON.parse(p.s) as number[];
+  const dur = JSON.parse(p.d) as number[];
+  const counterRow = JSON.parse(p.c) as number[];
+  for (let j = 1; j < n; j++) {
+    const a = start[j - 1]!;
+    const b = start[j]!;
+    if (
+      b < a ||
+      (b === a &&
+        (counterRow[j]! < counterRow[j - 1]! ||
+          (counterRow[j] === counterRow[j - 1] && dur[j]! <= dur[j - 1]!)))
+    )
+      return readCounterSamplesByRows(db, locationId, fromUtcMs, toUtcMs);
+  }
+  const setRow = JSON.parse(p.cs) as number[];
+  const sets = new Sets(st);
+  for (let j = 0; j < n; j++) sets.index(setRow[j]!);
+  const out = emptySamples(locationId, n, sets);
+  const vol = JSON.parse(p.v) as number[];
+  const flags = JSON.parse(p.f) as number[];
+  const room = JSON.parse(p.r) as number[];
+  const imp = JSON.parse(p.i) as number[];
+  const counters = new Counters(st, out.counterIds);
+  const bytes = n > 0 ? Buffer.from(p.x ?? '', 'hex') : Buffer.alloc(0);
+  const countBytes = new Uint8Array(out.counts.buffer);
+  const w = out.width;
+  let off = 0;
+  for (let j = 0; j < n; j++) {
+    out.startMs[j] = start[j]!;
+    out.endMs[j] = start[j]! + dur[j]!;
+    out.volumeM3[j] = vol[j]!;
+    out.counter[j] = counters.index(counterRow[j]!);
+    const si = sets.index(setRow[j]!);
+    out.channelSet[j] = si;
+    const k = sets.list[si]!.lowerM.length;
+    countBytes.set(bytes.subarray(off, off + 8 * k), j * w * 8);
+    off += 8 * k;
+    for (let c = k; c < w; c++) out.counts[j * w + c] = Number.NaN;
+    out.flags[j] = flags[j]!;
+    out.roomState[j] = room[j]!;
+    out.importId[j] = imp[j]!;
+  }
+  if (off !== bytes.length)
+    throw new Error(`counter samples at ${locationId}: stored counts do not match their channel sets`);
+  return out;
+}
+
+/** Channel sets met in a read, by row id → index. */
+class Sets {
+  readonly list: ChannelSet[] = [];
+  readonly byId = new Map<number, number>();
+  width = 0;
+  constructor(private readonly st: Statements) {}
+  index(id: number): number {
+    let i = this.byId.get(id);
+    if (i === undefined) {
+      const row = this.st.set.get(id) as { id: number; mode: ChannelSet['mode']; sizes: string };
+      const sizes = JSON.parse(row.sizes) as [number, number | null][];
+      i = this.list.length;
+      this.byId.set(id, i);
+      this.list.push({
+        id: row.id,
+        mode: row.mode,
+        lowerM: sizes.map((x) => x[0]),
+        upperM: sizes.map((x) => x[1]),
+      });
+      this.width = Math.max(this.width, sizes.length);
+    }
+    return i;
+  }
+}
+
+/** Counter ids met in a read, by row id → index into `ids`. */
+class Counters {
+  readonly byId = new Map<number, number>();
+  constructor(
+    private readonly st: Statements,
+    readonly ids: string[],
+  ) {}
+  index(id: number): number {
+    let i = this.byId.get(id);
+    if (i === undefined) {
+      i = this.ids.length;
+      this.byId.set(id, i);
+      this.ids.push(this.st.counter.get(id) as string);
+    }
+    return i;
+  }
+}
+
+function emptySamples(locationId: string, n: number, sets: Sets): CounterSamples {
+  if (!LITTLE_ENDIAN) throw new Error('readCounterSamples needs a little-endian platform');
+  const width = sets.width;
+  return {
+    locationId,
+    n,
+    startMs: new Float64Array(n),
+    endMs: new Float64Array(n),
+    volumeM3: new Float64Array(n),
+    counter: new Uint16Array(n),
+    counterIds: [],
+    channelSet: new Uint16Array(n),
+    channelSets: sets.list,
+    width,
+    counts: new Float64Array(n * width),
+    flags: new Uint32Array(n),
+    roomState: new Uint8Array(n),
+    importId: new Int32Array(n),
+  };
+}
+
+/** The same as readCounterSamples, one JS row per sample (the reference path; also its fallback). */
+export function readCounterSamplesByRows(
+  db: Db,
+  locationId: string,
+  fromUtcMs: number,
+  toUtcMs: number,
+): CounterSamples {
+  const st = statements(db);
+  const loc = st.location.get(locationId) as number | undefined;
+  const all =
     loc === undefined ? [] : st.range.raw(true).all(loc, fromUtcMs - MAX_SAMPLE_DURATION_MS, toUtcMs);
   // Keep the samples that reach into the range (those that started up to a day before it may).
-  let n = 0;
-  for (const r of rows) if ((r[0] as number) + (r[1] as number) > fromUtcMs) n++;
+  const kept = all.filter((r) => (r[0] as number) + (r[1] as number) > fromUtcMs);
+  const n = kept.length;
   const setIndex = new Map<number, number>();
   const channelSets: ChannelSet[] = [];
   const counterIndex = new Map<number, number>();
   const counterIds: string[] = [];
   let width = 0;
-  for (const r of rows) {
+  for (const r of kept) {
     const sid = r[4] as number;
     if (!setIndex.has(sid)) {
       const row = st.set.get(sid) as { id: number; mode: ChannelSet['mode']; sizes: string };
@@ -129,10 +282,9 @@ export function readCounterSamples(
   if (!LITTLE_ENDIAN) throw new Error('readCounterSamples needs a little-endian platform');
   const countBytes = new Uint8Array(out.counts.buffer);
   let i = 0;
-  for (const r of rows) {
+  for (const r of kept) {
     const start = r[0] as number;
     const dur = r[1] as number;
-    if (start + dur <= fromUtcMs) continue;
     out.startMs[i] = start;
     out.endMs[i] = start + dur;
     out.volumeM3[i] = r[2] as number;

@@ -282,11 +282,14 @@ export const COUNTER_COLUMNS: readonly ColumnSpec[] = [
   },
 ];
 
+/** The status of a sample without problems (shared: the hot path allocates nothing for it). */
+const NO_STATUS: string[] = [];
+
 function statusCell(): Cell<string[]> {
   const list = enumListCell(STATUS_VALUES);
   const text = `must be ok or values from ${STATUS_VALUES.join(', ')} separated by |`;
   const split = (s: string): string[] | typeof CELL_FAIL => {
-    if (s.trim().toLowerCase() === 'ok') return [];
+    if (s === 'ok' || s.toLowerCase() === 'ok') return NO_STATUS;
     const v = list.fast!(s);
     return v === CELL_FAIL || v.length === 0 ? CELL_FAIL : v;
   };
@@ -588,8 +591,10 @@ export const counterSamples: ImportKind = {
     const locCache = new Map<string, number | null>();
     const counterCache = new Map<string, number>();
     const insert = db.prepare(
-      `INSERT OR IGNORE INTO counter_samples (location, start_ms, counter, duration_ms, volume_m3, channel_set, counts,
-         flags, room_state, import_id, line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+      // ON CONFLICT on the key only (OR IGNORE would also swallow NOT NULL and CHECK failures).
+      `INSERT INTO counter_samples (location, start_ms, counter, duration_ms, volume_m3, channel_set, counts,
+         flags, room_state, import_id, line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
+       ON CONFLICT (location, start_ms, counter, duration_ms) DO NOTHING`,
     );
     const existing = db.prepare(
       'SELECT import_id, counts, channel_set FROM counter_samples WHERE location = ? AND start_ms = ? AND counter = ? AND duration_ms = ?',
@@ -603,7 +608,8 @@ export const counterSamples: ImportKind = {
     );
     const countsBuf = Buffer.alloc(8 * k);
     const counts = new Float64Array(countsBuf.buffer, countsBuf.byteOffset, k);
-    const series = new Map<string, Series>();
+    // Series by location key × 2^20 + counter key (both small integer row ids).
+    const series = new Map<number, Series & { loc: number; counter: number }>();
     const tally = {
       fault: 0,
       overload: 0,
@@ -619,10 +625,13 @@ export const counterSamples: ImportKind = {
     const zeroRunDetails: string[] = [];
     let unitSuspectExample = '';
 
-    const seriesOf = (key: string): Series => {
+    const seriesOf = (loc: number, counter: number): Series => {
+      const key = loc * 1048576 + counter;
       let s = series.get(key);
       if (!s) {
         s = {
+          loc,
+          counter,
           lastStart: Number.NEGATIVE_INFINITY,
           warm: [],
           typical: null,
@@ -778,8 +787,7 @@ export const counterSamples: ImportKind = {
         }
 
         // Flags from the series (read only until the row is known to be stored).
-        const key = `${loc}:${counter}`;
-        const s = seriesOf(key);
+        const s = seriesOf(loc, counter);
         const dt = start - s.lastStart;
         if (Number.isFinite(dt) && dt < 0) flags |= SAMPLE_FLAGS.timeBackwards;
         if (s.typical !== null && dt > QUALITY.gapFactor * s.typical) flags |= SAMPLE_FLAGS.gapBefore;
@@ -873,8 +881,8 @@ export const counterSamples: ImportKind = {
         let gaps = 0;
         let longest = 0;
         let backwards = 0;
-        for (const [key, s] of series) {
-          const [loc, counter] = key.split(':').map(Number) as [number, number];
+        for (const s of series.values()) {
+          const { loc, counter } = s;
           if (s.typical === null) settleWarmup(s, loc, counter);
           closeZeroRun(s);
           gaps += s.gaps;
