@@ -88,7 +88,9 @@ function build() {
     const id = `L${i}`;
     const rng = createRng(100 + i);
     const noise = Float64Array.from({ length: DAYS * 24 * 60 }, () => 0.5 + rng.uniform());
-    counters[id] = counterSeries(id, T0, T0 + DAYS * 24 * H, CH, (j) => ISO5.map((v) => v * 0.01 * noise[j]!));
+    counters[id] = counterSeries(id, T0, T0 + DAYS * 24 * H, CH, (j) =>
+      ISO5.map((v) => v * 0.01 * noise[j]!),
+    );
     locations[id] = location(id, { levels: { atDiameterM: 0.5e-6, alertPerM3: 1000, actionPerM3: 1e6 } });
   }
   const data = line({
@@ -108,8 +110,21 @@ function build() {
   for (let i = 0; i < PAIRS; i++) {
     const start = T0 + 10 * 24 * H + i * 0.2 * H;
     const w = (id: string, seed: number) =>
-      wafer(id, scan(`S-${id}`, start - 0.5 * H, ...Object.values(particles(seed)) as [number[], number[], number[]]), ledger(start, i));
-    pairs.push(pair(`P${i}`, w(`W${i}T`, 2 * i + 1), w(`W${i}B`, 2 * i + 2), { bondTimeMs: start + 12.4 * H, bonderToolId: null }));
+      wafer(
+        id,
+        scan(
+          `S-${id}`,
+          start - 0.5 * H,
+          ...(Object.values(particles(seed)) as [number[], number[], number[]]),
+        ),
+        ledger(start, i),
+      );
+    pairs.push(
+      pair(`P${i}`, w(`W${i}T`, 2 * i + 1), w(`W${i}B`, 2 * i + 2), {
+        bondTimeMs: start + 12.4 * H,
+        bonderToolId: null,
+      }),
+    );
   }
   return { data, pairs };
 }
@@ -127,7 +142,9 @@ export async function run(): Promise<void> {
     const { data, pairs } = build();
     db.transaction(() => seedLine(db, data))();
     seedPairs(db, pairs);
-    console.log(`seeded ${PAIRS} pairs × 2 wafers × ${PARTICLES} particles, ${LOCATIONS} locations × ${DAYS} d of 1-min samples in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    console.log(
+      `seeded ${PAIRS} pairs × 2 wafers × ${PARTICLES} particles, ${LOCATIONS} locations × ${DAYS} d of 1-min samples in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
+    );
     const asOfMs = T0 + 12 * 24 * H;
     // The rows the assessment reads: every scan of the lot, and each location's samples over its exposure windows.
     const windows = new Map<string, [number, number]>();
@@ -136,7 +153,10 @@ export async function run(): Promise<void> {
         for (const s of w.ledger)
           if (s.locationId && (s.kind === 'wait' || s.kind === 'transfer')) {
             const x = windows.get(s.locationId);
-            windows.set(s.locationId, x ? [Math.min(x[0], s.startMs), Math.max(x[1], s.endMs!)] : [s.startMs, s.endMs!]);
+            windows.set(
+              s.locationId,
+              x ? [Math.min(x[0], s.startMs), Math.max(x[1], s.endMs!)] : [s.startMs, s.endMs!],
+            );
           }
     const scanIds = pairs.flatMap((p) => [p.top.latestScan!.scanId, p.bottom.latestScan!.scanId]);
     let sink = 0;
@@ -170,8 +190,12 @@ export async function run(): Promise<void> {
     const pf = p50(floors);
     const pa = p50(times);
     console.log(`floor (read the same particle and counter rows): p50 ${pf.toFixed(1)} ms`);
-    console.log(`assessLotFromDb (${PAIRS} pairs, 400 draws):     p50 ${pa.toFixed(1)} ms  → ${(pa / pf).toFixed(1)} × floor; call ${call}`);
-    console.log(`targets: p50 < 300 ms ${pa < 300 ? 'met' : 'NOT met'}; ≤ 10 × floor ${pa <= 10 * pf ? 'met' : 'NOT met'}  (checksum ${sink.toExponential(3)})`);
+    console.log(
+      `assessLotFromDb (${PAIRS} pairs, 400 draws):     p50 ${pa.toFixed(1)} ms  → ${(pa / pf).toFixed(1)} × floor; call ${call}`,
+    );
+    console.log(
+      `targets: p50 < 300 ms ${pa < 300 ? 'met' : 'NOT met'}; ≤ 10 × floor ${pa <= 10 * pf ? 'met' : 'NOT met'}  (checksum ${sink.toExponential(3)})`,
+    );
   } finally {
     db.close();
     rmSync(dir, { recursive: true, force: true });

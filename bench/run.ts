@@ -2,9 +2,13 @@
  * `npm run bench`: runs every benchmark in bench/ in turn (each prints its own figures, measured
  * against a baseline in the same run). Pass names to run only some: `npm run bench -- import`.
  */
+import { run as assessBench } from './assess.ts';
 import { run as importBench } from './import.ts';
 
-const BENCHES: { name: string; run: () => Promise<void> }[] = [{ name: 'import', run: importBench }];
+const BENCHES: { name: string; run: () => Promise<void> }[] = [
+  { name: 'import', run: importBench },
+  { name: 'assess', run: assessBench },
+];
 
 const only = process.argv.slice(2).filter((a) => !a.startsWith('-'));
 for (const b of BENCHES) {

@@ -97,8 +97,9 @@ export function tailBins(
  * - dies no detected particle reaches share one p = 1 − q: their count is Binomial(n₁, p), drawn as
  *   Poisson(n₁p) when p ≤ 0.01 (total-variation error ≤ p, Barbour & Hall 1984) or as a rounded
  *   normal when n₁p(1 − p) ≥ 9 (the usual rule of thumb for the normal approximation);
- * - the dies that detected particles reach: a rounded normal with their mean and variance when
- *   that variance is ≥ 9, else one Bernoulli draw per die.
+ * - the dies that detected particles reach: Poisson(Σp) when every p ≤ 0.01, the complement as
+ *   Poisson(Σ(1 − p)) when every p ≥ 0.99 (the same bound, Barbour & Hall 1984), a rounded normal
+ *   with their mean and variance when that variance is ≥ 9, else one Bernoulli draw per die.
  */
 function drawKills(
   rng: Rng,
@@ -107,6 +108,8 @@ function drawKills(
   hitS: Float64Array,
   sumS: number,
   sumS2: number,
+  minS: number,
+  maxS: number,
   nDies: number,
 ): number {
   let k = 0;
@@ -119,19 +122,25 @@ function drawKills(
   }
   if (hitS.length > 0) {
     // Σ p_d = H − qΣS and Σ p_d(1 − p_d) = qΣS − q²ΣS², from sums kept once per scenario.
-    const mu = hitS.length - q * sumS;
+    const h = hitS.length;
+    const mu = h - q * sumS;
     const v = q * sumS - q * q * sumS2;
-    if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), hitS.length);
-    else for (let i = 0; i < hitS.length; i++) if (rng.nextUint32() < (1 - hitS[i]! * q) * 4294967296) k++;
+    const pMin = 1 - q * maxS; // smallest kill probability among these dies
+    const pMax = 1 - q * minS;
+    if (pMax <= 0.01) k += Math.min(rng.poisson(mu), h);
+    else if (pMin >= 0.99) k += h - Math.min(rng.poisson(h - mu), h);
+    else if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), h);
+    else for (let i = 0; i < h; i++) if (rng.nextUint32() < (1 - hitS[i]! * q) * 4294967296) k++;
   }
   return Math.min(k, nDies);
 }
 
 /**
  * Unbonded area exponent of one draw, Σ (drawn disc areas) / A_b, as a compound Poisson sum:
- * entries with an expected count ≥ 50 contribute through a normal with the compound mean Σμa and
- * variance Σμa² (many discs: the central limit applies); the others are drawn exactly — their total
- * count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means.
+ * entries with an expected count ≥ 20 contribute through a normal with the compound mean Σμa and
+ * variance Σμa² (many discs: the central limit applies); entries whose expected area is below 10⁻⁶
+ * of the total add their mean (their noise cannot move the total); the others are drawn exactly —
+ * their total count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means.
  */
 function drawExponent(
   rng: Rng,
@@ -144,6 +153,9 @@ function drawExponent(
   let bigMean = 0;
   let bigVar = 0;
   let smallMu = 0;
+  let totalMean = 0;
+  for (let i = 0; i < m; i++) totalMean += mu[i]! * area[i]!;
+  const negligible = 1e-6 * totalMean;
   for (let i = 0; i < m; i++) {
     const u = mu[i]!;
     if (!(u > 0)) {
@@ -151,7 +163,12 @@ function drawExponent(
       continue;
     }
     const a = area[i]!;
-    if (u >= 50) {
+    if (u * a < negligible) {
+      bigMean += u * a;
+      cdf[i] = smallMu;
+      continue;
+    }
+    if (u >= 20) {
       bigMean += u * a;
       bigVar += u * a * a;
     } else smallMu += u;
@@ -243,9 +260,13 @@ export function simulate(args: {
   const hitS = Float64Array.from(hit);
   let sumS = 0;
   let sumS2 = 0;
+  let minS = 1;
+  let maxS = 0;
   for (const x of hit) {
     sumS += x;
     sumS2 += x * x;
+    if (x < minS) minS = x;
+    if (x > maxS) maxS = x;
   }
   const voids = new Float64Array(nDraws);
   const unb = new Float64Array(nDraws);
@@ -296,8 +317,9 @@ export function simulate(args: {
     unb[t] = -Math.expm1(-drawExponent(rng, mu, area, 2 * SPECTRUM_BIN_COUNT, ab, cdf));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
-      kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, nDies - certain);
-      kNB[t] = certain + drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, nDies - certain);
+      kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);
+      kNB[t] =
+        certain + drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);
     }
   }
   return { voids, unbondedFraction: unb, killsPoisson: kP, killsNB: kNB };

@@ -189,7 +189,7 @@ function flattenDetected(
     flat.diameterM.set(d.diameterM, o);
     const ix = sizeIndexOf(d.diameterM);
     flat.bin.set(ix.bin, o);
-    for (let j = 0; j < d.diameterM.length; j++) flat.rM[o + j] = physics.radiusAt(d.diameterM[j]!);
+    physics.radiiInto(ix, flat.rM, o);
     flat.source.fill(i, o, o + d.survival.length);
     o += d.survival.length;
   });

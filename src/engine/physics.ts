@@ -33,7 +33,7 @@ import type { VoidPhysics } from './evaluate.ts';
 import { buildDieGrid, type DieGridIndex } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
-import { binOf, interpLogLog, sizeIndexOf, sizeTable } from './tables.ts';
+import { binOf, interpLogLog, type SizeIndex, sizeIndexOf, sizeTable } from './tables.ts';
 import type {
   AssessConfig,
   CleanInput,
@@ -44,6 +44,8 @@ import type {
 } from './types.ts';
 
 export interface ProductPhysics extends PropagationPhysics, VoidPhysics {
+  /** Nominal void radii of particles with a cached size index, written into out from offset. */
+  radiiInto(ix: SizeIndex, out: Float64Array, offset: number): void;
   radiiNominal: Float64Array;
   reportableNominalM: number;
   gridPhysics: GridPhysics;
@@ -159,6 +161,7 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
   const adderCache = new Map<string, Spectrum>();
   const nominalF = cfg.smallGapFactor;
   const radiusTable = sizeTable((d) => radiusFor(d, nominalF));
+  const lnRadius = radiusTable.map(Math.log);
 
   const level = (l: { countAbove: number; atDiameterM: number; slope: number; fromM: number | null }) =>
     l.countAbove > 0
@@ -195,6 +198,14 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     scanAreaM2: (ee) => Math.PI * (radiusW - ee) ** 2,
     binRadii,
     radiusAt: (d) => interpLogLog(radiusTable, d),
+    radiiInto(ix, out, offset) {
+      // log–log interpolation from the cached cells: R = exp(ln R_i + w·(ln R_i+1 − ln R_i))
+      const { cell, weight } = ix;
+      for (let j = 0; j < cell.length; j++) {
+        const i = cell[j]!;
+        out[offset + j] = Math.exp(lnRadius[i]! + (lnRadius[i + 1]! - lnRadius[i]!) * weight[j]!);
+      }
+    },
     reportableParticleM,
     criticalArea: (r) => (dieGrid ? criticalAreaRectangle(critW, critH, r) : 0),
     poissonYield: (m) => poissonYield(m),
