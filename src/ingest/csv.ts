@@ -1,7 +1,7 @@
 /**
  * Streaming CSV reading on papaparse's parser, in constant memory, with 1-based physical line numbers.
  *
- * The file is read synchronously in chunks (default 1 MiB) so that the whole import can run inside
+ * The file is read synchronously in chunks (default 64 KiB) so that the whole import can run inside
  * one better-sqlite3 transaction (which cannot span an `await`). Each chunk is decoded as UTF-8
  * (fatal: invalid bytes are an error, never replacement characters), the unfinished last record is
  * carried into the next chunk (papaparse's own `ignoreLastRow` mechanism), and every record is
@@ -91,6 +91,13 @@ export interface CsvReaderOptions {
 const BOM = '\uFEFF';
 
 /**
+ * Bytes read at a time. Small enough that a chunk's records (strings, arrays, parsed rows) die in V8's
+ * young generation instead of being promoted: measured with bench/import.ts, 64 KiB read a 1 M-row file
+ * ~8 % faster and with ~90 MB less peak RSS than 1 MiB (16–128 KiB were within noise of each other).
+ */
+export const DEFAULT_CHUNK_BYTES = 64 * 1024;
+
+/**
  * Reads a CSV source: first `readPreamble()` (metadata lines and the header), then `nextBatch()`
  * until it returns null. Always `close()` (also on error).
  */
@@ -121,7 +128,7 @@ export class CsvReader {
   constructor(source: ByteSource, opts: CsvReaderOptions = {}) {
     this.source = source;
     this.size = source.size;
-    this.buf = Buffer.allocUnsafe(opts.chunkBytes ?? 1 << 20);
+    this.buf = Buffer.allocUnsafe(opts.chunkBytes ?? DEFAULT_CHUNK_BYTES);
     this.onProgress = opts.onProgress;
     this.declared = opts.delimiter ?? null;
   }

@@ -9,7 +9,7 @@
  *   COMMIT when the file is accepted; ROLLBACK otherwise (a rejected file leaves every table as it was).
  *
  * The write phase is synchronous (better-sqlite3 transactions cannot span an `await`), reading the
- * file in 1 MiB chunks: memory stays constant, and no other statement on the same connection can
+ * file in 64 KiB chunks: memory stays constant, and no other statement on the same connection can
  * slip into the transaction. A very large upload on the web server therefore holds the event loop
  * while it is written; run such imports in a worker thread with its own connection if that matters.
  */

@@ -99,7 +99,7 @@ export interface ImportOptions {
   displayName?: string;
   /** Store the valid rows of a file with invalid ones, listing the rest (status 'partial'). Still atomic. */
   acceptValidRows?: boolean;
-  /** Called after each chunk read (about every 1 MiB) and once at the end. */
+  /** Called after each chunk read (every 64 KiB) and once at the end. */
   onProgress?: (p: ImportProgress) => void;
   /** Most issues listed in the report (default 10 000); the rest are counted. */
   maxIssues?: number;
@@ -261,5 +261,12 @@ export interface ConfigKindHandler {
     text: string,
   ) =>
     | { issues: KindIssue[] }
-    | { rowsRead: number; rowsStored: number; duplicates: number; updated: number; flags: ImportFlag[]; notes: string[] };
+    | {
+        rowsRead: number;
+        rowsStored: number;
+        duplicates: number;
+        updated: number;
+        flags: ImportFlag[];
+        notes: string[];
+      };
 }
