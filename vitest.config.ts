@@ -9,7 +9,12 @@ export default defineConfig({
         extends: true,
         test: {
           name: 'unit',
-          include: ['test/unit/**/*.test.ts', 'test/unit/**/*.test.tsx', 'test/integration/**/*.test.ts', 'test/integration/**/*.test.tsx'],
+          include: [
+            'test/unit/**/*.test.ts',
+            'test/unit/**/*.test.tsx',
+            'test/integration/**/*.test.ts',
+            'test/integration/**/*.test.tsx',
+          ],
           environment: 'node',
           testTimeout: 30_000,
         },

@@ -64,15 +64,16 @@ export function requireNumber(
   unit: string,
   range: Range = {},
 ): number {
-  const allowed = describe(range, unit);
-  if (typeof value !== 'number' || !Number.isFinite(value))
-    throw new ModelInputError(fn, param, unit, allowed, value);
-  if (range.integer && !Number.isInteger(value)) throw new ModelInputError(fn, param, unit, allowed, value);
-  if (range.min !== undefined && (range.minExclusive ? value <= range.min : value < range.min))
-    throw new ModelInputError(fn, param, unit, allowed, value);
-  if (range.max !== undefined && (range.maxExclusive ? value >= range.max : value > range.max))
-    throw new ModelInputError(fn, param, unit, allowed, value);
-  return value;
+  // The range text is built only when the check fails: this runs in the engine's inner loops.
+  if (
+    typeof value === 'number' &&
+    Number.isFinite(value) &&
+    !(range.integer && !Number.isInteger(value)) &&
+    !(range.min !== undefined && (range.minExclusive ? value <= range.min : value < range.min)) &&
+    !(range.max !== undefined && (range.maxExclusive ? value >= range.max : value > range.max))
+  )
+    return value;
+  throw new ModelInputError(fn, param, unit, describe(range, unit), value);
 }
 
 /** A finite number > 0. */
