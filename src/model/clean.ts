@@ -5,7 +5,7 @@
  * Particle removal efficiency PRE(d) = 1 − (after / before) for matched particles. Cleans remove
  * large particles well and small ones poorly: for latex spheres removal exceeds 97 % at ≥ 0.3 µm
  * and falls at smaller sizes (Rooney, Pui & Grant 1990). The shape of the fall is not prescribed
- * by any standard; voidcast's choice is a logistic curve in log d (docs/models-part-b.md):
+ * by any standard; voidcast's choice is a logistic curve in log d (docs/models.md):
  *
  *   PRE(d) = E_max / (1 + (d50/d)^k)  =  E_max · σ(k · ln(d/d50)),   σ(u) = 1/(1 + e^(−u)),
  *

@@ -13,7 +13,7 @@
  * piecewise power law over the part of the bin it covers, so the counts between two channels are
  * conserved exactly: spectrum total = N(≥ d_0) (plus whatever is extrapolated below d_0).
  *
- * Choices voidcast makes here (documented in docs/models-part-a.md):
+ * Choices voidcast makes here (documented in docs/models.md):
  *  - Above the last channel: the open channel's N_last is spread from d_last to ceilingM
  *    (default 100 µm, the top of the grid) as a power law of slope aboveSlope, truncated at
  *    ceilingM and renormalised so that all N_last particles stay in the spectrum. Default slope:

@@ -14,7 +14,7 @@
  * D_eff = D₁D₂/(D₁ + D₂); against a rigid partner D_eff is the flexible plate's D.
  *
  * Below the crossover (R < 2t) the void no longer depends on thickness and R ∝ h². voidcast's
- * small-gap branch is its own modelling choice, documented in docs/models-part-b.md and at
+ * small-gap branch is its own modelling choice, documented in docs/models.md and at
  * `voidRadius`.
  */
 import { ModelInputError, requireNumber, requireOneOf, requirePositive } from './errors.ts';
