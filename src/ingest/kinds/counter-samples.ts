@@ -792,7 +792,7 @@ export const counterSamples: ImportKind = {
         if (Number.isFinite(dt) && dt < 0) flags |= SAMPLE_FLAGS.timeBackwards;
         if (s.typical !== null && dt > QUALITY.gapFactor * s.typical) flags |= SAMPLE_FLAGS.gapBefore;
         const zero = total === 0;
-        if (zero && s.zero && s.zero.flagged) flags |= SAMPLE_FLAGS.zeroRun;
+        if (zero && s.zero?.flagged) flags |= SAMPLE_FLAGS.zeroRun;
         const repeatable = !zero && total >= QUALITY.repeatMinTotal;
         const repeating = repeatable && s.repeat !== null && sameCounts(s.repeat.counts, counts);
         if (repeating && s.repeat!.n + 1 >= QUALITY.repeatRun) flags |= SAMPLE_FLAGS.sentinel;

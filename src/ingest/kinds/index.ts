@@ -4,7 +4,6 @@
  */
 import type { ImportKind, ImportKindName } from '../types.ts';
 import { counterSamples } from './counter-samples.ts';
-// — kinds of the ingest core above; further kinds below, one import line each —
 import { ledger } from './ledger.ts';
 import { locations } from './locations.ts';
 import { pairs } from './pairs.ts';
