@@ -364,6 +364,8 @@ export const scans: ImportKind = {
     const lenShown = (u: string) => (u === 'um' ? 'µm' : 'mm');
     const convText = conventionText(conv);
     const out = [0, 0];
+    const indexOf = new Map(ctx.header.filter((h) => h.spec).map((h) => [h.spec!.name, h.index]));
+    const cellOf = (cells: readonly string[], name: string) => (cells[indexOf.get(name) ?? -1] ?? '').trim();
     const builds = new Map<string, ScanBuild>();
     const order: ScanBuild[] = [];
 
@@ -418,7 +420,12 @@ export const scans: ImportKind = {
       order.push(single);
     }
 
-    const addDefect = (b: ScanBuild, row: ParsedRow, line: number): KindIssue[] | undefined => {
+    const addDefect = (
+      b: ScanBuild,
+      row: ParsedRow,
+      line: number,
+      cells: readonly string[],
+    ): KindIssue[] | undefined => {
       const xv = row[xCol.name] as number | undefined;
       const yv = row[yCol.name] as number | undefined;
       const sv = row[sizeCol.name] as number | undefined;
@@ -443,7 +450,7 @@ export const scans: ImportKind = {
           {
             line,
             column: present.get(xCol.name)!,
-            value: String(xv),
+            value: cellOf(cells, xCol.name),
             rule: `the defect at (${fmt(xv!)}, ${fmt(yv!)}) ${lenShown(xCol.unit)} lies outside the wafer: ${fmt(r * 1e3)} mm from the centre, the radius is ${fmt(radiusM * 1e3)} mm (check the coordinate convention and units)`,
           },
         ];
@@ -454,7 +461,7 @@ export const scans: ImportKind = {
           {
             line,
             column: present.get(sizeCol.name)!,
-            value: String(sv),
+            value: cellOf(cells, sizeCol.name),
             rule: `${fmt(sv!)} ${sizeShown} is below the scan's detection threshold of ${fmt(b.thresholdNm)} nm (a scanner reports nothing below its threshold: check the threshold or the size unit)`,
           },
         ];
@@ -481,7 +488,7 @@ export const scans: ImportKind = {
           rowIssues.push({
             line,
             column: present.get(col)!,
-            value: String(row[col]),
+            value: cellOf(cells, col),
             rule: 'a scan row carries no defect fields (put each defect in a defect row after it)',
           });
       const f: Record<string, string | undefined> = {};
@@ -524,7 +531,7 @@ export const scans: ImportKind = {
 
     return {
       row(row, line, cells) {
-        if (!recordLayout) return addDefect(single!, row, line) ?? 'stored';
+        if (!recordLayout) return addDefect(single!, row, line, cells) ?? 'stored';
         const rec = row.record as 'scan' | 'defect' | undefined;
         if (rec === undefined)
           return [{ line, column: present.get('record')!, value: '', rule: 'must be scan or defect' }];
@@ -557,11 +564,11 @@ export const scans: ImportKind = {
             {
               line,
               column: present.get(extra)!,
-              value: String(row[extra]),
+              value: cellOf(cells, extra),
               rule: `a defect row carries no scan fields (${extra} belongs in the scan row of "${id}")`,
             },
           ];
-        return addDefect(b, row, line) ?? 'stored';
+        return addDefect(b, row, line, cells) ?? 'stored';
       },
       finish() {
         const fin: KindIssue[] = [];

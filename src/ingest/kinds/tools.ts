@@ -10,7 +10,9 @@
  *   small sizes in Rooney, Pui & Grant 1990):
  *       PRE(d) = E_max / (1 + exp(−(log10 d − log10 d50) / w))
  *   with E_max the efficiency at large sizes, d50 the diameter at half of E_max, w the width in
- *   decades of diameter (1/w is the steepness); or as counts per size band before and after the clean
+ *   decades of diameter — or, instead of w, the steepness k of the same curve in ln d
+ *   (PRE = E_max / (1 + (d50/d)^k), src/model/clean.ts), w = 1/(k·ln 10); or as counts per size
+ *   band before and after the clean
  *   on the same wafers, PRE = 1 − after/before in each band (matched-particle practice).
  *
  * A tool in the file replaces what was stored for it (tool level and chambers); a clean replaces the
@@ -98,9 +100,10 @@ const logisticRemoval = obj(
     model: z.literal('logistic-log-d'),
     maxEfficiency: num('', { min: 0, max: 1 }),
     d50Nm: num('nm', { min: 0, minExclusive: true }),
-    widthDecades: num('decades', { min: 0, minExclusive: true, max: 5 }),
+    widthDecades: num('decades', { min: 0, minExclusive: true, max: 5 }).optional(),
+    steepness: num('', { min: 0, minExclusive: true, max: 50 }).optional(),
   },
-  'an object {model: "logistic-log-d", maxEfficiency, d50Nm, widthDecades}',
+  'an object {model: "logistic-log-d", maxEfficiency, d50Nm, widthDecades or steepness}',
 );
 
 const removalBand = obj(
@@ -200,6 +203,14 @@ export const toolsFileSchema = obj(
     if (first !== undefined)
       add(['cleans', i, 'id'], `clean "${c.id}" is given twice (first as cleans[${first}])`);
     else cleanIds.set(c.id, i);
+    if (c.removal.model === 'logistic-log-d') {
+      const r = c.removal;
+      if ((r.widthDecades === undefined) === (r.steepness === undefined))
+        add(
+          ['cleans', i, 'removal'],
+          'give the curve width once: widthDecades (decades of diameter) or steepness (k in ln d), not both or neither',
+        );
+    }
     if (c.removal.model === 'bands') {
       checkBands(c.removal.bands, ['cleans', i, 'removal', 'bands'], add);
       c.removal.bands.forEach((b, j) => {
@@ -278,7 +289,8 @@ export function normaliseTools(f: ToolsFile): ToolsDefinition {
               model: 'logistic-log-d',
               maxEfficiency: r.maxEfficiency,
               halfSizeM: nmToM(r.d50Nm),
-              widthDecades: r.widthDecades,
+              // w = 1/(k·ln 10): the same logistic written in ln d (src/model/clean.ts) or in log10 d.
+              widthDecades: r.widthDecades ?? 1 / (r.steepness! * Math.LN10),
             }
           : {
               model: 'bands',

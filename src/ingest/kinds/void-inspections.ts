@@ -206,9 +206,11 @@ export const voidInspections: ImportKind = {
     const cs: number[] = [];
     let noClass = 0;
     const out = [0, 0];
+    const indexOf = new Map(ctx.header.filter((h) => h.spec).map((h) => [h.spec!.name, h.index]));
+    const cellOf = (cells: readonly string[], name: string) => (cells[indexOf.get(name) ?? -1] ?? '').trim();
     const shown = (u: string) => (u === 'um' ? 'µm' : 'mm');
     return {
-      row(row, line) {
+      row(row, line, cells) {
         const xv = row[xCol.name] as number | undefined;
         const yv = row[yCol.name] as number | undefined;
         const dv = row[dCol.name] as number | undefined;
@@ -228,7 +230,7 @@ export const voidInspections: ImportKind = {
             {
               line,
               column: present.get(xCol.name)!,
-              value: String(xv),
+              value: cellOf(cells, xCol.name),
               rule: `the void at (${fmt(xv!)}, ${fmt(yv!)}) ${shown(xCol.unit)} lies outside the wafer: ${fmt(r * 1e3)} mm from the centre, the radius is ${fmt(radiusM * 1e3)} mm (check the coordinate convention and units)`,
             },
           ];
@@ -238,7 +240,7 @@ export const voidInspections: ImportKind = {
             {
               line,
               column: present.get(dCol.name)!,
-              value: String(dv),
+              value: cellOf(cells, dCol.name),
               rule: `${fmt(dv!)} ${shown(dCol.unit)} is below the inspection's smallest reported void of ${fmt(smallestMm)} mm (check smallest_void_mm or the diameter unit)`,
             },
           ];
