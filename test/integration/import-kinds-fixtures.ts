@@ -23,7 +23,9 @@ export const BASE_FILES: [ImportKindName, string][] = [
   ['ledger', 'ledger-lot.csv'],
 ];
 export const PAIR_FILES: [ImportKindName, string][] = [['pairs', 'pairs-lot.csv']];
-export const INSPECTION_FILES: [ImportKindName, string][] = [['void-inspections', 'void-inspections-pair.csv']];
+export const INSPECTION_FILES: [ImportKindName, string][] = [
+  ['void-inspections', 'void-inspections-pair.csv'],
+];
 
 export function freshDb(): Db {
   const db = openDatabase(':memory:');
@@ -53,7 +55,11 @@ export function snapshot(db: Db): Record<string, unknown[]> {
   for (const t of tables) {
     const rows = db.prepare(`SELECT * FROM "${t}"`).all() as Record<string, unknown>[];
     out[t] = rows
-      .map((r) => JSON.stringify(r, (_k, v) => (v && typeof v === 'object' && v.type === 'Buffer' ? Buffer.from(v.data).toString('hex') : v)))
+      .map((r) =>
+        JSON.stringify(r, (_k, v) =>
+          v && typeof v === 'object' && v.type === 'Buffer' ? Buffer.from(v.data).toString('hex') : v,
+        ),
+      )
       .sort();
   }
   return out;
