@@ -356,7 +356,12 @@ export const scans: ImportKind = {
     const radiusM = shiftDecimal(diameterMm, 3) / 2;
     const edgeM = shiftDecimal(edgeMm, 3);
     const usableM = radiusM - edgeM;
-    const tf = frameTransform(conv as FrameConvention, radiusM);
+    // A lower-left origin is shifted in the file's own decimal units (160000 − 150000 µm is exact), then
+    // the rest of the mapping runs on centred coordinates.
+    const tf = frameTransform({ ...conv, origin: 'centre' }, radiusM);
+    const radiusMm = diameterMm / 2;
+    const shiftX = conv.origin === 'lower-left' ? radiusMm * (xCol.unit === 'um' ? 1000 : 1) : 0;
+    const shiftY = conv.origin === 'lower-left' ? radiusMm * (yCol.unit === 'um' ? 1000 : 1) : 0;
     const xDig = LENGTH_DIGITS[xCol.unit]!;
     const yDig = LENGTH_DIGITS[yCol.unit]!;
     const sizeDig = SIZE_DIGITS[sizeCol.unit]!;
@@ -443,7 +448,7 @@ export const scans: ImportKind = {
             rule: 'must not be empty in a defect row',
           });
       if (miss.length) return miss;
-      tf.apply(shiftDecimal(xv!, xDig), shiftDecimal(yv!, yDig), out);
+      tf.apply(shiftDecimal(xv! - shiftX, xDig), shiftDecimal(yv! - shiftY, yDig), out);
       const r = Math.hypot(out[0]!, out[1]!);
       if (r > radiusM * (1 + REL_EPS)) {
         return [

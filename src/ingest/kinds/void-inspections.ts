@@ -195,7 +195,12 @@ export const voidInspections: ImportKind = {
     )
       return issues.sort((a, b) => a.line - b.line);
 
-    const tf = frameTransform(conv, radiusM);
+    // A lower-left origin is shifted in the file's own decimal units (160000 − 150000 µm is exact), then
+    // the rest of the mapping runs on centred coordinates.
+    const tf = frameTransform({ ...conv, origin: 'centre' }, radiusM);
+    const radiusMm = radiusM * 1e3;
+    const shiftX = conv.origin === 'lower-left' ? radiusMm * (xCol.unit === 'um' ? 1000 : 1) : 0;
+    const shiftY = conv.origin === 'lower-left' ? radiusMm * (yCol.unit === 'um' ? 1000 : 1) : 0;
     const xDig = LENGTH_DIGITS[xCol.unit]!;
     const yDig = LENGTH_DIGITS[yCol.unit]!;
     const dDig = LENGTH_DIGITS[dCol.unit]!;
@@ -223,7 +228,7 @@ export const voidInspections: ImportKind = {
           if (v === undefined)
             miss.push({ line, column: present.get(c)!, value: '', rule: 'must not be empty' });
         if (miss.length) return miss;
-        tf.apply(shiftDecimal(xv!, xDig), shiftDecimal(yv!, yDig), out);
+        tf.apply(shiftDecimal(xv! - shiftX, xDig), shiftDecimal(yv! - shiftY, yDig), out);
         const r = Math.hypot(out[0]!, out[1]!);
         if (r > radiusM * (1 + REL_EPS))
           return [
