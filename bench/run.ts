@@ -4,10 +4,12 @@
  */
 import { run as assessBench } from './assess.ts';
 import { run as importBench } from './import.ts';
+import { run as scansReadBench } from './scans-read.ts';
 
 const BENCHES: { name: string; run: () => Promise<void> }[] = [
   { name: 'import', run: importBench },
   { name: 'assess', run: assessBench },
+  { name: 'scans-read', run: scansReadBench },
 ];
 
 const only = process.argv.slice(2).filter((a) => !a.startsWith('-'));
