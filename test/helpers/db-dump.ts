@@ -20,7 +20,7 @@ export function dumpDatabase(db: Db): Record<string, unknown> {
     const rows = db
       .prepare(`SELECT * FROM "${o.name}" ORDER BY ${cols.join(', ')}`)
       .raw(true)
-      .all();
+      .all() as unknown[][];
     out[o.name] = rows.map((r) => r.map((v) => (Buffer.isBuffer(v) ? `x'${v.toString('hex')}'` : v)));
   }
   return out;
