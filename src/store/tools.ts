@@ -174,20 +174,27 @@ export function findCleanFor(db: Db, toolId: string, recipe: string | null): Sto
 // ——— writer (used by src/ingest/kinds/tools.ts inside the import transaction) ———
 
 export interface ToolWriter {
-  /** Replaces a tool's entries (tool level and chambers) with these; returns true when it existed. */
-  replaceTool: (entries: Omit<StoredTool, 'importId'>[]) => boolean;
-  /** Inserts or replaces a clean; returns true when it existed. */
-  upsertClean: (c: Omit<StoredClean, 'importId'>) => boolean;
+  /**
+   * Replaces a tool's entries (tool level and chambers) with these: 'new', 'updated', or 'same' when
+   * the stored entries are equal (then nothing is written and the earlier import stays recorded).
+   */
+  replaceTool: (entries: Omit<StoredTool, 'importId'>[]) => 'new' | 'updated' | 'same';
+  /** Inserts or replaces a clean: 'new', 'updated', or 'same' (nothing written). */
+  upsertClean: (c: Omit<StoredClean, 'importId'>) => 'new' | 'updated' | 'same';
 }
 
 export function toolWriter(db: Db, importId: number): ToolWriter {
-  const exists = db.prepare('SELECT 1 FROM tools WHERE tool_id = ? LIMIT 1').pluck();
+  const storedOf = db.prepare('SELECT * FROM tools WHERE tool_id = ? ORDER BY chamber');
   const drop = db.prepare('DELETE FROM tools WHERE tool_id = ?');
   const ins = db.prepare(
     `INSERT INTO tools (tool_id, chamber, name, tool_kind, adders_json, adder_uncertainty_factor, import_id)
      VALUES (?, ?, ?, ?, ?, ?, ?)`,
   );
-  const cleanExists = db.prepare('SELECT 1 FROM cleans WHERE id = ?').pluck();
+  const cleanOfId = db.prepare('SELECT * FROM cleans WHERE id = ?');
+  const strip = <T extends { importId: number }>(v: T): Omit<T, 'importId'> => {
+    const { importId: _, ...rest } = v;
+    return rest;
+  };
   const upClean = db.prepare(
     `INSERT INTO cleans (id, name, tool_id, chamber, recipe, curve, max_efficiency, half_size_m, width_decades, bands_json,
        import_id) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
@@ -199,7 +206,11 @@ export function toolWriter(db: Db, importId: number): ToolWriter {
   return {
     replaceTool: (entries) => {
       const id = entries[0]!.toolId;
-      const had = exists.get(id) !== undefined;
+      const old = (storedOf.all(id) as ToolRow[]).map((r) => strip(toolOf(r)));
+      const key = (e: { chamber: string | null }) => e.chamber ?? '';
+      // The order SQLite's ORDER BY chamber gives (binary comparison of the text).
+      const sorted = [...entries].sort((a, b) => (key(a) < key(b) ? -1 : key(a) > key(b) ? 1 : 0));
+      if (old.length > 0 && JSON.stringify(old) === JSON.stringify(sorted)) return 'same';
       drop.run(id);
       for (const e of entries)
         ins.run(
@@ -211,10 +222,11 @@ export function toolWriter(db: Db, importId: number): ToolWriter {
           e.adderUncertaintyFactor,
           importId,
         );
-      return had;
+      return old.length > 0 ? 'updated' : 'new';
     },
     upsertClean: (c) => {
-      const had = cleanExists.get(c.cleanId) !== undefined;
+      const oldRow = cleanOfId.get(c.cleanId) as CleanRow | undefined;
+      if (oldRow && JSON.stringify(strip(cleanOf(oldRow))) === JSON.stringify(c)) return 'same';
       const r = c.removal;
       upClean.run(
         c.cleanId,
@@ -229,7 +241,7 @@ export function toolWriter(db: Db, importId: number): ToolWriter {
         r.model === 'bands' ? JSON.stringify(r.bands) : null,
         importId,
       );
-      return had;
+      return oldRow ? 'updated' : 'new';
     },
   };
 }

@@ -3,7 +3,7 @@
  * internal frame, read back through the store helpers the engine uses, and re-import idempotently.
  * Expected values are hand computations from the files (named beside each check).
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -238,6 +238,52 @@ describe('good files of the six kinds', () => {
         { fromM: 300e-9, toM: 1000e-9, count: 0.05 },
       ],
     });
+  });
+});
+
+describe('re-imports with new bytes', () => {
+  it('tools: the same content in other bytes is all duplicates; a changed tool is one update', async () => {
+    const db = freshDb();
+    await importAll(db, BASE_FILES);
+    const text = readFileSync(good('tools-line.json'), 'utf8');
+    const same = await importFile(db, { kind: 'tools', path: temp('tools-same.json', `${text}\n\n`) });
+    expect([same.status, same.rowsStored, same.duplicates]).toEqual(['imported', 0, 7]);
+    const changed = await importFile(db, {
+      kind: 'tools',
+      path: temp('tools-changed.json', text.replace('"countAbove": 4,', '"countAbove": 6,')),
+    });
+    expect([changed.rowsStored, changed.duplicates]).toEqual([1, 6]);
+    expect(changed.notes).toContain('1 existing entries updated');
+    expect(readToolFor(db, 'CMP-2', null)?.adders).toMatchObject({ countAbove: 6 });
+  });
+
+  it('ledger and pairs flag tools that are not stored', async () => {
+    const db = freshDb();
+    await importAll(db, BASE_FILES);
+    const l = await importFile(db, {
+      kind: 'ledger',
+      path: temp(
+        'ledger-unknown-tool.csv',
+        'lot,wafer,step,step_kind,tool,location,carrier,start,end\nL2403,L2403-07,anneal,process,FURN-9,BOND-BAY,in-tool,2026-03-03T09:00:00Z,2026-03-03T11:00:00Z\n',
+      ),
+    });
+    expect(l.flags).toEqual([
+      {
+        code: 'tool-unknown',
+        count: 1,
+        detail: 'tools not stored (no adders known for their steps): FURN-9',
+      },
+    ]);
+    const p = await importFile(db, {
+      kind: 'pairs',
+      path: temp(
+        'pairs-unknown-bonder.csv',
+        'pair,product,top_wafer,bottom_wafer,flip_axis,bonder\nP-9,HB300-LOGIC,L2403-01,L2403-02,x,BND-9\n',
+      ),
+    });
+    expect(p.flags).toEqual([
+      { code: 'tool-unknown', count: 1, detail: 'bonders not stored (no adders known for them): BND-9' },
+    ]);
   });
 });
 

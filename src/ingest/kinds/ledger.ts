@@ -139,6 +139,7 @@ export const ledger: ImportKind = {
     const keys = new Map<string, number>();
     const spans = new Map<string, { start: number; end: number | null }[]>();
     let noAir = 0;
+    const toolsNamed = new Set<string>();
 
     return {
       row(row, line, cells) {
@@ -239,6 +240,8 @@ export const ledger: ImportKind = {
           ];
         if (out === 'stored') {
           if (locationId === null && (kind === 'wait' || kind === 'transfer')) noAir++;
+          const toolId = row.tool as string | undefined;
+          if (toolId !== undefined) toolsNamed.add(toolId);
           const k = waferId === null ? `lot:${lotId}` : `wafer:${waferId}`;
           const list = spans.get(k) ?? [];
           list.push({ start: startMs, end: endMs });
@@ -268,6 +271,14 @@ export const ledger: ImportKind = {
             code: 'no-location',
             count: noAir,
             detail: `${noAir} wait or transfer steps name no location: the air they saw is unknown`,
+          });
+        const toolKnown = db.prepare('SELECT 1 FROM tools WHERE tool_id = ? LIMIT 1').pluck();
+        const unknownTools = [...toolsNamed].filter((t) => toolKnown.get(t) === undefined).sort();
+        if (unknownTools.length > 0)
+          flags.push({
+            code: 'tool-unknown',
+            count: unknownTools.length,
+            detail: `tools not stored (no adders known for their steps): ${unknownTools.join(', ')}`,
           });
         const notes =
           lots.created.lots + lots.created.wafers > 0

@@ -102,6 +102,8 @@ export const pairs: ImportKind = {
       `INSERT INTO pairs (id, product_id, lot_id, top_wafer_id, bottom_wafer_id, flip_axis, rotation_rad, offset_x_m,
          offset_y_m, bonder_tool_id, planned_bond_ms, import_id, line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
     );
+    const toolKnown = db.prepare('SELECT 1 FROM tools WHERE tool_id = ? LIMIT 1').pluck();
+    const unknownBonders = new Set<string>();
     const pairLines = new Map<string, number>();
     const waferLines = new Map<string, { line: number; pair: string }>();
 
@@ -236,10 +238,22 @@ export const pairs: ImportKind = {
           line,
         );
         setLotProduct.run(productId, rec.lot_id);
+        if (rec.bonder_tool_id !== null && toolKnown.get(rec.bonder_tool_id) === undefined)
+          unknownBonders.add(rec.bonder_tool_id);
         return 'stored';
       },
       finish() {
-        return {};
+        if (unknownBonders.size === 0) return {};
+        const list = [...unknownBonders].sort();
+        return {
+          flags: [
+            {
+              code: 'tool-unknown',
+              count: list.length,
+              detail: `bonders not stored (no adders known for them): ${list.join(', ')}`,
+            },
+          ],
+        };
       },
     };
   },

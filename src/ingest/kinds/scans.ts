@@ -54,7 +54,7 @@ import type {
   ParsedRow,
 } from '../types.ts';
 import { headerFields, shiftDecimal } from './header-fields.ts';
-import { conventionText, type FrameConvention, frameTransform } from './wafer-frame.ts';
+import { conventionText, frameTransform } from './wafer-frame.ts';
 
 /** Relative slack of the radius and threshold comparisons (unit-conversion rounding). */
 const REL_EPS = 1e-12;

@@ -357,8 +357,17 @@ export const tools: ImportKind = {
       if (issues.length > 0) return { issues };
       const w = toolWriter(ctx.db, ctx.importId);
       let updated = 0;
-      for (const entries of def.tools) if (w.replaceTool(entries)) updated++;
-      for (const c of def.cleans) if (w.upsertClean(c)) updated++;
+      let duplicates = 0;
+      for (const entries of def.tools) {
+        const r = w.replaceTool(entries);
+        if (r === 'updated') updated++;
+        else if (r === 'same') duplicates++;
+      }
+      for (const c of def.cleans) {
+        const r = w.upsertClean(c);
+        if (r === 'updated') updated++;
+        else if (r === 'same') duplicates++;
+      }
       const flags: ImportFlag[] = [];
       const noAdders = def.tools.filter((t) => t.every((e) => e.adders === null)).map((t) => t[0]!.toolId);
       if (noAdders.length > 0)
@@ -368,7 +377,7 @@ export const tools: ImportKind = {
           detail: `tools without any adder level (they add nothing known): ${noAdders.join(', ')}`,
         });
       const n = def.tools.length + def.cleans.length;
-      return { rowsRead: n, rowsStored: n, duplicates: 0, updated, flags, notes: [] };
+      return { rowsRead: n, rowsStored: n - duplicates, duplicates, updated, flags, notes: [] };
     },
   },
 };
