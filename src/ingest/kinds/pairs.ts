@@ -143,6 +143,7 @@ export const pairs: ImportKind = {
           ['top', top],
           ['bottom', bottom],
         ] as const) {
+          if (side === 'bottom' && top === bottom) continue;
           const lot = lotOfWafer.get(w) as string | undefined;
           lots[side] = lot;
           if (lot === undefined) {
@@ -154,7 +155,6 @@ export const pairs: ImportKind = {
             });
             continue;
           }
-          if (side === 'bottom' && top === bottom) continue;
           const inFile = waferLines.get(w);
           if (inFile)
             issues.push({
