@@ -11,6 +11,7 @@
  * Issues use `column` for the JSON path (the "column" of a configuration file) and `value` for the
  * value as written (shortened to 80 characters).
  */
+import { createHash } from 'node:crypto';
 import type { z } from 'zod';
 import type { KindIssue } from '../types.ts';
 
@@ -251,4 +252,36 @@ export function validateJson<T>(
   }
   issues.sort((a, b) => a.line - b.line);
   return { ok: false, issues };
+}
+
+/** A configuration file read, validated and normalised. */
+export interface ParsedConfig<T> {
+  source: JsonSource;
+  value: T;
+  /** sha256 (hex) of the normalised value's JSON. */
+  contentSha256: string;
+}
+
+/**
+ * Reads a JSON configuration file (products, tools): JSON syntax errors and schema violations come
+ * back as issues with their line; a valid file is normalised and fingerprinted by its content.
+ */
+export function parseConfigFile<Raw, T>(
+  textIn: string,
+  schema: z.ZodType<Raw>,
+  normalise: (raw: Raw) => T,
+): ParsedConfig<T> | { issues: KindIssue[] } {
+  let source: JsonSource;
+  try {
+    source = parseJsonSource(textIn);
+  } catch (e) {
+    const err = e as { line?: number; rule?: string };
+    if (err.line !== undefined && err.rule !== undefined)
+      return { issues: [{ line: err.line, column: null, value: null, rule: `not valid JSON: ${err.rule}` }] };
+    throw e;
+  }
+  const v = validateJson(source, schema);
+  if (!v.ok) return { issues: v.issues };
+  const value = normalise(v.value);
+  return { source, value, contentSha256: createHash('sha256').update(JSON.stringify(value)).digest('hex') };
 }

@@ -16,7 +16,6 @@
  * - Interface energy: the file must say whether it gives the per-surface energy γ (razor-blade /
  *   Maszara convention) or the work of adhesion W = 2γ; the value is stored with its convention.
  */
-import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { hToS, mmToM, umToM } from '../../model/units.ts';
 import { type ProductDefinition, type StepKind, storeProduct } from '../../store/products.ts';
@@ -31,7 +30,9 @@ import {
   signedMmToM,
   text,
 } from './config-fields.ts';
-import { type JsonSource, parseJsonSource, validateJson } from './json-source.ts';
+import { type ParsedConfig, parseConfigFile } from './json-source.ts';
+
+export type { ParsedConfig } from './json-source.ts';
 
 export const STEP_KINDS = [
   'process',
@@ -301,32 +302,9 @@ export function normaliseProduct(p: ProductFile): ProductDefinition {
   };
 }
 
-export interface ParsedConfig<T> {
-  source: JsonSource;
-  value: T;
-  /** sha256 (hex) of the normalised value's JSON. */
-  contentSha256: string;
-}
-
 /** Parses and validates a products file: the normalised definition, or the issues. */
 export function parseProductFile(textIn: string): ParsedConfig<ProductDefinition> | { issues: KindIssue[] } {
-  let source: JsonSource;
-  try {
-    source = parseJsonSource(textIn);
-  } catch (e) {
-    const err = e as { line?: number; rule?: string };
-    if (err.line !== undefined && err.rule !== undefined)
-      return { issues: [{ line: err.line, column: null, value: null, rule: `not valid JSON: ${err.rule}` }] };
-    throw e;
-  }
-  const v = validateJson(source, productFileSchema);
-  if (!v.ok) return { issues: v.issues };
-  const def = normaliseProduct(v.value);
-  return {
-    source,
-    value: def,
-    contentSha256: createHash('sha256').update(JSON.stringify(def)).digest('hex'),
-  };
+  return parseConfigFile(textIn, productFileSchema, normaliseProduct);
 }
 
 /** The `products` import kind (a configuration kind: one JSON file per product). */

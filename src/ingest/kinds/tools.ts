@@ -18,14 +18,13 @@
  * A tool in the file replaces what was stored for it (tool level and chambers); a clean replaces the
  * stored clean of the same id. The zod schema is the single source of truth of the format.
  */
-import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { nmToM } from '../../model/units.ts';
 import { type AdderLevel, type StoredClean, type StoredTool, toolWriter } from '../../store/tools.ts';
 import type { ImportFlag, ImportKind, KindIssue } from '../types.ts';
 import { formatField, num, obj, oneOf, powerLawToSi, text } from './config-fields.ts';
-import { type JsonSource, jsonIssue, parseJsonSource, validateJson } from './json-source.ts';
-import type { ParsedConfig } from './products.ts';
+import type { ParsedConfig } from './json-source.ts';
+import { jsonIssue, parseConfigFile } from './json-source.ts';
 
 export const TOOL_KINDS = [
   'process',
@@ -312,26 +311,8 @@ export function normaliseTools(f: ToolsFile): ToolsDefinition {
 }
 
 /** Parses and validates a tools file: the normalised definition, or the issues. */
-export function parseToolsFile(
-  textIn: string,
-): (ParsedConfig<ToolsDefinition> & { source: JsonSource }) | { issues: KindIssue[] } {
-  let source: JsonSource;
-  try {
-    source = parseJsonSource(textIn);
-  } catch (e) {
-    const err = e as { line?: number; rule?: string };
-    if (err.line !== undefined && err.rule !== undefined)
-      return { issues: [{ line: err.line, column: null, value: null, rule: `not valid JSON: ${err.rule}` }] };
-    throw e;
-  }
-  const v = validateJson(source, toolsFileSchema);
-  if (!v.ok) return { issues: v.issues };
-  const def = normaliseTools(v.value);
-  return {
-    source,
-    value: def,
-    contentSha256: createHash('sha256').update(JSON.stringify(def)).digest('hex'),
-  };
+export function parseToolsFile(textIn: string): ParsedConfig<ToolsDefinition> | { issues: KindIssue[] } {
+  return parseConfigFile(textIn, toolsFileSchema, normaliseTools);
 }
 
 /** The `tools` import kind (a configuration kind: one JSON file of tools, chambers and cleans). */
