@@ -50,7 +50,6 @@ export function AreasPage(props: {
 }) {
   const all = props.groups.flatMap((g) => g.locations);
   const failing = all.filter((l) => l.pass === false).length;
-  const judged = all.filter((l) => l.pass !== null).length;
   return (
     <section class="vc-areas">
       <h1>Areas</h1>
