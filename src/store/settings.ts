@@ -13,3 +13,14 @@ export function setSetting(db: Db, key: string, value: string): void {
      ON CONFLICT(key) DO UPDATE SET value = excluded.value, updated_at = excluded.updated_at`,
   ).run(key, value, new Date().toISOString());
 }
+
+/** The installation's clock setting: a fixed "now" for assessments (the demo sets it). */
+export const CLOCK_SETTING = 'clock.as_of';
+
+/** The installation's assessment clock in UTC ms, or null when it follows the real time. */
+export function installationClockMs(db: Db): number | null {
+  const v = getSetting(db, CLOCK_SETTING);
+  if (v === undefined || v === '') return null;
+  const t = /^\d+$/.test(v) ? Number(v) : Date.parse(v);
+  return Number.isFinite(t) ? t : null;
+}

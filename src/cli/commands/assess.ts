@@ -8,6 +8,7 @@ import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/fo
 import { assessLotFromDb, assessPairFromDb } from '../../engine/loader.ts';
 import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
 import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
+import { installationClockMs } from '../../store/settings.ts';
 import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
@@ -162,7 +163,8 @@ export const assess: Command = {
   --lot ID     assess every pair of the lot
   --pair ID    assess one pair in full (sources, Paretos, re-clean before/after)
   --json       print the assessment as JSON (the same document as the JSON API)
-  --as-of T    assessment time: ISO 8601 with zone, or UTC ms (default now)
+  --as-of T    assessment time: ISO 8601 with zone, or UTC ms (default: the installation clock
+               setting clock.as_of when set, as the demo does, else now)
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)`,
   async run(argv, io) {
     const { values } = parseOptions(argv, {
@@ -174,12 +176,19 @@ export const assess: Command = {
     });
     if ((values.lot === undefined) === (values.pair === undefined))
       throw new UsageError('give exactly one of --lot or --pair');
-    const asOfMs = parseAsOf(values['as-of'], Date.now());
+    parseAsOf(values['as-of'], 0); // a bad --as-of is a usage error before anything is opened
     const { db, file } = openExisting(values.data, io);
     if (!db) {
       io.err(`voidcast assess: no database at ${file} (import data or start the server first)\n`);
       return EXIT.notFound;
     }
+    // Without --as-of: the installation's clock (settings clock.as_of, set by the demo), else now.
+    const clock = values['as-of'] === undefined ? installationClockMs(db) : null;
+    const asOfMs = parseAsOf(values['as-of'], clock ?? Date.now());
+    if (clock !== null)
+      io.err(
+        `voidcast assess: as of the installation clock ${new Date(clock).toISOString()} (setting clock.as_of; --as-of overrides)\n`,
+      );
     try {
       if (values.pair !== undefined) {
         const a = assessPairFromDb(db, values.pair, { asOfMs, detail: values.json ? 'full' : 'full' });

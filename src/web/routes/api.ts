@@ -6,18 +6,22 @@
  *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
  *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
  *
- * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default now. Errors are JSON
+ * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default the installation
+ * clock (settings clock.as_of), else now. Errors are JSON
  * {error, detail} with 400 (bad request), 404 (unknown id), 409 (inputs changed since the assessment
  * that is being signed); never a stack trace.
  */
 import type { Context, Hono } from 'hono';
 import { assessLotFromDb, assessPairFromDb, listLotsForApi, signOffPairInDb } from '../../engine/loader.ts';
 import type { Call } from '../../engine/types.ts';
+import type { Db } from '../../store/db.ts';
+import { installationClockMs } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
 
-function asOfFrom(c: Context): number | { error: string } {
+/** ?asOf=, else the installation clock (settings clock.as_of), else now. */
+function asOfFrom(c: Context, db: Db): number | { error: string } {
   const v = c.req.query('asOf');
-  if (v === undefined || v === '') return Date.now();
+  if (v === undefined || v === '') return installationClockMs(db) ?? Date.now();
   if (/^\d{10,}$/.test(v)) return Number(v);
   if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(v))
     return { error: 'asOf must be UTC milliseconds or ISO 8601 with its zone' };
@@ -29,7 +33,7 @@ export function register(app: Hono, ctx: AppContext): void {
   app.get('/api/lots', (c) => c.json({ lots: listLotsForApi(ctx.db) }));
 
   app.get('/api/lots/:id/assessment', (c) => {
-    const asOf = asOfFrom(c);
+    const asOf = asOfFrom(c, ctx.db);
     if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
     const detail = c.req.query('detail') === 'full' ? 'full' : 'summary';
     const a = assessLotFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail });
@@ -38,7 +42,7 @@ export function register(app: Hono, ctx: AppContext): void {
   });
 
   app.get('/api/pairs/:id/assessment', (c) => {
-    const asOf = asOfFrom(c);
+    const asOf = asOfFrom(c, ctx.db);
     if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
     const a = assessPairFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail: 'full' });
     if (!a) return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
