@@ -34,14 +34,7 @@ import { buildDieGrid, type DieGridIndex } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
 import { binOf, interpLogLog, type SizeIndex, sizeIndexOf, sizeTable } from './tables.ts';
-import type {
-  AssessConfig,
-  CleanInput,
-  FaceOrientation,
-  ProductInput,
-  StackModel,
-  ToolInput,
-} from './types.ts';
+import type { AssessConfig, CleanInput, FaceOrientation, ProductInput, StackModel } from './types.ts';
 
 export interface ProductPhysics extends PropagationPhysics, VoidPhysics {
   /** Nominal void radii of particles with a cached size index, written into out from offset. */

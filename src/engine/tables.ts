@@ -35,7 +35,7 @@ export function sizeTable(f: (diameterM: number) => number): Float64Array {
 
 function position(d: number): number {
   const u = Math.log10(d / SPECTRUM_MIN_DIAMETER_M) * TABLE_PER_DECADE;
-  return u <= 0 ? 0 : u >= TABLE_POINTS - 1 ? TABLE_POINTS - 1 : u;
+  return u <= 0 ? 0 : Math.min(u, TABLE_POINTS - 1);
 }
 
 /** Interpolates a positive table log–log at diameter d. */
