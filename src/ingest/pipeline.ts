@@ -23,6 +23,7 @@ import { matchHeader } from './header.ts';
 import { importConfigSource } from './kinds/config-import.ts';
 import { getKind } from './kinds/index.ts';
 import { parseMetadata } from './metadata.ts';
+import { startReport } from './report.ts';
 import type {
   Cell,
   CellContext,
@@ -59,12 +60,6 @@ export async function sha256File(path: string): Promise<string> {
 
 export function sha256Text(text: string | Buffer): string {
   return createHash('sha256').update(text).digest('hex');
-}
-
-interface PreviousImport {
-  id: number;
-  file_name: string;
-  imported_at: string;
 }
 
 /**
@@ -108,33 +103,8 @@ class Rejection {
 export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions): ImportReport {
   if (kind.config) return importConfigSource(db, kind, opts);
   const file = opts.displayName;
-  const report: ImportReport = {
-    file,
-    kind: kind.name,
-    sha256: opts.sha256,
-    status: 'rejected',
-    rowsRead: 0,
-    rowsStored: 0,
-    rowsRejected: 0,
-    duplicates: 0,
-    issues: [],
-    flags: [],
-    importId: null,
-    notes: [],
-    dialect: null,
-    bytes: opts.bytes,
-  };
-  const prev = db
-    .prepare('SELECT id, file_name, imported_at FROM imports WHERE kind = ? AND sha256 = ?')
-    .get(kind.name, opts.sha256) as PreviousImport | undefined;
-  if (prev) {
-    report.status = 'unchanged';
-    report.importId = prev.id;
-    report.notes.push(
-      `same content as import #${prev.id} (${prev.file_name}, ${prev.imported_at}); nothing changed`,
-    );
-    return report;
-  }
+  const { report, unchanged } = startReport(db, kind.name, opts);
+  if (unchanged) return report;
   const maxIssues = opts.maxIssues ?? DEFAULT_MAX_ISSUES;
   let unlisted = 0;
   const addIssue = (i: KindIssue) => {

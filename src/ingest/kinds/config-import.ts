@@ -7,6 +7,7 @@
  */
 import type { Db } from '../../store/db.ts';
 import type { ByteSource } from '../csv.ts';
+import { startReport } from '../report.ts';
 import type { CsvDialect, ImportKind, ImportReport, KindIssue } from '../types.ts';
 
 /** Largest configuration file read (they are a few kB; a larger file is not a configuration). */
@@ -42,33 +43,8 @@ export function importConfigSource(db: Db, kind: ImportKind, opts: ConfigSourceO
   const handler = kind.config;
   if (!handler) throw new Error(`import kind ${kind.name} has no configuration handler`);
   const file = opts.displayName;
-  const report: ImportReport = {
-    file,
-    kind: kind.name,
-    sha256: opts.sha256,
-    status: 'rejected',
-    rowsRead: 0,
-    rowsStored: 0,
-    rowsRejected: 0,
-    duplicates: 0,
-    issues: [],
-    flags: [],
-    importId: null,
-    notes: [],
-    dialect: null,
-    bytes: opts.bytes,
-  };
-  const prev = db
-    .prepare('SELECT id, file_name, imported_at FROM imports WHERE kind = ? AND sha256 = ?')
-    .get(kind.name, opts.sha256) as { id: number; file_name: string; imported_at: string } | undefined;
-  if (prev) {
-    report.status = 'unchanged';
-    report.importId = prev.id;
-    report.notes.push(
-      `same content as import #${prev.id} (${prev.file_name}, ${prev.imported_at}); nothing changed`,
-    );
-    return report;
-  }
+  const { report, unchanged } = startReport(db, kind.name, opts);
+  if (unchanged) return report;
   const maxIssues = opts.maxIssues ?? 10_000;
   const reject = (issues: KindIssue[]): ImportReport => {
     for (const i of issues.slice(0, maxIssues)) report.issues.push({ file, ...i });
