@@ -29,7 +29,7 @@ import type {
   LedgerStepInput,
   LineData,
   ProductInput,
-  SourceKind,
+  SourceContribution,
   ToolInput,
   WaferInput,
 } from './types.ts';
@@ -52,20 +52,24 @@ export interface DetectedState {
   survival: Float64Array;
 }
 
-export interface Contribution {
-  key: string;
-  kind: SourceKind;
-  label: string;
-  wafer: 'top' | 'bottom';
-  waferId: string;
-  groupKey: string;
-  groupLabel: string;
-  toolId: string | null;
-  chamber: string | null;
-  locationId: string | null;
-  scanId: string | null;
-  stepSeq: number | null;
-  lastCleanId: string | null;
+/** A source's particles while the chain runs: its identity (as in the result) plus the working state. */
+export interface Contribution
+  extends Pick<
+    SourceContribution,
+    | 'key'
+    | 'kind'
+    | 'label'
+    | 'wafer'
+    | 'waferId'
+    | 'groupKey'
+    | 'groupLabel'
+    | 'toolId'
+    | 'chamber'
+    | 'locationId'
+    | 'scanId'
+    | 'stepSeq'
+    | 'lastCleanId'
+  > {
   /** Spectrum per wafer at its creation (before later cleans), count per bin. */
   base: Spectrum;
   /** Product of the survivals of the cleans after its creation, per bin. */
