@@ -143,8 +143,17 @@ function readLedgerRows(db: Db, lotId: string): LedgerRow[] {
     .all(lotId) as LedgerRow[];
 }
 
-/** Builds inputs for a set of pair rows of one lot (shared line data). */
-function loadPairs(db: Db, rows: PairRow[], asOfMs: number): { pairs: PairInput[]; line: LineData } {
+/**
+ * Builds inputs for a set of pair rows of one lot (shared line data). With `only`, inputs are built
+ * for those pairs alone, but the counter windows still span every row given — so the line data (and
+ * with it every figure) is the same whichever subset a thread assesses.
+ */
+function loadPairs(
+  db: Db,
+  rows: PairRow[],
+  asOfMs: number,
+  only?: ReadonlySet<string>,
+): { pairs: PairInput[]; line: LineData } {
   const toolsStored = readTools(db);
   const cleansStored = readCleans(db);
   const tools: Record<string, ToolInput> = {};
@@ -155,7 +164,7 @@ function loadPairs(db: Db, rows: PairRow[], asOfMs: number): { pairs: PairInput[
   const ledgerByLot = new Map<string, LedgerRow[]>();
   const windows = new Map<string, [number, number]>();
 
-  const wafer = (waferId: string, lotId: string, endMs: number): WaferInput => {
+  const wafer = (waferId: string, lotId: string, endMs: number, withScan = true): WaferInput => {
     let rows = ledgerByLot.get(lotId);
     if (!rows) {
       rows = readLedgerRows(db, lotId);
@@ -187,37 +196,51 @@ function loadPairs(db: Db, rows: PairRow[], asOfMs: number): { pairs: PairInput[
         orientation: r.orientation,
       };
     });
-    const head = latestScanBefore(db, waferId, endMs);
+    const head = withScan ? latestScanBefore(db, waferId, endMs) : null;
     const scan = head ? readScanInput(db, head.scanId) : null;
     return { waferId, lotId, latestScan: scan, ledger, recleanCount };
   };
 
-  const pairs: PairInput[] = rows.map((r) => {
-    if (!products[r.product_id]) {
-      const p = readProduct(db, r.product_id);
-      if (p) products[r.product_id] = p;
-    }
+  // Rows outside `only`: their ledgers still widen the counter windows; nothing else is read.
+  for (const r of rows) {
+    if (!only || only.has(r.id)) continue;
     const endMs = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs ? r.planned_bond_ms : asOfMs;
-    const bonded = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs;
-    return {
-      pairId: r.id,
-      lotId: r.lot_id,
-      productId: r.product_id,
-      top: wafer(r.top_wafer_id, r.lot_id, endMs),
-      bottom: wafer(r.bottom_wafer_id, r.lot_id, endMs),
-      flipAxis: r.flip_axis,
-      rotationRad: r.rotation_rad,
-      offsetXM: r.offset_x_m,
-      offsetYM: r.offset_y_m,
-      bonderToolId: r.bonder_tool_id,
-      bondTimeMs: bonded ? r.planned_bond_ms : null,
-      smallestReportableVoidM: null,
-    };
-  });
+    wafer(r.top_wafer_id, r.lot_id, endMs, false);
+    wafer(r.bottom_wafer_id, r.lot_id, endMs, false);
+  }
+  const pairs: PairInput[] = rows
+    .filter((r) => !only || only.has(r.id))
+    .map((r) => {
+      if (!products[r.product_id]) {
+        const p = readProduct(db, r.product_id);
+        if (p) products[r.product_id] = p;
+      }
+      const endMs = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs ? r.planned_bond_ms : asOfMs;
+      const bonded = r.planned_bond_ms !== null && r.planned_bond_ms <= asOfMs;
+      return {
+        pairId: r.id,
+        lotId: r.lot_id,
+        productId: r.product_id,
+        top: wafer(r.top_wafer_id, r.lot_id, endMs),
+        bottom: wafer(r.bottom_wafer_id, r.lot_id, endMs),
+        flipAxis: r.flip_axis,
+        rotationRad: r.rotation_rad,
+        offsetXM: r.offset_x_m,
+        offsetYM: r.offset_y_m,
+        bonderToolId: r.bonder_tool_id,
+        bondTimeMs: bonded ? r.planned_bond_ms : null,
+        smallestReportableVoidM: null,
+      };
+    });
   const counters: Record<string, CounterSeriesInput> = {};
   for (const [loc, [from, to]] of windows) counters[loc] = readCounterSeries(db, loc, from, to);
   const locations = readLocations(db, [...windows.keys()]);
   return { pairs, line: { products, tools, cleans, locations, counters } };
+}
+
+/** A stored product as the engine's input, or null. */
+export function readProductInput(db: Db, productId: string): ProductInput | null {
+  return readProduct(db, productId) ?? null;
 }
 
 /** A pair with its line data, or null when the pair is unknown. */
@@ -228,14 +251,32 @@ export function loadPair(db: Db, pairId: string, asOfMs: number): { pair: PairIn
   return { pair: pairs[0]!, line };
 }
 
-/** A lot with its pairs and line data, or null when the lot is unknown. */
-export function loadLot(db: Db, lotId: string, asOfMs: number): { lot: LotInput; line: LineData } | null {
-  const lot = readLot(db, lotId);
-  if (!lot) return null;
-  const rows = tableExists(db, 'pairs')
+function lotPairRows(db: Db, lotId: string): PairRow[] {
+  return tableExists(db, 'pairs')
     ? (db.prepare('SELECT * FROM pairs WHERE lot_id = ? ORDER BY id').all(lotId) as PairRow[])
     : [];
-  const { pairs, line } = loadPairs(db, rows, asOfMs);
+}
+
+/** The ids of a lot's pairs in assessment order, or null when the lot is unknown. */
+export function lotPairIds(db: Db, lotId: string): string[] | null {
+  if (!readLot(db, lotId)) return null;
+  return lotPairRows(db, lotId).map((r) => r.id);
+}
+
+/**
+ * A lot with its pairs (all, or those in `only`) and line data, or null when the lot is unknown.
+ * The line data covers the whole lot either way.
+ */
+export function loadLot(
+  db: Db,
+  lotId: string,
+  asOfMs: number,
+  only?: ReadonlySet<string>,
+): { lot: LotInput; line: LineData } | null {
+  const lot = readLot(db, lotId);
+  if (!lot) return null;
+  const rows = lotPairRows(db, lotId);
+  const { pairs, line } = loadPairs(db, rows, asOfMs, only);
   const productId = lot.productId ?? rows[0]?.product_id ?? '';
   return { lot: { lotId, productId, pairs }, line };
 }
@@ -250,6 +291,26 @@ export function assessLotFromDb(db: Db, lotId: string, opts: AssessOptions): Lot
   const loaded = loadLot(db, lotId, opts.asOfMs);
   if (!loaded) return null;
   return assessLotInSession(loaded.lot, createSession(loaded.line, opts.config), opts);
+}
+
+/**
+ * Some pairs of a lot, assessed with the whole lot's line data (what one thread of a parallel lot
+ * assessment does), or null when the lot is unknown.
+ */
+export function assessLotPairsFromDb(
+  db: Db,
+  lotId: string,
+  pairIds: readonly string[],
+  opts: AssessOptions,
+): { productId: string; pairs: PairAssessment[] } | null {
+  const loaded = loadLot(db, lotId, opts.asOfMs, new Set(pairIds));
+  if (!loaded) return null;
+  const session = createSession(loaded.line, opts.config);
+  const detail = opts.detail ?? 'summary';
+  return {
+    productId: loaded.lot.productId,
+    pairs: loaded.lot.pairs.map((p) => assessPairInSession(p, session, { ...opts, detail })),
+  };
 }
 
 /** Lots for the API's list: id, product, wafer and pair counts. */

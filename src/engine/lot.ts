@@ -12,6 +12,8 @@ import {
   type LineData,
   type LotAssessment,
   type LotInput,
+  type PairAssessment,
+  type ProductInput,
   RECLEAN_CAUTION,
   type Reason,
 } from './types.ts';
@@ -32,6 +34,20 @@ export function assessLotInSession(
   const pairs = lot.pairs.map((p) =>
     assessPairInSession(p, session, { ...opts, detail: opts.detail ?? 'summary' }),
   );
+  return summariseLot(lot, product, pairs, opts);
+}
+
+/**
+ * The lot's figures from its pairs' assessments: the worst call, the reasons pair by pair, counts,
+ * the summed Pareto and the dominant source. Pure; the pairs may have been assessed anywhere
+ * (in this thread or in a worker) as long as each was assessed with the same options.
+ */
+export function summariseLot(
+  lot: Pick<LotInput, 'lotId' | 'productId'>,
+  product: ProductInput,
+  pairs: PairAssessment[],
+  opts: AssessOptions,
+): LotAssessment {
   let call: Call = 'bond';
   for (const p of pairs) if (RANK[p.call] > RANK[call]) call = p.call;
   const reasons: Reason[] = [];

@@ -6,6 +6,7 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { assessLotFromDb, assessPairFromDb } from '../../engine/loader.ts';
+import { assessLotFromDbParallel } from '../../engine/parallel.ts';
 import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
 import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
@@ -199,7 +200,7 @@ export const assess: Command = {
         io.out(values.json ? `${JSON.stringify(a)}\n` : renderPair(a));
         return EXIT.ok;
       }
-      const l = assessLotFromDb(db, values.lot!, { asOfMs });
+      const l = await assessLotFromDbParallel(db, values.lot!, { asOfMs });
       if (!l) {
         io.err(`voidcast assess: no lot "${values.lot}"\n`);
         return EXIT.notFound;

@@ -1,0 +1,173 @@
+/**
+ * A lot's pairs assessed on two threads: this one and one worker thread with its own read-only
+ * connection to the same database file. Each pair's figures depend only on the pair and the lot's
+ * line data (every random stream is seeded per scenario, caches are keyed by content), so splitting
+ * the pairs changes nothing: the result equals assessLotFromDb's exactly (tested).
+ *
+ * With loader.ts this is the engine's only database access (the worker opens its own connection).
+ *
+ * The worker is started once and kept (unref'd, so it never holds a process open); an in-memory
+ * database, a small lot or a failing worker fall back to the single-thread path.
+ */
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
+import { type Db, openDatabase } from '../store/db.ts';
+import { assessLotFromDb, assessLotPairsFromDb, lotPairIds, readProductInput } from './loader.ts';
+import { summariseLot } from './lot.ts';
+import type { AssessOptions, LotAssessment, PairAssessment } from './types.ts';
+
+/** Below this many pairs a second thread costs more than it saves. */
+const MIN_PAIRS_FOR_WORKER = 4;
+
+interface Job {
+  id: number;
+  dbFile: string;
+  lotId: string;
+  pairIds: string[];
+  opts: AssessOptions;
+}
+
+type Reply = { id: number; ok: true; pairs: PairAssessment[] } | { id: number; ok: false; message: string };
+
+const require = createRequire(import.meta.url);
+
+// CommonJS evaluated in the new thread: register tsx's loader, then import this module.
+const BOOTSTRAP = `
+const { workerData } = require('node:worker_threads');
+import(workerData.tsxApi).then((tsx) => { tsx.register(); return import(workerData.entry); });
+`;
+
+function tsxApiUrl(): string {
+  const pkgPath = require.resolve('tsx/package.json');
+  const pkg = JSON.parse(readFileSync(pkgPath, 'utf8')) as {
+    exports: Record<string, string | { import?: { default?: string } }>;
+  };
+  const entry = pkg.exports['./esm/api'];
+  const rel = typeof entry === 'string' ? entry : entry?.import?.default;
+  if (!rel) throw new Error('tsx does not export ./esm/api');
+  return pathToFileURL(join(dirname(pkgPath), rel)).href;
+}
+
+class AssessWorker {
+  private worker: Worker | null = null;
+  private next = 1;
+  private readonly pending = new Map<
+    number,
+    { resolve: (p: PairAssessment[]) => void; reject: (e: Error) => void }
+  >();
+
+  private start(): Worker {
+    const w = new Worker(BOOTSTRAP, {
+      eval: true,
+      workerData: { voidcastAssessWorker: true, tsxApi: tsxApiUrl(), entry: import.meta.url },
+    });
+    w.unref();
+    w.on('message', (m: Reply) => {
+      const p = this.pending.get(m.id);
+      if (!p) return;
+      this.pending.delete(m.id);
+      if (m.ok) p.resolve(m.pairs);
+      else p.reject(new Error(m.message));
+    });
+    const fail = (e: Error) => {
+      for (const p of this.pending.values()) p.reject(e);
+      this.pending.clear();
+      this.worker = null;
+    };
+    w.on('error', fail);
+    w.on('exit', (code) => fail(new Error(`the assessment worker exited with code ${code}`)));
+    this.worker = w;
+    return w;
+  }
+
+  run(job: Omit<Job, 'id'>): Promise<PairAssessment[]> {
+    const w = this.worker ?? this.start();
+    const id = this.next++;
+    return new Promise((resolve, reject) => {
+      this.pending.set(id, { resolve, reject });
+      w.postMessage({ ...job, id } satisfies Job);
+    });
+  }
+
+  /** Ends the worker (tests; a server shutting down). */
+  async stop(): Promise<void> {
+    const w = this.worker;
+    this.worker = null;
+    if (w) await w.terminate();
+  }
+}
+
+let shared: AssessWorker | null = null;
+
+/** Stops the shared worker thread, if one was started. */
+export async function stopAssessWorker(): Promise<void> {
+  await shared?.stop();
+  shared = null;
+}
+
+function databaseFile(db: Db): string | null {
+  return db.memory || db.name === '' || db.name === ':memory:' ? null : db.name;
+}
+
+/**
+ * assessLotFromDb on two threads: the later half of the lot's pairs in the worker, the first half
+ * here, at the same time; then the lot's summary from all of them in order.
+ */
+export async function assessLotFromDbParallel(
+  db: Db,
+  lotId: string,
+  opts: AssessOptions,
+): Promise<LotAssessment | null> {
+  const file = databaseFile(db);
+  const ids = lotPairIds(db, lotId);
+  if (ids === null) return null;
+  if (file === null || ids.length < MIN_PAIRS_FOR_WORKER || opts.config !== undefined)
+    return assessLotFromDb(db, lotId, opts);
+  const cut = Math.floor(ids.length / 2);
+  const mine = ids.slice(0, cut);
+  const theirs = ids.slice(cut);
+  shared ??= new AssessWorker();
+  const remote = shared.run({ dbFile: file, lotId, pairIds: theirs, opts });
+  // If the worker fails, this thread assesses its half too; the answer is the same, only slower.
+  remote.catch(() => {});
+  const here = assessLotPairsFromDb(db, lotId, mine, opts);
+  if (!here) return null;
+  let there: PairAssessment[];
+  try {
+    there = await remote;
+  } catch {
+    there = assessLotPairsFromDb(db, lotId, theirs, opts)?.pairs ?? [];
+  }
+  const product = readProductInput(db, here.productId);
+  if (!product) return assessLotFromDb(db, lotId, opts); // the serial path reports the missing product
+  return summariseLot({ lotId, productId: here.productId }, product, [...here.pairs, ...there], opts);
+}
+
+// ── the worker thread ──────────────────────────────────────────────────────────────────────────
+function workerMain(): void {
+  const port = parentPort!;
+  const connections = new Map<string, Db>();
+  port.on('message', (job: Job) => {
+    try {
+      let db = connections.get(job.dbFile);
+      if (!db) {
+        db = openDatabase(job.dbFile);
+        connections.set(job.dbFile, db);
+      }
+      const r = assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts);
+      port.postMessage({ id: job.id, ok: true, pairs: r?.pairs ?? [] } satisfies Reply);
+    } catch (e) {
+      port.postMessage({
+        id: job.id,
+        ok: false,
+        message: e instanceof Error ? e.message : String(e),
+      } satisfies Reply);
+    }
+  });
+}
+
+if (!isMainThread && (workerData as { voidcastAssessWorker?: boolean } | null)?.voidcastAssessWorker === true)
+  workerMain();

@@ -1,0 +1,49 @@
+/**
+ * A lot assessed on two threads equals the single-thread assessment exactly: each pair's figures
+ * depend only on the pair and the lot's line data (seeded streams, content-keyed caches).
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { loadDemoOnce } from '../../src/cli/demo.ts';
+import { assessLotFromDb } from '../../src/engine/loader.ts';
+import { assessLotFromDbParallel, stopAssessWorker } from '../../src/engine/parallel.ts';
+import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
+import { installationClockMs } from '../../src/store/settings.ts';
+
+describe('assessLotFromDbParallel', () => {
+  let dir: string;
+  let db: Db;
+  let asOfMs: number;
+  beforeAll(async () => {
+    dir = mkdtempSync(join(tmpdir(), 'voidcast-parallel-'));
+    db = openDataDir(dir);
+    await loadDemoOnce(db);
+    asOfMs = installationClockMs(db)!;
+  }, 180_000);
+  afterAll(async () => {
+    await stopAssessWorker();
+    db.close();
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('gives exactly the single-thread result for every demo lot waiting to bond', async () => {
+    for (const lotId of ['TR2651', 'TR2652', 'TR2653']) {
+      const serial = assessLotFromDb(db, lotId, { asOfMs });
+      const parallel = await assessLotFromDbParallel(db, lotId, { asOfMs });
+      expect(JSON.stringify(parallel)).toBe(JSON.stringify(serial));
+    }
+  }, 120_000);
+
+  it('answers null for an unknown lot', async () => {
+    expect(await assessLotFromDbParallel(db, 'NO-SUCH-LOT', { asOfMs })).toBeNull();
+  });
+
+  it('takes the single-thread path for an in-memory database', async () => {
+    const mem = openDatabase(':memory:');
+    migrate(mem);
+    expect(await assessLotFromDbParallel(mem, 'TR2651', { asOfMs })).toBeNull();
+    mem.close();
+  });
+});
