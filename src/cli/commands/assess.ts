@@ -5,7 +5,7 @@
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
-import { assessLotFromDb, assessPairFromDb } from '../../engine/loader.ts';
+import { assessPairFromDb } from '../../engine/loader.ts';
 import { assessLotFromDbParallel } from '../../engine/parallel.ts';
 import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
 import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
