@@ -82,6 +82,14 @@ function ledger(start: number, k: number): LedgerStepInput[] {
   ];
 }
 
+/** Seeds the bench data into an open database; returns the pairs and the assessment time. */
+export function seedBench(db: ReturnType<typeof openDataDir>): { pairs: PairInput[]; asOfMs: number } {
+  const { data, pairs } = build();
+  db.transaction(() => seedLine(db, data))();
+  seedPairs(db, pairs);
+  return { pairs, asOfMs: T0 + 12 * 24 * H };
+}
+
 function build() {
   const counters: Record<string, ReturnType<typeof counterSeries>> = {};
   const locations: Record<string, ReturnType<typeof location>> = {};
@@ -140,13 +148,10 @@ export async function run(): Promise<void> {
   const db = openDataDir(dir);
   try {
     const t0 = performance.now();
-    const { data, pairs } = build();
-    db.transaction(() => seedLine(db, data))();
-    seedPairs(db, pairs);
+    const { pairs, asOfMs } = seedBench(db);
     console.log(
       `seeded ${PAIRS} pairs × 2 wafers × ${PARTICLES} particles, ${LOCATIONS} locations × ${DAYS} d of 1-min samples in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
     );
-    const asOfMs = T0 + 12 * 24 * H;
     // The rows the assessment reads: every scan of the lot, and each location's samples over its exposure windows.
     const windows = new Map<string, [number, number]>();
     for (const p of pairs)
