@@ -111,6 +111,9 @@ export function buildDieGrid(layout: DieLayoutInput, usableRadiusM: number): Die
   };
 }
 
+/** Slack of the candidate cell range, in cells (see forEachDieHit). */
+const RANGE_SLACK = 1e-9;
+
 /**
  * Calls visit(dieIndex) for every die whose critical rectangle a disc of radius r at (x, y)
  * reaches (distance from the centre to the rectangle ≤ r: touching counts, so a particle exactly
@@ -128,12 +131,13 @@ export function forEachDieHit(
   const offX = pad ? pad.xM : 0;
   const offY = pad ? pad.yM : 0;
   // A die (i, j) has its critical rectangle at [x0 + i·px + offX, … + critW]; it can be reached only
-  // if that interval meets [x − r, x + r]; one cell of margin each side absorbs rounding at exact
-  // edges, and the distance test below decides.
-  const iLo = Math.max(g.colMin, Math.ceil((x - r - x0 - offX - g.critW) / px) - 1);
-  const iHi = Math.min(g.colMin + g.cols - 1, Math.floor((x + r - x0 - offX) / px) + 1);
-  const jLo = Math.max(g.rowMin, Math.ceil((y - r - y0 - offY - g.critH) / py) - 1);
-  const jHi = Math.min(g.rowMin + g.rows - 1, Math.floor((y + r - y0 - offY) / py) + 1);
+  // if that interval meets [x − r, x + r], i.e. for i in [(x − r − x0 − offX − critW)/px, (x + r − x0 − offX)/px].
+  // The range is widened by 10⁻⁹ of a cell each side so that rounding at an exact edge cannot drop a
+  // die; the distance test below decides.
+  const iLo = Math.max(g.colMin, Math.ceil((x - r - x0 - offX - g.critW) / px - RANGE_SLACK));
+  const iHi = Math.min(g.colMin + g.cols - 1, Math.floor((x + r - x0 - offX) / px + RANGE_SLACK));
+  const jLo = Math.max(g.rowMin, Math.ceil((y - r - y0 - offY - g.critH) / py - RANGE_SLACK));
+  const jHi = Math.min(g.rowMin + g.rows - 1, Math.floor((y + r - y0 - offY) / py + RANGE_SLACK));
   const r2 = r * r;
   for (let j = jLo; j <= jHi; j++)
     for (let i = iLo; i <= iHi; i++) {
