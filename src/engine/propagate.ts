@@ -86,8 +86,11 @@ export interface Contribution
 export interface PropagationPhysics {
   /** Clean survival per bin (1 − PRE at the bin centre). */
   cleanSurvivalBins(clean: CleanInput): Float64Array;
-  /** Multiplies each particle's survival by the clean's survival at its diameter (in place). */
-  applySurvival(clean: CleanInput, diameterM: Float64Array, survival: Float64Array): void;
+  /**
+   * Multiplies each particle's survival by the clean's survival at its diameter (in place) and
+   * returns the surviving particles binned (what binDetected would give next, in the same pass).
+   */
+  applySurvival(clean: CleanInput, diameterM: Float64Array, survival: Float64Array): Spectrum;
   /** Adders per pass of a tool as a spectrum per wafer (floored at the tail floor). */
   adderSpectrum(tool: ToolInput): Spectrum;
   /** A tail spectrum: n particles ≥ threshold extended with slope α from floor up to the threshold. */
@@ -512,8 +515,7 @@ export function applyClean(
     c.lastCleanId = clean.cleanId;
     if (c.detected) {
       const det = c.detected;
-      physics.applySurvival(clean, det.diameterM, det.survival);
-      c.base = physics.binDetected(det.diameterM, det.survival);
+      c.base = physics.applySurvival(clean, det.diameterM, det.survival);
       c.survivalBins.fill(1); // the detected spectrum is rebuilt from the particles' own survivals
     }
   }

@@ -3,11 +3,13 @@
  * per particle, so that tens of thousands of detected particles do not each call the model (whose
  * argument checks cost more than the formula). Orchestration only — the values are the model's.
  *
- * Grid: 256 points per decade from 10 nm to 100 µm (1025 points, step 0.9 % in d). Interpolation:
- * - log–log for void radii: R(d) is a power law on each side of the plate-regime crossover, so the
- *   interpolation is exact except in the one cell holding the crossover kink (≤ 0.1 % there);
- * - linear in log d for survival curves: for a logistic in ln d of steepness k the error is at most
- *   k²·(Δ ln d)²/32 ≈ 4·10⁻⁵·k² (k ≤ 50 → ≤ 0.1 absolute at the very steepest, ≤ 10⁻³ for k ≤ 5).
+ * Grid: 256 points per decade from 10 nm to 100 µm (1025 points, step Δ = ln 10 / 256 = 0.0090 in
+ * ln d). Interpolation is linear in log d:
+ * - void radii: R(d) is a power law d^p on each side of the plate-regime crossover; linear
+ *   interpolation of e^(p·ln d) over a step Δ errs by at most (pΔ)²/8 relative (p ≤ 1: ≤ 1.0·10⁻⁵,
+ *   p ≤ 2: ≤ 4·10⁻⁵), and by ≤ |p₁ − p₂|·Δ/4 (≤ 0.2 % for |p₁ − p₂| ≤ 1) in the one cell holding the kink;
+ * - survival curves: for a logistic in ln d of steepness k the error is at most
+ *   k²·Δ²/32 ≈ 2.5·10⁻⁶·k² (k ≤ 50 → ≤ 0.006 absolute at the very steepest, ≤ 10⁻⁴ for k ≤ 5).
  * Diameters outside the grid take the nearest end value.
  * Bins: the spectrum grid's bin of a diameter, computed from the grid constants (edges belong to
  * the bin above, as src/model/spectrum.ts binIndexOf), clamped into the grid.
@@ -38,17 +40,6 @@ function position(d: number): number {
   return u <= 0 ? 0 : Math.min(u, TABLE_POINTS - 1);
 }
 
-/** Interpolates a positive table log–log at diameter d. */
-export function interpLogLog(t: Float64Array, d: number): number {
-  const u = position(d);
-  const i = Math.min(Math.floor(u), TABLE_POINTS - 2);
-  const w = u - i;
-  const a = t[i]!;
-  const b = t[i + 1]!;
-  if (a <= 0 || b <= 0) return a + (b - a) * w;
-  return a * (b / a) ** w;
-}
-
 /** Interpolates a table linearly in log d at diameter d. */
 export function interpLogLin(t: Float64Array, d: number): number {
   const u = position(d);
@@ -64,15 +55,25 @@ export function binOf(d: number): number {
   return k >= SPECTRUM_BIN_COUNT ? SPECTRUM_BIN_COUNT - 1 : k;
 }
 
-/** Per-particle table cell, weight and spectrum bin of a diameter array, computed once and cached. */
+/** Per-particle table cell, weight, spectrum bin and ln d of a diameter array, computed once and cached. */
 export interface SizeIndex {
   cell: Uint16Array;
   weight: Float64Array;
   bin: Uint8Array;
+  /** Natural logarithm of each diameter (in m), for sums such as the Hill estimator's Σ ln(x/x_m). */
+  lnD: Float64Array;
 }
 
 const indexCache = new WeakMap<Float64Array, SizeIndex>();
+const LN_MIN = Math.log(SPECTRUM_MIN_DIAMETER_M);
+const TABLE_PER_LN = TABLE_PER_DECADE / Math.LN10;
+const BIN_PER_CELL = SPECTRUM_BINS_PER_DECADE / TABLE_PER_DECADE;
 
+/**
+ * One logarithm per particle gives its table position u = log10(d/d_min)·256, its bin
+ * ⌊u·12/256⌋ (with binOf's 10⁻¹² allowance at an edge) and ln d. Diameters outside the grid are
+ * clamped as in `position` and `binOf`.
+ */
 export function sizeIndexOf(d: Float64Array): SizeIndex {
   const hit = indexCache.get(d);
   if (hit) return hit;
@@ -80,14 +81,25 @@ export function sizeIndexOf(d: Float64Array): SizeIndex {
   const cell = new Uint16Array(n);
   const weight = new Float64Array(n);
   const bin = new Uint8Array(n);
+  const lnD = new Float64Array(n);
+  const last = TABLE_POINTS - 1;
   for (let j = 0; j < n; j++) {
-    const u = position(d[j]!);
+    const x = d[j]!;
+    const ln = Math.log(x);
+    lnD[j] = ln;
+    if (!(x > SPECTRUM_MIN_DIAMETER_M)) {
+      // cell 0, weight 0 and bin 0 (the arrays' initial values); as position() and binOf()
+      continue;
+    }
+    const raw = (ln - LN_MIN) * TABLE_PER_LN;
+    const u = raw <= 0 ? 0 : Math.min(raw, last);
     const i = Math.min(Math.floor(u), TABLE_POINTS - 2);
     cell[j] = i;
     weight[j] = u - i;
-    bin[j] = binOf(d[j]!);
+    const k = Math.floor(raw * BIN_PER_CELL + 1e-12);
+    bin[j] = k < 0 ? 0 : k >= SPECTRUM_BIN_COUNT ? SPECTRUM_BIN_COUNT - 1 : k;
   }
-  const out = { cell, weight, bin };
+  const out = { cell, weight, bin, lnD };
   indexCache.set(d, out);
   return out;
 }

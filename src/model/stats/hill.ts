@@ -88,6 +88,15 @@ export function hillEstimator(
     throw new ModelInputError(fn, 'sizes', 'm', `at least ${minN} size(s) ≥ thresholdM = ${xm} m`, n);
   if (!(s > 0))
     throw new ModelInputError(fn, 'sizes', 'm', 'at least one size above thresholdM', sizes.length);
+  return { ...hillCore(n, s, confidence, estimator), excluded: sizes.length - n };
+}
+
+function hillCore(
+  n: number,
+  s: number,
+  confidence: number,
+  estimator: HillEstimatorForm,
+): Omit<HillEstimate, 'excluded'> {
   const alpha = (estimator === 'unbiased' ? n - 1 : n) / s;
   const a = 1 - confidence;
   return {
@@ -96,11 +105,40 @@ export function hillEstimator(
     lower: chiSquareQuantile(a / 2, 2 * n) / (2 * s),
     upper: chiSquareQuantile(1 - a / 2, 2 * n) / (2 * s),
     n,
-    excluded: sizes.length - n,
     sumLogExcess: s,
     confidence,
     estimator,
   };
+}
+
+/**
+ * The Hill estimate from its sufficient statistics: the count n of sizes at or above the threshold
+ * and S = Σ ln(x_i / x_m) over them — the same formulas as hillEstimator (Clauset, Shalizi & Newman
+ * 2009, eqs. 3.1, 3.2; exact interval 2αS ~ χ²(2n)), for callers that already hold n and S (a scan
+ * of tens of thousands of particles whose logarithms were taken once).
+ *
+ * @param n sizes at or above the threshold, an integer ≥ 1 (≥ 2 for 'unbiased')
+ * @param sumLogExcess S, dimensionless, > 0
+ * @param confidence two-sided confidence level, 0 < c < 1 (default 0.95)
+ * @param options.estimator 'mle' (default) or 'unbiased'
+ * @throws ModelInputError for a bad n, S or confidence
+ * @example hillFromSums(4, Math.log(64), 0.95).alpha // 0.96180, as hillEstimator([1, 2, 4, 8], 1)
+ */
+export function hillFromSums(
+  n: number,
+  sumLogExcess: number,
+  confidence = 0.95,
+  options: { estimator?: HillEstimatorForm } = {},
+): Omit<HillEstimate, 'excluded'> {
+  const fn = 'hillFromSums';
+  const estimator = requireOneOf(fn, 'options.estimator', options.estimator ?? 'mle', [
+    'mle',
+    'unbiased',
+  ] as const);
+  requireNumber(fn, 'n', n, '', { min: estimator === 'unbiased' ? 2 : 1, integer: true });
+  requireNumber(fn, 'sumLogExcess', sumLogExcess, '', { min: 0, minExclusive: true });
+  requireConfidence(fn, confidence);
+  return hillCore(n, sumLogExcess, confidence, estimator);
 }
 
 export interface TruncatedPowerLawEstimate {

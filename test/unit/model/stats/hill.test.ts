@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { ModelInputError } from '../../../../src/model/errors.ts';
 import { createRng } from '../../../../src/model/rng.ts';
-import { hillEstimator, hillEstimatorTruncated } from '../../../../src/model/stats/hill.ts';
+import { hillEstimator, hillEstimatorTruncated, hillFromSums } from '../../../../src/model/stats/hill.ts';
 
 describe('hillEstimator', () => {
   it('gives α̂ = 0.96180 and 95 % interval [0.26206, 2.10808] for x = {1, 2, 4, 8}, x_m = 1', () => {
@@ -89,6 +89,35 @@ describe('hillEstimator', () => {
     expect(() => hillEstimator([], 1)).toThrow(ModelInputError);
     expect(() => hillEstimator([1, 1, 1], 1)).toThrow(/at least one size above thresholdM/);
     expect(() => hillEstimator([2], 1, 0.95, { estimator: 'unbiased' })).toThrow(/at least 2 size/);
+  });
+});
+
+describe('hillFromSums', () => {
+  it('gives the worked example from n = 4 and S = 6 ln 2 (Clauset, Shalizi & Newman 2009 eq. 3.1)', () => {
+    const r = hillFromSums(4, 6 * Math.LN2);
+    expect(r.alpha).toBeCloseTo(0.9618, 5);
+    expect(r.lower).toBeCloseTo(0.26206, 5);
+    expect(r.upper).toBeCloseTo(2.10808, 5);
+  });
+
+  it('equals hillEstimator on the same sample, both forms', () => {
+    const rng = createRng(5);
+    const xs = Array.from({ length: 3000 }, () => 45e-9 * (1 - rng.uniform()) ** (-1 / 1.7));
+    for (const estimator of ['mle', 'unbiased'] as const) {
+      const a = hillEstimator(xs, 45e-9, 0.9, { estimator });
+      const b = hillFromSums(a.n, a.sumLogExcess, 0.9, { estimator });
+      const { excluded: _, ...rest } = a;
+      expect(b).toEqual(rest);
+    }
+  });
+
+  it('refuses a bad n, S or confidence with the function and parameter named', () => {
+    expect(() => hillFromSums(0, 1)).toThrow(/hillFromSums: n = 0/);
+    expect(() => hillFromSums(2.5, 1)).toThrow(/hillFromSums: n/);
+    expect(() => hillFromSums(1, 1, 0.95, { estimator: 'unbiased' })).toThrow(/hillFromSums: n = 1/);
+    expect(() => hillFromSums(3, 0)).toThrow(/hillFromSums: sumLogExcess = 0/);
+    expect(() => hillFromSums(3, Number.NaN)).toThrow(ModelInputError);
+    expect(() => hillFromSums(3, 1, 1)).toThrow(/hillFromSums: confidence/);
   });
 });
 
