@@ -82,11 +82,18 @@ export function tailBins(
 ): Float64Array {
   out.fill(0);
   const a = Math.min(Math.max(alpha, 0), 10);
+  // Only the bins between the floor and the threshold hold tail particles; each edge's power is
+  // computed once and shared by the two bins it separates.
+  let prev = Number.NaN;
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
+    if (SPECTRUM_EDGES_M[k + 1]! <= floor) continue;
     const lo = Math.max(SPECTRUM_EDGES_M[k]!, floor);
+    if (lo >= xm) break;
     const hi = Math.min(SPECTRUM_EDGES_M[k + 1]!, xm);
-    if (hi <= lo) continue;
-    out[k] = Math.max(n * ((lo / xm) ** -a - (hi / xm) ** -a), 0);
+    const pLo = Number.isNaN(prev) ? (lo / xm) ** -a : prev;
+    const pHi = (hi / xm) ** -a;
+    prev = pHi;
+    out[k] = Math.max(n * (pLo - pHi), 0);
   }
   return out;
 }
@@ -140,7 +147,9 @@ function drawKills(
  * entries with an expected count ≥ 20 contribute through a normal with the compound mean Σμa and
  * variance Σμa² (many discs: the central limit applies); entries whose expected area is below 10⁻⁶
  * of the total add their mean (their noise cannot move the total); the others are drawn exactly —
- * their total count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means.
+ * their total count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means (one
+ * 32-bit uniform per disc: the entries' probabilities are resolved to 2⁻³², far finer than any of
+ * them matters).
  */
 function drawExponent(
   rng: Rng,
@@ -163,22 +172,20 @@ function drawExponent(
       continue;
     }
     const a = area[i]!;
-    if (u * a < negligible) {
-      bigMean += u * a;
-      cdf[i] = smallMu;
-      continue;
-    }
-    if (u >= 20) {
-      bigMean += u * a;
-      bigVar += u * a * a;
+    const ua = u * a;
+    if (ua < negligible) bigMean += ua;
+    else if (u >= 20) {
+      bigMean += ua;
+      bigVar += ua * a;
     } else smallMu += u;
     cdf[i] = smallMu;
   }
   let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
   if (smallMu > 0) {
     const n = rng.poisson(smallMu);
+    const scale = smallMu / 4294967296;
     for (let j = 0; j < n; j++) {
-      const x = rng.uniform() * smallMu;
+      const x = rng.nextUint32() * scale;
       let lo = 0;
       let hi = m - 1;
       while (lo < hi) {
@@ -220,14 +227,23 @@ export function simulate(args: {
   ];
   const tails: {
     v: Extract<Contribution['variation'], { type: 'tail' }>;
-    surv: Float64Array;
-    area: number;
+    /** Survival of the later cleans over the area basis, per bin (tail count → density). */
+    weight: Float64Array;
+    /** The bins between the tail's floor and its threshold: [k0, k1). */
+    k0: number;
+    k1: number;
   }[] = [];
   contributions.forEach((c, i) => {
     const v = c.variation;
     if (c.detected) return;
     if (v.type === 'tail') {
-      tails.push({ v, surv: c.survivalBins, area: c.areaBasisM2 });
+      const weight = new Float64Array(SPECTRUM_BIN_COUNT);
+      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) weight[k] = c.survivalBins[k]! / c.areaBasisM2;
+      let k0 = 0;
+      while (k0 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k0 + 1]! <= v.floorM) k0++;
+      let k1 = k0;
+      while (k1 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k1]! < v.thresholdM) k1++;
+      tails.push({ v, weight, k0, k1 });
       return;
     }
     let g = v.type === 'wait' ? 0 : v.type === 'tool' ? groupKeys.indexOf(`tool:${v.toolKey}`) : 1;
@@ -284,10 +300,14 @@ export function simulate(args: {
   }
   const alpha = args.clusterAlpha;
 
+  // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
+  const zStride = nGroups + 1;
+  const zs = rng.normals(new Float64Array(nDraws * zStride));
   for (let t = 0; t < nDraws; t++) {
+    const z0 = t * zStride;
     for (let g = 0; g < nGroups; g++)
-      factor[g] = groupSigma[g]! > 0 ? Math.exp(groupSigma[g]! * rng.normal()) : 1;
-    const z = rng.normal();
+      factor[g] = groupSigma[g]! > 0 ? Math.exp(groupSigma[g]! * zs[z0 + g]!) : 1;
+    const z = zs[z0 + nGroups]!;
     const gi = Math.min(gridN - 1, Math.max(0, Math.round(((sigGap > 0 ? z : 0) + 4) * ((gridN - 1) / 8))));
     const radii = grid.radii[gi]!;
     const frac = grid.frac[gi]!;
@@ -301,7 +321,7 @@ export function simulate(args: {
     for (const tl of tails) {
       const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
       tailBins(tl.v.n, a, tl.v.thresholdM, tl.v.floorM, tailTmp);
-      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += (tailTmp[k]! * tl.surv[k]!) / tl.area;
+      for (let k = tl.k0; k < tl.k1; k++) lam[k]! += tailTmp[k]! * tl.weight[k]!;
     }
     let meanVoids = ev.detectedVoids;
     let m = 0;

@@ -39,6 +39,12 @@ export interface Rng {
   uniform(): number;
   /** Standard normal N(0, 1) by Marsaglia's polar method (Marsaglia & Bray, SIAM Rev. 6 (1964) 260). */
   normal(): number;
+  /**
+   * Fills `out` with independent standard normals by the same polar method, using both values of
+   * each accepted pair (u·f and v·f are independent N(0, 1), Marsaglia & Bray 1964): about half
+   * the cost per value of `normal()`. Returns `out`.
+   */
+  normals(out: Float64Array): Float64Array;
   /** Gamma(shape, scale), mean shape·scale, by Marsaglia & Tsang, ACM TOMS 26 (2000) 363. */
   gamma(shape: number, scale?: number): number;
   /** Poisson(mean), exact: inversion for mean < 10, PTRS (Hörmann 1993) otherwise. */
@@ -129,6 +135,21 @@ function makeRng(s: Uint32Array): Rng {
     }
   };
 
+  const normals = (out: Float64Array): Float64Array => {
+    let i = 0;
+    const n = out.length;
+    while (i < n) {
+      const u = 2 * uniform() - 1;
+      const v = 2 * uniform() - 1;
+      const q = u * u + v * v;
+      if (!(q > 0 && q < 1)) continue;
+      const f = Math.sqrt((-2 * Math.log(q)) / q);
+      out[i++] = u * f;
+      if (i < n) out[i++] = v * f;
+    }
+    return out;
+  };
+
   const gammaUnit = (a: number): number => {
     if (a < 1) {
       // Marsaglia & Tsang (2000) §6: Gamma(a) = Gamma(a + 1) · U^(1/a). May underflow to 0 for tiny a.
@@ -192,6 +213,7 @@ function makeRng(s: Uint32Array): Rng {
     nextUint32,
     uniform,
     normal,
+    normals,
     gamma(shape: number, scale = 1): number {
       requireNumber('rng.gamma', 'shape', shape, '', { min: 0, minExclusive: true, max: 1e12 });
       requireNumber('rng.gamma', 'scale', scale, '', { min: 0, minExclusive: true, max: 1e100 });

@@ -151,6 +151,38 @@ describe('distributions (moments within 4 standard errors)', () => {
     expect(Math.abs(inside / N - 0.95)).toBeLessThan(SIGMAS * Math.sqrt((0.95 * 0.05) / N));
   });
 
+  it('normals(out): the same law as normal(), and the two values of each polar pair uncorrelated', () => {
+    // Both values of an accepted polar pair are independent N(0, 1) (Marsaglia & Bray 1964); checked
+    // here through the moments, the 95 % band and the correlation of the pair's values and squares
+    // (each within 4 standard errors; the correlation's standard error is 1/√pairs).
+    const z = rng.normals(new Float64Array(N + 1)); // odd length: the last pair is cut in half
+    expect(z.length).toBe(N + 1);
+    let sum = 0;
+    let sum2 = 0;
+    let inside = 0;
+    for (const x of z) {
+      sum += x;
+      sum2 += x * x;
+      if (Math.abs(x) <= 1.959963984540054) inside++;
+    }
+    const n = z.length;
+    const mean = sum / n;
+    expect(Math.abs(mean)).toBeLessThan(SIGMAS / Math.sqrt(n));
+    expect(Math.abs(sum2 / n - mean * mean - 1)).toBeLessThan(SIGMAS * Math.sqrt(2 / n));
+    expect(Math.abs(inside / n - 0.95)).toBeLessThan(SIGMAS * Math.sqrt((0.95 * 0.05) / n));
+    const pairs = Math.floor(N / 2);
+    let sxy = 0;
+    let sq = 0;
+    for (let i = 0; i < pairs; i++) {
+      const a = z[2 * i]!;
+      const b = z[2 * i + 1]!;
+      sxy += a * b; // E = 0, Var = 1
+      sq += (a * a - 1) * (b * b - 1); // E = 0, Var = 4
+    }
+    expect(Math.abs(sxy / pairs)).toBeLessThan(SIGMAS / Math.sqrt(pairs));
+    expect(Math.abs(sq / pairs)).toBeLessThan((SIGMAS * 2) / Math.sqrt(pairs));
+  });
+
   it('gamma(shape): mean = shape, variance = shape (scale 1), and scale multiplies', () => {
     for (const k of [0.3, 1, 2.5, 10, 400]) {
       const m = moments(() => rng.gamma(k), N);
