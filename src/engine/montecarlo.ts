@@ -15,7 +15,7 @@
  * then counting noise: reportable voids ~ Poisson(expected voids) (detected particles' Bernoulli
  * survivals are taken as Poisson: the same mean and a variance at least as large, the conservative
  * side); for the unbonded area the discs of each bin are a Poisson count and the Boolean exponent is
- * taken over the drawn discs (drawExponent); each die is killed with its probability (drawKills),
+ * taken over the drawn discs (ExponentSampler); each die is killed with its probability (drawKills),
  * the random part of the negative-binomial form drawn with the die mean scaled by a wafer-level
  * Gamma(α, 1/α) factor — the gamma–Poisson mixture that defines it (Stapper).
  * Detected particles keep their nominal radii (their positions are fixed).
@@ -143,60 +143,129 @@ function drawKills(
 }
 
 /**
- * Unbonded area exponent of one draw, Σ (drawn disc areas) / A_b, as a compound Poisson sum:
- * entries with an expected count ≥ 20 contribute through a normal with the compound mean Σμa and
- * variance Σμa² (many discs: the central limit applies); entries whose expected area is below 10⁻⁶
- * of the total add their mean (their noise cannot move the total); the others are drawn exactly —
- * their total count ~ Poisson(Σμ), each disc's entry by inverse CDF over the entries' means (one
- * 32-bit uniform per disc: the entries' probabilities are resolved to 2⁻³², far finer than any of
- * them matters).
+ * Unbonded area exponent of one draw, Σ (drawn disc areas) / A_b, as a compound Poisson sum over
+ * entries (a bin of random particles, or a bin of detected particles with their mean disc area):
+ * - entries with an expected count ≥ 20 contribute through a normal with the compound mean Σμa and
+ *   variance Σμa² (many discs: the central limit applies);
+ * - entries whose expected area is below 10⁻⁶ of the total add their mean (their noise cannot move
+ *   the total);
+ * - the others are drawn exactly: their total count ~ Poisson(Σμ), each disc's entry in proportion
+ *   to the entries' means (a Poisson number of discs with independent marks, Kingman, Poisson
+ *   Processes, 1993, §5.1).
+ * The detected entries do not change between draws, so their classification (against the
+ * detected total, which is never more than the whole) and an alias table for picking among them
+ * (Walker 1977, in Vose's stable form, IEEE Trans. Softw. Eng. 17 (1991) 972) are built once; the
+ * random entries change with every draw and are picked by inverse CDF (one 32-bit uniform each).
  */
-function drawExponent(
-  rng: Rng,
-  mu: Float64Array,
-  area: Float64Array,
-  m: number,
-  ab: number,
-  cdf: Float64Array,
-): number {
-  let bigMean = 0;
-  let bigVar = 0;
-  let smallMu = 0;
-  let totalMean = 0;
-  for (let i = 0; i < m; i++) totalMean += mu[i]! * area[i]!;
-  const negligible = 1e-6 * totalMean;
-  for (let i = 0; i < m; i++) {
-    const u = mu[i]!;
-    if (!(u > 0)) {
-      cdf[i] = smallMu;
-      continue;
+export class ExponentSampler {
+  private readonly detMean: number;
+  private readonly detVar: number;
+  private readonly detExactMu: number;
+  private readonly aliasProb: Float64Array;
+  private readonly aliasOther: Int32Array;
+  private readonly aliasArea: Float64Array;
+  private readonly cdf = new Float64Array(SPECTRUM_BIN_COUNT);
+
+  constructor(
+    detMu: Float64Array,
+    detArea: Float64Array,
+    private readonly ab: number,
+  ) {
+    let total = 0;
+    for (let k = 0; k < detMu.length; k++) if (detMu[k]! > 0) total += detMu[k]! * detArea[k]!;
+    const negligible = 1e-6 * total;
+    let mean = 0;
+    let variance = 0;
+    const exact: number[] = [];
+    for (let k = 0; k < detMu.length; k++) {
+      const u = detMu[k]!;
+      if (!(u > 0)) continue;
+      const ua = u * detArea[k]!;
+      if (ua < negligible) mean += ua;
+      else if (u >= 20) {
+        mean += ua;
+        variance += ua * detArea[k]!;
+      } else exact.push(k);
     }
-    const a = area[i]!;
-    const ua = u * a;
-    if (ua < negligible) bigMean += ua;
-    else if (u >= 20) {
-      bigMean += ua;
-      bigVar += ua * a;
-    } else smallMu += u;
-    cdf[i] = smallMu;
+    this.detMean = mean;
+    this.detVar = variance;
+    // Vose's alias table over the exact entries, weights μ_k.
+    const m = exact.length;
+    let sumMu = 0;
+    for (const k of exact) sumMu += detMu[k]!;
+    this.detExactMu = sumMu;
+    this.aliasProb = new Float64Array(m);
+    this.aliasOther = new Int32Array(m);
+    this.aliasArea = Float64Array.from(exact, (k) => detArea[k]!);
+    const scaled = exact.map((k) => (detMu[k]! * m) / sumMu);
+    const small: number[] = [];
+    const large: number[] = [];
+    scaled.forEach((w, i) => (w < 1 ? small : large).push(i));
+    while (small.length && large.length) {
+      const l = small.pop()!;
+      const g = large.pop()!;
+      this.aliasProb[l] = scaled[l]!;
+      this.aliasOther[l] = g;
+      scaled[g] = scaled[g]! + scaled[l]! - 1;
+      (scaled[g]! < 1 ? small : large).push(g);
+    }
+    for (const i of [...small, ...large]) {
+      this.aliasProb[i] = 1; // left over only by rounding: the column is its own
+      this.aliasOther[i] = i;
+    }
   }
-  let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
-  if (smallMu > 0) {
-    const n = rng.poisson(smallMu);
-    const scale = smallMu / 4294967296;
-    for (let j = 0; j < n; j++) {
-      const x = rng.nextUint32() * scale;
-      let lo = 0;
-      let hi = m - 1;
-      while (lo < hi) {
-        const mid = (lo + hi) >> 1;
-        if (cdf[mid]! > x) hi = mid;
-        else lo = mid + 1;
+
+  /** One draw's exponent, the random entries given by their means `mu` and disc areas `area` (per bin). */
+  draw(rng: Rng, mu: Float64Array, area: Float64Array): number {
+    const cdf = this.cdf;
+    const m = mu.length;
+    let totalMean = this.detMean;
+    for (let i = 0; i < m; i++) totalMean += mu[i]! * area[i]!;
+    const negligible = 1e-6 * totalMean;
+    let bigMean = this.detMean;
+    let bigVar = this.detVar;
+    let smallMu = 0;
+    for (let i = 0; i < m; i++) {
+      const u = mu[i]!;
+      if (u > 0) {
+        const a = area[i]!;
+        const ua = u * a;
+        if (ua < negligible) bigMean += ua;
+        else if (u >= 20) {
+          bigMean += ua;
+          bigVar += ua * a;
+        } else smallMu += u;
       }
-      total += area[lo]!;
+      cdf[i] = smallMu;
     }
+    let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
+    if (smallMu > 0) {
+      const n = rng.poisson(smallMu);
+      const scale = smallMu / 4294967296;
+      for (let j = 0; j < n; j++) {
+        const x = rng.nextUint32() * scale;
+        let lo = 0;
+        let hi = m - 1;
+        while (lo < hi) {
+          const mid = (lo + hi) >> 1;
+          if (cdf[mid]! > x) hi = mid;
+          else lo = mid + 1;
+        }
+        total += area[lo]!;
+      }
+    }
+    const cols = this.aliasProb.length;
+    if (this.detExactMu > 0 && cols > 0) {
+      const n = rng.poisson(this.detExactMu);
+      for (let j = 0; j < n; j++) {
+        // one 32-bit output: the column from its high part, the coin from the rest
+        const x = rng.nextUint32() * (cols / 4294967296);
+        const c = Math.min(Math.floor(x), cols - 1);
+        total += this.aliasArea[x - c < this.aliasProb[c]! ? c : this.aliasOther[c]!]!;
+      }
+    }
+    return total / this.ab;
   }
-  return total / ab;
 }
 
 export function simulate(args: {
@@ -291,13 +360,9 @@ export function simulate(args: {
   const lam = new Float64Array(SPECTRUM_BIN_COUNT);
   const tailTmp = new Float64Array(SPECTRUM_BIN_COUNT);
   const factor = new Float64Array(nGroups);
-  const mu = new Float64Array(2 * SPECTRUM_BIN_COUNT);
-  const area = new Float64Array(2 * SPECTRUM_BIN_COUNT);
-  const cdf = new Float64Array(2 * SPECTRUM_BIN_COUNT);
-  for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
-    mu[SPECTRUM_BIN_COUNT + k] = ev.detectedCountBins[k]!;
-    area[SPECTRUM_BIN_COUNT + k] = ev.detectedAreaPerParticleBins[k]!;
-  }
+  const mu = new Float64Array(SPECTRUM_BIN_COUNT);
+  const area = new Float64Array(SPECTRUM_BIN_COUNT);
+  const exponent = new ExponentSampler(ev.detectedCountBins, ev.detectedAreaPerParticleBins, ab);
   const alpha = args.clusterAlpha;
 
   // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
@@ -334,7 +399,7 @@ export function simulate(args: {
       area[k] = Math.PI * r * r;
     }
     voids[t] = rng.poisson(meanVoids);
-    unb[t] = -Math.expm1(-drawExponent(rng, mu, area, 2 * SPECTRUM_BIN_COUNT, ab, cdf));
+    unb[t] = -Math.expm1(-exponent.draw(rng, mu, area));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
       kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);

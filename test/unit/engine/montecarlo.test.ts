@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { tailBins } from '../../../src/engine/montecarlo.ts';
+import { ExponentSampler, tailBins } from '../../../src/engine/montecarlo.ts';
 import { assessPair } from '../../../src/engine/pair.ts';
+import { createRng } from '../../../src/model/rng.ts';
 import { powerLawSpectrum, SPECTRUM_BIN_COUNT } from '../../../src/model/spectrum.ts';
 import {
   counterSeries,
@@ -28,6 +29,62 @@ describe('tailBins', () => {
       // hand computation: the whole tail holds n·((floor/x_m)^−α − 1)
       expect(ours.reduce((s, v) => s + v, 0) / (n * ((floor / xm) ** -a - 1))).toBeCloseTo(1, 12);
     }
+  });
+});
+
+describe('ExponentSampler', () => {
+  // A compound Poisson sum X = Σ_k Σ_{i ≤ N_k} a_k with N_k ~ Poisson(μ_k) has mean Σ μ_k a_k and
+  // variance Σ μ_k a_k² (e.g. Feller, An Introduction to Probability Theory, vol. 1, §XII.2). Every
+  // entry here has a different area, so a wrong pick among entries (alias table or CDF) moves the
+  // mean; the checks allow 4 standard errors of the sample mean and 10 % on the variance
+  // (the sample variance's relative standard error is about √(κ/n) ≈ 1 % here).
+  function moments(detMu: Float64Array, detArea: Float64Array, mu: Float64Array, area: Float64Array) {
+    const ab = 1;
+    const s = new ExponentSampler(detMu, detArea, ab);
+    const rng = createRng(21);
+    const n = 40_000;
+    let sum = 0;
+    let sum2 = 0;
+    for (let i = 0; i < n; i++) {
+      const x = s.draw(rng, mu, area);
+      sum += x;
+      sum2 += x * x;
+    }
+    const mean = sum / n;
+    let m = 0;
+    let v = 0;
+    for (const [u, a] of [
+      [detMu, detArea],
+      [mu, area],
+    ] as const)
+      for (let k = 0; k < u.length; k++) {
+        m += u[k]! * a[k]!;
+        v += u[k]! * a[k]! * a[k]!;
+      }
+    return { mean, variance: sum2 / n - mean * mean, m, v, n };
+  }
+  const bins = (f: (k: number) => number) => Float64Array.from({ length: SPECTRUM_BIN_COUNT }, (_, k) => f(k));
+
+  it('has the compound Poisson mean and variance with detected entries only (alias table)', () => {
+    const r = moments(
+      bins((k) => (k >= 20 && k < 30 ? 0.3 + 0.4 * (k - 20) : 0)),
+      bins((k) => 1e-3 * (k + 1)),
+      bins(() => 0),
+      bins(() => 0),
+    );
+    expect(Math.abs(r.mean - r.m)).toBeLessThan(4 * Math.sqrt(r.v / r.n));
+    expect(Math.abs(r.variance / r.v - 1)).toBeLessThan(0.1);
+  });
+
+  it('has the compound Poisson mean and variance with both kinds, some entries many-disc (normal part)', () => {
+    const r = moments(
+      bins((k) => (k < 10 ? 50 : k < 25 ? 2 : 0)),
+      bins((k) => 2e-4 * (k + 1)),
+      bins((k) => (k < 15 ? 30 : k < 40 ? 0.5 : 0)),
+      bins((k) => 3e-4 * (k + 1)),
+    );
+    expect(Math.abs(r.mean - r.m)).toBeLessThan(4 * Math.sqrt(r.v / r.n));
+    expect(Math.abs(r.variance / r.v - 1)).toBeLessThan(0.1);
   });
 });
 
