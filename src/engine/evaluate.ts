@@ -17,7 +17,6 @@
  */
 import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import type { DieGridIndex } from './geometry.ts';
-import { forEachDieHit } from './geometry.ts';
 import { type Contribution, interfaceSpectrum } from './propagate.ts';
 
 /** Per-product void and yield helpers (physics.ts builds them from the model library). */
@@ -66,33 +65,6 @@ export interface DetectedFlat {
    */
   hitStart: Int32Array | null;
   hitDie: Int32Array | null;
-}
-
-/** Builds the compressed die-hit rows of detected particles (direct die-grid index ranges). */
-export function buildHits(
-  grid: DieGridIndex,
-  xM: Float64Array,
-  yM: Float64Array,
-  rM: Float64Array,
-): { hitStart: Int32Array; hitDie: Int32Array } {
-  const n = xM.length;
-  const hitStart = new Int32Array(n + 1);
-  let buf = new Int32Array(Math.max(16, 2 * n));
-  let m = 0;
-  const push = (die: number) => {
-    if (m === buf.length) {
-      const b = new Int32Array(2 * buf.length);
-      b.set(buf);
-      buf = b;
-    }
-    buf[m++] = die;
-  };
-  for (let j = 0; j < n; j++) {
-    hitStart[j] = m;
-    forEachDieHit(grid, xM[j]!, yM[j]!, rM[j]!, push);
-  }
-  hitStart[n] = m;
-  return { hitStart, hitDie: buf.slice(0, m) };
 }
 
 export interface ContributionFigures {

@@ -111,42 +111,62 @@ export function buildDieGrid(layout: DieLayoutInput, usableRadiusM: number): Die
   };
 }
 
-/** Slack of the candidate cell range, in cells (see forEachDieHit). */
+/** Slack of the candidate cell range, in cells. */
 const RANGE_SLACK = 1e-9;
 
 /**
- * Calls visit(dieIndex) for every die whose critical rectangle a disc of radius r at (x, y)
- * reaches (distance from the centre to the rectangle ≤ r: touching counts, so a particle exactly
- * on a die edge hits that die). Only the grid cells the disc's bounding box overlaps are examined
- * (direct index ranges, no search over all dies).
+ * The dies each disc reaches, for many discs at once, as compressed rows: the dies of disc j are
+ * hitDie[hitStart[j] … hitStart[j+1] − 1]. A disc reaches a die when the distance from its centre
+ * to the die's critical rectangle (pad or die) is ≤ r: touching counts, so a particle exactly on a
+ * die edge hits that die. Only the grid cells whose rectangles can meet the disc are examined: die
+ * (i, j) has its rectangle at [x0 + i·px + offX, … + critW], which meets [x − r, x + r] only for i
+ * in [(x − r − x0 − offX − critW)/px, (x + r − x0 − offX)/px] (likewise in y); the range is widened
+ * by RANGE_SLACK of a cell each side so that rounding at an exact edge cannot drop a die, and the
+ * distance test decides. Direct index ranges: no search over all dies.
  */
-export function forEachDieHit(
+export function buildDieHits(
   g: DieGridIndex,
-  x: number,
-  y: number,
-  r: number,
-  visit: (die: number) => void,
-): void {
+  xM: Float64Array,
+  yM: Float64Array,
+  rM: Float64Array,
+): { hitStart: Int32Array; hitDie: Int32Array } {
   const { pitchXM: px, pitchYM: py, originXM: x0, originYM: y0, pad } = g.layout;
-  const offX = pad ? pad.xM : 0;
-  const offY = pad ? pad.yM : 0;
-  // A die (i, j) has its critical rectangle at [x0 + i·px + offX, … + critW]; it can be reached only
-  // if that interval meets [x − r, x + r], i.e. for i in [(x − r − x0 − offX − critW)/px, (x + r − x0 − offX)/px].
-  // The range is widened by 10⁻⁹ of a cell each side so that rounding at an exact edge cannot drop a
-  // die; the distance test below decides.
-  const iLo = Math.max(g.colMin, Math.ceil((x - r - x0 - offX - g.critW) / px - RANGE_SLACK));
-  const iHi = Math.min(g.colMin + g.cols - 1, Math.floor((x + r - x0 - offX) / px + RANGE_SLACK));
-  const jLo = Math.max(g.rowMin, Math.ceil((y - r - y0 - offY - g.critH) / py - RANGE_SLACK));
-  const jHi = Math.min(g.rowMin + g.rows - 1, Math.floor((y + r - y0 - offY) / py + RANGE_SLACK));
-  const r2 = r * r;
-  for (let j = jLo; j <= jHi; j++)
-    for (let i = iLo; i <= iHi; i++) {
-      const k = g.cell[i - g.colMin + (j - g.rowMin) * g.cols]!;
-      if (k < 0) continue;
-      const rx = g.critX0[k]!;
-      const ry = g.critY0[k]!;
-      const dx = x < rx ? rx - x : x > rx + g.critW ? x - rx - g.critW : 0;
-      const dy = y < ry ? ry - y : y > ry + g.critH ? y - ry - g.critH : 0;
-      if (dx * dx + dy * dy <= r2) visit(k);
-    }
+  const ax = x0 + (pad ? pad.xM : 0);
+  const ay = y0 + (pad ? pad.yM : 0);
+  const { colMin, rowMin, cols, critW, critH, cell, critX0, critY0 } = g;
+  const colMax = colMin + cols - 1;
+  const rowMax = rowMin + g.rows - 1;
+  const n = xM.length;
+  const hitStart = new Int32Array(n + 1);
+  let buf = new Int32Array(Math.max(16, 2 * n));
+  let m = 0;
+  for (let p = 0; p < n; p++) {
+    hitStart[p] = m;
+    const x = xM[p]!;
+    const y = yM[p]!;
+    const r = rM[p]!;
+    const iLo = Math.max(colMin, Math.ceil((x - r - ax - critW) / px - RANGE_SLACK));
+    const iHi = Math.min(colMax, Math.floor((x + r - ax) / px + RANGE_SLACK));
+    const jLo = Math.max(rowMin, Math.ceil((y - r - ay - critH) / py - RANGE_SLACK));
+    const jHi = Math.min(rowMax, Math.floor((y + r - ay) / py + RANGE_SLACK));
+    const r2 = r * r;
+    for (let j = jLo; j <= jHi; j++)
+      for (let i = iLo; i <= iHi; i++) {
+        const k = cell[i - colMin + (j - rowMin) * cols]!;
+        if (k < 0) continue;
+        const rx = critX0[k]!;
+        const ry = critY0[k]!;
+        const dx = x < rx ? rx - x : x > rx + critW ? x - rx - critW : 0;
+        const dy = y < ry ? ry - y : y > ry + critH ? y - ry - critH : 0;
+        if (dx * dx + dy * dy > r2) continue;
+        if (m === buf.length) {
+          const b = new Int32Array(2 * buf.length);
+          b.set(buf);
+          buf = b;
+        }
+        buf[m++] = k;
+      }
+  }
+  hitStart[n] = m;
+  return { hitStart, hitDie: buf.slice(0, m) };
 }

@@ -11,10 +11,10 @@
 import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import { buildPareto, dominantSource, paretoMetric, sourceContributions } from './attribution.ts';
 import { MODEL_VERSION, resolveConfig } from './config.ts';
-import { buildHits, type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
+import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
 import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
 import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
-import { mirrorIntoBondFrame } from './geometry.ts';
+import { buildDieHits, mirrorIntoBondFrame } from './geometry.ts';
 import { canonicalHash } from './hash.ts';
 import { boundFrom, type DrawSet, estimateFrom, simulate, sorted } from './montecarlo.ts';
 import { buildProductPhysics, type ProductPhysics } from './physics.ts';
@@ -194,7 +194,7 @@ function flattenDetected(
     o += d.survival.length;
   });
   if (physics.dieGrid) {
-    const h = buildHits(physics.dieGrid, flat.xM, flat.yM, flat.rM);
+    const h = buildDieHits(physics.dieGrid, flat.xM, flat.yM, flat.rM);
     flat.hitStart = h.hitStart;
     flat.hitDie = h.hitDie;
   }

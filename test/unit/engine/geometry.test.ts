@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { buildDieGrid, forEachDieHit, mirrorIntoBondFrame } from '../../../src/engine/geometry.ts';
+import { buildDieGrid, buildDieHits, mirrorIntoBondFrame } from '../../../src/engine/geometry.ts';
 import type { DieLayoutInput } from '../../../src/engine/types.ts';
 import { createRng } from '../../../src/model/rng.ts';
 
@@ -15,9 +15,9 @@ const layout = (over: Partial<DieLayoutInput> = {}): DieLayoutInput => ({
 });
 
 function hits(g: ReturnType<typeof buildDieGrid>, x: number, y: number, r: number): number[] {
-  const out: number[] = [];
-  forEachDieHit(g, x, y, r, (d) => out.push(d));
-  return out.sort((a, b) => a - b);
+  const h = buildDieHits(g, Float64Array.of(x), Float64Array.of(y), Float64Array.of(r));
+  expect(h.hitStart[1]).toBe(h.hitDie.length);
+  return Array.from(h.hitDie).sort((a, b) => a - b);
 }
 
 /** Brute force: distance from a point to every die's critical rectangle (hand-written geometry). */
@@ -111,7 +111,7 @@ describe('buildDieGrid', () => {
   });
 });
 
-describe('forEachDieHit', () => {
+describe('buildDieHits', () => {
   it('counts a particle exactly on a die edge as hitting that die (touching counts)', () => {
     const g = buildDieGrid(layout({ pitchXM: 12e-3, pitchYM: 7e-3 }), 0.1);
     const die = g.cell[0 - g.colMin + (0 - g.rowMin) * g.cols]!;
@@ -144,6 +144,22 @@ describe('forEachDieHit', () => {
         const r = rng.uniform() < 0.5 ? rng.uniform() * 1e-3 : rng.uniform() * 12e-3;
         expect(hits(g, x, y, r)).toEqual(bruteHits(g, x, y, r));
       }
+    }
+  });
+
+  it('keeps one row per disc when many discs are built at once (the rows the engine reads)', () => {
+    const rng = createRng(12);
+    const g = buildDieGrid(layout({ pitchXM: 10.2e-3, pitchYM: 5.1e-3 }), 0.147);
+    const n = 3000;
+    const x = Float64Array.from({ length: n }, () => (rng.uniform() - 0.5) * 0.3);
+    const y = Float64Array.from({ length: n }, () => (rng.uniform() - 0.5) * 0.3);
+    const r = Float64Array.from({ length: n }, () => rng.uniform() * 8e-3);
+    const h = buildDieHits(g, x, y, r);
+    expect(h.hitStart[0]).toBe(0);
+    expect(h.hitStart[n]).toBe(h.hitDie.length);
+    for (let j = 0; j < n; j++) {
+      const row = Array.from(h.hitDie.subarray(h.hitStart[j]!, h.hitStart[j + 1]!)).sort((a, b) => a - b);
+      expect(row).toEqual(bruteHits(g, x[j]!, y[j]!, r[j]!));
     }
   });
 });

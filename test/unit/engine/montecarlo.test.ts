@@ -63,7 +63,8 @@ describe('ExponentSampler', () => {
       }
     return { mean, variance: sum2 / n - mean * mean, m, v, n };
   }
-  const bins = (f: (k: number) => number) => Float64Array.from({ length: SPECTRUM_BIN_COUNT }, (_, k) => f(k));
+  const bins = (f: (k: number) => number) =>
+    Float64Array.from({ length: SPECTRUM_BIN_COUNT }, (_, k) => f(k));
 
   it('has the compound Poisson mean and variance with detected entries only (alias table)', () => {
     const r = moments(
