@@ -200,7 +200,7 @@ export class ExponentSampler {
     const scaled = exact.map((k) => (detMu[k]! * m) / sumMu);
     const small: number[] = [];
     const large: number[] = [];
-    scaled.forEach((w, i) => (w < 1 ? small : large).push(i));
+    for (let i = 0; i < m; i++) (scaled[i]! < 1 ? small : large).push(i);
     while (small.length && large.length) {
       const l = small.pop()!;
       const g = large.pop()!;
