@@ -9,7 +9,7 @@ import { insertDisposition } from '../store/dispositions.ts';
 import { getLocation } from '../store/locations.ts';
 import { listLots, readLot } from '../store/lots.ts';
 import { readProduct } from '../store/products.ts';
-import { latestScanBefore, readScanInput } from '../store/scans.ts';
+import { latestScanBefore, scanInputOf } from '../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
@@ -197,7 +197,7 @@ function loadPairs(
       };
     });
     const head = withScan ? latestScanBefore(db, waferId, endMs) : null;
-    const scan = head ? readScanInput(db, head.scanId) : null;
+    const scan = head ? scanInputOf(db, head) : null;
     return { waferId, lotId, latestScan: scan, ledger, recleanCount };
   };
 

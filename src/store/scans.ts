@@ -194,12 +194,16 @@ export function readScanDefects(db: Db, scanId: string): ScanDefects | null {
   };
 }
 
-/** Keeps the defects whose class is in `classes` (a new, compact set of arrays). */
+/**
+ * Keeps the defects whose class is in `classes`: a new, compact set of arrays, or the defects' own
+ * arrays when every defect is kept (read-only views, as readScanDefects says).
+ */
 export function selectDefects(defects: ScanDefects, classes: readonly DefectClass[]): ParticleColumns {
   const keep = new Uint8Array(DEFECT_CLASSES.length);
   for (const c of classes) keep[DEFECT_CLASS_CODE[c]] = 1;
   let n = 0;
   for (let i = 0; i < defects.count; i++) if (keep[defects.classCode[i]!]) n++;
+  if (n === defects.count) return { count: n, xM: defects.xM, yM: defects.yM, diameterM: defects.diameterM };
   const xM = new Float64Array(n);
   const yM = new Float64Array(n);
   const diameterM = new Float64Array(n);
@@ -224,8 +228,17 @@ export function readScanInput(
   classes: readonly DefectClass[] = PARTICLE_LIKE_CLASSES,
 ): StoredScanInput | null {
   const h = readScanHeader(db, scanId);
-  const d = readScanDefects(db, scanId);
-  if (!h || !d) return null;
+  return h ? scanInputOf(db, h, classes) : null;
+}
+
+/** readScanInput for a header already read (latestScanBefore's), without reading it again. */
+export function scanInputOf(
+  db: Db,
+  h: ScanHeader,
+  classes: readonly DefectClass[] = PARTICLE_LIKE_CLASSES,
+): StoredScanInput | null {
+  const d = readScanDefects(db, h.scanId);
+  if (!d) return null;
   return {
     scanId: h.scanId,
     timeMs: h.timeMs,

@@ -63,6 +63,39 @@ describe('migrations', () => {
     db.close();
   });
 
+  it('0017 moves the scan blobs to the end of the row and keeps every scan as it was', () => {
+    const file = join(tempDir(), 'scans.db');
+    const db = openDatabase(file);
+    migrate(db, { upTo: 16 });
+    db.prepare(
+      `INSERT INTO imports (kind, file_name, sha256, status, bytes, rows_read, rows_stored, rows_rejected, duplicates,
+         dialect, metadata, notes, issues, imported_at)
+       VALUES ('scans', 's.csv', ?, 'imported', 0, 0, 0, 0, 0, '{}', '{}', '[]', '[]', '2026-01-01T00:00:00Z')`,
+    ).run('a'.repeat(64));
+    db.prepare("INSERT INTO lots (id, product_id, created_import_id) VALUES ('L1', NULL, 1)").run();
+    db.prepare("INSERT INTO wafers (id, lot_id, created_import_id) VALUES ('W1', 'L1', 1)").run();
+    const blob = (n: number, v: number) =>
+      Buffer.from(Float64Array.from({ length: n }, (_, i) => v + i).buffer);
+    db.prepare(
+      `INSERT INTO scans (scan_key, wafer_id, step, tool_id, chamber, recipe, film, time_ms, time_text, wafer_diameter_m,
+         edge_exclusion_m, threshold_m, convention, defect_count, x_m, y_m, diameter_m, class_codes, content_sha256, import_id, line)
+       VALUES ('S1', 'W1', 'pre-bond', 'INSP', NULL, 'R', NULL, 1000, '1970-01-01T00:00:01Z', 0.3, 0.003, 4.5e-8,
+         'origin=centre', 3000, ?, ?, ?, ?, ?, 1, 7)`,
+    ).run(blob(3000, 1), blob(3000, 2), blob(3000, 3), Buffer.alloc(3000, 5), 'b'.repeat(64));
+    const before = db.prepare('SELECT * FROM scans').all();
+    migrate(db);
+    const cols = (db.pragma('table_info(scans)') as { name: string }[]).map((c) => c.name);
+    expect(cols.slice(-4)).toEqual(['x_m', 'y_m', 'diameter_m', 'class_codes']);
+    const after = db.prepare('SELECT * FROM scans').all() as Record<string, unknown>[];
+    expect(after).toHaveLength(1);
+    expect(after[0]).toEqual(before[0]); // same values by column name, blobs byte for byte
+    const idx = db.prepare("SELECT sql FROM sqlite_master WHERE name = 'scans_wafer_time'").get() as {
+      sql: string;
+    };
+    expect(idx.sql).toMatch(/ON scans \(wafer_id, time_ms\)/);
+    db.close();
+  });
+
   it('rolls a failing migration back whole, leaving the earlier schema and its record', () => {
     const dir = tempDir();
     writeFileSync(join(dir, '0001_a.sql'), 'CREATE TABLE a (x INTEGER);');
