@@ -154,36 +154,52 @@ export function evaluate(
   const detSurvivePerDie = grid ? new Float64Array(nDies).fill(1) : null;
   const detEventsPerDie = grid ? new Float64Array(nDies) : null;
   const dMinR = physics.smallestReportableVoidM / 2;
+  const invAb = 1 / ab;
+  // Per-source sums kept in arrays inside the loop, added to the contributions' figures after it.
+  const nSources = per.length;
+  const srcExponent = new Float64Array(nSources);
+  const srcVoids = new Float64Array(nSources);
+  const srcEvents = new Float64Array(nSources);
+  const { survival, rM, source, bin: binOfParticle, hitStart, hitDie } = detected;
+  const withDies =
+    detSurvivePerDie !== null && detEventsPerDie !== null && hitStart !== null && hitDie !== null;
   let detectedVoids = 0;
-  for (let j = 0; j < detected.survival.length; j++) {
-    const s = detected.survival[j]!;
+  for (let j = 0; j < survival.length; j++) {
+    const s = survival[j]!;
     if (s <= 0) continue;
-    const r = detected.rM[j]!;
-    const fig = per[detected.source[j]!]!;
-    const bin = detected.bin[j]!;
+    const r = rM[j]!;
+    const src = source[j]!;
+    const bin = binOfParticle[j]!;
     detectedCountBins[bin]! += s;
-    const a = Math.PI * r * r;
-    detAreaSum[bin]! += s * a;
-    const e = (s * a) / ab;
-    fig.exponent += e;
+    const sa = s * Math.PI * r * r;
+    detAreaSum[bin]! += sa;
+    const e = sa * invAb;
+    srcExponent[src]! += e;
     exponentBins[bin]! += e;
     if (r >= dMinR) {
-      fig.voids += s;
+      srcVoids[src]! += s;
       voidsBins[bin]! += s;
       detectedVoids += s;
     }
-    if (detSurvivePerDie && detEventsPerDie && detected.hitStart && detected.hitDie) {
-      const h0 = detected.hitStart[j]!;
-      const h1 = detected.hitStart[j + 1]!;
+    if (withDies) {
+      const h0 = hitStart[j]!;
+      const h1 = hitStart[j + 1]!;
       const keep = 1 - s;
       for (let h = h0; h < h1; h++) {
-        const die = detected.hitDie[h]!;
+        const die = hitDie[h]!;
         detSurvivePerDie[die]! *= keep;
         detEventsPerDie[die]! += s;
       }
-      fig.dieEvents += s * (h1 - h0);
-      eventsBins[bin]! += s * (h1 - h0);
+      const ev = s * (h1 - h0);
+      srcEvents[src]! += ev;
+      eventsBins[bin]! += ev;
     }
+  }
+  for (let c = 0; c < nSources; c++) {
+    const fig = per[c]!;
+    fig.exponent += srcExponent[c]!;
+    fig.voids += srcVoids[c]!;
+    fig.dieEvents += srcEvents[c]!;
   }
   const detectedAreaPerParticleBins = new Float64Array(SPECTRUM_BIN_COUNT);
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)

@@ -22,9 +22,21 @@ export function mirrorIntoBondFrame(
   yM: Float64Array,
   p: Placement,
 ): { xM: Float64Array; yM: Float64Array } {
+  const out = { xM: new Float64Array(xM.length), yM: new Float64Array(xM.length) };
+  mirrorInto(xM, yM, p, out.xM, out.yM, 0);
+  return out;
+}
+
+/** mirrorIntoBondFrame written into outX/outY from `offset` on (no new arrays). */
+export function mirrorInto(
+  xM: Float64Array,
+  yM: Float64Array,
+  p: Placement,
+  outX: Float64Array,
+  outY: Float64Array,
+  offset: number,
+): void {
   const n = xM.length;
-  const ox = new Float64Array(n);
-  const oy = new Float64Array(n);
   const c = Math.cos(p.rotationRad);
   const s = Math.sin(p.rotationRad);
   const fx = p.flipAxis === 'y' ? -1 : 1;
@@ -32,10 +44,9 @@ export function mirrorIntoBondFrame(
   for (let i = 0; i < n; i++) {
     const x = fx * xM[i]!;
     const y = fy * yM[i]!;
-    ox[i] = c * x - s * y + p.offsetXM;
-    oy[i] = s * x + c * y + p.offsetYM;
+    outX[offset + i] = c * x - s * y + p.offsetXM;
+    outY[offset + i] = s * x + c * y + p.offsetYM;
   }
-  return { xM: ox, yM: oy };
 }
 
 /** The whole dies of a layout inside the usable radius (wafer radius − edge exclusion). */

@@ -81,19 +81,40 @@ export function tailBins(
   out: Float64Array,
 ): Float64Array {
   out.fill(0);
+  return tailBinsOf(tailShape(xm, floor), n, alpha, out);
+}
+
+/**
+ * The bins a tail between `floor` and its threshold x_m covers, [k0, k0 + m), and ln(e/x_m) at
+ * their m + 1 edges clipped to [floor, x_m] — fixed per tail, so a draw needs one exp per edge.
+ */
+export interface TailShape {
+  k0: number;
+  lnRatio: Float64Array;
+}
+
+export function tailShape(xm: number, floor: number): TailShape {
+  let k0 = 0;
+  while (k0 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k0 + 1]! <= floor) k0++;
+  let k1 = k0;
+  while (k1 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k1]! < xm) k1++;
+  const lnRatio = new Float64Array(Math.max(k1 - k0, 0) + 1);
+  for (let i = 0; i < lnRatio.length; i++) {
+    const e = Math.min(Math.max(SPECTRUM_EDGES_M[k0 + i]!, floor), xm);
+    lnRatio[i] = Math.log(e / xm);
+  }
+  return { k0, lnRatio };
+}
+
+/** Writes the tail's counts into out[k0 … k0 + m − 1] (the other bins are left as they are). */
+export function tailBinsOf(shape: TailShape, n: number, alpha: number, out: Float64Array): Float64Array {
   const a = Math.min(Math.max(alpha, 0), 10);
-  // Only the bins between the floor and the threshold hold tail particles; each edge's power is
-  // computed once and shared by the two bins it separates.
-  let prev = Number.NaN;
-  for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
-    if (SPECTRUM_EDGES_M[k + 1]! <= floor) continue;
-    const lo = Math.max(SPECTRUM_EDGES_M[k]!, floor);
-    if (lo >= xm) break;
-    const hi = Math.min(SPECTRUM_EDGES_M[k + 1]!, xm);
-    const pLo = Number.isNaN(prev) ? (lo / xm) ** -a : prev;
-    const pHi = (hi / xm) ** -a;
-    prev = pHi;
-    out[k] = Math.max(n * (pLo - pHi), 0);
+  const { k0, lnRatio } = shape;
+  let prev = Math.exp(-a * lnRatio[0]!); // (lo/x_m)^(−α)
+  for (let i = 1; i < lnRatio.length; i++) {
+    const next = Math.exp(-a * lnRatio[i]!);
+    out[k0 + i - 1] = Math.max(n * (prev - next), 0);
+    prev = next;
   }
   return out;
 }
@@ -298,9 +319,7 @@ export function simulate(args: {
     v: Extract<Contribution['variation'], { type: 'tail' }>;
     /** Survival of the later cleans over the area basis, per bin (tail count → density). */
     weight: Float64Array;
-    /** The bins between the tail's floor and its threshold: [k0, k1). */
-    k0: number;
-    k1: number;
+    shape: TailShape;
   }[] = [];
   contributions.forEach((c, i) => {
     const v = c.variation;
@@ -308,11 +327,7 @@ export function simulate(args: {
     if (v.type === 'tail') {
       const weight = new Float64Array(SPECTRUM_BIN_COUNT);
       for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) weight[k] = c.survivalBins[k]! / c.areaBasisM2;
-      let k0 = 0;
-      while (k0 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k0 + 1]! <= v.floorM) k0++;
-      let k1 = k0;
-      while (k1 < SPECTRUM_BIN_COUNT && SPECTRUM_EDGES_M[k1]! < v.thresholdM) k1++;
-      tails.push({ v, weight, k0, k1 });
+      tails.push({ v, weight, shape: tailShape(v.thresholdM, v.floorM) });
       return;
     }
     let g = v.type === 'wait' ? 0 : v.type === 'tool' ? groupKeys.indexOf(`tool:${v.toolKey}`) : 1;
@@ -327,6 +342,13 @@ export function simulate(args: {
     for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) d[k]! += s[k]! / c.areaBasisM2;
   });
   const nGroups = groupKeys.length;
+  // Groups without uncertainty (factor 1 in every draw) are summed once.
+  const fixedDens = new Float64Array(SPECTRUM_BIN_COUNT);
+  const varying: number[] = [];
+  for (let g = 0; g < nGroups; g++) {
+    if (groupSigma[g]! > 0) varying.push(g);
+    else for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) fixedDens[k]! += groupDens[g]![k]!;
+  }
 
   const nDies = ev.dieCount;
   const det = ev.detSurvivePerDie;
@@ -377,16 +399,17 @@ export function simulate(args: {
     const radii = grid.radii[gi]!;
     const frac = grid.frac[gi]!;
     const acrit = grid.acrit[gi]!;
-    lam.fill(0);
-    for (let g = 0; g < nGroups; g++) {
+    lam.set(fixedDens);
+    for (const g of varying) {
       const d = groupDens[g]!;
       const f = factor[g]!;
       for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += d[k]! * f;
     }
     for (const tl of tails) {
       const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
-      tailBins(tl.v.n, a, tl.v.thresholdM, tl.v.floorM, tailTmp);
-      for (let k = tl.k0; k < tl.k1; k++) lam[k]! += tailTmp[k]! * tl.weight[k]!;
+      tailBinsOf(tl.shape, tl.v.n, a, tailTmp);
+      const k1 = tl.shape.k0 + tl.shape.lnRatio.length - 1;
+      for (let k = tl.shape.k0; k < k1; k++) lam[k]! += tailTmp[k]! * tl.weight[k]!;
     }
     let meanVoids = ev.detectedVoids;
     let m = 0;

@@ -14,7 +14,7 @@ import { MODEL_VERSION, resolveConfig } from './config.ts';
 import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
 import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
 import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
-import { buildDieHits, mirrorIntoBondFrame } from './geometry.ts';
+import { buildDieHits, mirrorInto } from './geometry.ts';
 import { canonicalHash } from './hash.ts';
 import { boundFrom, type DrawSet, estimateFrom, simulate, sorted } from './montecarlo.ts';
 import { buildProductPhysics, type ProductPhysics } from './physics.ts';
@@ -183,9 +183,11 @@ function flattenDetected(
   contributions.forEach((c, i) => {
     const d = c.detected;
     if (!d) return;
-    const pos = c.wafer === 'top' ? mirrorIntoBondFrame(d.xM, d.yM, pair) : { xM: d.xM, yM: d.yM };
-    flat.xM.set(pos.xM, o);
-    flat.yM.set(pos.yM, o);
+    if (c.wafer === 'top') mirrorInto(d.xM, d.yM, pair, flat.xM, flat.yM, o);
+    else {
+      flat.xM.set(d.xM, o);
+      flat.yM.set(d.yM, o);
+    }
     flat.diameterM.set(d.diameterM, o);
     const ix = sizeIndexOf(d.diameterM);
     flat.bin.set(ix.bin, o);

@@ -100,6 +100,13 @@ export function createRngFromState(words: readonly [number, number, number, numb
   return makeRng(st);
 }
 
+// Argument ranges of the draws, made once (the draws run millions of times in a Monte Carlo).
+const GAMMA_SHAPE = Object.freeze({ min: 0, minExclusive: true, max: 1e12 });
+const GAMMA_SCALE = Object.freeze({ min: 0, minExclusive: true, max: 1e100 });
+const POISSON_MEAN = Object.freeze({ min: 0, max: 1e12 });
+const NB_MEAN = Object.freeze({ min: 0, max: 1e9 });
+const NB_ALPHA = Object.freeze({ min: 1e-3, max: 1e12 });
+
 function rotl(x: number, k: number): number {
   return ((x << k) | (x >>> (32 - k))) >>> 0;
 }
@@ -215,17 +222,17 @@ function makeRng(s: Uint32Array): Rng {
     normal,
     normals,
     gamma(shape: number, scale = 1): number {
-      requireNumber('rng.gamma', 'shape', shape, '', { min: 0, minExclusive: true, max: 1e12 });
-      requireNumber('rng.gamma', 'scale', scale, '', { min: 0, minExclusive: true, max: 1e100 });
+      requireNumber('rng.gamma', 'shape', shape, '', GAMMA_SHAPE);
+      requireNumber('rng.gamma', 'scale', scale, '', GAMMA_SCALE);
       return gammaUnit(shape) * scale;
     },
     poisson(mean: number): number {
-      requireNumber('rng.poisson', 'mean', mean, 'count', { min: 0, max: 1e12 });
+      requireNumber('rng.poisson', 'mean', mean, 'count', POISSON_MEAN);
       return poissonUnchecked(mean);
     },
     negativeBinomial(mean: number, alpha: number): number {
-      requireNumber('rng.negativeBinomial', 'mean', mean, 'count', { min: 0, max: 1e9 });
-      requireNumber('rng.negativeBinomial', 'alpha', alpha, '', { min: 1e-3, max: 1e12 });
+      requireNumber('rng.negativeBinomial', 'mean', mean, 'count', NB_MEAN);
+      requireNumber('rng.negativeBinomial', 'alpha', alpha, '', NB_ALPHA);
       if (mean === 0) return 0;
       // Gamma–Poisson mixture: λ ~ Gamma(α, m/α) (mean m, variance m²/α), N | λ ~ Poisson(λ).
       return poissonUnchecked(gammaUnit(alpha) * (mean / alpha));
