@@ -176,7 +176,8 @@ function drawKills(
  * The detected entries do not change between draws, so their classification (against the
  * detected total, which is never more than the whole) and an alias table for picking among them
  * (Walker 1977, in Vose's stable form, IEEE Trans. Softw. Eng. 17 (1991) 972) are built once; the
- * random entries change with every draw and are picked by inverse CDF (one 32-bit uniform each).
+ * random entries change with every draw and are picked by inverse CDF through a guide table (one
+ * 32-bit uniform each).
  */
 export class ExponentSampler {
   private readonly detMean: number;
@@ -186,6 +187,7 @@ export class ExponentSampler {
   private readonly aliasOther: Int32Array;
   private readonly aliasArea: Float64Array;
   private readonly cdf = new Float64Array(SPECTRUM_BIN_COUNT);
+  private readonly guide = new Int32Array(SPECTRUM_BIN_COUNT);
 
   constructor(
     detMu: Float64Array,
@@ -262,17 +264,26 @@ export class ExponentSampler {
     let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
     if (smallMu > 0) {
       const n = rng.poisson(smallMu);
-      const scale = smallMu / 4294967296;
-      for (let j = 0; j < n; j++) {
-        const x = rng.nextUint32() * scale;
-        let lo = 0;
-        let hi = m - 1;
-        while (lo < hi) {
-          const mid = (lo + hi) >> 1;
-          if (cdf[mid]! > x) hi = mid;
-          else lo = mid + 1;
+      if (n > 0) {
+        // Inverse CDF with a guide table (Chen & Asau 1974; Devroye, Non-Uniform Random Variate
+        // Generation, 1986, §III.2.4): guide[c] is the first entry whose CDF exceeds c·Σμ/m, so a
+        // search starts at most a step or two before its answer.
+        const guide = this.guide;
+        let i = 0;
+        for (let c = 0; c < m; c++) {
+          const t = (c * smallMu) / m;
+          while (i < m - 1 && cdf[i]! <= t) i++;
+          guide[c] = i;
         }
-        total += area[lo]!;
+        const toCell = m / 4294967296;
+        const toMu = smallMu / m;
+        for (let j = 0; j < n; j++) {
+          const u = rng.nextUint32() * toCell; // in [0, m)
+          const x = u * toMu; // in [0, Σμ)
+          let k = guide[Math.floor(u)]!;
+          while (k < m - 1 && cdf[k]! <= x) k++;
+          total += area[k]!;
+        }
       }
     }
     const cols = this.aliasProb.length;
