@@ -163,6 +163,21 @@ function drawKills(
   return Math.min(k, nDies);
 }
 
+/** Entries of the unbonded-area sum expected to hold fewer discs than this are drawn disc by disc. */
+export const EXACT_BELOW_COUNT = 20;
+/** Entries whose expected area is below this share of the sum's total add their mean only. */
+export const NEGLIGIBLE_SHARE = 1e-6;
+
+/** How one entry of the unbonded-area sum is drawn (see ExponentSampler). */
+export type EntryClass = 'none' | 'mean' | 'normal' | 'exact';
+
+/** Classifies an entry of expected disc count u and disc area a against the sum's total Σμa. */
+export function entryClass(u: number, a: number, total: number): EntryClass {
+  if (!(u > 0)) return 'none';
+  if (u * a < NEGLIGIBLE_SHARE * total) return 'mean';
+  return u >= EXACT_BELOW_COUNT ? 'normal' : 'exact';
+}
+
 /**
  * Unbonded area exponent of one draw, Σ (drawn disc areas) / A_b, as a compound Poisson sum over
  * entries (a bin of random particles, or a bin of detected particles with their mean disc area):
@@ -173,11 +188,12 @@ function drawKills(
  * - the others are drawn exactly: their total count ~ Poisson(Σμ), each disc's entry in proportion
  *   to the entries' means (a Poisson number of discs with independent marks, Kingman, Poisson
  *   Processes, 1993, §5.1).
- * The detected entries do not change between draws, so their classification (against the
- * detected total, which is never more than the whole) and an alias table for picking among them
- * (Walker 1977, in Vose's stable form, IEEE Trans. Softw. Eng. 17 (1991) 972) are built once; the
- * random entries change with every draw and are picked by inverse CDF through a guide table (one
- * 32-bit uniform each).
+ * Which entry is which is decided once per scenario from its nominal count and area (simulate);
+ * the draws keep it. The detected entries do not change between draws at all, so an alias table
+ * for picking among them (Walker 1977, in Vose's stable form, IEEE Trans. Softw. Eng. 17 (1991) 972)
+ * is built once; the random exact entries change with every draw and are picked by inverse CDF
+ * through a guide table (Chen & Asau 1974; Devroye, Non-Uniform Random Variate Generation, 1986,
+ * §III.2.4), one 32-bit uniform per disc.
  */
 export class ExponentSampler {
   private readonly detMean: number;
@@ -186,29 +202,33 @@ export class ExponentSampler {
   private readonly aliasProb: Float64Array;
   private readonly aliasOther: Int32Array;
   private readonly aliasArea: Float64Array;
-  private readonly cdf = new Float64Array(SPECTRUM_BIN_COUNT);
-  private readonly guide = new Int32Array(SPECTRUM_BIN_COUNT);
+  private readonly cdf: Float64Array;
+  private readonly guide: Int32Array;
 
+  /**
+   * @param detMu, detArea the detected entries (expected surviving count, mean disc area m²)
+   * @param total the whole sum's nominal Σμa (random and detected), m², for the 10⁻⁶ rule
+   * @param maxExact the most random exact entries a draw will pass
+   */
   constructor(
     detMu: Float64Array,
     detArea: Float64Array,
+    total: number,
     private readonly ab: number,
+    maxExact: number,
   ) {
-    let total = 0;
-    for (let k = 0; k < detMu.length; k++) if (detMu[k]! > 0) total += detMu[k]! * detArea[k]!;
-    const negligible = 1e-6 * total;
     let mean = 0;
     let variance = 0;
     const exact: number[] = [];
     for (let k = 0; k < detMu.length; k++) {
       const u = detMu[k]!;
-      if (!(u > 0)) continue;
-      const ua = u * detArea[k]!;
-      if (ua < negligible) mean += ua;
-      else if (u >= 20) {
-        mean += ua;
-        variance += ua * detArea[k]!;
-      } else exact.push(k);
+      const a = detArea[k]!;
+      const c = entryClass(u, a, total);
+      if (c === 'mean') mean += u * a;
+      else if (c === 'normal') {
+        mean += u * a;
+        variance += u * a * a;
+      } else if (c === 'exact') exact.push(k);
     }
     this.detMean = mean;
     this.detVar = variance;
@@ -236,38 +256,39 @@ export class ExponentSampler {
       this.aliasProb[i] = 1; // left over only by rounding: the column is its own
       this.aliasOther[i] = i;
     }
+    this.cdf = new Float64Array(Math.max(maxExact, 1));
+    this.guide = new Int32Array(Math.max(maxExact, 1));
   }
 
-  /** One draw's exponent, the random entries given by their means `mu` and disc areas `area` (per bin). */
-  draw(rng: Rng, mu: Float64Array, area: Float64Array): number {
+  /**
+   * One draw's exponent. The random entries come as the normal part's compound mean and variance
+   * (m², m⁴: Σμa and Σμa² over the 'normal' entries, plus Σμa of the 'mean' ones) and the first
+   * `nExact` of `muExact`/`areaExact` (expected count, disc area m²).
+   */
+  draw(
+    rng: Rng,
+    bigMean: number,
+    bigVar: number,
+    muExact: Float64Array,
+    areaExact: Float64Array,
+    nExact: number,
+  ): number {
+    const mean = bigMean + this.detMean;
+    const variance = bigVar + this.detVar;
+    let total = mean > 0 ? Math.max(mean + Math.sqrt(variance) * rng.normal(), 0) : 0;
     const cdf = this.cdf;
-    const m = mu.length;
-    let totalMean = this.detMean;
-    for (let i = 0; i < m; i++) totalMean += mu[i]! * area[i]!;
-    const negligible = 1e-6 * totalMean;
-    let bigMean = this.detMean;
-    let bigVar = this.detVar;
     let smallMu = 0;
-    for (let i = 0; i < m; i++) {
-      const u = mu[i]!;
-      if (u > 0) {
-        const a = area[i]!;
-        const ua = u * a;
-        if (ua < negligible) bigMean += ua;
-        else if (u >= 20) {
-          bigMean += ua;
-          bigVar += ua * a;
-        } else smallMu += u;
-      }
+    for (let i = 0; i < nExact; i++) {
+      const u = muExact[i]!;
+      if (u > 0) smallMu += u;
       cdf[i] = smallMu;
     }
-    let total = bigMean > 0 ? Math.max(bigMean + Math.sqrt(bigVar) * rng.normal(), 0) : 0;
     if (smallMu > 0) {
       const n = rng.poisson(smallMu);
       if (n > 0) {
-        // Inverse CDF with a guide table (Chen & Asau 1974; Devroye, Non-Uniform Random Variate
-        // Generation, 1986, §III.2.4): guide[c] is the first entry whose CDF exceeds c·Σμ/m, so a
-        // search starts at most a step or two before its answer.
+        // guide[c] is the first entry whose CDF exceeds c·Σμ/m, so a search starts at most a step
+        // or two before its answer.
+        const m = nExact;
         const guide = this.guide;
         let i = 0;
         for (let c = 0; c < m; c++) {
@@ -282,7 +303,7 @@ export class ExponentSampler {
           const x = u * toMu; // in [0, Σμ)
           let k = guide[Math.floor(u)]!;
           while (k < m - 1 && cdf[k]! <= x) k++;
-          total += area[k]!;
+          total += areaExact[k]!;
         }
       }
     }
@@ -300,6 +321,16 @@ export class ExponentSampler {
   }
 }
 
+/**
+ * The draws of one scenario. Every random-particle quantity a draw needs is linear in the bin
+ * densities λ_k = Σ_s f_s·D_sk (sources s: the sum of everything without uncertainty, with f = 1,
+ * and one group per uncertain factor — the waits' deposition factor, each tool's adder factor) plus
+ * the drawn tails. So for each small-gap grid point a draw lands on, the per-source sums
+ *   V_s = Σ_k D_sk·A_b·f_k (reportable voids),  M_s = Σ_k D_sk·A_crit,k (die-kill mean per die),
+ *   BM_s = Σ D_sk·A_b·a_k over 'normal' and 'mean' entries, BV_s = Σ D_sk·A_b·a_k² over 'normal' ones
+ * are made once; a draw then combines them with its factors, adds its tails bin by bin, and keeps
+ * per-bin densities only for the few 'exact' entries.
+ */
 export function simulate(args: {
   contributions: Contribution[];
   evaluation: Evaluation;
@@ -317,15 +348,13 @@ export function simulate(args: {
   const sigDep = Math.log(Math.max(cfg.depositionUncertaintyFactor, 1)) / Z975;
   const sigGap = Math.log(Math.max(cfg.smallGapUncertaintyFactor, 1)) / Z975;
   const gridN = grid.radii.length;
+  const B = SPECTRUM_BIN_COUNT;
 
   // Fixed densities (per m², per bin) summed per factor group: waits (deposition factor), each tool
   // (its adder factor), everything else (incoming: no factor). Tails are drawn separately.
   const groupKeys: string[] = ['wait', 'fixed'];
   const groupSigma: number[] = [sigDep, 0];
-  const groupDens: Float64Array[] = [
-    new Float64Array(SPECTRUM_BIN_COUNT),
-    new Float64Array(SPECTRUM_BIN_COUNT),
-  ];
+  const groupDens: Float64Array[] = [new Float64Array(B), new Float64Array(B)];
   const tails: {
     v: Extract<Contribution['variation'], { type: 'tail' }>;
     /** Survival of the later cleans over the area basis, per bin (tail count → density). */
@@ -336,8 +365,8 @@ export function simulate(args: {
     const v = c.variation;
     if (c.detected) return;
     if (v.type === 'tail') {
-      const weight = new Float64Array(SPECTRUM_BIN_COUNT);
-      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) weight[k] = c.survivalBins[k]! / c.areaBasisM2;
+      const weight = new Float64Array(B);
+      for (let k = 0; k < B; k++) weight[k] = c.survivalBins[k]! / c.areaBasisM2;
       tails.push({ v, weight, shape: tailShape(v.thresholdM, v.floorM) });
       return;
     }
@@ -346,20 +375,90 @@ export function simulate(args: {
       g = groupKeys.length;
       groupKeys.push(`tool:${(v as { toolKey: string }).toolKey}`);
       groupSigma.push(Math.log(Math.max((v as { uncertaintyFactor: number }).uncertaintyFactor, 1)) / Z975);
-      groupDens.push(new Float64Array(SPECTRUM_BIN_COUNT));
+      groupDens.push(new Float64Array(B));
     }
     const s = ev.perContribution[i]!.spectrum;
     const d = groupDens[g]!;
-    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) d[k]! += s[k]! / c.areaBasisM2;
+    for (let k = 0; k < B; k++) d[k]! += s[k]! / c.areaBasisM2;
   });
   const nGroups = groupKeys.length;
-  // Groups without uncertainty (factor 1 in every draw) are summed once.
-  const fixedDens = new Float64Array(SPECTRUM_BIN_COUNT);
-  const varying: number[] = [];
+  // Sources: 0 = every group without uncertainty (factor 1 in every draw), then the uncertain groups.
+  const sourceDens: Float64Array[] = [new Float64Array(B)];
+  const sourceGroup: number[] = [-1];
   for (let g = 0; g < nGroups; g++) {
-    if (groupSigma[g]! > 0) varying.push(g);
-    else for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) fixedDens[k]! += groupDens[g]![k]!;
+    if (groupSigma[g]! > 0) {
+      sourceDens.push(groupDens[g]!);
+      sourceGroup.push(g);
+    } else for (let k = 0; k < B; k++) sourceDens[0]![k]! += groupDens[g]![k]!;
   }
+  const nSources = sourceDens.length;
+
+  // Each bin's class from its nominal count and disc area (the evaluation's densities, the
+  // nominal small-gap point); the detected entries are classified against the same total.
+  const mid = (gridN - 1) >> 1;
+  const nominalArea = (k: number) => Math.PI * grid.radii[mid]![k]! ** 2;
+  let total = 0;
+  for (let k = 0; k < B; k++) {
+    total += ev.lambdaBins[k]! * ab * nominalArea(k);
+    total += ev.detectedCountBins[k]! * ev.detectedAreaPerParticleBins[k]!;
+  }
+  const binClass: EntryClass[] = [];
+  const exactIndex = new Int32Array(B).fill(-1);
+  const exactBins: number[] = [];
+  for (let k = 0; k < B; k++) {
+    const c = entryClass(ev.lambdaBins[k]! * ab, nominalArea(k), total);
+    binClass.push(c);
+    if (c === 'exact') {
+      exactIndex[k] = exactBins.length;
+      exactBins.push(k);
+    }
+  }
+  const nExact = exactBins.length;
+  // Per source, its density in the exact bins (× A_b: expected discs per pair).
+  const exactDens = sourceDens.map((d) => Float64Array.from(exactBins, (k) => d[k]! * ab));
+  const exponent = new ExponentSampler(
+    ev.detectedCountBins,
+    ev.detectedAreaPerParticleBins,
+    total,
+    ab,
+    nExact,
+  );
+
+  // Per small-gap grid point (made when a draw first lands there): V, M, BM, BV per source.
+  const sums: (Float64Array | null)[] = new Array(gridN).fill(null);
+  const sumsAt = (gi: number): Float64Array => {
+    const hit = sums[gi];
+    if (hit) return hit;
+    const r = grid.radii[gi]!;
+    const frac = grid.frac[gi]!;
+    const acrit = grid.acrit[gi]!;
+    const out = new Float64Array(4 * nSources);
+    for (let s = 0; s < nSources; s++) {
+      const d = sourceDens[s]!;
+      let v = 0;
+      let m = 0;
+      let bm = 0;
+      let bv = 0;
+      for (let k = 0; k < B; k++) {
+        const x = d[k]!;
+        if (x === 0) continue;
+        v += x * ab * frac[k]!;
+        m += x * acrit[k]!;
+        const c = binClass[k]!;
+        if (c === 'normal' || c === 'mean' || c === 'none') {
+          const a = Math.PI * r[k]! * r[k]!;
+          bm += x * ab * a;
+          if (c === 'normal') bv += x * ab * a * a;
+        }
+      }
+      out[4 * s] = v;
+      out[4 * s + 1] = m;
+      out[4 * s + 2] = bm;
+      out[4 * s + 3] = bv;
+    }
+    sums[gi] = out;
+    return out;
+  };
 
   const nDies = ev.dieCount;
   const det = ev.detSurvivePerDie;
@@ -390,12 +489,10 @@ export function simulate(args: {
   const unb = new Float64Array(nDraws);
   const kP = det ? new Float64Array(nDraws) : null;
   const kNB = det ? new Float64Array(nDraws) : null;
-  const lam = new Float64Array(SPECTRUM_BIN_COUNT);
-  const tailTmp = new Float64Array(SPECTRUM_BIN_COUNT);
-  const factor = new Float64Array(nGroups);
-  const mu = new Float64Array(SPECTRUM_BIN_COUNT);
-  const area = new Float64Array(SPECTRUM_BIN_COUNT);
-  const exponent = new ExponentSampler(ev.detectedCountBins, ev.detectedAreaPerParticleBins, ab);
+  const tailTmp = new Float64Array(B);
+  const factor = new Float64Array(nSources);
+  const muExact = new Float64Array(Math.max(nExact, 1));
+  const areaExact = new Float64Array(Math.max(nExact, 1));
   const alpha = args.clusterAlpha;
 
   // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
@@ -403,37 +500,56 @@ export function simulate(args: {
   const zs = rng.normals(new Float64Array(nDraws * zStride));
   for (let t = 0; t < nDraws; t++) {
     const z0 = t * zStride;
-    for (let g = 0; g < nGroups; g++)
-      factor[g] = groupSigma[g]! > 0 ? Math.exp(groupSigma[g]! * zs[z0 + g]!) : 1;
+    factor[0] = 1;
+    for (let s = 1; s < nSources; s++) {
+      const g = sourceGroup[s]!;
+      factor[s] = Math.exp(groupSigma[g]! * zs[z0 + g]!);
+    }
     const z = zs[z0 + nGroups]!;
     const gi = Math.min(gridN - 1, Math.max(0, Math.round(((sigGap > 0 ? z : 0) + 4) * ((gridN - 1) / 8))));
-    const radii = grid.radii[gi]!;
-    const frac = grid.frac[gi]!;
-    const acrit = grid.acrit[gi]!;
-    lam.set(fixedDens);
-    for (const g of varying) {
-      const d = groupDens[g]!;
-      const f = factor[g]!;
-      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) lam[k]! += d[k]! * f;
-    }
-    for (const tl of tails) {
-      const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
-      tailBinsOf(tl.shape, tl.v.n, a, tailTmp);
-      const k1 = tl.shape.k0 + tl.shape.lnRatio.length - 1;
-      for (let k = tl.shape.k0; k < k1; k++) lam[k]! += tailTmp[k]! * tl.weight[k]!;
-    }
+    const sv = sumsAt(gi);
     let meanVoids = ev.detectedVoids;
     let m = 0;
-    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
-      const l = lam[k]!;
-      const r = radii[k]!;
-      meanVoids += l * ab * frac[k]!;
-      m += l * acrit[k]!;
-      mu[k] = l * ab;
-      area[k] = Math.PI * r * r;
+    let bigMean = 0;
+    let bigVar = 0;
+    for (let s = 0; s < nSources; s++) {
+      const f = factor[s]!;
+      meanVoids += f * sv[4 * s]!;
+      m += f * sv[4 * s + 1]!;
+      bigMean += f * sv[4 * s + 2]!;
+      bigVar += f * sv[4 * s + 3]!;
+    }
+    const radii = grid.radii[gi]!;
+    for (let e = 0; e < nExact; e++) {
+      let u = 0;
+      for (let s = 0; s < nSources; s++) u += factor[s]! * exactDens[s]![e]!;
+      muExact[e] = u;
+      const r = radii[exactBins[e]!]!;
+      areaExact[e] = Math.PI * r * r;
+    }
+    if (tails.length > 0) {
+      const frac = grid.frac[gi]!;
+      const acrit = grid.acrit[gi]!;
+      for (const tl of tails) {
+        const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
+        tailBinsOf(tl.shape, tl.v.n, a, tailTmp);
+        const k1 = tl.shape.k0 + tl.shape.lnRatio.length - 1;
+        for (let k = tl.shape.k0; k < k1; k++) {
+          const x = tailTmp[k]! * tl.weight[k]!; // density, per m²
+          meanVoids += x * ab * frac[k]!;
+          m += x * acrit[k]!;
+          const c = binClass[k]!;
+          if (c === 'exact') muExact[exactIndex[k]!]! += x * ab;
+          else {
+            const ar = Math.PI * radii[k]! * radii[k]!;
+            bigMean += x * ab * ar;
+            if (c === 'normal') bigVar += x * ab * ar * ar;
+          }
+        }
+      }
     }
     voids[t] = rng.poisson(meanVoids);
-    unb[t] = -Math.expm1(-exponent.draw(rng, mu, area));
+    unb[t] = -Math.expm1(-exponent.draw(rng, bigMean, bigVar, muExact, areaExact, nExact));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
       kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);

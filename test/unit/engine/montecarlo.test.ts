@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ExponentSampler, tailBins } from '../../../src/engine/montecarlo.ts';
+import { ExponentSampler, entryClass, tailBins } from '../../../src/engine/montecarlo.ts';
 import { assessPair } from '../../../src/engine/pair.ts';
 import { createRng } from '../../../src/model/rng.ts';
 import { powerLawSpectrum, SPECTRUM_BIN_COUNT } from '../../../src/model/spectrum.ts';
@@ -40,17 +40,7 @@ describe('ExponentSampler', () => {
   // (the sample variance's relative standard error is about √(κ/n) ≈ 1 % here).
   function moments(detMu: Float64Array, detArea: Float64Array, mu: Float64Array, area: Float64Array) {
     const ab = 1;
-    const s = new ExponentSampler(detMu, detArea, ab);
-    const rng = createRng(21);
-    const n = 40_000;
-    let sum = 0;
-    let sum2 = 0;
-    for (let i = 0; i < n; i++) {
-      const x = s.draw(rng, mu, area);
-      sum += x;
-      sum2 += x * x;
-    }
-    const mean = sum / n;
+    let total = 0;
     let m = 0;
     let v = 0;
     for (const [u, a] of [
@@ -58,9 +48,39 @@ describe('ExponentSampler', () => {
       [mu, area],
     ] as const)
       for (let k = 0; k < u.length; k++) {
+        total += u[k]! * a[k]!;
         m += u[k]! * a[k]!;
         v += u[k]! * a[k]! * a[k]!;
       }
+    // the random entries split as simulate() splits them
+    let bigMean = 0;
+    let bigVar = 0;
+    const exactMu: number[] = [];
+    const exactArea: number[] = [];
+    for (let k = 0; k < mu.length; k++) {
+      const c = entryClass(mu[k]!, area[k]!, total);
+      expect(c).not.toBe('mean'); // every entry here matters: the moments below are exact
+      if (c === 'normal') {
+        bigMean += mu[k]! * area[k]!;
+        bigVar += mu[k]! * area[k]! * area[k]!;
+      } else if (c === 'exact') {
+        exactMu.push(mu[k]!);
+        exactArea.push(area[k]!);
+      }
+    }
+    const s = new ExponentSampler(detMu, detArea, total, ab, exactMu.length);
+    const rng = createRng(21);
+    const n = 40_000;
+    let sum = 0;
+    let sum2 = 0;
+    const em = Float64Array.from(exactMu);
+    const ea = Float64Array.from(exactArea);
+    for (let i = 0; i < n; i++) {
+      const x = s.draw(rng, bigMean, bigVar, em, ea, em.length);
+      sum += x;
+      sum2 += x * x;
+    }
+    const mean = sum / n;
     return { mean, variance: sum2 / n - mean * mean, m, v, n };
   }
   const bins = (f: (k: number) => number) =>
