@@ -415,7 +415,10 @@ export function simulate(args: {
   }
   const nExact = exactBins.length;
   // Per source, its density in the exact bins (× A_b: expected discs per pair).
-  const exactDens = sourceDens.map((d) => Float64Array.from(exactBins, (k) => d[k]! * ab));
+  const exactDens = new Float64Array(nSources * nExact); // row s: source s over the exact bins
+  sourceDens.forEach((d, si) => {
+    for (let e = 0; e < nExact; e++) exactDens[si * nExact + e] = d[exactBins[e]!]! * ab;
+  });
   const exponent = new ExponentSampler(
     ev.detectedCountBins,
     ev.detectedAreaPerParticleBins,
@@ -520,10 +523,13 @@ export function simulate(args: {
       bigVar += f * sv[4 * s + 3]!;
     }
     const radii = grid.radii[gi]!;
+    muExact.fill(0);
+    for (let s = 0; s < nSources; s++) {
+      const f = factor[s]!;
+      const row = s * nExact;
+      for (let e = 0; e < nExact; e++) muExact[e]! += f * exactDens[row + e]!;
+    }
     for (let e = 0; e < nExact; e++) {
-      let u = 0;
-      for (let s = 0; s < nSources; s++) u += factor[s]! * exactDens[s]![e]!;
-      muExact[e] = u;
       const r = radii[exactBins[e]!]!;
       areaExact[e] = Math.PI * r * r;
     }
