@@ -52,11 +52,15 @@ export function fractionAbove(dStar: number): Float64Array {
 export interface DetectedFlat {
   xM: Float64Array;
   yM: Float64Array;
-  diameterM: Float64Array;
   rM: Float64Array;
   survival: Float64Array;
   /** Index into the contributions array. */
   source: Uint16Array;
+  /**
+   * Per contribution, where its particles start in these arrays (−1: none), so that particle j is
+   * particle j − sourceStart[source[j]] of its contribution (its diameter, say).
+   */
+  sourceStart: Int32Array;
   /** Spectrum bin of each particle. */
   bin: Uint8Array;
   /**

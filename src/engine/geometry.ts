@@ -179,5 +179,5 @@ export function buildDieHits(
       }
   }
   hitStart[n] = m;
-  return { hitStart, hitDie: buf.slice(0, m) };
+  return { hitStart, hitDie: buf.subarray(0, m) };
 }

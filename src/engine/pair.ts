@@ -171,10 +171,10 @@ function flattenDetected(
   const flat: DetectedFlat = {
     xM: new Float64Array(n),
     yM: new Float64Array(n),
-    diameterM: new Float64Array(n),
     rM: new Float64Array(n),
     survival,
     source: new Uint16Array(n),
+    sourceStart: new Int32Array(contributions.length).fill(-1),
     bin: new Uint8Array(n),
     hitStart: null,
     hitDie: null,
@@ -188,7 +188,7 @@ function flattenDetected(
       flat.xM.set(d.xM, o);
       flat.yM.set(d.yM, o);
     }
-    flat.diameterM.set(d.diameterM, o);
+    flat.sourceStart[i] = o;
     const ix = sizeIndexOf(d.diameterM);
     flat.bin.set(ix.bin, o);
     physics.radiiInto(ix, flat.rM, o);
@@ -582,7 +582,7 @@ function buildVoidMap(
       survival: det.survival[i]!,
       sourceKey: c.key,
       wafer: c.wafer,
-      diameterM: det.diameterM[i]!,
+      diameterM: c.detected!.diameterM[i - det.sourceStart[det.source[i]!]!]!,
     };
   });
   let dieGrid: DieGrid | null = null;

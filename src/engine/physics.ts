@@ -241,12 +241,7 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
         toM: xm,
       }),
     incomingSpectrum: (p) => level(p.incoming),
-    binDetected(d, s) {
-      const out = zeroSpectrum();
-      const { bin } = sizeIndexOf(d);
-      for (let j = 0; j < d.length; j++) out[bin[j]!]! += s[j]!;
-      return out;
-    },
+    binCounts: (d) => Float64Array.from(sizeIndexOf(d).counts),
     deposition({ channelSizesM, dosePerChannel, airVelocityMps, orientation, isolation }) {
       const n = channelSizesM.length;
       if (n === 0) return zeroSpectrum();

@@ -88,7 +88,7 @@ export interface PropagationPhysics {
   cleanSurvivalBins(clean: CleanInput): Float64Array;
   /**
    * Multiplies each particle's survival by the clean's survival at its diameter (in place) and
-   * returns the surviving particles binned (what binDetected would give next, in the same pass).
+   * returns the surviving particles binned, in the same pass.
    */
   applySurvival(clean: CleanInput, diameterM: Float64Array, survival: Float64Array): Spectrum;
   /** Adders per pass of a tool as a spectrum per wafer (floored at the tail floor). */
@@ -97,8 +97,8 @@ export interface PropagationPhysics {
   tailSpectrum(n: number, alpha: number, thresholdM: number, floorM: number): Spectrum;
   /** The product's incoming level as a spectrum per wafer. */
   incomingSpectrum(product: ProductInput): Spectrum;
-  /** Detected particles binned, weighted by survival. */
-  binDetected(d: Float64Array, survival: Float64Array): Spectrum;
+  /** Detected particles binned (every one counted once: a fresh scan's survivals are all 1). */
+  binCounts(d: Float64Array): Spectrum;
   /**
    * Deposited particles per wafer during an exposure: dose per channel (particle·s/m³ cumulative ≥
    * channel size) → per-bin deposition = v_d(d) · dose(d) · wafer area / isolation.
@@ -234,7 +234,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
       scanId: scan.scanId,
       stepSeq: null,
       lastCleanId: null,
-      base: physics.binDetected(p.diameterM, det.survival),
+      base: physics.binCounts(p.diameterM),
       survivalBins: ones(),
       areaBasisM2: physics.scanAreaM2(scan.edgeExclusionM),
       variation: { type: 'detected' },

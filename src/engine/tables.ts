@@ -62,6 +62,8 @@ export interface SizeIndex {
   bin: Uint8Array;
   /** Natural logarithm of each diameter (in m), for sums such as the Hill estimator's Σ ln(x/x_m). */
   lnD: Float64Array;
+  /** How many of the diameters fall in each spectrum bin. */
+  counts: Float64Array;
 }
 
 const indexCache = new WeakMap<Float64Array, SizeIndex>();
@@ -82,6 +84,7 @@ export function sizeIndexOf(d: Float64Array): SizeIndex {
   const weight = new Float64Array(n);
   const bin = new Uint8Array(n);
   const lnD = new Float64Array(n);
+  const counts = new Float64Array(SPECTRUM_BIN_COUNT);
   const last = TABLE_POINTS - 1;
   for (let j = 0; j < n; j++) {
     const x = d[j]!;
@@ -89,6 +92,7 @@ export function sizeIndexOf(d: Float64Array): SizeIndex {
     lnD[j] = ln;
     if (!(x > SPECTRUM_MIN_DIAMETER_M)) {
       // cell 0, weight 0 and bin 0 (the arrays' initial values); as position() and binOf()
+      counts[0]! += 1;
       continue;
     }
     const raw = (ln - LN_MIN) * TABLE_PER_LN;
@@ -97,9 +101,11 @@ export function sizeIndexOf(d: Float64Array): SizeIndex {
     cell[j] = i;
     weight[j] = u - i;
     const k = Math.floor(raw * BIN_PER_CELL + 1e-12);
-    bin[j] = k < 0 ? 0 : k >= SPECTRUM_BIN_COUNT ? SPECTRUM_BIN_COUNT - 1 : k;
+    const b = k < 0 ? 0 : k >= SPECTRUM_BIN_COUNT ? SPECTRUM_BIN_COUNT - 1 : k;
+    bin[j] = b;
+    counts[b]! += 1;
   }
-  const out = { cell, weight, bin, lnD };
+  const out = { cell, weight, bin, lnD, counts };
   indexCache.set(d, out);
   return out;
 }

@@ -30,6 +30,10 @@ describe('sizeIndexOf', () => {
     const wrong: number[] = [];
     for (let j = 0; j < d.length; j++) if (ix.bin[j] !== binOf(d[j]!)) wrong.push(d[j]!);
     expect(wrong).toEqual([]);
+    // counts: the histogram of those bins, every diameter once
+    const hist = new Array(ix.counts.length).fill(0);
+    for (const b of ix.bin) hist[b]++;
+    expect(Array.from(ix.counts)).toEqual(hist);
     // edge k is the lower edge of bin k (src/model/spectrum.ts), the last edge clamps into bin 47
     for (let k = 0; k < SPECTRUM_EDGES_M.length - 1; k++) expect(binOf(SPECTRUM_EDGES_M[k]!)).toBe(k);
   });
