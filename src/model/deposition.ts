@@ -112,7 +112,9 @@ export function depositDuringExposure(input: DepositionInput): Spectrum {
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
     const d = SPECTRUM_CENTRES_M[k]!;
     const v = input.velocity(d);
-    requireNumber(fn, `velocity(${d.toPrecision(3)} m)`, v, 'm/s', { min: 0, max: 10 });
+    // the parameter's name is built only for the message of a bad value
+    if (!(typeof v === 'number' && v >= 0 && v <= 10))
+      requireNumber(fn, `velocity(${d.toPrecision(3)} m)`, v, 'm/s', { min: 0, max: 10 });
     out[k] = (area * v * dose[k]!) / iso;
   }
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)

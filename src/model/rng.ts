@@ -10,7 +10,7 @@
  * Not for cryptography. The same seed always gives the same sequence, on every platform.
  */
 import { ModelInputError, requireNumber } from './errors.ts';
-import { logGamma } from './stats/gamma.ts';
+import { logGammaUnchecked } from './stats/gamma.ts';
 
 const MASK64 = (1n << 64n) - 1n;
 
@@ -112,8 +112,19 @@ function rotl(x: number, k: number): number {
 }
 
 function makeRng(s: Uint32Array): Rng {
-  // xoshiro128** 1.1, transcribed from Blackman & Vigna's reference xoshiro128starstar.c.
-  const nextUint32 = (): number => {
+  return new Xoshiro128(s);
+}
+
+/**
+ * The generator as a class: one shape and one set of methods for every instance, so that a
+ * Monte Carlo loop calling a fresh generator per scenario keeps its calls monomorphic (inlined).
+ */
+class Xoshiro128 implements Rng {
+  constructor(private readonly s: Uint32Array) {}
+
+  nextUint32(): number {
+    // xoshiro128** 1.1, transcribed from Blackman & Vigna's reference xoshiro128starstar.c.
+    const s = this.s;
     const s0 = s[0]!;
     const s1 = s[1]!;
     const result = Math.imul(rotl(Math.imul(s1, 5) >>> 0, 7), 9) >>> 0;
@@ -125,29 +136,38 @@ function makeRng(s: Uint32Array): Rng {
     s[2]! ^= t;
     s[3] = rotl(s[3]!, 11);
     return result;
-  };
-  /** 53-bit integer from two outputs (27 + 26 high bits). */
-  const bits53 = (): number => (nextUint32() >>> 5) * 67108864 + (nextUint32() >>> 6);
-  const uniform = (): number => bits53() / 9007199254740992;
-  /** Uniform on the open interval (0, 1): never 0, never 1 (for logarithms and powers). */
-  const uniformOpen = (): number => (bits53() + 0.5) / 9007199254740992;
+  }
 
-  const normal = (): number => {
+  /** 53-bit integer from two outputs (27 + 26 high bits). */
+  private bits53(): number {
+    return (this.nextUint32() >>> 5) * 67108864 + (this.nextUint32() >>> 6);
+  }
+
+  uniform(): number {
+    return this.bits53() / 9007199254740992;
+  }
+
+  /** Uniform on the open interval (0, 1): never 0, never 1 (for logarithms and powers). */
+  private uniformOpen(): number {
+    return (this.bits53() + 0.5) / 9007199254740992;
+  }
+
+  normal(): number {
     // Polar method: a uniform point in the unit disc, (u, v) with s = u² + v² in (0, 1).
     for (;;) {
-      const u = 2 * uniform() - 1;
-      const v = 2 * uniform() - 1;
+      const u = 2 * this.uniform() - 1;
+      const v = 2 * this.uniform() - 1;
       const q = u * u + v * v;
       if (q > 0 && q < 1) return u * Math.sqrt((-2 * Math.log(q)) / q);
     }
-  };
+  }
 
-  const normals = (out: Float64Array): Float64Array => {
+  normals(out: Float64Array): Float64Array {
     let i = 0;
     const n = out.length;
     while (i < n) {
-      const u = 2 * uniform() - 1;
-      const v = 2 * uniform() - 1;
+      const u = 2 * this.uniform() - 1;
+      const v = 2 * this.uniform() - 1;
       const q = u * u + v * v;
       if (!(q > 0 && q < 1)) continue;
       const f = Math.sqrt((-2 * Math.log(q)) / q);
@@ -155,12 +175,12 @@ function makeRng(s: Uint32Array): Rng {
       if (i < n) out[i++] = v * f;
     }
     return out;
-  };
+  }
 
-  const gammaUnit = (a: number): number => {
+  private gammaUnit(a: number): number {
     if (a < 1) {
       // Marsaglia & Tsang (2000) §6: Gamma(a) = Gamma(a + 1) · U^(1/a). May underflow to 0 for tiny a.
-      return gammaUnit(a + 1) * uniformOpen() ** (1 / a);
+      return this.gammaUnit(a + 1) * this.uniformOpen() ** (1 / a);
     }
     // Marsaglia & Tsang (2000): d = a − 1/3, c = 1/√(9d); accept d·v with v = (1 + c x)³.
     const d = a - 1 / 3;
@@ -169,22 +189,22 @@ function makeRng(s: Uint32Array): Rng {
       let x: number;
       let v: number;
       do {
-        x = normal();
+        x = this.normal();
         v = 1 + c * x;
       } while (v <= 0);
       v = v * v * v;
-      const u = uniformOpen();
+      const u = this.uniformOpen();
       const x2 = x * x;
       if (u < 1 - 0.0331 * x2 * x2) return d * v; // squeeze
       if (Math.log(u) < 0.5 * x2 + d * (1 - v + Math.log(v))) return d * v;
     }
-  };
+  }
 
-  const poissonUnchecked = (mu: number): number => {
+  private poissonUnchecked(mu: number): number {
     if (mu === 0) return 0;
     if (mu < 10) {
       // Inversion by sequential search: smallest k with F(k) ≥ u (exact up to rounding of F).
-      const u = uniform();
+      const u = this.uniform();
       let k = 0;
       let p = Math.exp(-mu);
       let f = p;
@@ -205,40 +225,41 @@ function makeRng(s: Uint32Array): Rng {
     const invAlpha = 1.1239 + 1.1328 / (b - 3.4);
     const vr = 0.9277 - 3.6224 / (b - 2);
     for (;;) {
-      const u = uniform() - 0.5;
-      const v = uniform();
+      const u = this.uniform() - 0.5;
+      const v = this.uniform();
       const us = 0.5 - Math.abs(u);
       const k = Math.floor(((2 * a) / us + b) * u + mu + 0.43);
       if (us >= 0.07 && v <= vr) return k;
       if (!(k >= 0) || (us < 0.013 && v > us)) continue;
-      if (Math.log(v) + Math.log(invAlpha) - Math.log(a / (us * us) + b) <= -mu + k * logMu - logGamma(k + 1))
+      if (
+        Math.log(v) + Math.log(invAlpha) - Math.log(a / (us * us) + b) <=
+        -mu + k * logMu - logGammaUnchecked(k + 1)
+      )
         return k;
     }
-  };
+  }
 
-  return {
-    nextUint32,
-    uniform,
-    normal,
-    normals,
-    gamma(shape: number, scale = 1): number {
-      requireNumber('rng.gamma', 'shape', shape, '', GAMMA_SHAPE);
-      requireNumber('rng.gamma', 'scale', scale, '', GAMMA_SCALE);
-      return gammaUnit(shape) * scale;
-    },
-    poisson(mean: number): number {
-      requireNumber('rng.poisson', 'mean', mean, 'count', POISSON_MEAN);
-      return poissonUnchecked(mean);
-    },
-    negativeBinomial(mean: number, alpha: number): number {
-      requireNumber('rng.negativeBinomial', 'mean', mean, 'count', NB_MEAN);
-      requireNumber('rng.negativeBinomial', 'alpha', alpha, '', NB_ALPHA);
-      if (mean === 0) return 0;
-      // Gamma–Poisson mixture: λ ~ Gamma(α, m/α) (mean m, variance m²/α), N | λ ~ Poisson(λ).
-      return poissonUnchecked(gammaUnit(alpha) * (mean / alpha));
-    },
-    state(): [number, number, number, number] {
-      return [s[0]!, s[1]!, s[2]!, s[3]!];
-    },
-  };
+  gamma(shape: number, scale = 1): number {
+    requireNumber('rng.gamma', 'shape', shape, '', GAMMA_SHAPE);
+    requireNumber('rng.gamma', 'scale', scale, '', GAMMA_SCALE);
+    return this.gammaUnit(shape) * scale;
+  }
+
+  poisson(mean: number): number {
+    requireNumber('rng.poisson', 'mean', mean, 'count', POISSON_MEAN);
+    return this.poissonUnchecked(mean);
+  }
+
+  negativeBinomial(mean: number, alpha: number): number {
+    requireNumber('rng.negativeBinomial', 'mean', mean, 'count', NB_MEAN);
+    requireNumber('rng.negativeBinomial', 'alpha', alpha, '', NB_ALPHA);
+    if (mean === 0) return 0;
+    // Gamma–Poisson mixture: λ ~ Gamma(α, m/α) (mean m, variance m²/α), N | λ ~ Poisson(λ).
+    return this.poissonUnchecked(this.gammaUnit(alpha) * (mean / alpha));
+  }
+
+  state(): [number, number, number, number] {
+    const s = this.s;
+    return [s[0]!, s[1]!, s[2]!, s[3]!];
+  }
 }

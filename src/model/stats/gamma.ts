@@ -22,12 +22,22 @@ const EPS = Number.EPSILON;
 const FPMIN = Number.MIN_VALUE / EPS;
 
 /** Lanczos coefficients for g = 671/128, N = 14 (Press et al. 2007, §6.1, routine gammln). */
-const LANCZOS = [
-  57.15623566586292, -59.59796035547549, 14.136097974741746, -0.4919138160976202, 0.00003399464998481189,
-  0.00004652362892704858, -0.00009837447530487956, 0.0001580887032249125, -0.00021026444172410488,
-  0.00021743961811521265, -0.0001643181065367639, 0.00008441822398385275, -0.000026190838401581408,
+const LANCZOS = Float64Array.of(
+  57.15623566586292,
+  -59.59796035547549,
+  14.136097974741746,
+  -0.4919138160976202,
+  0.00003399464998481189,
+  0.00004652362892704858,
+  -0.00009837447530487956,
+  0.0001580887032249125,
+  -0.00021026444172410488,
+  0.00021743961811521265,
+  -0.0001643181065367639,
+  0.00008441822398385275,
+  -0.000026190838401581408,
   0.0000036899182659531625,
-];
+);
 
 /**
  * Natural logarithm of the gamma function, ln Γ(x), for x > 0.
@@ -40,18 +50,24 @@ const LANCZOS = [
  * @example logGamma(0.5) // 0.5723649429247001 = ln √π
  */
 export function logGamma(x: number): number {
-  requireNumber('logGamma', 'x', x, '', { min: 0, minExclusive: true, max: 1e305 });
+  requireNumber('logGamma', 'x', x, '', LOG_GAMMA_X);
   return logGammaUnchecked(x);
 }
 
-function logGammaUnchecked(xx: number): number {
+const LOG_GAMMA_X = Object.freeze({ min: 0, minExclusive: true, max: 1e305 });
+
+/**
+ * logGamma without the argument check, for the model library's own inner loops (the Poisson
+ * sampler's acceptance test) whose argument is known to be finite and > 0.
+ */
+export function logGammaUnchecked(xx: number): number {
   // Γ(x) = Γ(x + 1)/x: avoids the overflow of ser/x below ~1e-300 and is exact to rounding.
   if (xx < 1e-8) return logGammaUnchecked(xx + 1) - Math.log(xx);
   let y = xx;
   const tmp0 = xx + 671 / 128;
   const tmp = (xx + 0.5) * Math.log(tmp0) - tmp0;
   let ser = 0.9999999999999971;
-  for (const c of LANCZOS) ser += c / ++y;
+  for (let i = 0; i < LANCZOS.length; i++) ser += LANCZOS[i]! / ++y;
   return tmp + Math.log((2.5066282746310007 * ser) / xx);
 }
 
