@@ -11,45 +11,52 @@
  */
 import { createHash, type Hash } from 'node:crypto';
 
-function feed(h: Hash, v: unknown): void {
+/**
+ * Writes the canonical serialisation into the hash. Text is gathered in `buf.text` and handed to
+ * the hash in one piece before each typed array's bytes (and at the end), which gives the same
+ * byte stream as writing every piece as it comes, with far fewer calls into the hash.
+ */
+function feed(h: Hash, buf: { text: string }, v: unknown): void {
   if (v === null || v === undefined) {
-    h.update('n;');
+    buf.text += 'n;';
     return;
   }
   if (ArrayBuffer.isView(v)) {
-    const name = v.constructor.name;
-    h.update(`${name}:${v.byteLength}:`);
+    buf.text += `${v.constructor.name}:${v.byteLength}:`;
+    h.update(buf.text);
+    buf.text = ';';
     h.update(new Uint8Array(v.buffer, v.byteOffset, v.byteLength));
-    h.update(';');
     return;
   }
   if (Array.isArray(v)) {
-    h.update('[');
-    for (const x of v) feed(h, x);
-    h.update(']');
+    buf.text += '[';
+    for (const x of v) feed(h, buf, x);
+    buf.text += ']';
     return;
   }
   if (typeof v === 'object') {
-    h.update('{');
+    buf.text += '{';
     for (const k of Object.keys(v as object).sort()) {
       const x = (v as Record<string, unknown>)[k];
       if (x === undefined) continue;
-      h.update(`${JSON.stringify(k)}:`);
-      feed(h, x);
+      buf.text += `${JSON.stringify(k)}:`;
+      feed(h, buf, x);
     }
-    h.update('}');
+    buf.text += '}';
     return;
   }
   if (typeof v === 'number') {
-    h.update(`${Object.is(v, -0) ? 0 : v};`);
+    buf.text += `${Object.is(v, -0) ? 0 : v};`;
     return;
   }
-  h.update(`${JSON.stringify(v)};`);
+  buf.text += `${JSON.stringify(v)};`;
 }
 
 /** sha256 (hex) of the canonical serialisation of `value`. */
 export function canonicalHash(value: unknown): string {
   const h = createHash('sha256');
-  feed(h, value);
+  const buf = { text: '' };
+  feed(h, buf, value);
+  h.update(buf.text);
   return h.digest('hex');
 }
