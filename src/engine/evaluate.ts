@@ -118,6 +118,12 @@ export function evaluate(
   reportableParticleM: number,
   grid: DieGridIndex | null,
   clusterAlpha: number,
+  /**
+   * false: only what the figures and the Monte Carlo need — the detected particles' shares per
+   * source, per size bin and per die (for attribution, Paretos and maps) are left at 0 (a
+   * modelled re-clean, whose figures are shown but not attributed).
+   */
+  attribution = true,
 ): Evaluation {
   const frac = fractionAbove(reportableParticleM);
   const ab = physics.bondedAreaM2;
@@ -168,37 +174,55 @@ export function evaluate(
   const withDies =
     detSurvivePerDie !== null && detEventsPerDie !== null && hitStart !== null && hitDie !== null;
   let detectedVoids = 0;
-  for (let j = 0; j < survival.length; j++) {
-    const s = survival[j]!;
-    if (s <= 0) continue;
-    const r = rM[j]!;
-    const src = source[j]!;
-    const bin = binOfParticle[j]!;
-    detectedCountBins[bin]! += s;
-    const sa = s * Math.PI * r * r;
-    detAreaSum[bin]! += sa;
-    const e = sa * invAb;
-    srcExponent[src]! += e;
-    exponentBins[bin]! += e;
-    if (r >= dMinR) {
-      srcVoids[src]! += s;
-      voidsBins[bin]! += s;
-      detectedVoids += s;
-    }
-    if (withDies) {
-      const h0 = hitStart[j]!;
-      const h1 = hitStart[j + 1]!;
-      const keep = 1 - s;
-      for (let h = h0; h < h1; h++) {
-        const die = hitDie[h]!;
-        detSurvivePerDie[die]! *= keep;
-        detEventsPerDie[die]! += s;
+  let leanExponent = 0; // the detected particles' exponent when it is not kept per source
+  if (!attribution)
+    for (let j = 0; j < survival.length; j++) {
+      const s = survival[j]!;
+      if (s <= 0) continue;
+      const r = rM[j]!;
+      const bin = binOfParticle[j]!;
+      detectedCountBins[bin]! += s;
+      const sa = s * Math.PI * r * r;
+      detAreaSum[bin]! += sa;
+      leanExponent += sa * invAb;
+      if (r >= dMinR) detectedVoids += s;
+      if (withDies) {
+        const keep = 1 - s;
+        for (let h = hitStart[j]!, h1 = hitStart[j + 1]!; h < h1; h++) detSurvivePerDie[hitDie[h]!]! *= keep;
       }
-      const ev = s * (h1 - h0);
-      srcEvents[src]! += ev;
-      eventsBins[bin]! += ev;
     }
-  }
+  else
+    for (let j = 0; j < survival.length; j++) {
+      const s = survival[j]!;
+      if (s <= 0) continue;
+      const r = rM[j]!;
+      const src = source[j]!;
+      const bin = binOfParticle[j]!;
+      detectedCountBins[bin]! += s;
+      const sa = s * Math.PI * r * r;
+      detAreaSum[bin]! += sa;
+      const e = sa * invAb;
+      srcExponent[src]! += e;
+      exponentBins[bin]! += e;
+      if (r >= dMinR) {
+        srcVoids[src]! += s;
+        voidsBins[bin]! += s;
+        detectedVoids += s;
+      }
+      if (withDies) {
+        const h0 = hitStart[j]!;
+        const h1 = hitStart[j + 1]!;
+        const keep = 1 - s;
+        for (let h = h0; h < h1; h++) {
+          const die = hitDie[h]!;
+          detSurvivePerDie[die]! *= keep;
+          detEventsPerDie[die]! += s;
+        }
+        const ev = s * (h1 - h0);
+        srcEvents[src]! += ev;
+        eventsBins[bin]! += ev;
+      }
+    }
   for (let c = 0; c < nSources; c++) {
     const fig = per[c]!;
     fig.exponent += srcExponent[c]!;
@@ -216,6 +240,11 @@ export function evaluate(
     voids += f.voids;
     exponent += f.exponent;
     particles += f.particles;
+  }
+  if (!attribution) {
+    // the detected particles were not added to their contributions' figures
+    voids += detectedVoids;
+    exponent += leanExponent;
   }
   let randomMeanPerDie = 0;
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) randomMeanPerDie += lambdaBins[k]! * acrit[k]!;

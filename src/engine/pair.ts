@@ -211,6 +211,8 @@ function runScenario(
   cfg: AssessConfig,
   stream: number,
   geometry: DetectedFlat | null,
+  /** false for the modelled re-clean: its figures are shown, not attributed (see evaluate). */
+  attribution: boolean,
 ): Scenario {
   const detected = flattenDetected(contributions, pair, physics, geometry);
   const spec = product.spec;
@@ -222,6 +224,7 @@ function runScenario(
     physics.reportableNominalM,
     physics.dieGrid,
     product.clusterAlpha,
+    attribution,
   );
   const draws = simulate({
     contributions,
@@ -345,7 +348,7 @@ export function assessPairInSession(
     propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
-  const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null);
+  const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null, true);
 
   // A modelled extra run of the designated pre-bond clean on both wafers, before the bond step.
   let reclean: RecleanScenario | null = null;
@@ -384,7 +387,7 @@ export function assessPairInSession(
           detected: null,
         });
       }
-    after = runScenario(cs, pair, product, physics, cfg, 2, asIs.detected);
+    after = runScenario(cs, pair, product, physics, cfg, 2, asIs.detected, false);
     const allowed = Math.max(pair.top.recleanCount, pair.bottom.recleanCount) < spec.maxRecleans;
     reclean = {
       cleanId: rc.cleanId,
