@@ -495,7 +495,7 @@ export function simulate(args: {
   const tailTmp = new Float64Array(B);
   const factor = new Float64Array(nSources);
   const muExact = new Float64Array(Math.max(nExact, 1));
-  const areaExact = new Float64Array(Math.max(nExact, 1));
+  const exactAreas: (Float64Array | undefined)[] = new Array(gridN); // per grid point, disc areas of the exact bins
   const alpha = args.clusterAlpha;
 
   // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
@@ -529,9 +529,10 @@ export function simulate(args: {
       const row = s * nExact;
       for (let e = 0; e < nExact; e++) muExact[e]! += f * exactDens[row + e]!;
     }
-    for (let e = 0; e < nExact; e++) {
-      const r = radii[exactBins[e]!]!;
-      areaExact[e] = Math.PI * r * r;
+    let areaExact = exactAreas[gi];
+    if (!areaExact) {
+      areaExact = Float64Array.from(exactBins, (k) => Math.PI * radii[k]! * radii[k]!);
+      exactAreas[gi] = areaExact;
     }
     if (tails.length > 0) {
       const frac = grid.frac[gi]!;
