@@ -415,9 +415,9 @@ export function simulate(args: {
   }
   const nExact = exactBins.length;
   // Per source, its density in the exact bins (× A_b: expected discs per pair).
-  const exactDens = new Float64Array(nSources * nExact); // row s: source s over the exact bins
+  const exactDens = new Float64Array(nSources * nExact); // row e: every source's density in exact bin e
   sourceDens.forEach((d, si) => {
-    for (let e = 0; e < nExact; e++) exactDens[si * nExact + e] = d[exactBins[e]!]! * ab;
+    for (let e = 0; e < nExact; e++) exactDens[e * nSources + si] = d[exactBins[e]!]! * ab;
   });
   const exponent = new ExponentSampler(
     ev.detectedCountBins,
@@ -523,11 +523,10 @@ export function simulate(args: {
       bigVar += f * sv[4 * s + 3]!;
     }
     const radii = grid.radii[gi]!;
-    muExact.fill(0);
-    for (let s = 0; s < nSources; s++) {
-      const f = factor[s]!;
-      const row = s * nExact;
-      for (let e = 0; e < nExact; e++) muExact[e]! += f * exactDens[row + e]!;
+    for (let e = 0, row = 0; e < nExact; e++, row += nSources) {
+      let u = 0;
+      for (let s = 0; s < nSources; s++) u += factor[s]! * exactDens[row + s]!;
+      muExact[e] = u;
     }
     let areaExact = exactAreas[gi];
     if (!areaExact) {
