@@ -140,6 +140,8 @@ export function buildDieHits(
   xM: Float64Array,
   yM: Float64Array,
   rM: Float64Array,
+  /** Arrays to fill instead of new ones: hitStart with room for n + 1, hitDie any size (grown when full). */
+  into?: { hitStart: Int32Array; hitDie: Int32Array },
 ): { hitStart: Int32Array; hitDie: Int32Array } {
   const { pitchXM: px, pitchYM: py, originXM: x0, originYM: y0, pad } = g.layout;
   const ax = x0 + (pad ? pad.xM : 0);
@@ -148,8 +150,8 @@ export function buildDieHits(
   const colMax = colMin + cols - 1;
   const rowMax = rowMin + g.rows - 1;
   const n = xM.length;
-  const hitStart = new Int32Array(n + 1);
-  let buf = new Int32Array(Math.max(16, 2 * n));
+  const hitStart = into && into.hitStart.length >= n + 1 ? into.hitStart : new Int32Array(n + 1);
+  let buf = into && into.hitDie.length >= 16 ? into.hitDie : new Int32Array(Math.max(16, 2 * n));
   let m = 0;
   for (let p = 0; p < n; p++) {
     hitStart[p] = m;
@@ -179,5 +181,5 @@ export function buildDieHits(
       }
   }
   hitStart[n] = m;
-  return { hitStart, hitDie: buf.subarray(0, m) };
+  return { hitStart: hitStart.subarray(0, n + 1), hitDie: buf.subarray(0, m) };
 }

@@ -64,10 +64,71 @@ export interface EngineSession {
   config: AssessConfig;
   exposure: Map<string, ExposureIndex>;
   physics: Map<string, ProductPhysics>;
+  /** Working arrays of one pair at a time, reused by the next pair (see Scratch). */
+  scratch: Scratch;
 }
 
 export function createSession(line: LineData, config?: Partial<AssessConfig>): EngineSession {
-  return { line, config: resolveConfig(config), exposure: new Map(), physics: new Map() };
+  return {
+    line,
+    config: resolveConfig(config),
+    exposure: new Map(),
+    physics: new Map(),
+    scratch: new Scratch(),
+  };
+}
+
+/**
+ * Per-particle working arrays of the pair being assessed (positions in the bond frame, radii, bins,
+ * die rows, survivals), kept by the session and handed out again, grown when a pair needs more,
+ * to the next pair: tens of thousands of particles per pair would otherwise mean megabytes of new
+ * arrays per pair for the garbage collector. Nothing a pair returns refers to them (its void map
+ * copies what it shows), and a session assesses one pair at a time.
+ */
+export class Scratch {
+  private readonly arrays = new Map<string, Float64Array | Int32Array | Uint16Array | Uint8Array>();
+
+  private take<T extends Float64Array | Int32Array | Uint16Array | Uint8Array>(
+    name: string,
+    n: number,
+    make: (n: number) => T,
+  ): T {
+    let a = this.arrays.get(name) as T | undefined;
+    if (!a || a.length < n) {
+      a = make(Math.max(n, Math.ceil((a?.length ?? 0) * 1.5)));
+      this.arrays.set(name, a);
+    }
+    const v = a.subarray(0, n) as T;
+    v.fill(0);
+    return v;
+  }
+
+  f64(name: string, n: number): Float64Array {
+    return this.take(name, n, (k) => new Float64Array(k));
+  }
+  i32(name: string, n: number): Int32Array {
+    return this.take(name, n, (k) => new Int32Array(k));
+  }
+  u16(name: string, n: number): Uint16Array {
+    return this.take(name, n, (k) => new Uint16Array(k));
+  }
+  u8(name: string, n: number): Uint8Array {
+    return this.take(name, n, (k) => new Uint8Array(k));
+  }
+  /** The whole kept Int32Array of that name (at least n long, not zeroed), to be filled and grown. */
+  i32Buffer(name: string, n: number): Int32Array {
+    const a = this.arrays.get(name) as Int32Array | undefined;
+    if (a && a.length >= n) return a;
+    const b = new Int32Array(Math.max(n, Math.ceil((a?.length ?? 0) * 1.5)));
+    this.arrays.set(name, b);
+    return b;
+  }
+  /** Keeps a grown buffer (a view's whole buffer) under that name for the next pair. */
+  keep(name: string, a: Int32Array): void {
+    const whole = new Int32Array(a.buffer);
+    if (whole.length > ((this.arrays.get(name)?.length as number | undefined) ?? 0))
+      this.arrays.set(name, whole);
+  }
 }
 
 function exposureIndexOf(session: EngineSession, locationId: string): ExposureIndex | null {
@@ -157,10 +218,12 @@ function flattenDetected(
   pair: PairInput,
   physics: ProductPhysics,
   geometry: DetectedFlat | null,
+  scratch: Scratch,
 ): DetectedFlat {
   let n = 0;
   for (const c of contributions) if (c.detected) n += c.detected.survival.length;
-  const survival = new Float64Array(n);
+  // the as-is and the re-clean scenario each keep their survivals while both are alive
+  const survival = scratch.f64(geometry ? 'survival-reclean' : 'survival', n);
   let o = 0;
   for (const c of contributions)
     if (c.detected) {
@@ -169,13 +232,13 @@ function flattenDetected(
     }
   if (geometry) return { ...geometry, survival };
   const flat: DetectedFlat = {
-    xM: new Float64Array(n),
-    yM: new Float64Array(n),
-    rM: new Float64Array(n),
+    xM: scratch.f64('x', n),
+    yM: scratch.f64('y', n),
+    rM: scratch.f64('r', n),
     survival,
-    source: new Uint16Array(n),
+    source: scratch.u16('source', n),
     sourceStart: new Int32Array(contributions.length).fill(-1),
-    bin: new Uint8Array(n),
+    bin: scratch.u8('bin', n),
     hitStart: null,
     hitDie: null,
   };
@@ -196,7 +259,11 @@ function flattenDetected(
     o += d.survival.length;
   });
   if (physics.dieGrid) {
-    const h = buildDieHits(physics.dieGrid, flat.xM, flat.yM, flat.rM);
+    const h = buildDieHits(physics.dieGrid, flat.xM, flat.yM, flat.rM, {
+      hitStart: scratch.i32('hit-start', n + 1),
+      hitDie: scratch.i32Buffer('hit-die', 2 * n),
+    });
+    scratch.keep('hit-die', h.hitDie);
     flat.hitStart = h.hitStart;
     flat.hitDie = h.hitDie;
   }
@@ -213,8 +280,9 @@ function runScenario(
   geometry: DetectedFlat | null,
   /** false for the modelled re-clean: its figures are shown, not attributed (see evaluate). */
   attribution: boolean,
+  scratch: Scratch,
 ): Scenario {
-  const detected = flattenDetected(contributions, pair, physics, geometry);
+  const detected = flattenDetected(contributions, pair, physics, geometry, scratch);
   const spec = product.spec;
   const evaluation = evaluate(
     contributions,
@@ -348,7 +416,7 @@ export function assessPairInSession(
     propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
-  const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null, true);
+  const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null, true, session.scratch);
 
   // A modelled extra run of the designated pre-bond clean on both wafers, before the bond step.
   let reclean: RecleanScenario | null = null;
@@ -387,7 +455,7 @@ export function assessPairInSession(
           detected: null,
         });
       }
-    after = runScenario(cs, pair, product, physics, cfg, 2, asIs.detected, false);
+    after = runScenario(cs, pair, product, physics, cfg, 2, asIs.detected, false, session.scratch);
     const allowed = Math.max(pair.top.recleanCount, pair.bottom.recleanCount) < spec.maxRecleans;
     reclean = {
       cleanId: rc.cleanId,

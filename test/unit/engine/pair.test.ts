@@ -351,3 +351,54 @@ describe('assessPair: calls', () => {
     expect(e.figures.voids.value).toBeCloseTo(a.figures.voids.value, 12);
   });
 });
+
+describe('pairs assessed in one session (its working arrays reused from pair to pair)', () => {
+  it('come out exactly as each pair assessed on its own, larger and smaller pairs in turn', async () => {
+    const { assessLot } = await import('../../../src/engine/lot.ts');
+    const data = line({
+      counters: { BAY: counterSeries('BAY', T0, T0 + 8 * H, CH, () => ISO5) },
+    });
+    // 900, then 150, then 600 particles per wafer: a later pair sees arrays sized for an earlier one
+    const pairs = [900, 150, 600].map((n, i) =>
+      pair(
+        `P${i}`,
+        standardWafer(`T${i}`, someParticles(n, i)),
+        standardWafer(`B${i}`, someParticles(n, i + 7)),
+        {
+          bondTimeMs: T0 + 6 * H,
+        },
+      ),
+    );
+    const opts = { asOfMs: T0 + 7 * H, detail: 'full' as const };
+    const together = assessLot({ lotId: 'LOT-1', productId: 'HB-1', pairs }, data, opts);
+    for (const [i, p] of pairs.entries()) expect(together.pairs[i]).toEqual(assessPair(p, data, opts));
+  });
+});
+
+describe('the modelled re-clean', () => {
+  it('leaves the as-is figures and void map exactly as without it (it works on its own copies)', () => {
+    const data = line({
+      counters: { BAY: counterSeries('BAY', T0, T0 + 8 * H, CH, () => ISO5) },
+    });
+    const withoutRc = line({
+      counters: data.counters,
+      products: { 'HB-1': { ...data.products['HB-1']!, recleanCleanId: null } },
+    });
+    const p = pair(
+      'P',
+      standardWafer('T', someParticles(500, 1)),
+      standardWafer('B', someParticles(500, 2)),
+      {
+        bondTimeMs: T0 + 6 * H,
+      },
+    );
+    const opts = { asOfMs: T0 + 7 * H, detail: 'full' as const };
+    const a = assessPair(p, data, opts);
+    const b = assessPair(p, withoutRc, opts);
+    expect(a.reclean).not.toBeNull();
+    expect(b.reclean).toBeNull();
+    expect(a.figures).toEqual(b.figures);
+    expect(a.voidMap).toEqual(b.voidMap);
+    expect(a.contributions).toEqual(b.contributions);
+  });
+});
