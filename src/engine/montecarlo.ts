@@ -195,12 +195,51 @@ export function entryClass(u: number, a: number, total: number): EntryClass {
  * through a guide table (Chen & Asau 1974; Devroye, Non-Uniform Random Variate Generation, 1986,
  * §III.2.4), one 32-bit uniform per disc.
  */
+/** An alias table (Walker 1977, in Vose's stable form, IEEE Trans. Softw. Eng. 17 (1991) 972). */
+export interface AliasTable {
+  prob: Float64Array;
+  other: Int32Array;
+}
+
+/** The alias table of positive weights (index i drawn with probability w_i / Σw). */
+export function aliasTable(weights: ArrayLike<number>): AliasTable {
+  const m = weights.length;
+  let sum = 0;
+  for (let i = 0; i < m; i++) sum += weights[i]!;
+  const prob = new Float64Array(m);
+  const other = new Int32Array(m);
+  const scaled = Float64Array.from({ length: m }, (_, i) => (weights[i]! * m) / sum);
+  const small: number[] = [];
+  const large: number[] = [];
+  for (let i = 0; i < m; i++) (scaled[i]! < 1 ? small : large).push(i);
+  while (small.length && large.length) {
+    const l = small.pop()!;
+    const g = large.pop()!;
+    prob[l] = scaled[l]!;
+    other[l] = g;
+    scaled[g] = scaled[g]! + scaled[l]! - 1;
+    (scaled[g]! < 1 ? small : large).push(g);
+  }
+  for (const i of [...small, ...large]) {
+    prob[i] = 1; // left over only by rounding: the column is its own
+    other[i] = i;
+  }
+  return { prob, other };
+}
+
+/** One draw from an alias table with one 32-bit output: the column from its high part, the coin from the rest. */
+export function aliasPick(rng: Rng, t: AliasTable): number {
+  const cols = t.prob.length;
+  const x = rng.nextUint32() * (cols / 4294967296);
+  const c = Math.min(Math.floor(x), cols - 1);
+  return x - c < t.prob[c]! ? c : t.other[c]!;
+}
+
 export class ExponentSampler {
   private readonly detMean: number;
   private readonly detVar: number;
   private readonly detExactMu: number;
-  private readonly aliasProb: Float64Array;
-  private readonly aliasOther: Int32Array;
+  private readonly alias: AliasTable;
   private readonly aliasArea: Float64Array;
   private readonly cdf: Float64Array;
   private readonly guide: Int32Array;
@@ -232,30 +271,12 @@ export class ExponentSampler {
     }
     this.detMean = mean;
     this.detVar = variance;
-    // Vose's alias table over the exact entries, weights μ_k.
-    const m = exact.length;
+    // the alias table over the exact entries, weights μ_k
     let sumMu = 0;
     for (const k of exact) sumMu += detMu[k]!;
     this.detExactMu = sumMu;
-    this.aliasProb = new Float64Array(m);
-    this.aliasOther = new Int32Array(m);
+    this.alias = aliasTable(exact.map((k) => detMu[k]!));
     this.aliasArea = Float64Array.from(exact, (k) => detArea[k]!);
-    const scaled = exact.map((k) => (detMu[k]! * m) / sumMu);
-    const small: number[] = [];
-    const large: number[] = [];
-    for (let i = 0; i < m; i++) (scaled[i]! < 1 ? small : large).push(i);
-    while (small.length && large.length) {
-      const l = small.pop()!;
-      const g = large.pop()!;
-      this.aliasProb[l] = scaled[l]!;
-      this.aliasOther[l] = g;
-      scaled[g] = scaled[g]! + scaled[l]! - 1;
-      (scaled[g]! < 1 ? small : large).push(g);
-    }
-    for (const i of [...small, ...large]) {
-      this.aliasProb[i] = 1; // left over only by rounding: the column is its own
-      this.aliasOther[i] = i;
-    }
     this.cdf = new Float64Array(Math.max(maxExact, 1));
     this.guide = new Int32Array(Math.max(maxExact, 1));
   }
@@ -307,15 +328,9 @@ export class ExponentSampler {
         }
       }
     }
-    const cols = this.aliasProb.length;
-    if (this.detExactMu > 0 && cols > 0) {
+    if (this.detExactMu > 0 && this.aliasArea.length > 0) {
       const n = rng.poisson(this.detExactMu);
-      for (let j = 0; j < n; j++) {
-        // one 32-bit output: the column from its high part, the coin from the rest
-        const x = rng.nextUint32() * (cols / 4294967296);
-        const c = Math.min(Math.floor(x), cols - 1);
-        total += this.aliasArea[x - c < this.aliasProb[c]! ? c : this.aliasOther[c]!]!;
-      }
+      for (let j = 0; j < n; j++) total += this.aliasArea[aliasPick(rng, this.alias)]!;
     }
     return total / this.ab;
   }
