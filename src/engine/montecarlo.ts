@@ -344,7 +344,7 @@ export class ExponentSampler {
  *   V_s = Σ_k D_sk·A_b·f_k (reportable voids),  M_s = Σ_k D_sk·A_crit,k (die-kill mean per die),
  *   BM_s = Σ D_sk·A_b·a_k over 'normal' and 'mean' entries, BV_s = Σ D_sk·A_b·a_k² over 'normal' ones
  * are made once; a draw then combines them with its factors, adds its tails bin by bin, and keeps
- * per-bin densities only for the few 'exact' entries.
+ * per-bin densities only for the 'exact' entries (the bins holding few discs).
  */
 export function simulate(args: {
   contributions: Contribution[];
