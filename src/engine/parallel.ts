@@ -6,8 +6,9 @@
  *
  * With loader.ts this is the engine's only database access (the worker opens its own connection).
  *
- * The worker is started once and kept (unref'd, so it never holds a process open); an in-memory
- * database, a small lot or a failing worker fall back to the single-thread path.
+ * The worker is started once and kept; it is ref'd only while a job is out (so a process waits for
+ * its answer, and never stays open for an idle worker). An in-memory database, a small lot or a
+ * failing worker fall back to the single-thread path.
  */
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
@@ -64,11 +65,11 @@ class AssessWorker {
       eval: true,
       workerData: { voidcastAssessWorker: true, tsxApi: tsxApiUrl(), entry: import.meta.url },
     });
-    w.unref();
     w.on('message', (m: Reply) => {
       const p = this.pending.get(m.id);
       if (!p) return;
       this.pending.delete(m.id);
+      if (this.pending.size === 0) w.unref(); // idle: it must not hold the process open
       if (m.ok) p.resolve(m.pairs);
       else p.reject(new Error(m.message));
     });
@@ -79,6 +80,9 @@ class AssessWorker {
     };
     w.on('error', fail);
     w.on('exit', (code) => fail(new Error(`the assessment worker exited with code ${code}`)));
+    // Unref'd while idle, after the listeners (adding a 'message' listener refs it again); run()
+    // refs it while a job is out, or a process awaiting the answer (the CLI) could end without it.
+    w.unref();
     this.worker = w;
     return w;
   }
@@ -88,6 +92,7 @@ class AssessWorker {
     const id = this.next++;
     return new Promise((resolve, reject) => {
       this.pending.set(id, { resolve, reject });
+      w.ref();
       w.postMessage({ ...job, id } satisfies Job);
     });
   }

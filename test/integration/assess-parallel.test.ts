@@ -2,9 +2,11 @@
  * A lot assessed on two threads equals the single-thread assessment exactly: each pair's figures
  * depend only on the pair and the lot's line data (seeded streams, content-keyed caches).
  */
+import { execFile } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadDemoOnce } from '../../src/cli/demo.ts';
 import { assessLotFromDb } from '../../src/engine/loader.ts';
@@ -35,6 +37,25 @@ describe('assessLotFromDbParallel', () => {
       expect(JSON.stringify(parallel)).toBe(JSON.stringify(serial));
     }
   }, 120_000);
+
+  it('lets the CLI process end by itself once the lot is printed (the kept worker never holds it open)', async () => {
+    const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+    const run = await new Promise<{ code: number | null; out: string; err: string; killed: boolean }>(
+      (done) => {
+        const child = execFile(
+          process.execPath,
+          ['--import', 'tsx', 'src/cli/main.ts', 'assess', '--lot', 'TR2652', '--data', dir],
+          { cwd: root, timeout: 60_000 },
+          (e, out, err) =>
+            done({ code: child.exitCode, out, err, killed: Boolean(e && 'killed' in e && e.killed) }),
+        );
+      },
+    );
+    expect(run.killed, run.err).toBe(false); // a hang would be killed by the 60 s timeout
+    expect(run.code).toBe(0);
+    expect(run.out, run.err).toMatch(/Lot TR2652/);
+    expect(run.out).toMatch(/CALL: RE-CLEAN/);
+  }, 90_000);
 
   it('answers null for an unknown lot', async () => {
     expect(await assessLotFromDbParallel(db, 'NO-SUCH-LOT', { asOfMs })).toBeNull();
