@@ -10,12 +10,9 @@
  * its answer, and never stays open for an idle worker). An in-memory database, a small lot or a
  * failing worker fall back to the single-thread path.
  */
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
+import { isMainThread, parentPort, type Worker, workerData } from 'node:worker_threads';
 import { type Db, openDatabase } from '../store/db.ts';
+import { databaseFile, startModuleWorker } from '../store/worker-thread.ts';
 import { assessLotFromDb, assessLotPairsFromDb, lotPairIds, readProductInput } from './loader.ts';
 import { summariseLot } from './lot.ts';
 import type { AssessOptions, LotAssessment, PairAssessment } from './types.ts';
@@ -33,25 +30,6 @@ interface Job {
 
 type Reply = { id: number; ok: true; pairs: PairAssessment[] } | { id: number; ok: false; message: string };
 
-const require = createRequire(import.meta.url);
-
-// CommonJS evaluated in the new thread: register tsx's loader, then import this module.
-const BOOTSTRAP = `
-const { workerData } = require('node:worker_threads');
-import(workerData.tsxApi).then((tsx) => { tsx.register(); return import(workerData.entry); });
-`;
-
-function tsxApiUrl(): string {
-  const pkgPath = require.resolve('tsx/package.json');
-  const pkg = JSON.parse(readFileSync(pkgPath, 'utf8')) as {
-    exports: Record<string, string | { import?: { default?: string } }>;
-  };
-  const entry = pkg.exports['./esm/api'];
-  const rel = typeof entry === 'string' ? entry : entry?.import?.default;
-  if (!rel) throw new Error('tsx does not export ./esm/api');
-  return pathToFileURL(join(dirname(pkgPath), rel)).href;
-}
-
 class AssessWorker {
   private worker: Worker | null = null;
   private next = 1;
@@ -61,10 +39,7 @@ class AssessWorker {
   >();
 
   private start(): Worker {
-    const w = new Worker(BOOTSTRAP, {
-      eval: true,
-      workerData: { voidcastAssessWorker: true, tsxApi: tsxApiUrl(), entry: import.meta.url },
-    });
+    const w = startModuleWorker(import.meta.url, { voidcastAssessWorker: true });
     w.on('message', (m: Reply) => {
       const p = this.pending.get(m.id);
       if (!p) return;
@@ -111,10 +86,6 @@ let shared: AssessWorker | null = null;
 export async function stopAssessWorker(): Promise<void> {
   await shared?.stop();
   shared = null;
-}
-
-function databaseFile(db: Db): string | null {
-  return db.memory || db.name === '' || db.name === ':memory:' ? null : db.name;
 }
 
 /**

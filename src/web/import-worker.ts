@@ -9,17 +9,13 @@
  * An in-memory database (tests) cannot be shared between connections: there the import runs in
  * this thread.
  *
- * The worker is started from a small bootstrap that registers tsx (the sources run as TypeScript,
- * as bin/voidcast.js does for the main thread) and then loads this module, which sees `workerData`.
+ * The worker is started by src/store/worker-thread.ts and loads this module, which sees `workerData`.
  */
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
+import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { importFile } from '../ingest/pipeline.ts';
 import type { ImportOptions, ImportProgress, ImportReport } from '../ingest/types.ts';
 import { type Db, openDatabase } from '../store/db.ts';
+import { databaseFile, startModuleWorker } from '../store/worker-thread.ts';
 
 export type ImportRequest = Omit<ImportOptions, 'onProgress' | 'now'>;
 
@@ -34,31 +30,6 @@ type WorkerMessage =
   | { type: 'done'; report: ImportReport }
   | { type: 'error'; message: string; stack: string | null };
 
-const require = createRequire(import.meta.url);
-
-// CommonJS, evaluated in the new thread: register tsx's loader, then import the worker module.
-const BOOTSTRAP = `
-const { workerData } = require('node:worker_threads');
-import(workerData.tsxApi).then((tsx) => { tsx.register(); return import(workerData.entry); });
-`;
-
-/** File URL of tsx's ESM register API (package export "./esm/api", import condition). */
-function tsxApiUrl(): string {
-  const pkgPath = require.resolve('tsx/package.json');
-  const pkg = JSON.parse(readFileSync(pkgPath, 'utf8')) as {
-    exports: Record<string, string | { import?: { default?: string } }>;
-  };
-  const entry = pkg.exports['./esm/api'];
-  const rel = typeof entry === 'string' ? entry : entry?.import?.default;
-  if (!rel) throw new Error('tsx does not export ./esm/api');
-  return pathToFileURL(join(dirname(pkgPath), rel)).href;
-}
-
-/** The database's file, or null when it lives in memory (then there is nothing to share). */
-export function databaseFile(db: Db): string | null {
-  return db.memory || db.name === '' || db.name === ':memory:' ? null : db.name;
-}
-
 /**
  * Imports one file: in a worker thread when the database is a file, else in this thread. Resolves
  * with the report; rejects when importFile throws (I/O failure, internal error) or the worker dies.
@@ -71,14 +42,8 @@ export function runImport(
   const file = databaseFile(db);
   if (file === null) return importFile(db, { ...request, onProgress });
   return new Promise<ImportReport>((resolve, reject) => {
-    const input = {
-      voidcastImportWorker: true,
-      dbFile: file,
-      request,
-      tsxApi: tsxApiUrl(),
-      entry: import.meta.url,
-    };
-    const worker = new Worker(BOOTSTRAP, { eval: true, workerData: input });
+    const input: WorkerInput = { voidcastImportWorker: true, dbFile: file, request };
+    const worker = startModuleWorker(import.meta.url, { ...input });
     let settled = false;
     worker.on('message', (m: WorkerMessage) => {
       if (m.type === 'progress') onProgress?.(m.progress);

@@ -10,7 +10,8 @@ import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import type { ImportProgress } from '../../src/ingest/types.ts';
 import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
-import { databaseFile, runImport } from '../../src/web/import-worker.ts';
+import { databaseFile } from '../../src/store/worker-thread.ts';
+import { runImport } from '../../src/web/import-worker.ts';
 
 const dirs: string[] = [];
 const dbs: Db[] = [];
