@@ -336,7 +336,10 @@ function classify(
  * is the class limit rounded as in Table 1 (whole number, at most three significant figures).
  * 1999 rule (optional, edition: 1999): additionally, with 2–9 locations, the 95 % UCL of the mean
  * of the location means must be ≤ the limit (ISO 14644-1:1999 Annex C) [M]; the 2015 edition
- * dropped this [V]. The 1999 edition's outlier provision is not implemented.
+ * dropped this [V]. The 1999 edition let one outlying location be left out of the UCL when its
+ * cause (a procedural error or a malfunction) was documented and the location sampled again [M]:
+ * a judgement on evidence outside the counts, so it is the caller's — leave that location out of
+ * `locationMeansPerM3`.
  * Whether a cell is applicable in Table 1 is not checked here (see isoTable1Value).
  *
  * @param test sizes (m), location means (per m³) per location and size, the class N (1–9), edition
