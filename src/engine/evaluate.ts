@@ -23,8 +23,6 @@ import { type Contribution, interfaceSpectrum } from './propagate.ts';
 export interface VoidPhysics {
   /** Void radius at each bin centre, m, for a small-gap factor (1: nominal). */
   binRadii(smallGapFactor: number): Float64Array;
-  /** Void radius of one particle of diameter d, nominal, m. */
-  radiusAt(diameterM: number): number;
   /** Particle diameter whose void diameter equals the reportable size, m, for a small-gap factor. */
   reportableParticleM(smallGapFactor: number): number;
   /** Critical area of the pad/die rectangle for a disc of radius R, m² (0 without dies). */
@@ -174,55 +172,38 @@ export function evaluate(
   const withDies =
     detSurvivePerDie !== null && detEventsPerDie !== null && hitStart !== null && hitDie !== null;
   let detectedVoids = 0;
-  let leanExponent = 0; // the detected particles' exponent when it is not kept per source
-  if (!attribution)
-    for (let j = 0; j < survival.length; j++) {
-      const s = survival[j]!;
-      if (s <= 0) continue;
-      const r = rM[j]!;
-      const bin = binOfParticle[j]!;
-      detectedCountBins[bin]! += s;
-      const sa = s * Math.PI * r * r;
-      detAreaSum[bin]! += sa;
-      leanExponent += sa * invAb;
-      if (r >= dMinR) detectedVoids += s;
-      if (withDies) {
-        const keep = 1 - s;
-        for (let h = hitStart[j]!, h1 = hitStart[j + 1]!; h < h1; h++) detSurvivePerDie[hitDie[h]!]! *= keep;
-      }
+  let detectedExponent = 0;
+  for (let j = 0; j < survival.length; j++) {
+    const s = survival[j]!;
+    if (s <= 0) continue;
+    const r = rM[j]!;
+    const bin = binOfParticle[j]!;
+    detectedCountBins[bin]! += s;
+    const sa = s * Math.PI * r * r;
+    detAreaSum[bin]! += sa;
+    const e = sa * invAb;
+    detectedExponent += e;
+    const reportable = r >= dMinR;
+    if (reportable) detectedVoids += s;
+    const h0 = withDies ? hitStart[j]! : 0;
+    const h1 = withDies ? hitStart[j + 1]! : 0;
+    const keep = 1 - s;
+    for (let h = h0; h < h1; h++) detSurvivePerDie![hitDie![h]!]! *= keep;
+    if (!attribution) continue;
+    const src = source[j]!;
+    srcExponent[src]! += e;
+    exponentBins[bin]! += e;
+    if (reportable) {
+      srcVoids[src]! += s;
+      voidsBins[bin]! += s;
     }
-  else
-    for (let j = 0; j < survival.length; j++) {
-      const s = survival[j]!;
-      if (s <= 0) continue;
-      const r = rM[j]!;
-      const src = source[j]!;
-      const bin = binOfParticle[j]!;
-      detectedCountBins[bin]! += s;
-      const sa = s * Math.PI * r * r;
-      detAreaSum[bin]! += sa;
-      const e = sa * invAb;
-      srcExponent[src]! += e;
-      exponentBins[bin]! += e;
-      if (r >= dMinR) {
-        srcVoids[src]! += s;
-        voidsBins[bin]! += s;
-        detectedVoids += s;
-      }
-      if (withDies) {
-        const h0 = hitStart[j]!;
-        const h1 = hitStart[j + 1]!;
-        const keep = 1 - s;
-        for (let h = h0; h < h1; h++) {
-          const die = hitDie[h]!;
-          detSurvivePerDie[die]! *= keep;
-          detEventsPerDie[die]! += s;
-        }
-        const ev = s * (h1 - h0);
-        srcEvents[src]! += ev;
-        eventsBins[bin]! += ev;
-      }
+    if (withDies) {
+      for (let h = h0; h < h1; h++) detEventsPerDie![hitDie![h]!]! += s;
+      const ev = s * (h1 - h0);
+      srcEvents[src]! += ev;
+      eventsBins[bin]! += ev;
     }
+  }
   for (let c = 0; c < nSources; c++) {
     const fig = per[c]!;
     fig.exponent += srcExponent[c]!;
@@ -236,16 +217,17 @@ export function evaluate(
   let voids = 0;
   let exponent = 0;
   let particles = 0;
-  for (const f of per) {
+  // the random contributions' figures, then the detected particles' (their per-source shares, when
+  // kept, are in the figures too, so they are not summed from there)
+  for (let c = 0; c < per.length; c++) {
+    const f = per[c]!;
+    particles += f.particles;
+    if (contributions[c]!.detected) continue;
     voids += f.voids;
     exponent += f.exponent;
-    particles += f.particles;
   }
-  if (!attribution) {
-    // the detected particles were not added to their contributions' figures
-    voids += detectedVoids;
-    exponent += leanExponent;
-  }
+  voids += detectedVoids;
+  exponent += detectedExponent;
   let randomMeanPerDie = 0;
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) randomMeanPerDie += lambdaBins[k]! * acrit[k]!;
   let dieKillsPoisson: number | null = null;

@@ -16,18 +16,7 @@ export interface Placement {
   offsetYM: number;
 }
 
-/** Maps top-wafer coordinates (its own frame) into the bond frame; returns new arrays. */
-export function mirrorIntoBondFrame(
-  xM: Float64Array,
-  yM: Float64Array,
-  p: Placement,
-): { xM: Float64Array; yM: Float64Array } {
-  const out = { xM: new Float64Array(xM.length), yM: new Float64Array(xM.length) };
-  mirrorInto(xM, yM, p, out.xM, out.yM, 0);
-  return out;
-}
-
-/** mirrorIntoBondFrame written into outX/outY from `offset` on (no new arrays). */
+/** Maps top-wafer coordinates (its own frame) into the bond frame, written into outX/outY from `offset` on. */
 export function mirrorInto(
   xM: Float64Array,
   yM: Float64Array,

@@ -68,23 +68,6 @@ export function buildGridPhysics(physics: VoidPhysics, grid: Float64Array, hasDi
 }
 
 /**
- * Tail spectrum of one draw: N(≥ d) = n·(d/x_m)^(−α) placed in the bins between the floor and the
- * threshold — the same power law as the model's powerLawSpectrum (test/unit/engine/montecarlo.test.ts
- * checks the two agree), written out here without its argument checks because it runs once per
- * draw per tail. Writes into `out` (zeroed first); returns it.
- */
-export function tailBins(
-  n: number,
-  alpha: number,
-  xm: number,
-  floor: number,
-  out: Float64Array,
-): Float64Array {
-  out.fill(0);
-  return tailBinsOf(tailShape(xm, floor), n, alpha, out);
-}
-
-/**
  * The bins a tail between `floor` and its threshold x_m covers, [k0, k0 + m), and ln(e/x_m) at
  * their m + 1 edges clipped to [floor, x_m] — fixed per tail, so a draw needs one exp per edge.
  */
@@ -106,7 +89,12 @@ export function tailShape(xm: number, floor: number): TailShape {
   return { k0, lnRatio };
 }
 
-/** Writes the tail's counts into out[k0 … k0 + m − 1] (the other bins are left as they are). */
+/**
+ * Tail spectrum of one draw: N(≥ d) = n·(d/x_m)^(−α) placed in the bins between the floor and the
+ * threshold — the same power law as the model's powerLawSpectrum (test/unit/engine/montecarlo.test.ts
+ * checks the two agree), written out here without its argument checks because it runs once per
+ * draw per tail. Writes the counts into out[k0 … k0 + m − 1] (the other bins are left as they are).
+ */
 export function tailBinsOf(shape: TailShape, n: number, alpha: number, out: Float64Array): Float64Array {
   const a = Math.min(Math.max(alpha, 0), 10);
   const { k0, lnRatio } = shape;

@@ -126,8 +126,7 @@ export class Scratch {
   /** Keeps a grown buffer (a view's whole buffer) under that name for the next pair. */
   keep(name: string, a: Int32Array): void {
     const whole = new Int32Array(a.buffer);
-    if (whole.length > ((this.arrays.get(name)?.length as number | undefined) ?? 0))
-      this.arrays.set(name, whole);
+    if (whole.length > (this.arrays.get(name)?.length ?? 0)) this.arrays.set(name, whole);
   }
 }
 

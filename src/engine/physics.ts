@@ -33,7 +33,7 @@ import type { VoidPhysics } from './evaluate.ts';
 import { buildDieGrid, type DieGridIndex } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
-import { binOf, interpLogLin, type SizeIndex, sizeIndexOf, sizeTable } from './tables.ts';
+import { binOf, type SizeIndex, sizeIndexOf, sizeTable } from './tables.ts';
 import type { AssessConfig, CleanInput, FaceOrientation, ProductInput, StackModel } from './types.ts';
 
 export interface ProductPhysics extends PropagationPhysics, VoidPhysics {
@@ -184,7 +184,6 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     dieGrid,
     scanAreaM2: (ee) => Math.PI * (radiusW - ee) ** 2,
     binRadii,
-    radiusAt: (d) => interpLogLin(radiusTable, d),
     radiiInto(ix, out, offset) {
       // linear in log d from the cached cells (tables.ts: relative error ≤ (pΔ)²/8 ≈ 10⁻⁵ for R ∝ d^p, p ≤ 1)
       const { cell, weight } = ix;

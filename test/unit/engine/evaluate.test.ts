@@ -19,7 +19,6 @@ const layout = {
 const grid = buildDieGrid(layout, 0.147);
 const physics: VoidPhysics = {
   binRadii: () => new Float64Array(SPECTRUM_BIN_COUNT),
-  radiusAt: () => 0,
   reportableParticleM: () => 0.2e-6,
   criticalArea: (r) => criticalAreaRectangle(10e-3, 10e-3, r),
   poissonYield: (m) => poissonYield(m),

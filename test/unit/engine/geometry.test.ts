@@ -1,7 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { buildDieGrid, buildDieHits, mirrorIntoBondFrame } from '../../../src/engine/geometry.ts';
+import { buildDieGrid, buildDieHits, mirrorInto, type Placement } from '../../../src/engine/geometry.ts';
 import type { DieLayoutInput } from '../../../src/engine/types.ts';
 import { createRng } from '../../../src/model/rng.ts';
+
+/** The engine's mirror into new arrays. */
+function mirrorIntoBondFrame(xM: Float64Array, yM: Float64Array, p: Placement) {
+  const out = { xM: new Float64Array(xM.length), yM: new Float64Array(xM.length) };
+  mirrorInto(xM, yM, p, out.xM, out.yM, 0);
+  return out;
+}
 
 const layout = (over: Partial<DieLayoutInput> = {}): DieLayoutInput => ({
   widthM: 10e-3,

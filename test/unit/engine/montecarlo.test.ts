@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ExponentSampler, entryClass, tailBins } from '../../../src/engine/montecarlo.ts';
+import { ExponentSampler, entryClass, tailBinsOf, tailShape } from '../../../src/engine/montecarlo.ts';
 import { assessPair } from '../../../src/engine/pair.ts';
 import { createRng } from '../../../src/model/rng.ts';
 import { powerLawSpectrum, SPECTRUM_BIN_COUNT } from '../../../src/model/spectrum.ts';
@@ -13,14 +13,14 @@ import {
   T0,
 } from '../../helpers/engine-inputs.ts';
 
-describe('tailBins', () => {
+describe('tailBinsOf', () => {
   it('places the same power law as the model library’s powerLawSpectrum (the per-draw copy must not drift)', () => {
     for (const [n, a, xm, floor] of [
       [12, 2.3, 45e-9, 20e-9],
       [3, 0.4, 65e-9, 20e-9],
       [1000, 7.5, 26e-9, 10e-9],
     ] as const) {
-      const ours = tailBins(n, a, xm, floor, new Float64Array(SPECTRUM_BIN_COUNT));
+      const ours = tailBinsOf(tailShape(xm, floor), n, a, new Float64Array(SPECTRUM_BIN_COUNT));
       const model = powerLawSpectrum({ countAbove: n, atDiameterM: xm, slope: a, fromM: floor, toM: xm });
       // tolerance: relative 1e-12 (the same formula, evaluated in the same order up to rounding)
       for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)
