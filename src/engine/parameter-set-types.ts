@@ -1,0 +1,122 @@
+/**
+ * The contract between learning (fits from the line's own scans and void inspections) and the
+ * assessment: a parameter set is a versioned record of fitted values that a person adopts. While a
+ * set is adopted, the assessment uses its values in place of the typed ones (tools file, products)
+ * and says which set it used; the inputs' hash covers the set. With none adopted the typed values
+ * apply.
+ *
+ * SI units as everywhere in the engine (types.ts). Every fitted value carries its interval, the
+ * method, and the data it rests on (methods.md §1–§4 of the project reference: every fit returns an
+ * interval and the data it came from; a fit with too little data proposes nothing).
+ */
+
+/** Where a fitted value came from: enough for a reader to find the rows again. */
+export interface FitProvenance {
+  /** Published method, e.g. "Garwood interval of the summed adders (Garwood 1936)". */
+  method: string;
+  /** Scan ids, inspection ids, pair ids or lot ids the fit used. */
+  data: string[];
+  /** How many independent observations the fit rests on (passes, particles, matched voids, pairs). */
+  n: number;
+  /** When the fit was made, UTC ms. */
+  fittedAtMs: number;
+}
+
+/** Adders per wafer pass of one tool or chamber, fitted from before/after scans (methods.md §2). */
+export interface FittedAdders extends FitProvenance {
+  toolId: string;
+  chamber: string | null;
+  /** Mean adders per pass with diameter ≥ atDiameterM, count per wafer pass, and its 95 % interval. */
+  countAbove: number;
+  countLow: number;
+  countHigh: number;
+  /** Reference diameter of the count (the scans' threshold, or the larger of the two), m. */
+  atDiameterM: number;
+  /** Cumulative power-law slope α (Hill MLE) and its standard error. */
+  slope: number;
+  slopeSe: number;
+  /** Passes the count rests on. */
+  passes: number;
+  /** Variance-to-mean ratio of the per-pass counts (1: Poisson); null with fewer than 2 passes. */
+  dispersionIndex: number | null;
+}
+
+/** A clean's removal curve PRE(d) = E_max / (1 + (d50/d)^k), fitted on matched particles (methods.md §3). */
+export interface FittedRemoval extends FitProvenance {
+  cleanId: string;
+  maxEfficiency: number;
+  halfSizeM: number;
+  /** Logistic width in decades of d (the engine's CleanInput form; k = 1 / (w ln 10)). */
+  widthDecades: number;
+  /** 95 % interval of d50, m, and of w, decades. */
+  halfSizeLowM: number;
+  halfSizeHighM: number;
+  widthLowDecades: number;
+  widthHighDecades: number;
+}
+
+/** The effective interface energy of a product from explained voids (methods.md §4). */
+export interface FittedVoidSize extends FitProvenance {
+  productId: string;
+  /** Effective interface energy, J/m², in the product's convention, with its 95 % interval. */
+  energyJm2: number;
+  energyLowJm2: number;
+  energyHighJm2: number;
+  /** The same as a multiplier on the predicted void radius (1: the typed energy). */
+  radiusMultiplier: number;
+}
+
+/** Voids no scanned particle explains, per bonded pair (methods.md §4). */
+export interface FittedUnexplainedVoids extends FitProvenance {
+  productId: string;
+  /** Expected reportable voids per pair that no scanned particle explains, with its Garwood interval. */
+  ratePerPair: number;
+  rateLowPerPair: number;
+  rateHighPerPair: number;
+  /** Mean void area of those voids, m² (their unbonded area per void). */
+  meanAreaM2: number;
+  /** Mean equivalent diameter of those voids, m. */
+  meanDiameterM: number;
+}
+
+/** The values of a parameter set. Each map may be empty: what a set leaves out keeps its typed value. */
+export interface ParameterValues {
+  /** By key `${toolId}` or `${toolId}/${chamber}`, as LineData.tools. */
+  adders: Record<string, FittedAdders>;
+  /** By clean id. */
+  removal: Record<string, FittedRemoval>;
+  /** By product id. */
+  voidSize: Record<string, FittedVoidSize>;
+  /** By product id. */
+  unexplainedVoids: Record<string, FittedUnexplainedVoids>;
+}
+
+export type ParameterSetState = 'proposed' | 'adopted' | 'retired';
+
+/** A stored parameter set. */
+export interface ParameterSet {
+  id: number;
+  /** Ascending version number, one per stored set. */
+  version: number;
+  /** A label people use ("fit of 12 Oct monitors"). */
+  label: string;
+  state: ParameterSetState;
+  values: ParameterValues;
+  /** What the fits said of the data they rejected as too thin (nothing proposed for those). */
+  notes: string[];
+  createdAtMs: number;
+  createdBy: string;
+  adoptedAtMs: number | null;
+  adoptedBy: string | null;
+  /** sha256 of the canonical serialisation of `values` (part of every assessment's inputs' hash). */
+  valuesHash: string;
+}
+
+/** What an assessment says of the parameters it used. */
+export interface ParameterSetRef {
+  /** null: the typed values (tools file, products); no set adopted. */
+  id: number | null;
+  version: number | null;
+  label: string;
+  valuesHash: string | null;
+}
