@@ -1,7 +1,12 @@
 /**
  * The engine's only database access: reads a lot or a pair with everything its assessment needs
  * through the store's helpers and hands plain inputs (src/engine/types.ts) to the pure engine; and
- * stores sign-offs. Everything else in src/engine is pure.
+ * stores sign-offs. Everything else in src/engine is pure, but for parameter-sets.ts (storing, adopting
+ * and reverting parameter sets) and parallel.ts (a lot's second thread opens its own connection).
+ *
+ * Every load applies the adopted parameter set (src/engine/parameters.ts) to the typed values it
+ * read, or the set it is given (a lot's second thread gets the set the first one read, so both use
+ * the same one even if someone adopts another in between).
  */
 import { readCounterSeries } from '../store/counters.ts';
 import type { Db } from '../store/db.ts';
@@ -13,6 +18,9 @@ import { latestScanBefore, scanInputOf } from '../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
+import type { ParameterSet } from './parameter-set-types.ts';
+import { readAdoptedParameterSet } from './parameter-sets.ts';
+import { applyParameterSet } from './parameters.ts';
 import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
 import type {
   AssessOptions,
@@ -152,7 +160,8 @@ function loadPairs(
   db: Db,
   rows: PairRow[],
   asOfMs: number,
-  only?: ReadonlySet<string>,
+  only: ReadonlySet<string> | undefined,
+  set: ParameterSet | null,
 ): { pairs: PairInput[]; line: LineData } {
   const toolsStored = readTools(db);
   const cleansStored = readCleans(db);
@@ -235,7 +244,7 @@ function loadPairs(
   const counters: Record<string, CounterSeriesInput> = {};
   for (const [loc, [from, to]] of windows) counters[loc] = readCounterSeries(db, loc, from, to);
   const locations = readLocations(db, [...windows.keys()]);
-  return { pairs, line: { products, tools, cleans, locations, counters } };
+  return { pairs, line: applyParameterSet({ products, tools, cleans, locations, counters }, set) };
 }
 
 /** A stored product as the engine's input, or null. */
@@ -243,11 +252,19 @@ export function readProductInput(db: Db, productId: string): ProductInput | null
   return readProduct(db, productId) ?? null;
 }
 
-/** A pair with its line data, or null when the pair is unknown. */
-export function loadPair(db: Db, pairId: string, asOfMs: number): { pair: PairInput; line: LineData } | null {
+/**
+ * A pair with its line data, or null when the pair is unknown. `set`: the parameter set to apply
+ * (default: the adopted one; null: the typed values).
+ */
+export function loadPair(
+  db: Db,
+  pairId: string,
+  asOfMs: number,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
+): { pair: PairInput; line: LineData } | null {
   const row = readPairRow(db, pairId);
   if (!row) return null;
-  const { pairs, line } = loadPairs(db, [row], asOfMs);
+  const { pairs, line } = loadPairs(db, [row], asOfMs, undefined, set);
   return { pair: pairs[0]!, line };
 }
 
@@ -265,18 +282,20 @@ export function lotPairIds(db: Db, lotId: string): string[] | null {
 
 /**
  * A lot with its pairs (all, or those in `only`) and line data, or null when the lot is unknown.
- * The line data covers the whole lot either way.
+ * The line data covers the whole lot either way. `set`: the parameter set to apply (default: the
+ * adopted one; null: the typed values).
  */
 export function loadLot(
   db: Db,
   lotId: string,
   asOfMs: number,
   only?: ReadonlySet<string>,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
 ): { lot: LotInput; line: LineData } | null {
   const lot = readLot(db, lotId);
   if (!lot) return null;
   const rows = lotPairRows(db, lotId);
-  const { pairs, line } = loadPairs(db, rows, asOfMs, only);
+  const { pairs, line } = loadPairs(db, rows, asOfMs, only, set);
   const productId = lot.productId ?? rows[0]?.product_id ?? '';
   return { lot: { lotId, productId, pairs }, line };
 }
@@ -302,8 +321,9 @@ export function assessLotPairsFromDb(
   lotId: string,
   pairIds: readonly string[],
   opts: AssessOptions,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
 ): { productId: string; pairs: PairAssessment[] } | null {
-  const loaded = loadLot(db, lotId, opts.asOfMs, new Set(pairIds));
+  const loaded = loadLot(db, lotId, opts.asOfMs, new Set(pairIds), set);
   if (!loaded) return null;
   const session = createSession(loaded.line, opts.config);
   const detail = opts.detail ?? 'summary';
