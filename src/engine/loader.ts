@@ -18,7 +18,8 @@ import { latestScanBefore, scanInputOf } from '../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
-import type { ParameterSet } from './parameter-set-types.ts';
+import type { TypedCounterparts } from './parameter-entries.ts';
+import type { ParameterSet, ParameterValues } from './parameter-set-types.ts';
 import { readAdoptedParameterSet } from './parameter-sets.ts';
 import { applyParameterSet } from './parameters.ts';
 import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
@@ -245,6 +246,29 @@ function loadPairs(
   for (const [loc, [from, to]] of windows) counters[loc] = readCounterSeries(db, loc, from, to);
   const locations = readLocations(db, [...windows.keys()]);
   return { pairs, line: applyParameterSet({ products, tools, cleans, locations, counters }, set) };
+}
+
+/**
+ * The typed values a set's values would replace (tools file, products), for showing them side by
+ * side: per adders key the chamber's entry, else the tool's — the one the engine used.
+ */
+export function typedCounterparts(db: Db, values: ParameterValues): TypedCounterparts {
+  const stored = readTools(db);
+  const tools: TypedCounterparts['tools'] = {};
+  for (const [k, f] of Object.entries(values.adders)) {
+    const t = stored[k] ?? stored[f.toolId];
+    tools[k] = t ? toToolInput(t) : null;
+  }
+  const storedCleans = readCleans(db);
+  const cleans: TypedCounterparts['cleans'] = {};
+  for (const k of Object.keys(values.removal)) {
+    const c = storedCleans[k];
+    cleans[k] = c ? toCleanInput(c) : null;
+  }
+  const products: TypedCounterparts['products'] = {};
+  for (const k of [...Object.keys(values.voidSize), ...Object.keys(values.unexplainedVoids)])
+    products[k] = readProduct(db, k) ?? null;
+  return { tools, cleans, products };
 }
 
 /** A stored product as the engine's input, or null. */
