@@ -672,6 +672,7 @@ function buildVoidMap(
       pitchYM: L.pitchYM,
       pad: L.pad,
       yieldModel,
+      killedThreshold: cfg.killedDieThreshold,
       dies: Array.from({ length: g.count }, (_, d) => {
         // the same terms, in the same form, as the pair's die-loss figures (evaluate.ts)
         const surv = ev.detSurvivePerDie![d]!;

@@ -503,6 +503,8 @@ export interface DieGrid {
    * the dies is the pair's expected die loss in that form (figures.dieKillsPoisson / dieKillsNB).
    */
   yieldModel: 'poisson' | 'negative-binomial';
+  /** The kill probability at or above which a die is `killed` (config.killedDieThreshold), 0–1. */
+  killedThreshold: number;
   /** Whole dies inside the edge exclusion. */
   dies: DieCell[];
 }
