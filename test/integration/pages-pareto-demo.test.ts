@@ -7,7 +7,7 @@
  * stay there (it used to run 42 → 100 % over three tool bars) and the rest must be shown.
  *
  * Tolerance per point: the table's display rounding — half a unit of the last digit shown, for
- * every share summed up to that point — plus 0.1 px of coordinate rounding over the 178 px axis.
+ * every share summed up to that point — plus 0.1 px of coordinate rounding over the 180 px axis.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -81,7 +81,7 @@ async function panel(base: string, by: string): Promise<El> {
   return parseXml(await res.text()).children[0]!;
 }
 
-const PX = 0.1 / 178;
+const PX = 0.1 / 180;
 
 describe.each([
   ['lot TR2653', '/lots/TR2653'],

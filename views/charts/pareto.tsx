@@ -9,9 +9,10 @@
  * the same figures as the share column of the table beside the chart.
  *
  * Beyond `maxBars` the smallest items are pooled into one "others" bar. A rest bar much taller than
- * every item is drawn broken (cut at the top of the plot, with its value written above) so the
- * items keep a readable scale. Labels come from files (tool names, locations): hono/jsx escapes
- * them, long ones are shortened on the axis and given whole in the bar's tooltip.
+ * every item is drawn broken (cut at the top of the plot, its value written inside) so the items
+ * keep a readable scale. Labels come from files (tool names, locations): hono/jsx escapes them;
+ * they run down from under their bars, long ones shortened to the margin and given whole in the
+ * bar's tooltip (and in the table beside the chart).
  */
 import { scaleBand, scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
@@ -105,6 +106,8 @@ export function paretoBars(
 const ITEM_FILL = '#2c3648';
 const POOLED_FILL = '#b9bec8';
 const LINE_COLOUR = '#c98a12';
+/** Upper bound of the advance of one character of the 11 px chart type (capitals and digits included), px. */
+export const LABEL_PX_PER_CHAR = 6.6;
 
 export function pareto(input: ParetoInput) {
   const id = safeId(input.id ?? `pa-${input.title}`);
@@ -112,8 +115,8 @@ export function pareto(input: ParetoInput) {
   const items = bars.filter((b) => !b.rest);
   const restBar = bars.find((b) => b.rest) ?? null;
   const width = input.width ?? 520;
-  const height = input.height ?? 300;
-  const frame = { width, height, margin: { top: 30, right: 60, bottom: 92, left: 62 } };
+  const height = input.height ?? 340;
+  const frame = { width, height, margin: { top: 30, right: 60, bottom: 130, left: 62 } };
   const box = innerBox(frame);
   const x = scaleBand<number>()
     .domain(bars.map((_, i) => i))
@@ -140,10 +143,10 @@ export function pareto(input: ParetoInput) {
       `; cumulative share of the total ${items.map((b) => fmtPct(b.cumulative)).join(', ')}` +
       (restBar ? `, 100 % with ${restBar.label}.` : '.')
     : `No contributions to ${input.valueLabel}.`;
-  // Axis labels run down-left at 35°: about 5.5 px of width and 3.4 px of depth per character
-  // (11 px type), so each is cut to what fits left of its bar and in the bottom margin.
-  const labelChars = (i: number) =>
-    Math.max(4, Math.min(24, Math.floor(x.bandwidth() / 3.2), Math.floor((cx(i) - 4) / 5.5)));
+  // Axis labels run straight down from under their bar (a column about 13 px wide, so neighbours
+  // never meet); at most 6.6 px per character of 11 px type, each is cut to the bottom margin.
+  const labelTop = box.y1 + 8;
+  const labelChars = Math.max(4, Math.floor((height - labelTop - 4) / LABEL_PX_PER_CHAR));
   const barTop = (b: ParetoBar) => (b.rest && restBroken ? box.y0 : y(b.value));
   const fmtValue = input.format ?? ((v: number) => fmtNum(v));
   // A value is written above its bar unless the cumulative point sits there: then inside the bar
@@ -245,12 +248,12 @@ export function pareto(input: ParetoInput) {
             </text>
             <text
               class="vc-bar-label"
-              x={r(cx(i))}
-              y={box.y1 + 12}
+              x={r(cx(i) + 4)}
+              y={r(labelTop)}
               text-anchor="end"
-              transform={`rotate(-35 ${r(cx(i))} ${box.y1 + 12})`}
+              transform={`rotate(-90 ${r(cx(i) + 4)} ${r(labelTop)})`}
             >
-              {clip(b.label, labelChars(i))}
+              {clip(b.label, labelChars)}
             </text>
           </g>
         ))}

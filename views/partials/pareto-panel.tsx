@@ -129,7 +129,7 @@ export function ParetoPanel(props: {
             restLabel: REST_LABEL,
             format: metric === 'expectedVoids' ? (v) => fmtNum(v) : fmtDies,
             width: 560,
-            height: 300,
+            height: 340,
           })}
           <p class="vc-small vc-pareto-caption">
             Bars, line and the share column are shares of all {METRIC_LABEL[metric]} of the{' '}

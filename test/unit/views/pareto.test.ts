@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { pareto, paretoBars } from '../../../views/charts/pareto.tsx';
+import { LABEL_PX_PER_CHAR, pareto, paretoBars } from '../../../views/charts/pareto.tsx';
 import { byClass, byName, danglingRefs, svgOf, textOf } from './svg-query.ts';
 
 describe('paretoBars', () => {
@@ -110,7 +110,7 @@ describe('pareto', () => {
     const shareAt = (y: number) => (y0 - y) / (y0 - y100);
     const points = byClass(svg, 'vc-cumulative-point').map((p) => shareAt(Number(p.attrs.y) + 3));
     // hand computation: 3, 2, 1 of 150 → 2 %, 3.33 %, 4 %, then 100 % with the rest (144);
-    // 0.1 px rounding of the coordinates over a 178 px axis: 0.1 %
+    // 0.1 px rounding of the coordinates over a 180 px axis: 0.1 %
     const want = [0.02, 5 / 150, 0.04, 1];
     for (let i = 0; i < want.length; i++) expect(Math.abs(points[i]! - want[i]!)).toBeLessThan(0.001);
     const guide = byClass(svg, 'vc-guide')[0]!;
@@ -130,15 +130,20 @@ describe('pareto', () => {
     expect(byClass(even, 'vc-bar-rest')).toHaveLength(1);
   });
 
-  it('keeps every bar label inside the chart: cut to what fits left of its bar', () => {
+  it('keeps every bar label inside the chart and apart from its neighbours', () => {
     const long = 'Waiting at Boreas bay 2 (buffer carts and spare load ports)';
-    const svg = svgOf(
-      pareto({ title: 't', items: [{ label: long, value: 5 }, ...items], valueLabel: 'v', width: 560 }),
-    );
-    for (const l of byClass(svg, 'vc-bar-label')) {
-      // 35° down-left from (x, y): about 5.5 px of width per character (11 px type)
-      expect(Number(l.attrs.x) - 5.5 * Array.from(textOf(l)).length).toBeGreaterThanOrEqual(0);
+    const many = Array.from({ length: 12 }, (_, i) => ({ label: `${long} ${i}`, value: 12 - i }));
+    const svg = svgOf(pareto({ title: 't', items: many, valueLabel: 'v', width: 560, height: 340 }));
+    const labels = byClass(svg, 'vc-bar-label');
+    expect(labels).toHaveLength(10); // 9 items and "others (3)"
+    for (const l of labels) {
+      // rotated −90° about its anchor, end-anchored: it runs down from y by its length
+      expect(l.attrs.transform).toBe(`rotate(-90 ${l.attrs.x} ${l.attrs.y})`);
+      expect(Number(l.attrs.y) + LABEL_PX_PER_CHAR * Array.from(textOf(l)).length).toBeLessThanOrEqual(340);
     }
+    // one 11 px line each (about 13 px across): columns at least that far apart
+    const xs = labels.map((l) => Number(l.attrs.x));
+    for (let i = 1; i < xs.length; i++) expect(xs[i]! - xs[i - 1]!).toBeGreaterThan(14);
   });
 
   it('says there is nothing to attribute when every value is zero', () => {
