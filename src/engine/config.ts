@@ -4,7 +4,7 @@
 import type { AssessConfig } from './types.ts';
 
 /** Version of the chain (bumped whenever a formula or default that changes figures changes). */
-export const MODEL_VERSION = 'voidcast-chain/2';
+export const MODEL_VERSION = 'voidcast-chain/3';
 
 export const DEFAULT_ASSESS_CONFIG: Readonly<AssessConfig> = Object.freeze({
   // 20 nm: about one octave below the smallest pre-bond scan thresholds in use (26–65 nm LSE), so a

@@ -3,10 +3,15 @@
  * contribution, per size bin and per die.
  *
  * Random (position-unknown) particles of contribution c, bin k: N_ck per wafer spread over the
- * contribution's area basis A_c, density λ_ck = N_ck / A_c (per m²). With void radius R_k:
+ * contribution's area basis A_c, density λ_ck = N_ck / A_c (per m²), uniform over the wafer face
+ * (the edge-exclusion ring included) and nowhere beyond its edge. With void radius R_k:
  *   reportable voids          V = Σ λ_ck · A_b · f_k                   (f_k: part of bin k whose void is reportable)
  *   unbonded fraction         U = 1 − exp(−E),   E = Σ λ_ck π R_k²    (Boolean model of discs)
- *   die kill mean per die     m = Σ λ_ck · A_c(R_k)                    (critical area of the pad/die rectangle)
+ *   die kill mean of die d    m_d = Σ λ_ck · A_d(R_k)                  (critical area of d's pad/die rectangle
+ *                                                                       grown by R_k, cut at the wafer edge)
+ * A_d(R) is the plane value A_c(R) = WH + 2R(W + H) + πR² for every die whose grown rectangle lies on
+ * the wafer, so m_d = m (one value) for most dies; the edge dies lose what lies past the edge
+ * (geometry.ts, buildEdgeClip).
  * Detected particles j at (x_j, y_j) with survival s_j and radius R(d_j) (models.md §5 form
  * "Σ s·[disc hits die]"): their voids Σ s_j [2R_j ≥ D_min]; their Boolean exponent Σ s_j π R_j² / A_b;
  * per die the probability that none of them is there: Π_j (1 − s_j [disc j hits die]).
@@ -20,7 +25,7 @@
  * Every linear term (V, E, m, Σ s·hits) is a sum over contributions, so shares are exact.
  */
 import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
-import type { DieGridIndex } from './geometry.ts';
+import type { DieGridIndex, EdgeClip } from './geometry.ts';
 import { type Contribution, interfaceSpectrum } from './propagate.ts';
 
 /** Per-product void and yield helpers (physics.ts builds them from the model library). */
@@ -31,6 +36,8 @@ export interface VoidPhysics {
   reportableParticleM(smallGapFactor: number): number;
   /** Critical area of the pad/die rectangle for a disc of radius R, m² (0 without dies). */
   criticalArea(radiusM: number): number;
+  /** Where the wafer edge cuts the dies' critical regions for these radii (null without dies). */
+  dieEdgeClip(radiiM: Float64Array): EdgeClip | null;
   /** Poisson and negative-binomial die yield for a defect mean λA (dies). */
   poissonYield(meanKills: number): number;
   negativeBinomialYield(meanKills: number, alpha: number): number;
@@ -97,8 +104,10 @@ export interface Evaluation {
   detectedVoids: number;
   voids: number;
   exponent: number;
-  /** Random die-kill mean per die. */
+  /** Random die-kill mean of a die whose critical regions lie wholly on the wafer (most dies), dies. */
   randomMeanPerDie: number;
+  /** Per die: its random die-kill mean m_d (critical areas cut at the wafer edge), dies; null without dies. */
+  randomMeanDie: Float64Array | null;
   /** Per die: probability that no detected particle kills it, and the expected detected hits. */
   detSurvivePerDie: Float64Array | null;
   detEventsPerDie: Float64Array | null;
@@ -131,6 +140,12 @@ export function evaluate(
   const ab = physics.bondedAreaM2;
   const acrit = new Float64Array(SPECTRUM_BIN_COUNT);
   if (grid) for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) acrit[k] = physics.criticalArea(radiiNominal[k]!);
+  const clip = grid ? physics.dieEdgeClip(radiiNominal) : null;
+  // Σ over the dies of each bin's critical area (edge dies cut), m²
+  const dieAreaSum = new Float64Array(SPECTRUM_BIN_COUNT);
+  if (grid)
+    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)
+      dieAreaSum[k] = clip ? clip.totalAreaM2[k]! : acrit[k]! * grid.count;
   const lambdaBins = new Float64Array(SPECTRUM_BIN_COUNT);
   const voidsBins = new Float64Array(SPECTRUM_BIN_COUNT);
   const exponentBins = new Float64Array(SPECTRUM_BIN_COUNT);
@@ -162,7 +177,7 @@ export function evaluate(
       lambdaBins[k]! += lam;
       const v = lam * ab * frac[k]!;
       const e = lam * Math.PI * r * r;
-      const ev = lam * acrit[k]! * nDies;
+      const ev = lam * dieAreaSum[k]!;
       fig.voids += v;
       fig.exponent += e;
       fig.dieEvents += ev;
@@ -247,16 +262,31 @@ export function evaluate(
   exponent += detectedExponent;
   let randomMeanPerDie = uniformMeanPerDie;
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) randomMeanPerDie += lambdaBins[k]! * acrit[k]!;
+  const randomMeanDie = grid ? new Float64Array(nDies).fill(randomMeanPerDie) : null;
+  if (clip && randomMeanDie) {
+    // the edge dies lose λ_k × the part of their critical area past the wafer edge
+    for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
+      const lam = lambdaBins[k]!;
+      if (lam === 0) continue;
+      for (let e = clip.start[k]!; e < clip.start[k + 1]!; e++)
+        randomMeanDie[clip.die[e]!]! -= lam * clip.lossM2[e]!;
+    }
+    for (let d = 0; d < nDies; d++) if (randomMeanDie[d]! < 0) randomMeanDie[d] = 0;
+  }
   let dieKillsPoisson: number | null = null;
   let dieKillsNB: number | null = null;
-  if (grid && detSurvivePerDie) {
+  if (grid && detSurvivePerDie && randomMeanDie) {
+    // P_kill,d = 1 − S_d · Y(m_d); the yields of the common m once, of an edge die's own m_d apart
     const yP = physics.poissonYield(randomMeanPerDie);
     const yNB = physics.negativeBinomialYield(randomMeanPerDie, clusterAlpha);
     dieKillsPoisson = 0;
     dieKillsNB = 0;
     for (let d = 0; d < nDies; d++) {
-      dieKillsPoisson += 1 - detSurvivePerDie[d]! * yP;
-      dieKillsNB += 1 - detSurvivePerDie[d]! * yNB;
+      const md = randomMeanDie[d]!;
+      const s = detSurvivePerDie[d]!;
+      const own = md !== randomMeanPerDie;
+      dieKillsPoisson += 1 - s * (own ? physics.poissonYield(md) : yP);
+      dieKillsNB += 1 - s * (own ? physics.negativeBinomialYield(md, clusterAlpha) : yNB);
     }
   }
   return {
@@ -271,6 +301,7 @@ export function evaluate(
     voids,
     exponent,
     randomMeanPerDie,
+    randomMeanDie,
     detSurvivePerDie,
     detEventsPerDie,
     dieCount: nDies,

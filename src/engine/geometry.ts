@@ -7,6 +7,7 @@
  * (counter-clockwise, radians) and offset apply. A flip is a mirror, so a point and its image have
  * the same distance from the centre and a second flip about the same axis returns it.
  */
+import { criticalAreaOnWafer, criticalAreaRectangle } from '../model/yield.ts';
 import type { DieLayoutInput } from './types.ts';
 
 export interface Placement {
@@ -171,4 +172,67 @@ export function buildDieHits(
   }
   hitStart[n] = m;
   return { hitStart: hitStart.subarray(0, n + 1), hitDie: buf.subarray(0, m) };
+}
+
+/**
+ * Where the wafer edge cuts the critical regions of the die grid, per size bin. Random particles
+ * lie uniformly over the wafer face (the edge-exclusion ring included: scans do not report it, but
+ * particles sit there all the same) and nowhere beyond its edge, so a die whose critical region —
+ * its pad (or die) rectangle grown by the void radius R — reaches past the edge is exposed to fewer
+ * of them: its critical area is area{p : |p| ≤ R_w, dist(p, rect) ≤ R} (the model library's
+ * criticalAreaOnWafer) instead of the plane value WH + 2R(W + H) + πR² (criticalAreaRectangle).
+ *
+ * Only the (die, bin) pairs that lose area are listed: bin k's are rows start[k] … start[k+1] − 1
+ * of `die` and `lossM2` (the plane value minus the clipped one, m²). A region lies wholly on the
+ * wafer when its farthest corner is within R_w − R of the centre (the grown rectangle's farthest
+ * point is a corner pushed out by R), so most pairs are settled by that test alone.
+ */
+export interface EdgeClip {
+  start: Int32Array;
+  die: Int32Array;
+  lossM2: Float64Array;
+  /** Per bin: Σ over the dies of the clipped critical area, m². */
+  totalAreaM2: Float64Array;
+}
+
+export function buildEdgeClip(g: DieGridIndex, radiiM: Float64Array, waferRadiusM: number): EdgeClip {
+  const nBins = radiiM.length;
+  const { count, critX0, critY0, critW, critH } = g;
+  const far = new Float64Array(count);
+  for (let d = 0; d < count; d++) {
+    const x0 = critX0[d]!;
+    const y0 = critY0[d]!;
+    far[d] = Math.hypot(
+      Math.max(Math.abs(x0), Math.abs(x0 + critW)),
+      Math.max(Math.abs(y0), Math.abs(y0 + critH)),
+    );
+  }
+  const start = new Int32Array(nBins + 1);
+  const die: number[] = [];
+  const loss: number[] = [];
+  const totalAreaM2 = new Float64Array(nBins);
+  for (let k = 0; k < nBins; k++) {
+    start[k] = die.length;
+    const r = radiiM[k]!;
+    const plane = criticalAreaRectangle(critW, critH, r);
+    let lost = 0;
+    for (let d = 0; d < count; d++) {
+      if (far[d]! + r <= waferRadiusM) continue;
+      const x0 = critX0[d]!;
+      const y0 = critY0[d]!;
+      const onWafer = criticalAreaOnWafer(
+        { xMinM: x0, yMinM: y0, xMaxM: x0 + critW, yMaxM: y0 + critH },
+        r,
+        waferRadiusM,
+      );
+      const l = plane - onWafer;
+      if (!(l > 0)) continue;
+      die.push(d);
+      loss.push(l);
+      lost += l;
+    }
+    totalAreaM2[k] = count * plane - lost;
+  }
+  start[nBins] = die.length;
+  return { start, die: Int32Array.from(die), lossM2: Float64Array.from(loss), totalAreaM2 };
 }

@@ -15,9 +15,10 @@
  * then counting noise: reportable voids ~ Poisson(expected voids) (detected particles' Bernoulli
  * survivals are taken as Poisson: the same mean and a variance at least as large, the conservative
  * side); for the unbonded area the discs of each bin are a Poisson count and the Boolean exponent is
- * taken over the drawn discs (ExponentSampler); each die is killed with its probability (drawKills),
- * the random part of the negative-binomial form drawn with the die mean scaled by a wafer-level
- * Gamma(α, 1/α) factor — the gamma–Poisson mixture that defines it (Stapper).
+ * taken over the drawn discs (ExponentSampler); each die is killed with its probability (drawKills;
+ * an edge die's random mean is its share of the wafer-level one, DieClasses), the random part of
+ * the negative-binomial form drawn with the die mean scaled by a wafer-level Gamma(α, 1/α) factor —
+ * the gamma–Poisson mixture that defines it (Stapper).
  * Detected particles keep their nominal radii (their positions are fixed).
  * Voids no scanned particle explains (an adopted set's rate per pair): the rate is drawn from its
  * 95 % interval (drawUnexplainedRate in parameters.ts), then counted like the rest — Poisson voids,
@@ -112,47 +113,156 @@ export function tailBinsOf(shape: TailShape, n: number, alpha: number, out: Floa
 }
 
 /**
- * Killed dies in one draw: Σ over dies of Bernoulli(p_d), p_d = 1 − S_d·q (S_d: no detected particle
- * kills die d; q: no random one does). Exact Bernoulli draws where the count is small; otherwise:
- * - dies no detected particle reaches share one p = 1 − q: their count is Binomial(n₁, p), drawn as
- *   Poisson(n₁p) when p ≤ 0.01 (total-variation error ≤ p, Barbour & Hall 1984) or as a rounded
- *   normal when n₁p(1 − p) ≥ 9 (the usual rule of thumb for the normal approximation);
+ * The dies of a scenario grouped for the kill draws. A die's random die-kill mean is a fixed share c
+ * of the wafer-level mean m (c = m_d / m from the nominal evaluation: 1 for a die whose critical
+ * regions lie on the wafer, less for an edge die the wafer edge cuts), so in a draw whose mean is m
+ * the die is killed with p_d = 1 − S_d·e^(−c·m) (S_d: no detected particle kills it). Dies are
+ * grouped by c in steps of 1/64 (c = 1 exactly is a group of its own), each group drawn with the
+ * mean c of its dies. **Choice:** the share c is taken at the nominal inputs in every draw (the
+ * draws move m, not the mix of sizes between the dies), and rounding c to its group moves an edge
+ * die's mean by at most 1/128 of m — for the interval only; the expected value uses every die's
+ * own m_d.
+ */
+export interface DieClasses {
+  /** Per group: c, the number of dies no detected particle reaches, and its reached dies' S_d. */
+  share: Float64Array;
+  free: Int32Array;
+  /** Group j's reached dies: hitS[hitStart[j] … hitStart[j+1] − 1]. */
+  hitStart: Int32Array;
+  hitS: Float64Array;
+  /** Per group: ΣS_d, ΣS_d², min S_d, max S_d over its reached dies. */
+  sumS: Float64Array;
+  sumS2: Float64Array;
+  minS: Float64Array;
+  maxS: Float64Array;
+  /** Dies a detected particle kills for certain (S_d < 1e-12), in no group. */
+  certain: number;
+  nDies: number;
+}
+
+export function dieClasses(
+  survive: Float64Array,
+  randomMeanDie: Float64Array | null,
+  randomMean: number,
+): DieClasses {
+  const nDies = survive.length;
+  const groups = new Map<number, { c: number; n: number; free: number; hit: number[] }>();
+  let certain = 0;
+  for (let d = 0; d < nDies; d++) {
+    const s = survive[d]!;
+    if (s < 1e-12) {
+      certain++;
+      continue;
+    }
+    const c = randomMeanDie && randomMean > 0 ? Math.min(randomMeanDie[d]! / randomMean, 1) : 1;
+    const key = c === 1 ? -1 : Math.round(c * 64);
+    let g = groups.get(key);
+    if (!g) {
+      g = { c: 0, n: 0, free: 0, hit: [] };
+      groups.set(key, g);
+    }
+    g.c += c;
+    g.n++;
+    if (s < 1) g.hit.push(s);
+    else g.free++;
+  }
+  // the c = 1 group first, then by key, so that the order (and the draws) do not depend on die order
+  const list = [...groups.entries()].sort((a, b) => a[0] - b[0]).map((e) => e[1]);
+  const k = list.length;
+  const out: DieClasses = {
+    share: new Float64Array(k),
+    free: new Int32Array(k),
+    hitStart: new Int32Array(k + 1),
+    hitS: new Float64Array(list.reduce((a, g) => a + g.hit.length, 0)),
+    sumS: new Float64Array(k),
+    sumS2: new Float64Array(k),
+    minS: new Float64Array(k).fill(1),
+    maxS: new Float64Array(k),
+    certain,
+    nDies,
+  };
+  let o = 0;
+  list.forEach((g, j) => {
+    out.share[j] = g.c / g.n;
+    out.free[j] = g.free;
+    out.hitStart[j] = o;
+    for (const x of g.hit) {
+      out.hitS[o++] = x;
+      out.sumS[j]! += x;
+      out.sumS2[j]! += x * x;
+      if (x < out.minS[j]!) out.minS[j] = x;
+      if (x > out.maxS[j]!) out.maxS[j] = x;
+    }
+  });
+  out.hitStart[k] = o;
+  return out;
+}
+
+/**
+ * Killed dies in one draw whose wafer-level random die-kill mean is `mean`: Σ over dies of
+ * Bernoulli(p_d), p_d = 1 − S_d·q_j with q_j = e^(−c_j·mean) for the die's group j (see DieClasses).
+ * Exact Bernoulli draws where the count is small; otherwise:
+ * - dies no detected particle reaches: Σ_j Binomial(n_j, p_j), p_j = 1 − q_j, drawn as
+ *   Poisson(Σ n_j p_j) when every p_j ≤ 0.01 (total-variation error ≤ Σ n_j p_j² / Σ n_j p_j ≤ max p_j,
+ *   Barbour & Hall 1984) or as a rounded normal with its mean and variance Σ n_j p_j (1 − p_j) when
+ *   that variance is ≥ 9 (the usual rule of thumb for the normal approximation);
  * - the dies that detected particles reach: Poisson(Σp) when every p ≤ 0.01, the complement as
  *   Poisson(Σ(1 − p)) when every p ≥ 0.99 (the same bound, Barbour & Hall 1984), a rounded normal
  *   with their mean and variance when that variance is ≥ 9, else one Bernoulli draw per die.
+ * `q` is a scratch array with room for one value per group.
  */
-function drawKills(
-  rng: Rng,
-  q: number,
-  free: number,
-  hitS: Float64Array,
-  sumS: number,
-  sumS2: number,
-  minS: number,
-  maxS: number,
-  nDies: number,
-): number {
+export function drawKills(rng: Rng, mean: number, g: DieClasses, q: Float64Array): number {
+  const nG = g.share.length;
+  for (let j = 0; j < nG; j++) q[j] = Math.exp(-g.share[j]! * mean);
   let k = 0;
-  const p = 1 - q;
-  if (free > 0 && p > 0) {
-    const v = free * p * (1 - p);
-    if (p <= 0.01) k += Math.min(rng.poisson(free * p), free);
-    else if (v >= 9) k += Math.min(Math.max(Math.round(free * p + Math.sqrt(v) * rng.normal()), 0), free);
-    else for (let i = 0; i < free; i++) if (rng.nextUint32() < p * 4294967296) k++;
+  let nFree = 0;
+  let mu = 0;
+  let v = 0;
+  let pMax = 0;
+  for (let j = 0; j < nG; j++) {
+    const f = g.free[j]!;
+    if (f === 0) continue;
+    const p = 1 - q[j]!;
+    nFree += f;
+    mu += f * p;
+    v += f * p * (1 - p);
+    if (p > pMax) pMax = p;
   }
-  if (hitS.length > 0) {
-    // Σ p_d = H − qΣS and Σ p_d(1 − p_d) = qΣS − q²ΣS², from sums kept once per scenario.
-    const h = hitS.length;
-    const mu = h - q * sumS;
-    const v = q * sumS - q * q * sumS2;
-    const pMin = 1 - q * maxS; // smallest kill probability among these dies
-    const pMax = 1 - q * minS;
-    if (pMax <= 0.01) k += Math.min(rng.poisson(mu), h);
-    else if (pMin >= 0.99) k += h - Math.min(rng.poisson(h - mu), h);
-    else if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), h);
-    else for (let i = 0; i < h; i++) if (rng.nextUint32() < (1 - hitS[i]! * q) * 4294967296) k++;
+  if (nFree > 0 && pMax > 0) {
+    if (pMax <= 0.01) k += Math.min(rng.poisson(mu), nFree);
+    else if (v >= 9) k += Math.min(Math.max(Math.round(mu + Math.sqrt(v) * rng.normal()), 0), nFree);
+    else
+      for (let j = 0; j < nG; j++) {
+        const t = (1 - q[j]!) * 4294967296;
+        for (let i = 0; i < g.free[j]!; i++) if (rng.nextUint32() < t) k++;
+      }
   }
-  return Math.min(k, nDies);
+  const h = g.hitS.length;
+  if (h > 0) {
+    // Σ p_d = H − Σ_j q_j ΣS and Σ p_d(1 − p_d) = Σ_j (q_j ΣS − q_j² ΣS²), from sums kept per group.
+    let muH = h;
+    let vH = 0;
+    let pMinH = 1; // smallest kill probability among these dies
+    let pMaxH = 0;
+    for (let j = 0; j < nG; j++) {
+      if (g.hitStart[j + 1]! === g.hitStart[j]!) continue;
+      const qj = q[j]!;
+      muH -= qj * g.sumS[j]!;
+      vH += qj * g.sumS[j]! - qj * qj * g.sumS2[j]!;
+      pMinH = Math.min(pMinH, 1 - qj * g.maxS[j]!);
+      pMaxH = Math.max(pMaxH, 1 - qj * g.minS[j]!);
+    }
+    if (pMaxH <= 0.01) k += Math.min(rng.poisson(muH), h);
+    else if (pMinH >= 0.99) k += h - Math.min(rng.poisson(h - muH), h);
+    else if (vH >= 9) k += Math.min(Math.max(Math.round(muH + Math.sqrt(vH) * rng.normal()), 0), h);
+    else
+      for (let j = 0; j < nG; j++) {
+        const qj = q[j]!;
+        for (let i = g.hitStart[j]!; i < g.hitStart[j + 1]!; i++)
+          if (rng.nextUint32() < (1 - g.hitS[i]! * qj) * 4294967296) k++;
+      }
+  }
+  return g.certain + Math.min(k, g.nDies - g.certain);
 }
 
 /** Entries of the unbonded-area sum expected to hold fewer discs than this are drawn disc by disc. */
@@ -333,7 +443,8 @@ export class ExponentSampler {
  * densities λ_k = Σ_s f_s·D_sk (sources s: the sum of everything without uncertainty, with f = 1,
  * and one group per uncertain factor — the waits' deposition factor, each tool's adder factor) plus
  * the drawn tails. So for each small-gap grid point a draw lands on, the per-source sums
- *   V_s = Σ_k D_sk·A_b·f_k (reportable voids),  M_s = Σ_k D_sk·A_crit,k (die-kill mean per die),
+ *   V_s = Σ_k D_sk·A_b·f_k (reportable voids),  M_s = Σ_k D_sk·A_crit,k (die-kill mean of a die
+ *   wholly on the wafer; an edge die takes its share of it, DieClasses),
  *   BM_s = Σ D_sk·A_b·a_k over 'normal' and 'mean' entries, BV_s = Σ D_sk·A_b·a_k² over 'normal' ones
  * are made once; a draw then combines them with its factors, adds its tails bin by bin, and keeps
  * per-bin densities only for the 'exact' entries (the bins holding few discs).
@@ -485,31 +596,9 @@ export function simulate(args: {
     return out;
   };
 
-  const nDies = ev.dieCount;
   const det = ev.detSurvivePerDie;
-  // Dies no detected particle reaches (S_d = 1) are counted together; dies a detected particle kills
-  // for certain (S_d < 1e-12: a kill probability within 1e-12 of 1) are counted as killed; the
-  // others one by one.
-  const hit: number[] = [];
-  let certain = 0;
-  if (det)
-    for (let d = 0; d < nDies; d++) {
-      const x = det[d]!;
-      if (x < 1e-12) certain++;
-      else if (x < 1) hit.push(x);
-    }
-  const free = det ? nDies - hit.length - certain : 0;
-  const hitS = Float64Array.from(hit);
-  let sumS = 0;
-  let sumS2 = 0;
-  let minS = 1;
-  let maxS = 0;
-  for (const x of hit) {
-    sumS += x;
-    sumS2 += x * x;
-    if (x < minS) minS = x;
-    if (x > maxS) maxS = x;
-  }
+  const classes = det ? dieClasses(det, ev.randomMeanDie, ev.randomMeanPerDie) : null;
+  const qScratch = new Float64Array(classes ? classes.share.length : 0);
   const voids = new Float64Array(nDraws);
   const unb = new Float64Array(nDraws);
   const kP = det ? new Float64Array(nDraws) : null;
@@ -597,11 +686,10 @@ export function simulate(args: {
     }
     voids[t] = rng.poisson(meanVoids);
     unb[t] = -Math.expm1(-exponent.draw(rng, bigMean, bigVar, muExact, areaExact, nExactAll));
-    if (det && kP && kNB) {
+    if (classes && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
-      kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);
-      kNB[t] =
-        certain + drawKills(rng, Math.exp(-m * g), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);
+      kP[t] = drawKills(rng, m, classes, qScratch);
+      kNB[t] = drawKills(rng, m * g, classes, qScratch);
     }
   }
   return { voids, unbondedFraction: unb, killsPoisson: kP, killsNB: kNB };

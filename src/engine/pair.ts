@@ -717,29 +717,38 @@ function buildVoidMap(
   let dieGrid: DieGrid | null = null;
   const g = physics.dieGrid;
   const ev = s.evaluation;
-  if (g && product.die && ev.detSurvivePerDie) {
-    const yP = physics.poissonYield(ev.randomMeanPerDie);
-    const yNB = physics.negativeBinomialYield(ev.randomMeanPerDie, product.clusterAlpha);
+  if (g && product.die && ev.detSurvivePerDie && ev.randomMeanDie) {
+    const m = ev.randomMeanPerDie;
+    const alpha = product.clusterAlpha;
+    const yP = physics.poissonYield(m);
+    const yNB = physics.negativeBinomialYield(m, alpha);
     const L = product.die;
+    const yieldModel = product.spec.yieldModel;
     dieGrid = {
       widthM: L.widthM,
       heightM: L.heightM,
       pitchXM: L.pitchXM,
       pitchYM: L.pitchYM,
       pad: L.pad,
+      yieldModel,
+      killedThreshold: cfg.killedDieThreshold,
       dies: Array.from({ length: g.count }, (_, d) => {
+        // the same terms, in the same form, as the pair's die-loss figures (evaluate.ts)
         const surv = ev.detSurvivePerDie![d]!;
-        const pP = 1 - surv * yP;
-        const pNB = 1 - surv * yNB;
+        const md = ev.randomMeanDie![d]!;
+        const own = md !== m;
+        const pP = 1 - surv * (own ? physics.poissonYield(md) : yP);
+        const pNB = 1 - surv * (own ? physics.negativeBinomialYield(md, alpha) : yNB);
         return {
           col: g.dieCol[d]!,
           row: g.dieRow[d]!,
           xM: L.originXM + g.dieCol[d]! * L.pitchXM,
           yM: L.originYM + g.dieRow[d]! * L.pitchYM,
           killProbabilityDetected: 1 - surv,
+          randomKillMean: md,
           killProbabilityPoisson: pP,
           killProbabilityNB: pNB,
-          killed: (product.spec.yieldModel === 'poisson' ? pP : pNB) >= cfg.killedDieThreshold,
+          killed: (yieldModel === 'poisson' ? pP : pNB) >= cfg.killedDieThreshold,
         };
       }),
     };

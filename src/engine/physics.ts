@@ -30,7 +30,7 @@ import {
 } from '../model/void.ts';
 import { criticalAreaRectangle, negativeBinomialYield, poissonYield } from '../model/yield.ts';
 import type { VoidPhysics } from './evaluate.ts';
-import { buildDieGrid, type DieGridIndex } from './geometry.ts';
+import { buildDieGrid, buildEdgeClip, type DieGridIndex, type EdgeClip } from './geometry.ts';
 import { buildGridPhysics, type GridPhysics, smallGapGrid } from './montecarlo.ts';
 import type { PropagationPhysics } from './propagate.ts';
 import { binOf, type SizeIndex, sizeIndexOf, sizeTable } from './tables.ts';
@@ -127,6 +127,8 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
   };
   const die = product.die;
   const dieGrid = die ? buildDieGrid(die, rb) : null;
+  // Edge cuts per radii table (the nominal radii in practice), made when first asked for.
+  const edgeClips = new WeakMap<Float64Array, EdgeClip>();
   const critW = dieGrid ? dieGrid.critW : 0;
   const critH = dieGrid ? dieGrid.critH : 0;
   const floor = cfg.tailFloorM;
@@ -195,6 +197,15 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     },
     reportableParticleM,
     criticalArea: (r) => (dieGrid ? criticalAreaRectangle(critW, critH, r) : 0),
+    dieEdgeClip(radii) {
+      if (!dieGrid) return null;
+      let c = edgeClips.get(radii);
+      if (!c) {
+        c = buildEdgeClip(dieGrid, radii, radiusW);
+        edgeClips.set(radii, c);
+      }
+      return c;
+    },
     poissonYield: (m) => poissonYield(m),
     negativeBinomialYield: (m, a) => negativeBinomialYield(m, a),
     cleanSurvivalBins(clean) {

@@ -491,9 +491,15 @@ export interface DieCell {
   yM: number;
   /** Kill probability from detected particles at their positions. */
   killProbabilityDetected: number;
-  /** Kill probability from all sources, Poisson form for the random part. */
+  /**
+   * Expected kill events on this die from the particles not seen at their positions (undetected
+   * tail, adders, deposition, assumed incoming), spread uniformly over the wafer face: Σ_k λ_k·A_k
+   * with the critical area A_k of the pad (or die) grown by the void radius, cut at the wafer edge.
+   */
+  randomKillMean: number;
+  /** Kill probability from all sources, Poisson form for the random part: 1 − (1 − P_det)·e^(−m). */
   killProbabilityPoisson: number;
-  /** Kill probability from all sources, negative-binomial form for the random part. */
+  /** Kill probability from all sources, negative-binomial form: 1 − (1 − P_det)·(1 + m/α)^(−α). */
   killProbabilityNB: number;
   /** killProbability (of the spec's yield model) ≥ the configured threshold. */
   killed: boolean;
@@ -505,6 +511,13 @@ export interface DieGrid {
   pitchXM: number;
   pitchYM: number;
   pad: DieLayoutInput['pad'];
+  /**
+   * The spec's yield form: the kill probability the map shows and `killed` uses; the sum of it over
+   * the dies is the pair's expected die loss in that form (figures.dieKillsPoisson / dieKillsNB).
+   */
+  yieldModel: 'poisson' | 'negative-binomial';
+  /** The kill probability at or above which a die is `killed` (config.killedDieThreshold), 0–1. */
+  killedThreshold: number;
   /** Whole dies inside the edge exclusion. */
   dies: DieCell[];
 }

@@ -305,9 +305,11 @@ export function dieLayout(spec: DieLayoutSpec): DieLayout {
  * Critical area of a rectangle for discs of radius R whose centres lie on the wafer (a disc of
  * radius R_w about the origin): area{ p : |p| ≤ R_w and dist(p, rect) ≤ R }.
  *
- * Where the whole Minkowski region lies on the wafer this is WH + 2R(W + H) + πR²; otherwise the
- * region is integrated exactly over x (the vertical extent at each x is an interval, clipped to the
- * wafer chord) by adaptive Simpson quadrature to a relative accuracy of about 10⁻⁹.
+ * Where the whole Minkowski region lies on the wafer this is WH + 2R(W + H) + πR²; otherwise it is
+ * the exact area of the rounded rectangle cut by the wafer circle, by Green's theorem
+ * (A = ½∮(x dy − y dx)) over the boundary of the cut region: straight sides and arcs of the
+ * rounded rectangle on the wafer and arcs of the wafer circle inside the rounded rectangle, each
+ * integrated in closed form (constant work per call).
  *
  * Edge convention (voidcast's choice): random particles lie uniformly over the whole wafer face,
  * including the edge-exclusion ring (scans do not report it, but particles sit there all the same
@@ -334,66 +336,96 @@ function clippedArea(rect: Rect, r: number, rw: number): number {
   const fy = Math.max(Math.abs(y0), Math.abs(y1));
   if (Math.hypot(fx, fy) + r <= rw)
     return (x1 - x0) * (y1 - y0) + 2 * r * (x1 - x0 + y1 - y0) + Math.PI * r * r;
-  const a = Math.max(x0 - r, -rw);
-  const b = Math.min(x1 + r, rw);
-  if (!(b > a)) return 0;
+  // Green's theorem: the area of a region is ½∮(x dy − y dx) around its boundary (counter-clockwise).
+  // The region P ∩ D (P: the rectangle grown by r, a rounded rectangle; D: the wafer disc) is
+  // bounded by the parts of ∂P inside D and the parts of ∂D inside P, each run in its own
+  // counter-clockwise sense. ∂P is four sides and four quarter circles of radius r about the
+  // corners; the wafer circle's parts are found between the points where ∂P crosses it.
   const rw2 = rw * rw;
-  const r2 = r * r;
-  const g = (x: number): number => {
-    const dx = x < x0 ? x0 - x : x > x1 ? x - x1 : 0;
-    const s2 = r2 - dx * dx;
-    if (s2 < 0) return 0;
-    const s = Math.sqrt(s2);
-    const c2 = rw2 - x * x;
-    if (c2 < 0) return 0;
-    const c = Math.sqrt(c2);
-    return Math.max(0, Math.min(y1 + s, c) - Math.max(y0 - s, -c));
+  const crossings: number[] = [];
+  let twice = 0; // 2 × area
+  const side = (ax: number, ay: number, bx: number, by: number) => {
+    const dx = bx - ax;
+    const dy = by - ay;
+    const a = dx * dx + dy * dy;
+    if (a === 0) return;
+    // |A + t(B − A)|² ≤ R_w² for t between the roots of a t² + b t + c = 0
+    const b = 2 * (ax * dx + ay * dy);
+    const c = ax * ax + ay * ay - rw2;
+    const disc = b * b - 4 * a * c;
+    if (disc <= 0) return;
+    const q = Math.sqrt(disc);
+    const t1 = (-b - q) / (2 * a);
+    const t2 = (-b + q) / (2 * a);
+    const lo = Math.max(0, t1);
+    const hi = Math.min(1, t2);
+    if (!(hi > lo)) return;
+    const px = ax + lo * dx;
+    const py = ay + lo * dy;
+    const qx = ax + hi * dx;
+    const qy = ay + hi * dy;
+    twice += px * qy - py * qx;
+    if (t1 >= 0 && t1 <= 1) crossings.push(Math.atan2(py, px));
+    if (t2 >= 0 && t2 <= 1) crossings.push(Math.atan2(qy, qx));
   };
-  // Split at the kinks of the rounded-rectangle outline so each piece is smooth away from the
-  // wafer-circle crossings; adaptive Simpson handles those and the square-root end points.
-  const cuts = [a, x0, x1, b].filter((x) => x >= a && x <= b).sort((p, q) => p - q);
-  const scale = (x1 - x0 + 2 * r) * (y1 - y0 + 2 * r);
-  let total = 0;
-  for (let i = 0; i + 1 < cuts.length; i++) {
-    const lo = cuts[i]!;
-    const hi = cuts[i + 1]!;
-    if (hi > lo) total += adaptiveSimpson(g, lo, hi, 1e-10 * scale);
+  const corner = (cx: number, cy: number, a0: number) => {
+    if (r === 0) return;
+    const a1 = a0 + Math.PI / 2;
+    const l = Math.hypot(cx, cy);
+    // A point C + r(cos θ, sin θ) is on the wafer when l·cos(θ − φ) ≤ κ, κ = (R_w² − l² − r²)/(2r).
+    const kappa = (rw2 - l * l - r * r) / (2 * r);
+    const arc = (lo: number, hi: number) => {
+      twice +=
+        r * cx * (Math.sin(hi) - Math.sin(lo)) - r * cy * (Math.cos(hi) - Math.cos(lo)) + r * r * (hi - lo);
+    };
+    if (l === 0 || kappa >= l) {
+      if (l > 0 || r <= rw) arc(a0, a1);
+      return;
+    }
+    if (kappa <= -l) return;
+    const phi = Math.atan2(cy, cx);
+    const beta = Math.acos(kappa / l);
+    // on the wafer: θ − φ in [β, 2π − β] (mod 2π); the copies of that arc that meet [a0, a1]
+    const s0 = phi + beta;
+    const len = 2 * Math.PI - 2 * beta;
+    const n0 = Math.floor((a0 - s0 - len) / (2 * Math.PI));
+    for (let n = n0; n <= n0 + 3; n++) {
+      const s = s0 + 2 * Math.PI * n;
+      const lo = Math.max(a0, s);
+      const hi = Math.min(a1, s + len);
+      if (!(hi > lo)) continue;
+      arc(lo, hi);
+      if (lo === s) crossings.push(Math.atan2(cy + r * Math.sin(lo), cx + r * Math.cos(lo)));
+      if (hi === s + len) crossings.push(Math.atan2(cy + r * Math.sin(hi), cx + r * Math.cos(hi)));
+    }
+  };
+  side(x0, y0 - r, x1, y0 - r);
+  corner(x1, y0, -Math.PI / 2);
+  side(x1 + r, y0, x1 + r, y1);
+  corner(x1, y1, 0);
+  side(x1, y1 + r, x0, y1 + r);
+  corner(x0, y1, Math.PI / 2);
+  side(x0 - r, y1, x0 - r, y0);
+  corner(x0, y0, Math.PI);
+  // The wafer circle between consecutive crossings: in P or not, as its midpoint is.
+  const inP = (x: number, y: number) => {
+    const dx = x < x0 ? x0 - x : x > x1 ? x - x1 : 0;
+    const dy = y < y0 ? y0 - y : y > y1 ? y - y1 : 0;
+    return dx * dx + dy * dy <= r * r;
+  };
+  if (crossings.length === 0) {
+    if (inP(rw, 0)) twice += 2 * Math.PI * rw2; // the whole wafer lies in P
+  } else {
+    crossings.sort((p, q) => p - q);
+    for (let i = 0; i < crossings.length; i++) {
+      const a = crossings[i]!;
+      const b = i + 1 < crossings.length ? crossings[i + 1]! : crossings[0]! + 2 * Math.PI;
+      if (!(b > a)) continue;
+      const m = (a + b) / 2;
+      if (inP(rw * Math.cos(m), rw * Math.sin(m))) twice += rw2 * (b - a);
+    }
   }
-  return total;
-}
-
-function adaptiveSimpson(g: (x: number) => number, a: number, b: number, tol: number): number {
-  const fa = g(a);
-  const fb = g(b);
-  const m = 0.5 * (a + b);
-  const fm = g(m);
-  return simpsonStep(g, a, b, fa, fm, fb, ((b - a) / 6) * (fa + 4 * fm + fb), tol, 50);
-}
-
-function simpsonStep(
-  g: (x: number) => number,
-  a: number,
-  b: number,
-  fa: number,
-  fm: number,
-  fb: number,
-  whole: number,
-  tol: number,
-  depth: number,
-): number {
-  const m = 0.5 * (a + b);
-  const lm = 0.5 * (a + m);
-  const rm = 0.5 * (m + b);
-  const flm = g(lm);
-  const frm = g(rm);
-  const left = ((m - a) / 6) * (fa + 4 * flm + fm);
-  const right = ((b - m) / 6) * (fm + 4 * frm + fb);
-  const diff = left + right - whole;
-  if (depth <= 0 || Math.abs(diff) <= 15 * tol) return left + right + diff / 15;
-  return (
-    simpsonStep(g, a, m, fa, flm, fm, left, tol / 2, depth - 1) +
-    simpsonStep(g, m, b, fm, frm, fb, right, tol / 2, depth - 1)
-  );
+  return Math.max(0, twice / 2);
 }
 
 /** A particle detected at a known spot: it makes a void of radius R there if it survives to bonding. */

@@ -200,11 +200,24 @@ describe.skipIf(!run)('the demo line in Chromium', () => {
     await go(lotHref!.slice(1));
     expect(await page.locator('table.vc-pair-table tbody tr').count()).toBeGreaterThan(0);
     expect(await page.locator('svg[data-chart="pareto"] .vc-bar').count()).toBeGreaterThan(0);
+    // one cumulative point per bar, and a table row for each bar's items beside the chart
+    expect(await page.locator('svg[data-chart="pareto"] .vc-cumulative-point').count()).toBe(
+      await page.locator('svg[data-chart="pareto"] .vc-bar').count(),
+    );
+    expect(await page.locator('.vc-pareto-table tbody tr').count()).toBeGreaterThan(0);
     const pairHref = await page.locator('table.vc-pair-table tbody tr a').first().getAttribute('href');
     await go(pairHref!.slice(1));
     expect(await page.locator('svg[data-chart="wafer-map"]').count()).toBe(2);
     expect(await page.locator('svg#map-top .vc-mirror-note').count()).toBe(1);
     expect(await page.locator('svg[data-chart="void-map"] .vc-die').count()).toBeGreaterThan(0);
+    // the dies carry their kill probability from all sources: more than one colour, with its scale
+    const dieFills = await page
+      .locator('svg[data-chart="void-map"] .vc-die > rect:first-child')
+      .evaluateAll((els) => new Set(els.map((e) => e.getAttribute('fill'))).size);
+    expect(dieFills).toBeGreaterThan(1);
+    expect(
+      await page.locator('svg[data-chart="void-map"] .vc-colour-scale .vc-tick').count(),
+    ).toBeGreaterThan(2);
     expect(await page.locator('svg[data-chart="stacked-spectrum"] .vc-layer').count()).toBeGreaterThan(0);
     await go('areas');
     expect(await page.locator('.vc-iso-table tbody tr').count()).toBeGreaterThan(5);

@@ -76,6 +76,31 @@ describe('GET /pairs/:id', () => {
     expect(html.match(/<table class="vc-table vc-table-compact vc-before-after">/g)).toHaveLength(1);
   });
 
+  it('colours the void map’s dies by kill probability from all sources, adding up to the die-loss figure', async () => {
+    const html = await (await app.request('/pairs/P-02')).text();
+    const map = /<svg[^>]*id="void-map"[\s\S]*?<\/svg>/.exec(html)![0];
+    const a = (await (await app.request(`/api/pairs/P-02/assessment?asOf=${AS_OF_MS}`)).json()) as {
+      figures: { dieKillsNB: { value: number }; dieKillsPoisson: { value: number } };
+      voidMap: { dieGrid: { yieldModel: string; dies: unknown[] } };
+    };
+    const p = [...map.matchAll(/class="vc-die[^"]*"[^>]*data-p-kill="([\d.]+)"/g)].map((m) => Number(m[1]));
+    expect(p).toHaveLength(a.voidMap.dieGrid.dies.length);
+    // written with 4 decimals: the sum is within 0.00005 per die of the figure
+    const loss =
+      a.voidMap.dieGrid.yieldModel === 'poisson'
+        ? a.figures.dieKillsPoisson.value
+        : a.figures.dieKillsNB.value;
+    expect(Math.abs(p.reduce((s, x) => s + x, 0) - loss)).toBeLessThan(5e-5 * p.length);
+    // the dies differ (the detected particles' dies stand out), and the colour follows the probability
+    expect(new Set(p).size).toBeGreaterThan(1);
+    const fillOf = (q: number) =>
+      new RegExp(`data-p-kill="${q.toFixed(4)}"><rect [^>]*fill="([^"]+)"`).exec(map)![1];
+    expect(fillOf(Math.max(...p))).not.toBe(fillOf(Math.min(...p)));
+    expect(map).toContain('Die kill probability, all sources');
+    expect(map).toContain('reached by a detected void');
+    expect(map).toMatch(/Sum over the dies: [\d.,]+/);
+  });
+
   it('escapes names from files (tool and location names) everywhere on the page', async () => {
     const html = await (await app.request('/pairs/P-02')).text();
     expect(html).not.toContain('<script>alert(1)</script>');

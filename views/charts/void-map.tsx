@@ -1,14 +1,22 @@
 /**
- * voidMap — the predicted voids of a bonded pair on the die grid.
+ * voidMap — the predicted voids of a bonded pair and each die's kill probability.
  *
- * Each void is a disc drawn to scale (its radius from the plate-mechanics void model, in mm on
- * the wafer) at the position of the particle that makes it; its fill opacity is the particle's
- * probability of surviving the cleans that still follow, so a faint disc is a void that will
- * probably not be there. The outline stays visible at every probability. A killed die is
- * hatched and outlined heavily (not only coloured), and each die shows its pad region, the
- * area a void must reach to kill the die in hybrid bonding.
+ * Each die is filled by its probability of being killed from all sources — the detected
+ * particles at their positions and the particles not seen at their positions (undetected tail,
+ * adders, deposition) spread over the wafer — on a sequential colour scale from 0 with a
+ * square-root stretch (small probabilities, where most dies are, stay apart; a legend bar with
+ * ticks in % reads it back). A die a detected particle's void reaches is outlined in the void
+ * colour; a die at or above the kill threshold is also hatched and outlined heavily, so neither
+ * mark depends on colour alone. Each void is a disc drawn to scale (its radius from the
+ * plate-mechanics void model) at the position of the particle that makes it; its fill opacity is
+ * the particle's probability of surviving the cleans that still follow.
+ *
+ * Colour ramp: ColorBrewer "YlGnBu", 9 classes (C. A. Brewer, colorbrewer2.org, Pennsylvania
+ * State University), a sequential scheme that stays ordered in greyscale and for the common
+ * colour-vision deficiencies, interpolated between its classes.
  */
-import { ChartSvg, fmtPct, Legend, r, safeId } from './svg.tsx';
+import { scaleLinear } from 'd3-scale';
+import { ChartSvg, fmtNum, fmtPct, Legend, r, safeId } from './svg.tsx';
 import { type DieRect, dieToPx, toPx, type WaferGeometry, WaferOutline, waferFrame } from './wafer-frame.tsx';
 
 export interface VoidDisc {
@@ -24,8 +32,12 @@ export interface VoidDisc {
 
 export interface VoidMapDie extends DieRect {
   killed: boolean;
-  /** Probability that the die is killed, 0…1, for the tooltip. */
+  /** Probability that the die is killed, all sources, 0…1 (the fill colour). */
   pKill?: number;
+  /** Probability that a detected particle's void kills it, 0…1 (> 0: the die is outlined). */
+  pDetected?: number;
+  /** Expected kill events from the particles not seen at their positions, for the tooltip. */
+  randomEvents?: number;
 }
 
 export interface VoidMapInput extends WaferGeometry {
@@ -34,6 +46,10 @@ export interface VoidMapInput extends WaferGeometry {
   dies: VoidMapDie[];
   /** The pad-array region inside a die, offset from the die's lower-left corner, mm. */
   pad?: DieRect;
+  /** The kill probability at which a die counts as killed (for the legend), 0…1. */
+  killThreshold?: number;
+  /** The expected die loss the probabilities add up to, and the form it is in (for the legend). */
+  dieLoss?: { value: number; form: string };
   /** The frame the map is drawn in, said in words (e.g. "bottom-wafer frame"). */
   frameNote?: string;
   id?: string;
@@ -41,36 +57,108 @@ export interface VoidMapInput extends WaferGeometry {
 }
 
 const VOID_COLOUR = '#b3261e';
+const KILLED_STROKE = '#18202e';
+/** ColorBrewer YlGnBu, 9 classes, light to dark. */
+const RAMP = [
+  '#ffffd9',
+  '#edf8b1',
+  '#c7e9b4',
+  '#7fcdbb',
+  '#41b6c4',
+  '#1d91c0',
+  '#225ea8',
+  '#253494',
+  '#081d58',
+];
+/** Upper ends the scale may take: the smallest that holds the largest probability. */
+const SCALE_TOPS = [0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1];
+/** Legend ticks per top end, spaced so that their labels stay apart on the 190 px bar (square-root stretch). */
+const TICKS: Record<number, number[]> = {
+  0.01: [0, 0.001, 0.005, 0.01],
+  0.02: [0, 0.005, 0.01, 0.02],
+  0.05: [0, 0.01, 0.02, 0.05],
+  0.1: [0, 0.02, 0.05, 0.1],
+  0.2: [0, 0.05, 0.1, 0.2],
+  0.5: [0, 0.05, 0.2, 0.5],
+  1: [0, 0.05, 0.2, 0.5, 1],
+};
+/** Pads are outlined only where a die is drawn at least this wide, px (smaller, they would be noise). */
+const MIN_PAD_DIE_PX = 12;
+
+/** The colour scale of the dies: probability → colour, with its top end and legend ticks. */
+export function killColourScale(maxP: number): {
+  top: number;
+  colour: (p: number) => string;
+  ticks: number[];
+} {
+  const top = SCALE_TOPS.find((t) => maxP <= t) ?? 1;
+  const ramp = scaleLinear<string>()
+    .domain(RAMP.map((_, i) => i / (RAMP.length - 1)))
+    .range(RAMP)
+    .clamp(true);
+  return { top, colour: (p) => ramp(Math.sqrt(clamp01(p) / top)), ticks: TICKS[top]! };
+}
 
 export function voidMap(input: VoidMapInput) {
   const id = safeId(input.id ?? `vm-${input.title}`);
   const size = input.sizePx ?? 320;
-  const legendW = 178;
+  const legendW = 206;
   const top = 24;
-  const width = size + legendW + 16;
-  const height = size + top + 12;
+  const width = size + legendW + 22;
   const f = waferFrame(input, 8 + size / 2, top + size / 2, size, 'none');
   const killed = input.dies.filter((d) => d.killed).length;
+  const reached = input.dies.filter((d) => (d.pDetected ?? 0) > 0).length;
+  const probs = input.dies
+    .map((d) => d.pKill)
+    .filter((p): p is number => p !== undefined && Number.isFinite(p));
+  const scale = killColourScale(probs.length ? Math.max(...probs) : 0);
   const shown = input.voids.filter(
     (v) => Number.isFinite(v.xMm) && Number.isFinite(v.yMm) && Number.isFinite(v.radiusMm) && v.radiusMm >= 0,
   );
   const expected = shown.reduce((a, v) => a + clamp01(v.survival), 0);
+  const threshold = input.killThreshold ?? 0.5;
   const hatch = `${id}-kill`;
+  const diePx = input.dies.length ? dieToPx(f, input.dies[0]!) : null;
+  const drawPads = input.pad !== undefined && diePx !== null && diePx.w >= MIN_PAD_DIE_PX;
+  const pMin = probs.length ? Math.min(...probs) : 0;
+  const pMax = probs.length ? Math.max(...probs) : 0;
   const desc =
-    `${shown.length} predicted void${shown.length === 1 ? '' : 's'} of any size from detected particles (expected ${expected.toFixed(2)} after survival), ` +
-    `${killed} of ${input.dies.length} dies killed` +
+    `${input.dies.length} dies coloured by kill probability from all sources` +
+    (probs.length ? ` (${fmtPct(pMin)} to ${fmtPct(pMax)}` : '') +
+    (probs.length && input.dieLoss
+      ? `; their sum, ${fmtNum(input.dieLoss.value)}, is the expected die loss, ${input.dieLoss.form})`
+      : probs.length
+        ? ')'
+        : '') +
+    `; ${reached} reached by a detected particle's void, ${killed} at or above ${fmtPct(threshold)} (hatched). ` +
+    `${shown.length} predicted void${shown.length === 1 ? '' : 's'} from detected particles drawn to scale (expected ${expected.toFixed(2)} after survival; opacity = survival probability)` +
     (input.frameNote ? `; ${input.frameNote}` : '') +
-    '. Disc radius to scale; opacity = survival probability; killed dies hatched.';
+    '.';
   // Large voids first so that small ones stay visible on top.
   const order = [...shown].sort((a, b) => b.radiusMm - a.radiusMm);
-  const lx = size + 26;
+  const lx = size + 22;
+  // Legend blocks, top to bottom.
+  const voidsY = top + 2;
+  const scaleY = voidsY + 14 + 3 * 18 + 14;
+  const barW = 190;
+  const barY = scaleY + 18;
+  const tickY = barY + 12;
+  const diesY = tickY + 26;
+  const dieEntries = 2 + (input.pad ? 1 : 0);
+  const summaryY = diesY + 14 + dieEntries * 18 + 12;
+  const height = Math.max(size + top + 12, summaryY + 3 * 15 + 6);
+  const gradientId = `${id}-ramp`;
   return (
     <ChartSvg kind="void-map" id={id} width={width} height={height} title={input.title} desc={desc}>
       <defs>
-        <pattern id={hatch} patternUnits="userSpaceOnUse" width="6" height="6" patternTransform="rotate(45)">
-          <rect width="6" height="6" fill="#f8e1df" />
-          <line x1="0" y1="0" x2="0" y2="6" stroke="#18202e" stroke-width="2" />
+        <pattern id={hatch} patternUnits="userSpaceOnUse" width="5" height="5" patternTransform="rotate(45)">
+          <line x1="0" y1="0" x2="0" y2="5" stroke="#ffffff" stroke-width="1.6" />
         </pattern>
+        <linearGradient id={gradientId} x1="0" x2="1" y1="0" y2="0">
+          {Array.from({ length: 17 }, (_, i) => i / 16).map((t) => (
+            <stop offset={t} stop-color={scale.colour(t * t * scale.top)} />
+          ))}
+        </linearGradient>
       </defs>
       {input.frameNote ? (
         <text class="vc-frame-note" x={8} y={15}>
@@ -81,32 +169,41 @@ export function voidMap(input: VoidMapInput) {
       <g class="vc-die-grid" clip-path={`url(#${id}-clip)`}>
         {input.dies.map((d) => {
           const p = dieToPx(f, d);
-          const pad = input.pad
-            ? dieToPx(f, {
-                xMm: d.xMm + input.pad.xMm,
-                yMm: d.yMm + input.pad.yMm,
-                wMm: input.pad.wMm,
-                hMm: input.pad.hMm,
-              })
-            : null;
+          const pad =
+            drawPads && input.pad
+              ? dieToPx(f, {
+                  xMm: d.xMm + input.pad.xMm,
+                  yMm: d.yMm + input.pad.yMm,
+                  wMm: input.pad.wMm,
+                  hMm: input.pad.hMm,
+                })
+              : null;
+          const hit = (d.pDetected ?? 0) > 0;
+          const cls = `vc-die${d.killed ? ' vc-die-killed' : ''}${hit ? ' vc-die-detected' : ''}`;
           return (
-            <g class={d.killed ? 'vc-die vc-die-killed' : 'vc-die'} data-killed={d.killed ? 'true' : 'false'}>
+            <g class={cls} data-killed={d.killed ? 'true' : 'false'} data-p-kill={d.pKill?.toFixed(4)}>
               <rect
                 x={r(p.x)}
                 y={r(p.y)}
                 width={r(p.w)}
                 height={r(p.h)}
-                fill={d.killed ? `url(#${hatch})` : riskFill(d.pKill)}
-                fill-opacity={d.killed ? undefined : riskOpacity(d.pKill)}
-                stroke={d.killed ? '#18202e' : '#b9bec8'}
-                stroke-width={d.killed ? 1.4 : 0.6}
+                fill={d.pKill !== undefined ? scale.colour(d.pKill) : '#ffffff'}
+                stroke={d.killed ? KILLED_STROKE : hit ? VOID_COLOUR : '#9aa3ad'}
+                stroke-width={d.killed ? 1.6 : hit ? 1.3 : 0.4}
               >
-                <title>
-                  {`die at (${d.xMm.toFixed(1)}, ${d.yMm.toFixed(1)}) mm: ${d.killed ? 'killed' : 'good'}${
-                    d.pKill !== undefined ? `, P(kill) ${fmtPct(d.pKill)}` : ''
-                  }`}
-                </title>
+                <title>{dieTitle(d)}</title>
               </rect>
+              {d.killed ? (
+                <rect
+                  class="vc-die-hatch"
+                  x={r(p.x)}
+                  y={r(p.y)}
+                  width={r(p.w)}
+                  height={r(p.h)}
+                  fill={`url(#${hatch})`}
+                  pointer-events="none"
+                />
+              ) : null}
               {pad ? (
                 <rect
                   class="vc-pad"
@@ -114,10 +211,11 @@ export function voidMap(input: VoidMapInput) {
                   y={r(pad.y)}
                   width={r(pad.w)}
                   height={r(pad.h)}
-                  fill={d.killed ? 'none' : '#e8edf3'}
-                  stroke="#7c8da3"
+                  fill="none"
+                  stroke="#4a5566"
                   stroke-width="0.5"
                   stroke-dasharray="2 1.5"
+                  pointer-events="none"
                 />
               ) : null}
             </g>
@@ -149,11 +247,11 @@ export function voidMap(input: VoidMapInput) {
       </g>
       <Legend
         x={lx}
-        y={top + 4}
-        heading="Predicted voids (to scale)"
-        rowHeight={19}
+        y={voidsY}
+        heading="Voids of detected particles"
+        rowHeight={18}
         entries={[1, 0.5, 0.1].map((s) => ({
-          label: `survival ${fmtPct(s)}`,
+          label: `survival ${fmtPct(s)} (to scale)`,
           swatch: (
             <circle
               cx={8}
@@ -167,48 +265,93 @@ export function voidMap(input: VoidMapInput) {
           ),
         }))}
       />
+      <g class="vc-legend vc-colour-scale" transform={`translate(${lx} ${scaleY})`}>
+        <text class="vc-legend-heading" x={0} y={9} font-weight="600">
+          Die kill probability, all sources
+        </text>
+        <rect
+          x={0}
+          y={barY - scaleY}
+          width={barW}
+          height={10}
+          fill={`url(#${gradientId})`}
+          stroke="#9aa3ad"
+          stroke-width="0.5"
+        />
+        {scale.ticks.map((t) => {
+          const tx = r(Math.sqrt(t / scale.top) * barW);
+          return (
+            <g class="vc-tick">
+              <line x1={tx} x2={tx} y1={barY - scaleY + 10} y2={barY - scaleY + 13} stroke="#5d6472" />
+              <text
+                x={tx}
+                y={tickY - scaleY + 11}
+                text-anchor={t === 0 ? 'start' : t === scale.top ? 'end' : 'middle'}
+              >
+                {fmtPct(t)}
+              </text>
+            </g>
+          );
+        })}
+      </g>
       <Legend
         x={lx}
-        y={top + 4 + 14 + 3 * 19 + 12}
+        y={diesY}
         heading="Dies"
-        rowHeight={19}
+        rowHeight={18}
         entries={[
           {
-            label: `killed (${killed})`,
+            label: `reached by a detected void (${reached})`,
             swatch: (
               <rect
-                x={0}
+                x={1}
                 y={0}
                 width={14}
-                height={12}
-                fill={`url(#${hatch})`}
-                stroke="#18202e"
-                stroke-width="1.4"
+                height={11}
+                fill="#edf8b1"
+                stroke={VOID_COLOUR}
+                stroke-width="1.3"
               />
             ),
           },
           {
-            label: `good (${input.dies.length - killed}), shaded by P(kill)`,
+            label: `killed, P ≥ ${fmtPct(threshold)} (${killed})`,
             swatch: (
               <g>
-                <rect x={0} y={0} width={7} height={12} fill="#ffffff" stroke="#b9bec8" />
-                <rect x={7} y={0} width={7} height={12} fill="#6b2a25" fill-opacity="0.35" stroke="#b9bec8" />
+                <rect
+                  x={1}
+                  y={0}
+                  width={14}
+                  height={11}
+                  fill={scale.colour(Math.min(threshold, scale.top))}
+                />
+                <rect
+                  x={1}
+                  y={0}
+                  width={14}
+                  height={11}
+                  fill={`url(#${hatch})`}
+                  stroke={KILLED_STROKE}
+                  stroke-width="1.6"
+                />
               </g>
             ),
           },
           ...(input.pad
             ? [
                 {
-                  label: 'pad region',
+                  label: drawPads
+                    ? 'pad region (the kill area)'
+                    : `kill area: pad ${fmtNum(input.pad.wMm, 2)} × ${fmtNum(input.pad.hMm, 2)} mm`,
                   swatch: (
                     <rect
-                      x={2}
+                      x={3}
                       y={2}
                       width={10}
-                      height={8}
-                      fill="#e8edf3"
-                      stroke="#7c8da3"
-                      stroke-width="0.5"
+                      height={7}
+                      fill="none"
+                      stroke="#4a5566"
+                      stroke-width="0.6"
                       stroke-dasharray="2 1.5"
                     />
                   ),
@@ -217,19 +360,31 @@ export function voidMap(input: VoidMapInput) {
             : []),
         ]}
       />
-      <text class="vc-void-summary" x={lx} y={top + 4 + 14 + 3 * 19 + 12 + 14 + 3 * 19 + 18}>
-        {`expected discs ${expected.toFixed(1)} (all sizes)`}
-      </text>
+      <g class="vc-void-summary">
+        <text x={lx} y={summaryY}>
+          {input.dieLoss ? `Sum over the dies: ${fmtNum(input.dieLoss.value)}` : `${input.dies.length} dies`}
+        </text>
+        {input.dieLoss ? (
+          <text x={lx} y={summaryY + 15}>
+            {`= expected die loss (${input.dieLoss.form === 'negative binomial' ? 'neg. binomial' : input.dieLoss.form})`}
+          </text>
+        ) : null}
+        <text x={lx} y={summaryY + (input.dieLoss ? 30 : 15)}>
+          {`Detected: ${expected.toFixed(1)} expected voids`}
+        </text>
+      </g>
     </ChartSvg>
   );
 }
 
-/** A good die is shaded by its kill probability (darker = likelier), so risk reads in greyscale too. */
-function riskFill(p: number | undefined): string {
-  return p !== undefined && p > 0.02 ? '#6b2a25' : '#ffffff';
-}
-function riskOpacity(p: number | undefined): number | undefined {
-  return p !== undefined && p > 0.02 ? Math.round(Math.min(0.6, p * 0.9) * 100) / 100 : undefined;
+function dieTitle(d: VoidMapDie): string {
+  const parts = [`die at (${d.xMm.toFixed(1)}, ${d.yMm.toFixed(1)}) mm`];
+  if (d.pKill !== undefined) parts.push(`P(kill) ${fmtPct(d.pKill)}${d.killed ? ' (killed)' : ''}`);
+  else parts.push(d.killed ? 'killed' : 'good');
+  if (d.pDetected !== undefined) parts.push(`from detected particles ${fmtPct(d.pDetected)}`);
+  if (d.randomEvents !== undefined)
+    parts.push(`${fmtNum(d.randomEvents)} expected hits from particles not seen`);
+  return parts.join('; ');
 }
 
 function clamp01(v: number): number {

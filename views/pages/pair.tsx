@@ -142,42 +142,16 @@ export function PairPage(props: PairPageProps) {
         </figure>
         <figure class="vc-panel">
           {a.voidMap ? (
-            voidMap({
-              id: 'void-map',
-              title: `Pair ${a.pairId}: predicted voids from detected particles`,
-              ...waferGeometry(props),
-              frameNote: 'bond frame (bottom wafer, top mirrored onto it)',
-              voids: a.voidMap.discs.map((d) => ({
-                xMm: d.xM * 1e3,
-                yMm: d.yM * 1e3,
-                radiusMm: d.rM * 1e3,
-                survival: d.survival,
-                label: `${d.wafer} wafer, ${fmtDiameter(d.diameterM)} particle`,
-              })),
-              dies: (a.voidMap.dieGrid?.dies ?? []).map((d) => ({
-                xMm: d.xM * 1e3,
-                yMm: d.yM * 1e3,
-                wMm: (a.voidMap!.dieGrid!.widthM ?? 0) * 1e3,
-                hMm: (a.voidMap!.dieGrid!.heightM ?? 0) * 1e3,
-                killed: d.killed,
-                pKill: d.killProbabilityNB,
-              })),
-              pad: a.voidMap.dieGrid?.pad
-                ? {
-                    xMm: a.voidMap.dieGrid.pad.xM * 1e3,
-                    yMm: a.voidMap.dieGrid.pad.yM * 1e3,
-                    wMm: a.voidMap.dieGrid.pad.widthM * 1e3,
-                    hMm: a.voidMap.dieGrid.pad.heightM * 1e3,
-                  }
-                : undefined,
-            })
+            <VoidMapChart a={a} {...waferGeometry(props)} />
           ) : (
             <p class="vc-small">No void map in this assessment.</p>
           )}
           <figcaption>
-            Discs to scale from the detected particles; opacity is each particle's chance of surviving the
-            cleans still ahead. Killed dies are hatched; dies can also be killed by particles not seen (tail,
-            adders, waits), which the die-loss figures include.
+            Each die is coloured by its chance of being killed from all sources: the detected particles at
+            their positions and the particles not seen there (the tail below the scan threshold, tool adders,
+            deposition while waiting), spread over the wafer; added over the dies these chances give the
+            die-loss figure. Discs to scale from the detected particles; opacity is each particle's chance of
+            surviving the cleans still ahead.
             {a.voidMap && a.voidMap.discsOmitted > 0
               ? ` ${a.voidMap.discsOmitted} smaller discs not drawn.`
               : ''}
@@ -192,7 +166,7 @@ export function PairPage(props: PairPageProps) {
       {a.dominant ? (
         <p>
           Dominant source: <strong>{a.dominant.label}</strong> ({fmtShare(a.dominant.share)} of the{' '}
-          {a.dominant.metric === 'expectedVoids' ? 'expected voids' : 'expected die kills'}).
+          {a.dominant.metric === 'expectedVoids' ? 'expected voids' : 'expected die-kill events'}).
         </p>
       ) : null}
       <ParetoPanel
@@ -326,6 +300,50 @@ export function diesMm(grid: DieGrid | null, flip: 'none' | 'x' | 'y'): DieRect[
       wMm: w,
       hMm: h,
     };
+  });
+}
+
+/** The void map of the assessment: discs of the detected particles, dies by kill probability. */
+function VoidMapChart(props: {
+  a: PairAssessment;
+  diameterMm: number;
+  edgeExclusionMm: number;
+  notchAngleDeg: number;
+}) {
+  const { a } = props;
+  const vm = a.voidMap!;
+  const g = vm.dieGrid;
+  const poisson = g?.yieldModel === 'poisson';
+  const loss = poisson ? a.figures.dieKillsPoisson : a.figures.dieKillsNB;
+  return voidMap({
+    id: 'void-map',
+    title: `Pair ${a.pairId}: kill probability per die and predicted voids`,
+    diameterMm: props.diameterMm,
+    edgeExclusionMm: props.edgeExclusionMm,
+    notchAngleDeg: props.notchAngleDeg,
+    frameNote: 'bond frame (bottom wafer, top mirrored onto it)',
+    voids: vm.discs.map((d) => ({
+      xMm: d.xM * 1e3,
+      yMm: d.yM * 1e3,
+      radiusMm: d.rM * 1e3,
+      survival: d.survival,
+      label: `${d.wafer} wafer, ${fmtDiameter(d.diameterM)} particle`,
+    })),
+    dies: (g?.dies ?? []).map((d) => ({
+      xMm: d.xM * 1e3,
+      yMm: d.yM * 1e3,
+      wMm: g!.widthM * 1e3,
+      hMm: g!.heightM * 1e3,
+      killed: d.killed,
+      pKill: poisson ? d.killProbabilityPoisson : d.killProbabilityNB,
+      pDetected: d.killProbabilityDetected,
+      randomEvents: d.randomKillMean,
+    })),
+    pad: g?.pad
+      ? { xMm: g.pad.xM * 1e3, yMm: g.pad.yM * 1e3, wMm: g.pad.widthM * 1e3, hMm: g.pad.heightM * 1e3 }
+      : undefined,
+    killThreshold: g?.killedThreshold,
+    dieLoss: loss ? { value: loss.value, form: poisson ? 'Poisson' : 'negative binomial' } : undefined,
   });
 }
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { type DetectedFlat, evaluate, type VoidPhysics } from '../../../src/engine/evaluate.ts';
-import { buildDieGrid, buildDieHits } from '../../../src/engine/geometry.ts';
+import { buildDieGrid, buildDieHits, buildEdgeClip } from '../../../src/engine/geometry.ts';
 import type { Contribution } from '../../../src/engine/propagate.ts';
 import { binOf } from '../../../src/engine/tables.ts';
 import { createRng } from '../../../src/model/rng.ts';
@@ -21,6 +21,7 @@ const physics: VoidPhysics = {
   binRadii: () => new Float64Array(SPECTRUM_BIN_COUNT),
   reportableParticleM: () => 0.2e-6,
   criticalArea: (r) => criticalAreaRectangle(10e-3, 10e-3, r),
+  dieEdgeClip: (radii) => buildEdgeClip(grid, radii, 0.15),
   poissonYield: (m) => poissonYield(m),
   negativeBinomialYield: (m, a) => negativeBinomialYield(m, a),
   bondedAreaM2: Math.PI * 0.147 ** 2,

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { voidMap } from '../../../views/charts/void-map.tsx';
+import { killColourScale, voidMap } from '../../../views/charts/void-map.tsx';
 import { byClass, byName, danglingRefs, hasClass, svgOf, textOf } from './svg-query.ts';
 
 const base = { title: 'Pair P1 voids', diameterMm: 300, edgeExclusionMm: 3 };
@@ -56,49 +56,97 @@ describe('voidMap', () => {
     expect(textOf(byName(svg, 'desc')[0]!)).toContain('expected 1.75');
   });
 
-  it('marks killed dies with a hatch pattern and a heavy outline, not by colour alone', () => {
+  it('marks killed dies with a hatch over their colour and a heavy outline, not by colour alone', () => {
     const svg = svgOf(voidMap({ ...base, dies, voids: [] }));
     const cells = byClass(svg, 'vc-die');
     expect(cells).toHaveLength(3);
     const killed = cells.filter((c) => hasClass(c, 'vc-die-killed'));
     expect(killed).toHaveLength(1);
-    const rect = byName(killed[0]!, 'rect')[0]!;
-    expect(rect.attrs.fill).toMatch(/^url\(#.+-kill\)$/);
-    expect(Number(rect.attrs['stroke-width'])).toBeGreaterThan(1);
-    const pattern = byName(svg, 'pattern').find((p) => rect.attrs.fill === `url(#${p.attrs.id})`);
+    const [fill, hatch] = byName(killed[0]!, 'rect');
+    expect(fill!.attrs.fill).toMatch(/^rgb\(/); // its kill-probability colour stays
+    expect(Number(fill!.attrs['stroke-width'])).toBeGreaterThan(1);
+    expect(hatch!.attrs.fill).toMatch(/^url\(#.+-kill\)$/);
+    const pattern = byName(svg, 'pattern').find((p) => hatch!.attrs.fill === `url(#${p.attrs.id})`);
     expect(pattern && byName(pattern, 'line').length).toBe(1);
-    expect(textOf(svg)).toContain('killed (1)');
-    expect(textOf(svg)).toContain('good (2)');
-    expect(textOf(rect)).toContain('P(kill) 90 %');
+    expect(textOf(svg)).toContain('killed, P ≥ 50 % (1)');
+    expect(textOf(fill!)).toContain('P(kill) 90 %');
+    expect(danglingRefs(svg)).toEqual([]);
   });
 
-  it('shades good dies by kill probability and leaves dies without one white', () => {
+  it('colours every die by its kill probability on one ordered scale, and draws the scale with ticks in %', () => {
+    const ps = [0, 0.01, 0.05, 0.1, 0.2, 0.3];
+    const svg = svgOf(
+      voidMap({
+        ...base,
+        voids: [],
+        dies: ps.map((p, i) => ({ xMm: i * 10, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: p })),
+      }),
+    );
+    const fills = byClass(svg, 'vc-die').map((g) => byName(g, 'rect')[0]!.attrs.fill!);
+    // lightness (sum of RGB) falls as the probability rises: a sequential scale, light = safe
+    const light = fills.map((f) => {
+      const [r, g, b] = /rgb\((\d+), (\d+), (\d+)\)/.exec(f)!.slice(1).map(Number);
+      return r! + g! + b!;
+    });
+    for (let i = 1; i < light.length; i++) expect(light[i]!).toBeLessThan(light[i - 1]!);
+    // the scale's top end holds the largest probability (30 % → 50 %); its ticks say %
+    const scale = byClass(svg, 'vc-colour-scale')[0]!;
+    expect(textOf(scale)).toContain('Die kill probability, all sources');
+    const ticks = byClass(scale, 'vc-tick').map((t) => textOf(t));
+    expect(ticks).toEqual(['0 %', '5 %', '20 %', '50 %']);
+    // the legend bar's gradient is the dies' colour scale: its ends are the colours of 0 and of the top
+    const stops = byName(svg, 'stop');
+    expect(stops[0]!.attrs['stop-color']).toBe(fills[0]);
+    expect(stops.at(-1)!.attrs['stop-color']).toBe(killColourScale(0.3).colour(0.5));
+  });
+
+  it('outlines the dies a detected particle’s void reaches, and says how many in the legend', () => {
     const svg = svgOf(
       voidMap({
         ...base,
         voids: [],
         dies: [
-          { xMm: 0, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.4 },
-          { xMm: 10, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.01 },
-          { xMm: 20, yMm: 0, wMm: 10, hMm: 10, killed: false },
+          { xMm: 0, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.3, pDetected: 0.25 },
+          { xMm: 10, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: 0.06, pDetected: 0 },
         ],
       }),
     );
-    const rects = byClass(svg, 'vc-die').map((g) => byName(g, 'rect')[0]!);
-    expect(rects.map((r) => r.attrs['fill-opacity'])).toEqual(['0.36', undefined, undefined]);
-    expect(rects[1]!.attrs.fill).toBe('#ffffff');
+    const cells = byClass(svg, 'vc-die');
+    expect(hasClass(cells[0]!, 'vc-die-detected')).toBe(true);
+    expect(hasClass(cells[1]!, 'vc-die-detected')).toBe(false);
+    expect(byName(cells[0]!, 'rect')[0]!.attrs.stroke).toBe('#b3261e');
+    expect(textOf(svg)).toContain('reached by a detected void (1)');
+    expect(textOf(byName(cells[0]!, 'rect')[0]!)).toContain('from detected particles 25 %');
   });
 
-  it('draws the pad region inside every die when the product has one', () => {
+  it('states the sum of the probabilities as the expected die loss it equals', () => {
+    const svg = svgOf(
+      voidMap({ ...base, dies, voids: [], dieLoss: { value: 0.95, form: 'negative binomial' } }),
+    );
+    expect(textOf(byClass(svg, 'vc-void-summary')[0]!)).toContain('Sum over the dies: 0.95');
+    expect(textOf(byName(svg, 'desc')[0]!)).toContain('their sum, 0.95, is the expected die loss');
+  });
+
+  it('outlines the pad region inside every die drawn large enough, else names it in the legend', () => {
+    // 20 mm dies (about 20 px on a 300 mm wafer at 320 px) with an 8 × 6 mm pad
     const pad = { xMm: 1, yMm: 1, wMm: 8, hMm: 6 };
-    const svg = svgOf(voidMap({ ...base, dies, voids: [], pad }));
+    const big = dies.map((d) => ({ ...d, xMm: d.xMm * 2, yMm: d.yMm * 2, wMm: 20, hMm: 20 }));
+    const svg = svgOf(voidMap({ ...base, dies: big, voids: [], pad }));
     const pads = byClass(svg, 'vc-pad');
     expect(pads).toHaveLength(3);
+    expect(pads[0]!.attrs.fill).toBe('none'); // the die's colour shows through
     const k = pxPerMm(svg);
     expect(Math.abs(Number(pads[0]!.attrs.width) - 8 * k)).toBeLessThan(0.11);
     expect(Math.abs(Number(pads[0]!.attrs.height) - 6 * k)).toBeLessThan(0.11);
     expect(textOf(svg)).toContain('pad region');
-    expect(byClass(svgOf(voidMap({ ...base, dies, voids: [] })), 'vc-pad')).toHaveLength(0);
+    expect(byClass(svgOf(voidMap({ ...base, dies: big, voids: [] })), 'vc-pad')).toHaveLength(0);
+    // 2 mm dies are about 2 px wide on a 300 mm wafer: no pad outlines, the legend gives the pad's size
+    const small = dies.map((d) => ({ ...d, wMm: 2, hMm: 2 }));
+    const tiny = svgOf(
+      voidMap({ ...base, dies: small, voids: [], pad: { xMm: 0.5, yMm: 0.5, wMm: 1, hMm: 0.8 } }),
+    );
+    expect(byClass(tiny, 'vc-pad')).toHaveLength(0);
+    expect(textOf(tiny)).toContain('kill area: pad 1 × 0.8 mm');
   });
 
   it('escapes source labels and the frame note', () => {
