@@ -85,9 +85,9 @@ export function learnToolAdders(
     `${sorted.reduce((s, m) => s + m.match.matched, 0)} defects matched over ${sorted.length} passes (chance matches expected: ${fmtCount(chance)})`,
   );
   if (fit.passes < MIN_ADDER_PASSES)
-    base.tooLittle = `too little data: ${fit.passes} pass (at least ${MIN_ADDER_PASSES} are needed); nothing proposed`;
+    base.tooLittle = `too little data: ${fit.passes} pass${fit.passes === 1 ? '' : 'es'} (at least ${MIN_ADDER_PASSES} are needed); nothing proposed`;
   else if (fit.slope === null || fit.total < MIN_SLOPE_ADDERS)
-    base.tooLittle = `too little data: ${fit.total} adders ≥ ${fmtSize(referenceM)} over ${fit.passes} passes (the size slope needs at least ${MIN_SLOPE_ADDERS}); nothing proposed — count per pass ${fmtCount(fit.meanPerPass)} [${fmtCount(fit.lowerPerPass)}, ${fmtCount(fit.upperPerPass)}]`;
+    base.tooLittle = `too little data: ${fit.total} adder${fit.total === 1 ? '' : 's'} ≥ ${fmtSize(referenceM)} over ${fit.passes} passes (the size slope needs at least ${MIN_SLOPE_ADDERS}); nothing proposed — count per pass ${fmtCount(fit.meanPerPass)} [${fmtCount(fit.lowerPerPass)}, ${fmtCount(fit.upperPerPass)}]`;
   if (base.tooLittle === null && fit.slope !== null && fit.slopeSe !== null) {
     const proposal: FittedAdders = {
       toolId,
@@ -127,7 +127,7 @@ export function learnAdders(
   const fittedAtMs = options.nowMs ?? Date.now();
   const collected = collectPasses(db);
   const passes = collected.passes.filter((p) => toolSelected(p.toolKey, p.toolId, options.toolId));
-  const { matched, issues: matchIssues, position } = matchPasses(db, passes);
+  const { matched, issues: matchIssues, position } = matchPasses(db, passes, collected.passes);
   const tools = readTools(db);
   const allIssues = [...collected.issues, ...matchIssues];
   const keys = new Map<string, { toolId: string; chamber: string | null }>();
@@ -158,7 +158,9 @@ export function learnAdders(
     );
   return {
     results,
-    issues: allIssues.filter((i) => i.subject === null || !keys.has(i.subject)),
+    issues: allIssues.filter(
+      (i) => i.subject === null || (options.toolId === undefined && !keys.has(i.subject)),
+    ),
     position,
     fittedAtMs,
   };

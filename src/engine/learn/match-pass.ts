@@ -95,9 +95,15 @@ function sameFrameIssue(db: Db, p: ScanPass): string | null {
 
 /**
  * Matches the scans of every pass. Passes whose scans cannot be compared (different wafer sizes,
- * no defect in common although both have many) are left out with a message.
+ * no defect in common although both have many) are left out with a message. σ is estimated from
+ * the passes in `sigmaFrom` (default: the passes matched), so that learning one tool uses the same
+ * positioning error as learning them all.
  */
-export function matchPasses(db: Db, passes: readonly ScanPass[]): MatchedPasses {
+export function matchPasses(
+  db: Db,
+  passes: readonly ScanPass[],
+  sigmaFrom: readonly ScanPass[] = passes,
+): MatchedPasses {
   const issues: LearnIssue[] = [];
   const loaded: {
     pass: ScanPass;
@@ -106,10 +112,12 @@ export function matchPasses(db: Db, passes: readonly ScanPass[]): MatchedPasses 
     area: number;
     est: StageOffsetEstimate;
   }[] = [];
-  for (const p of passes) {
+  const selected = new Set(passes);
+  const all = [...passes, ...sigmaFrom.filter((p) => !selected.has(p))];
+  for (const p of all) {
     const frame = sameFrameIssue(db, p);
     if (frame) {
-      issues.push({ subject: p.toolKey, message: frame });
+      if (selected.has(p)) issues.push({ subject: p.toolKey, message: frame });
       continue;
     }
     const r = Math.min(
@@ -160,6 +168,7 @@ export function matchPasses(db: Db, passes: readonly ScanPass[]): MatchedPasses 
 
   const matched: MatchedPass[] = [];
   for (const l of loaded) {
+    if (!selected.has(l.pass)) continue;
     const k = `${l.pass.before.toolId ?? '?'}→${l.pass.after.toolId ?? '?'}`;
     const sigma = bySource.get(k)?.sigmaM ?? DEFAULT_SIGMA_M;
     const match = matchScans(l.before, l.after, {

@@ -224,7 +224,7 @@ export function learnRemoval(
   const passes = collected.passes.filter(
     (p) => p.cleanId !== null && (options.cleanId === undefined || p.cleanId === options.cleanId),
   );
-  const { matched, issues: matchIssues, position } = matchPasses(db, passes);
+  const { matched, issues: matchIssues, position } = matchPasses(db, passes, collected.passes);
   const cleans = readCleans(db);
   const issues = [...collected.issues, ...matchIssues];
   const toolOfIssue = (i: { subject: string | null }) => i.subject?.split('/')[0] ?? null;
