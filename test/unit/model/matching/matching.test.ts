@@ -12,7 +12,6 @@ import { ModelInputError } from '../../../../src/model/errors.ts';
 import {
   estimateStageOffset,
   expectedChanceMatches,
-  positionSigmaFromDisplacements,
   greedyMatch,
   MATCH_STATUS,
   type MatchableScan,
@@ -20,6 +19,7 @@ import {
   matchScans,
   mirrorPoints,
   PointGrid,
+  positionSigmaFromDisplacements,
   rotatePoints,
   translatePoints,
 } from '../../../../src/model/matching/index.ts';
