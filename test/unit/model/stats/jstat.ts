@@ -12,6 +12,8 @@ export interface JStat {
   lowRegGamma(a: number, x: number): number;
   chisquare: { cdf(x: number, k: number): number; inv(p: number, k: number): number };
   normal: { inv(p: number, mean: number, sd: number): number };
+  ibeta(x: number, a: number, b: number): number;
+  beta: { inv(p: number, a: number, b: number): number };
 }
 
 export const jStat = createRequire(import.meta.url)('jstat') as JStat;
