@@ -8,7 +8,7 @@
  * computes nothing of the model itself.
  */
 import type { DieGrid, PairAssessment, PairFigures } from '../../src/engine/types.ts';
-import { stackedSpectrum } from '../charts/stacked-spectrum.tsx';
+import { type SpectrumSeries, stackedSpectrum } from '../charts/stacked-spectrum.tsx';
 import { voidMap } from '../charts/void-map.tsx';
 import type { DieRect } from '../charts/wafer-frame.tsx';
 import { waferMap } from '../charts/wafer-map.tsx';
@@ -328,7 +328,11 @@ export function diesMm(grid: DieGrid | null, flip: 'none' | 'x' | 'y'): DieRect[
   });
 }
 
-/** The spectrum at the interface stacked by source; the largest sources alone, the rest pooled. */
+/**
+ * The spectrum at the interface stacked by source; the largest sources alone, the rest pooled.
+ * Sources with no particles at the interface are left out (no layer, no legend entry, not counted
+ * among the pooled ones).
+ */
 export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cumulative' }) {
   const a = props.a;
   const base = `/pairs/${encodeURIComponent(a.pairId)}`;
@@ -336,12 +340,20 @@ export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cum
   if (!sp) return <p class="vc-small">No spectrum in this assessment.</p>;
   const totals = sp.series
     .map((s) => ({ s, t: s.counts.reduce((x, y) => x + y, 0) }))
+    .filter((x) => x.t > 0)
     .sort((x, y) => y.t - x.t);
-  const head = totals
-    .slice(0, MAX_SPECTRUM_SERIES - 1)
-    .map((x) => ({ source: x.s.label, counts: x.s.counts }));
+  // Each source's wafer (top or bottom) goes to the chart, which says it by outline and at the
+  // front of the legend entry; the label's own "(top wafer …)" ending is then left off.
+  const waferOf = new Map(a.contributions.map((c) => [c.key, { wafer: c.wafer, waferId: c.waferId }]));
+  const entry = (s: (typeof sp.series)[number]): SpectrumSeries => {
+    const w = waferOf.get(s.sourceKey);
+    return w
+      ? { source: s.label.replace(/\s*\((top|bottom) wafer [^()]*\)$/, ''), counts: s.counts, ...w }
+      : { source: s.label, counts: s.counts };
+  };
+  const head = totals.slice(0, MAX_SPECTRUM_SERIES - 1).map((x) => entry(x.s));
   const tail = totals.slice(MAX_SPECTRUM_SERIES - 1);
-  if (tail.length === 1) head.push({ source: tail[0]!.s.label, counts: tail[0]!.s.counts });
+  if (tail.length === 1) head.push(entry(tail[0]!.s));
   else if (tail.length > 1) {
     const pooled = new Array<number>(sp.centresM.length).fill(0);
     for (const x of tail)
