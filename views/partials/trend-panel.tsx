@@ -69,7 +69,7 @@ export function TrendPanel(props: TrendPanelProps) {
           <select name="channel">
             {props.channels.map((c) => (
               <option
-                value={String(c * 1e6)}
+                value={String(Number((c * 1e6).toPrecision(6)))}
                 selected={props.channelM !== null && sameSize(c, props.channelM)}
               >
                 ≥ {fmtDiameter(c)}
