@@ -1,7 +1,7 @@
 /**
  * Every chart on the demo line's pages, in Chromium against a real server: no text leaves its SVG
  * and no two labels overlap (test/helpers/svg-layout.ts says how boxes are measured and why the
- * tolerance is 0.5 px).
+ * tolerance is 0.5 px). And the calculators' inputs stay inside their cards.
  *
  * Pages: the overview, the lots queue, every lot with each Pareto grouping, the first pair of each
  * waiting lot with each Pareto grouping and the cumulative spectrum, the areas page and the trend
@@ -30,7 +30,7 @@ interface Visit {
   report: LayoutReport;
 }
 
-describe.skipIf(!run)('chart text on the demo line’s pages', () => {
+describe.skipIf(!run)('words and controls inside their boxes on the demo line’s pages', () => {
   let server: TestServer;
   let browser: Awaited<ReturnType<typeof launchBrowser>>;
   const visits: Visit[] = [];
@@ -120,6 +120,28 @@ describe.skipIf(!run)('chart text on the demo line’s pages', () => {
 
   it('no label is clipped by its chart or overlaps another (trend, spectrum, wafer maps, removal curves)', () => {
     expect(problems((p) => !REWRITTEN_ELSEWHERE.has(p.chartKind))).toEqual([]);
+  });
+
+  it('keeps every calculator input, choice and button inside its card, wide and narrow', async () => {
+    const page = await browser.context.newPage();
+    const out: string[] = [];
+    for (const width of [1360, 820]) {
+      await page.setViewportSize({ width, height: 900 });
+      await page.goto(new URL('calculators', server.url).href);
+      // Whole pixels: a control's border box against its card's padding box (layout in CSS px,
+      // the 0.5 px tolerance of the chart check, for the same reason).
+      const found =
+        (await page.evaluate(`Array.from(document.querySelectorAll('article.vc-calc')).flatMap((card) => {
+        const c = card.getBoundingClientRect();
+        return Array.from(card.querySelectorAll('input, select, button'))
+          .map((el) => ({ el, b: el.getBoundingClientRect() }))
+          .filter(({ b }) => b.left < c.left - 0.5 || b.right > c.right + 0.5)
+          .map(({ el, b }) => card.id + ' ' + (el.getAttribute('name') || el.tagName) + ': ' + b.left.toFixed(0) + '–' + b.right.toFixed(0) + ' px outside ' + c.left.toFixed(0) + '–' + c.right.toFixed(0) + ' px');
+      })`)) as string[];
+      out.push(...found.map((f) => `${width} px: ${f}`));
+    }
+    await page.close();
+    expect(out).toEqual([]);
   });
 
   // Known: the Pareto chart's rotated bar labels leave the chart and collide, its right axis title
