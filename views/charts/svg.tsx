@@ -160,6 +160,17 @@ export function fmtNum(v: number, sig = 3): string {
   return groupDigits(Number(v.toPrecision(sig)));
 }
 
+/**
+ * An airborne concentration (per m³) or a level set on one: whole particles from 100 up, digits
+ * grouped ("10 559", "3517"), so that a level is shown as set and two nearby levels do not round
+ * to the same figure (an action level of 3517 is not the class limit's 3520); three significant
+ * figures below 100.
+ */
+export function fmtConc(v: number): string {
+  if (!Number.isFinite(v)) return '—';
+  return Math.abs(v) >= 100 ? groupDigits(Math.round(v)) : fmtNum(v);
+}
+
 /** U+202F NARROW NO-BREAK SPACE: the digit-group separator (a thin space that never breaks a line). */
 export const DIGIT_GROUP = '\u202f';
 

@@ -16,6 +16,7 @@ import {
   ChartSvg,
   DESCENT_EM,
   FONT_PX,
+  fmtConc,
   fmtNum,
   fmtPow10,
   fmtUtcTick,
@@ -258,7 +259,7 @@ export function trend(input: TrendInput) {
   );
   const xticks = x.ticks(6).map((d) => ({ at: x(d), label: fmtUtcTick(d.getTime(), span) }));
   const desc =
-    `${input.channelLabel} concentration in ${input.unit}, ${pts.length} samples, ` +
+    `${input.channelLabel} concentration in ${input.unit}, ${pts.length} sample${pts.length === 1 ? '' : 's'}, ` +
     `${nAction} above the action level, ${nAlert} between alert and action, ${gaps.length} gap${gaps.length === 1 ? '' : 's'} in the data` +
     (wantLog ? `; log scale, values below ${fmtNum(floorV)} drawn on the floor` : '') +
     (dense ? `; ${pts.length} samples drawn as the mean with the min–max band per time slice` : '') +
@@ -430,7 +431,7 @@ export function levelLabelGroups(
     .map((g) => ({
       kinds: g.kinds,
       value: g.value,
-      text: `${g.names.join(' = ')} ${fmtNum(g.value)}`,
+      text: `${g.names.join(' = ')} ${fmtConc(g.value)}`,
       colour: g.colour,
     }));
 }

@@ -4,7 +4,7 @@
  */
 import { fmtNum, fmtPct } from '../charts/svg.tsx';
 
-export { fmtDiameter, fmtNum, fmtPct } from '../charts/svg.tsx';
+export { fmtConc, fmtDiameter, fmtNum, fmtPct, groupDigits } from '../charts/svg.tsx';
 
 /** A figure with its interval: "4.1 (2.3–6.8)". */
 export interface EstimateLike {
