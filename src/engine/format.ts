@@ -2,6 +2,7 @@
 
 export function fmtCount(x: number): string {
   if (x === 0) return '0';
+  if (Number.isInteger(x)) return String(x);
   if (Math.abs(x) >= 100) return x.toFixed(0);
   if (Math.abs(x) >= 10) return x.toFixed(1);
   if (Math.abs(x) >= 0.01) return x.toFixed(2);
@@ -32,4 +33,20 @@ export function fmtSize(dM: number): string {
 export function fmtHours(s: number): string {
   if (s < 3600) return `${(s / 60).toFixed(0)} min`;
   return `${(s / 3600).toFixed(1)} h`;
+}
+
+/**
+ * A bound of an interval on a count (reportable voids, killed dies) as a whole count. The Monte
+ * Carlo draws are whole counts plus the means of the smallest contributions
+ * (src/engine/montecarlo.ts), and a quantile may fall between two draws, so a bound can be
+ * fractional; the nearest whole count is shown, a tie going outward (a lower bound down, an upper
+ * bound up), so rounding never narrows the interval by a half.
+ */
+export function countBound(x: number, side: 'low' | 'high'): number {
+  if (!Number.isFinite(x)) return x;
+  return side === 'low' ? Math.max(0, Math.ceil(x - 0.5)) : Math.floor(x + 0.5);
+}
+
+export function fmtCountBound(x: number, side: 'low' | 'high'): string {
+  return Number.isFinite(x) ? String(countBound(x, side)) : '—';
 }

@@ -4,7 +4,7 @@
  * One row per lot; the worst pair's call is the lot's call.
  */
 import { CallBadge, CallCounts, type CallName } from '../partials/call.tsx';
-import { fmtDies, fmtNum, fmtShare, fmtUtc } from '../partials/format.ts';
+import { fmtDies, fmtNum, fmtShare, fmtUtc, groupDigits } from '../partials/format.ts';
 
 export interface LotRow {
   lotId: string;
@@ -108,7 +108,7 @@ function LotTable(props: { rows: LotRow[]; bonded: boolean }) {
             <td class="num">
               {r.dieKillsNB === null
                 ? '—'
-                : `${fmtDies(r.dieKillsNB)} of ${r.dies}${r.dies > 0 ? ` (${fmtShare(r.dieKillsNB / r.dies)})` : ''}`}
+                : `${fmtDies(r.dieKillsNB)} of ${groupDigits(r.dies)}${r.dies > 0 ? ` (${fmtShare(r.dieKillsNB / r.dies)})` : ''}`}
             </td>
             <td>{r.dominant ? `${r.dominant.label} (${fmtShare(r.dominant.share)})` : '—'}</td>
             <td>

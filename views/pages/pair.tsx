@@ -16,6 +16,8 @@ import { CallBadge } from '../partials/call.tsx';
 import {
   fmtAreaM2,
   fmtConfidence,
+  fmtCountBound,
+  fmtCountEstimate,
   fmtDiameter,
   fmtDies,
   fmtDurationS,
@@ -97,7 +99,9 @@ export function PairPage(props: PairPageProps) {
             {a.specChecks.map((s) => (
               <tr>
                 <td>{SPEC_LABEL[s.metric]}</td>
-                <td class="num">{fmtSpecValue(s.metric, s.bound)}</td>
+                <td class="num">
+                  {s.metric === 'voids' ? fmtCountBound(s.bound, 'high') : fmtSpecValue(s.metric, s.bound)}
+                </td>
                 <td class="num">{fmtSpecValue(s.metric, s.limit)}</td>
                 <td>
                   <span class={s.pass ? 'vc-pass' : 'vc-fail'}>{s.pass ? '✓ pass' : '✗ fail'}</span>
@@ -245,7 +249,7 @@ export function FiguresTiles(props: { f: PairFigures }) {
       <Tile
         label="expected reportable voids"
         value={fmtNum(f.voids.value)}
-        sub={`${fmtEstimate(f.voids)} ${fmtConfidence(f.voids)}`}
+        sub={`${fmtCountEstimate(f.voids)} ${fmtConfidence(f.voids)}`}
       />
       <Tile
         label="unbonded area"
@@ -255,12 +259,12 @@ export function FiguresTiles(props: { f: PairFigures }) {
       <Tile
         label="die loss, Poisson"
         value={f.dieKillsPoisson ? `${fmtDies(f.dieKillsPoisson.value)} / ${f.dieCount}` : '—'}
-        sub={f.dieKillsPoisson ? fmtEstimate(f.dieKillsPoisson, fmtDies) : 'no die layout'}
+        sub={f.dieKillsPoisson ? fmtCountEstimate(f.dieKillsPoisson, fmtDies) : 'no die layout'}
       />
       <Tile
         label="die loss, negative binomial"
         value={f.dieKillsNB ? `${fmtDies(f.dieKillsNB.value)} / ${f.dieCount}` : '—'}
-        sub={f.dieKillsNB ? fmtEstimate(f.dieKillsNB, fmtDies) : 'no die layout'}
+        sub={f.dieKillsNB ? fmtCountEstimate(f.dieKillsNB, fmtDies) : 'no die layout'}
       />
       <Tile
         label="die yield"
@@ -421,7 +425,7 @@ function RecleanSection(props: { a: PairAssessment }) {
           </tr>
         </thead>
         <tbody>
-          {row('expected reportable voids', fmtEstimate(before.voids), fmtEstimate(after.voids))}
+          {row('expected reportable voids', fmtCountEstimate(before.voids), fmtCountEstimate(after.voids))}
           {row(
             'unbonded area fraction',
             fmtEstimate(before.unbondedFraction, fmtPct),
@@ -429,13 +433,13 @@ function RecleanSection(props: { a: PairAssessment }) {
           )}
           {row(
             'die loss, Poisson',
-            fmtEstimate(before.dieKillsPoisson, fmtDies),
-            fmtEstimate(after.dieKillsPoisson, fmtDies),
+            fmtCountEstimate(before.dieKillsPoisson, fmtDies),
+            fmtCountEstimate(after.dieKillsPoisson, fmtDies),
           )}
           {row(
             'die loss, negative binomial',
-            fmtEstimate(before.dieKillsNB, fmtDies),
-            fmtEstimate(after.dieKillsNB, fmtDies),
+            fmtCountEstimate(before.dieKillsNB, fmtDies),
+            fmtCountEstimate(after.dieKillsNB, fmtDies),
           )}
           {row('particles at the interface', fmtNum(before.particles), fmtNum(after.particles))}
         </tbody>
