@@ -6,6 +6,7 @@
  * marks it for an htmx out-of-band swap (a finished job refreshes the history without reloading
  * the page).
  */
+import { groupDigits } from './format.ts';
 import { StatusBadge } from './import-report.tsx';
 
 /** Which page of the history, of which kind. */
@@ -65,7 +66,7 @@ export function ImportHistory(props: {
   error?: string | null;
   oob?: boolean;
 }) {
-  const n = (v: number | null) => (v === null ? '—' : v.toLocaleString('en-US'));
+  const n = (v: number | null) => (v === null ? '—' : groupDigits(v));
   const paging: HistoryPaging = props.paging ?? {
     page: 1,
     perPage: props.rows.length || 1,
@@ -99,7 +100,7 @@ export function ImportHistory(props: {
         <>
           <p class="vc-small" data-history-page={paging.page} data-history-pages={pages}>
             {props.total > props.rows.length
-              ? `Imports ${first}–${first + props.rows.length - 1} of ${props.total.toLocaleString('en-US')}${ofKind}, newest first (page ${paging.page} of ${pages}).`
+              ? `Imports ${first}–${first + props.rows.length - 1} of ${groupDigits(props.total)}${ofKind}, newest first (page ${paging.page} of ${pages}).`
               : `${props.total} ${props.total === 1 ? 'import' : 'imports'}${ofKind}.`}
           </p>
           <table class="vc-table vc-history-table">
@@ -138,7 +139,7 @@ export function ImportHistory(props: {
                       : r.flags.map((f, i) => (
                           <>
                             {i > 0 ? ', ' : ''}
-                            <code>{f.code}</code> ×{f.count.toLocaleString('en-US')}
+                            <code>{f.code}</code> ×{groupDigits(f.count)}
                           </>
                         ))}
                   </td>
