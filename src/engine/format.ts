@@ -9,11 +9,13 @@ export function fmtCount(x: number): string {
   return x.toExponential(1);
 }
 
+/** A fraction as a percentage; below 0.01 % with two significant figures in plain decimals ("0.0071 %"). */
 export function fmtPercent(fraction: number): string {
   const p = fraction * 100;
   if (p === 0) return '0 %';
   if (p >= 10) return `${p.toFixed(1)} %`;
   if (p >= 0.01) return `${p.toFixed(2)} %`;
+  if (p >= 1e-6) return `${Number(p.toPrecision(2)).toFixed(Math.ceil(-Math.log10(p)) + 1)} %`;
   return `${p.toExponential(1)} %`;
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { countBound, fmtCount, fmtCountBound, fmtSize } from '../../../src/engine/format.ts';
+import { countBound, fmtCount, fmtCountBound, fmtPercent, fmtSize } from '../../../src/engine/format.ts';
 
 describe('fmtSize', () => {
   it('keeps the zeros of a whole number and drops those after the point', () => {
@@ -30,5 +30,15 @@ describe('countBound and fmtCount', () => {
     expect(fmtCount(12)).toBe('12');
     expect(fmtCount(43.5)).toBe('43.5');
     expect(fmtCount(7.531)).toBe('7.53');
+  });
+});
+
+describe('fmtPercent', () => {
+  it('writes a small share in plain decimals with two significant figures, not in e-notation', () => {
+    // Hand computation: 7.1e-5 of a whole is 0.0071 %.
+    expect(fmtPercent(7.1e-5)).toBe('0.0071 %');
+    expect(fmtPercent(1.23e-7)).toBe('0.000012 %');
+    expect(fmtPercent(0.0083)).toBe('0.83 %');
+    expect(fmtPercent(0.853)).toBe('85.3 %');
   });
 });
