@@ -363,7 +363,7 @@ function ActionFlag(props: { s: ActionSummary }) {
   return (
     <span class="vc-action-flag">
       <br />
-      <span class="vc-fail">▲ above action</span>{' '}
+      <span class="vc-action-word">▲ above action</span>{' '}
       <span class="vc-small">
         peak {fmtConc(p.valuePerM3)} per m³ ≥ {fmtDiameter(p.diameterM)} (action {fmtConc(p.actionPerM3)}) at{' '}
         {fmtUtc(p.startMs)}
