@@ -19,7 +19,7 @@ import {
 import { MODEL_VERSION, resolveConfig } from './config.ts';
 import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
 import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
-import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
+import { fmtCount, fmtCountBound, fmtHours, fmtPercent, fmtSize } from './format.ts';
 import { buildDieHits, mirrorInto } from './geometry.ts';
 import { canonicalHash } from './hash.ts';
 import { boundFrom, type DrawSet, estimateFrom, simulate, sorted } from './montecarlo.ts';
@@ -368,7 +368,7 @@ function runScenario(
 function checkWords(ch: SpecCheck, confidence: number): string {
   const conf = `${Math.round(confidence * 100)} %`;
   if (ch.metric === 'voids')
-    return `reportable voids: ${conf} upper bound ${fmtCount(ch.bound)}, spec ≤ ${fmtCount(ch.limit)}`;
+    return `reportable voids: ${conf} upper bound ${fmtCountBound(ch.bound, 'high')}, spec ≤ ${fmtCount(ch.limit)}`;
   if (ch.metric === 'unbondedFraction')
     return `unbonded area: ${conf} upper bound ${fmtPercent(ch.bound)}, spec ≤ ${fmtPercent(ch.limit)}`;
   return `die yield: ${conf} lower bound ${fmtPercent(ch.bound)}, spec ≥ ${fmtPercent(ch.limit)}`;

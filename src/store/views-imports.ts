@@ -80,10 +80,13 @@ function flagsOf(db: Db, ids: number[]): Map<number, ImportHistoryRow['flags']> 
   return out;
 }
 
-/** The latest `limit` imports (newest first) with their flags, and how many there are in all. */
+/**
+ * One page of the imports, newest first, with their flags, and how many there are in all (of the
+ * kind asked for, when `kind` is given): `limit` rows from `offset`.
+ */
 export function listImportHistory(
   db: Db,
-  opts: { limit?: number; offset?: number } = {},
+  opts: { limit?: number; offset?: number; kind?: string | null } = {},
 ): {
   rows: ImportHistoryRow[];
   total: number;
@@ -91,13 +94,18 @@ export function listImportHistory(
   if (!hasTable(db, 'imports')) return { rows: [], total: 0 };
   const limit = Math.max(1, Math.min(1000, Math.trunc(opts.limit ?? 50)));
   const offset = Math.max(0, Math.trunc(opts.offset ?? 0));
+  const kind = opts.kind ?? null;
   const records = db
     .prepare(
       `SELECT id, kind, file_name, sha256, status, bytes, rows_read, rows_stored, rows_rejected, duplicates, imported_at
-       FROM imports ORDER BY imported_at DESC, id DESC LIMIT ? OFFSET ?`,
+       FROM imports WHERE (@kind IS NULL OR kind = @kind) ORDER BY imported_at DESC, id DESC LIMIT @limit OFFSET @offset`,
     )
-    .all(limit, offset) as ImportRecord[];
-  const total = (db.prepare('SELECT COUNT(*) AS n FROM imports').get() as { n: number }).n;
+    .all({ kind, limit, offset }) as ImportRecord[];
+  const total = (
+    db.prepare('SELECT COUNT(*) AS n FROM imports WHERE (@kind IS NULL OR kind = @kind)').get({ kind }) as {
+      n: number;
+    }
+  ).n;
   const flags = flagsOf(
     db,
     records.map((r) => r.id),

@@ -201,6 +201,10 @@ describe('voidcast assess / signoff', () => {
     expect(t2).toMatch(/CALL: (BOND|RE-CLEAN|HOLD)/);
     expect(t2).toMatch(/Pareto by clean \(residual\)/);
     expect(t2).toMatch(/400 Monte Carlo draws/);
+    // Counts (voids, killed dies) have whole-number intervals.
+    expect(t2).toMatch(/reportable voids \(95 %\)\s+\S+ \[\d+–\d+\]/);
+    expect(t2).toMatch(/die kills NB \(95 %\)\s+\S+ \[\d+–\d+\]/);
+    expect(text).toMatch(/^P0\s+\S+\s+\S+ \[\d+–\d+\]/m);
     const c = io();
     expect(
       await main(['assess', '--pair', 'P1', '--json', '--as-of', String(AS_OF), '--data', dir], c.io),

@@ -20,7 +20,7 @@ afterAll(() => {
 
 /** The table row of a location. */
 function row(html: string, id: string): string {
-  const m = new RegExp(`<tr data-location="${id}">([\\s\\S]*?)</tr>`).exec(html);
+  const m = new RegExp(`<tr data-location="${id}"[^>]*>([\\s\\S]*?)</tr>`).exec(html);
   if (!m) throw new Error(`no row for ${id}`);
   return m[1]!;
 }

@@ -98,3 +98,28 @@ describe('GET /lots/:id', () => {
     expect(plain.headers.get('location')).toBe('/lots/L-01?pareto=clean#pareto-panel');
   });
 });
+
+describe('count intervals', () => {
+  it('shows the interval of a count (voids, killed dies) in whole numbers on the lot page', async () => {
+    const html = await (await app.request('/lots/L-01')).text();
+    const body = /<table class="vc-table vc-pair-table">[\s\S]*?<tbody>([\s\S]*?)<\/tbody>/.exec(html)![1]!;
+    // Columns: expected voids, unbonded area, die loss Poisson, die loss NB (lot.tsx); the count
+    // columns are the cells whose interval has no unit.
+    const intervals = [
+      ...body.matchAll(/<td class="num vc-estimate">[^<]*<br\/?>\s*<span class="vc-small">([^<]*)<\/span>/g),
+    ]
+      .map((m) => m[1]!)
+      .filter((t) => !t.includes('%'));
+    expect(intervals.length).toBe(9); // 3 pairs × voids, die loss Poisson, die loss NB
+    for (const t of intervals) expect(t).toMatch(/^\d+–\d+$/);
+  });
+
+  it('says a spec bound on voids as a whole count in the reasons', async () => {
+    const html = await (await app.request('/lots/L-01')).text();
+    const bounds = [...html.matchAll(/reportable voids: 95 % upper bound ([^,]+), spec ≤ ([^;<.]+)/g)];
+    for (const b of bounds) {
+      expect(b[1]).toMatch(/^\d+$/);
+      expect(b[2]).toMatch(/^\d+$/);
+    }
+  });
+});

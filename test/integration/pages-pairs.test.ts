@@ -101,6 +101,27 @@ describe('GET /pairs/:id', () => {
     expect(map).toMatch(/Sum over the dies: [\d.,]+/);
   });
 
+  it('gives the intervals of counts (voids, killed dies) in whole numbers, as is and after a re-clean', async () => {
+    const html = await (await app.request('/pairs/P-02')).text();
+    // Figure tiles: "expectation (low–high)"; the count tiles are the voids and the two die-loss forms.
+    const subs = [
+      ...html.matchAll(
+        /<span class="vc-tile-label">([^<]*)<\/span>\s*<span class="vc-small">([^<]*)<\/span>/g,
+      ),
+    ];
+    const counts = subs.filter((m) => /voids|die loss/.test(m[1]!)).map((m) => m[2]!);
+    expect(counts).toHaveLength(3);
+    for (const c of counts) expect(c).toMatch(/\((\d+)–(\d+)\)/);
+    const table = /<table class="vc-table vc-table-compact vc-before-after">([\s\S]*?)<\/table>/.exec(
+      html,
+    )![1]!;
+    const rows = [
+      ...table.matchAll(/<tr><td>(expected reportable voids|die loss[^<]*)<\/td>([\s\S]*?)<\/tr>/g),
+    ];
+    expect(rows.length).toBe(3);
+    for (const r of rows) for (const m of r[2]!.matchAll(/\(([^)]*)\)/g)) expect(m[1]).toMatch(/^\d+–\d+$/);
+  });
+
   it('escapes names from files (tool and location names) everywhere on the page', async () => {
     const html = await (await app.request('/pairs/P-02')).text();
     expect(html).not.toContain('<script>alert(1)</script>');

@@ -41,7 +41,9 @@ describe('GET /tools', () => {
     expect(res.status).toBe(200);
     const html = await res.text();
     expect(html).toContain('<h1>Tools &amp; cleans</h1>');
-    const rows = [...html.matchAll(/<tr data-tool="([^"]+)">([\s\S]*?)<\/tr>/g)].map((m) => [m[1], m[2]!]);
+    const rows = [
+      ...html.matchAll(/<tr data-tool="([^"]+)"(?: data-chamber="[^"]+")?>([\s\S]*?)<\/tr>/g),
+    ].map((m) => [m[1], m[2]!]);
     expect(rows.map((r) => r[0])).toEqual(['ACT-1', 'BOND-1', 'BOND-1', 'CLN-1', 'STK-1']);
     expect(rows[0]![1]).toContain('2.5 ≥ 45 nm'); // bands 2 + 0.5 from 45 nm
     expect(rows[1]![1]).toContain('1.5 ≥ 45 nm');
@@ -50,6 +52,20 @@ describe('GET /tools', () => {
     expect(rows[4]![1]).toContain('none stated');
     expect(html).not.toContain('<script>alert(1)</script>');
     expect(html).toContain('Bonder &lt;script&gt;alert(1)&lt;/script&gt;');
+  });
+
+  it('shows each tool once: its chambers are rows of its group, not tools of their own', async () => {
+    const html = await (await app.request('/tools')).text();
+    const table = /<table class="vc-table vc-table-compact vc-adders">([\s\S]*?)<\/table>/.exec(html)![1]!;
+    // The bonder's name (tools file of test/helpers/pages-data.ts) appears once, in its group.
+    expect(table.match(/Bonder &lt;script&gt;/g)).toHaveLength(1);
+    const group = /<tbody class="vc-tool-group" data-tool-group="BOND-1">([\s\S]*?)<\/tbody>/.exec(
+      table,
+    )![1]!;
+    expect(group).toMatch(/<tr data-tool="BOND-1">[\s\S]*?whole tool/);
+    expect(group).toMatch(/<tr data-tool="BOND-1" data-chamber="ALN">[\s\S]*?ALN[\s\S]*?0.6 ≥ 45 nm/);
+    const groups = [...table.matchAll(/data-tool-group="([^"]+)"/g)].map((m) => m[1]);
+    expect(new Set(groups).size).toBe(groups.length);
   });
 
   it('draws a removal curve per clean, with measured bands where the file has them', async () => {

@@ -21,9 +21,15 @@ import {
   NoData,
   r,
   safeId,
+  textWidth,
+  X_AXIS_DEPTH,
   XAxis,
   YAxis,
+  yAxisDepth,
 } from './svg.tsx';
+
+/** Height of the legend's one row, px. */
+const LEGEND_ROW = 16;
 
 export interface RemovalCurvePoint {
   diameterM: number;
@@ -71,7 +77,25 @@ export function removalCurve(input: RemovalCurveInput) {
   const extra = input.band?.length || input.typed?.length ? 16 : 0;
   const width = input.width ?? 520;
   const height = (input.height ?? 300) + extra;
-  const frame = { width, height, margin: { top: 14, right: 28, bottom: 70 + extra, left: 60 } };
+  const yTicksFor = (y: (v: number) => number) =>
+    linearTicks([0, 0.2, 0.4, 0.6, 0.8, 1], y, (v) => `${Math.round(v * 100)} %`);
+  const yLabel = 'removal efficiency';
+  const frame = {
+    width,
+    height,
+    margin: {
+      top: 14,
+      right: 28,
+      bottom: X_AXIS_DEPTH + 4 + LEGEND_ROW + 4 + extra,
+      left: Math.max(
+        40,
+        yAxisDepth(
+          yTicksFor((v) => v),
+          yLabel,
+        ),
+      ),
+    },
+  };
   const box = innerBox(frame);
   const curve = input.curve
     .filter((p) => p.diameterM > 0 && Number.isFinite(p.efficiency))
@@ -116,14 +140,7 @@ export function removalCurve(input: RemovalCurveInput) {
     '.';
   return (
     <ChartSvg kind="removal-curve" id={id} width={width} height={height} title={input.title} desc={desc}>
-      <YAxis
-        ticks={linearTicks([0, 0.2, 0.4, 0.6, 0.8, 1], y, (v) => `${Math.round(v * 100)} %`)}
-        x={box.x0}
-        y0={box.y0}
-        y1={box.y1}
-        label="removal efficiency"
-        grid={box.x1}
-      />
+      <YAxis ticks={yTicksFor(y)} x={box.x0} y0={box.y0} y1={box.y1} label={yLabel} grid={box.x1} />
       <XAxis
         ticks={logTicks(xDomain, x, fmtDiameter)}
         y={box.y1}
@@ -147,7 +164,11 @@ export function removalCurve(input: RemovalCurveInput) {
               stroke="#5d6472"
               stroke-dasharray="5 3"
             />
-            <text x={r(x(m.atM)) + 3} y={box.y1 - 6}>
+            <text
+              x={x(m.atM) + 3 + textWidth(m.label) > box.x1 ? r(x(m.atM)) - 3 : r(x(m.atM)) + 3}
+              y={box.y1 - 6}
+              text-anchor={x(m.atM) + 3 + textWidth(m.label) > box.x1 ? 'end' : undefined}
+            >
               {m.label}
             </text>
           </g>
@@ -206,50 +227,51 @@ export function removalCurve(input: RemovalCurveInput) {
       </g>
       <Legend
         x={box.x0}
-        y={box.y1 + 42}
+        y={box.y1 + X_AXIS_DEPTH + 4}
         columns={2}
         columnWidth={(box.x1 - box.x0) / 2}
         entries={[
-          {
-            label: input.curveLabel ?? 'model PRE(d)',
-            swatch: <line x1={0} x2={14} y1={6} y2={6} stroke="#1f6f8b" stroke-width="2" />,
-          },
-          ...(bandPath
-            ? [
-                {
-                  label: 'its 95 % band',
-                  swatch: <rect x={0} y={1} width="14" height="10" fill="#1f6f8b" fill-opacity="0.18" />,
-                },
-              ]
-            : []),
-          ...(typedPath
-            ? [
-                {
-                  label: input.typedLabel ?? 'typed PRE(d)',
-                  swatch: (
-                    <line
-                      x1={0}
-                      x2={14}
-                      y1={6}
-                      y2={6}
-                      stroke="#5d6472"
-                      stroke-width="1.6"
-                      stroke-dasharray="6 4"
-                    />
-                  ),
-                },
-              ]
-            : []),
-          {
-            label: 'measured per size band',
-            swatch: (
-              <g>
-                <line x1={0} x2={14} y1={6} y2={6} stroke="#18202e" />
-                <rect x={3.5} y={2.5} width="7" height="7" fill="#c98a12" stroke="#18202e" />
-              </g>
-            ),
-          },
-        ]}
+          // Only what the chart draws has a legend entry.
+          d
+            ? {
+                label: input.curveLabel ?? 'model PRE(d)',
+                swatch: <line x1={0} x2={14} y1={6} y2={6} stroke="#1f6f8b" stroke-width="2" />,
+              }
+            : null,
+          bandPath
+            ? {
+                label: 'its 95 % band',
+                swatch: <rect x={0} y={1} width="14" height="10" fill="#1f6f8b" fill-opacity="0.18" />,
+              }
+            : null,
+          typedPath
+            ? {
+                label: input.typedLabel ?? 'typed PRE(d)',
+                swatch: (
+                  <line
+                    x1={0}
+                    x2={14}
+                    y1={6}
+                    y2={6}
+                    stroke="#5d6472"
+                    stroke-width="1.6"
+                    stroke-dasharray="6 4"
+                  />
+                ),
+              }
+            : null,
+          measured.length > 0
+            ? {
+                label: 'measured per size band',
+                swatch: (
+                  <g>
+                    <line x1={0} x2={14} y1={6} y2={6} stroke="#18202e" />
+                    <rect x={3.5} y={2.5} width="7" height="7" fill="#c98a12" stroke="#18202e" />
+                  </g>
+                ),
+              }
+            : null,
+        ].filter((e) => e !== null)}
       />
     </ChartSvg>
   );

@@ -5,6 +5,10 @@
  * of the spectrum grid) or the cumulative count N(≥ d) (areas through the bin edges, straight
  * in log–log, i.e. power-law between edges), on a log axis. Sources are stacked in the order
  * given; each has its own pattern as well as colour, and the legend gives each source's total.
+ * Where a source belongs to one wafer of the pair, its outline says which (solid: bottom wafer,
+ * dashed: top wafer, dotted: both or pooled) and its legend entry starts with the wafer, so that
+ * the same source on the two wafers stays two distinguishable entries. A source with nothing in
+ * any bin is neither stacked nor listed.
  * Log y cannot show zero: the axis starts six decades below the largest stacked value and
  * anything below is drawn on the floor, which the description says.
  */
@@ -13,7 +17,8 @@ import { area, curveLinear, curveStepAfter, stack } from 'd3-shape';
 import { SPECTRUM_EDGES_M } from '../../src/model/spectrum.ts';
 import {
   ChartSvg,
-  clip,
+  FONT_PX,
+  fitText,
   fmtDiameter,
   fmtNum,
   fmtPow10,
@@ -26,15 +31,31 @@ import {
   safeId,
   seriesFill,
   seriesStyle,
+  textWidth,
+  X_AXIS_DEPTH,
   XAxis,
   YAxis,
+  yAxisDepth,
 } from './svg.tsx';
 
 export interface SpectrumSeries {
   source: string;
   /** Expected count per bin, smallest size first (one value per bin between consecutive edges). */
   counts: ArrayLike<number>;
+  /** The wafer of the pair the source belongs to; null or absent: both, or several sources pooled. */
+  wafer?: 'top' | 'bottom' | null;
+  /** That wafer's id, shown with the side in the legend. */
+  waferId?: string | null;
 }
+
+/** Outline of a layer by wafer: solid bottom, dashed top, dotted both/pooled (SVG stroke-dasharray). */
+export const WAFER_OUTLINE: Record<'top' | 'bottom' | 'both', string | undefined> = {
+  bottom: undefined,
+  top: '5 2',
+  both: '1.5 2',
+};
+const LEGEND_ROW = 16;
+const LEGEND_HEADING = 14;
 
 export interface StackedSpectrumInput {
   title: string;
@@ -59,17 +80,36 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
   const mode = input.mode ?? 'per-bin';
   const edges = Array.from(input.edgesM ?? SPECTRUM_EDGES_M);
   const nb = edges.length - 1;
-  const legendRows = input.series.length;
+  // A source with nothing in any bin has no layer and no legend entry.
+  const series = input.series.filter((s) =>
+    Array.from({ length: nb }, (_, i) => Number(s.counts[i] ?? 0)).some((v) => v > 0),
+  );
+  const bySide = series.some((s) => s.wafer === 'top' || s.wafer === 'bottom');
+  const legendRows = series.length;
+  const legendHeight = (bySide ? LEGEND_HEADING : 0) + legendRows * LEGEND_ROW;
   const width = input.width ?? 560;
-  const height = (input.height ?? 300) + legendRows * 16;
-  const frame = { width, height, margin: { top: 14, right: 26, bottom: 50 + legendRows * 16, left: 66 } };
-  const box = innerBox(frame);
+  const height = (input.height ?? 300) + legendHeight;
   const basis = input.basis ?? 'particles per wafer';
+  const yLabel = mode === 'per-bin' ? `${basis} per size bin` : `${basis} ≥ d`;
 
-  const { perSource, stacked } = stackSpectrum(input.series, mode, nb);
+  const { perSource, stacked } = stackSpectrum(series, mode, nb);
   const totals = (stacked[0] ?? []).map((_, i) => stacked.reduce((m, layer) => Math.max(m, layer[i]![1]), 0));
   const yMaxRaw = Math.max(0, ...totals);
   const hasData = yMaxRaw > 0;
+  const yTop = hasData ? 10 ** Math.ceil(Math.log10(yMaxRaw) - 1e-9) : 1;
+  const yFloor = yTop * 10 ** -Y_DECADES;
+  const yTickProbe = logTicks([yFloor, yTop], (v) => v, fmtPow10);
+  const frame = {
+    width,
+    height,
+    margin: {
+      top: 14,
+      right: 26,
+      bottom: X_AXIS_DEPTH + 4 + legendHeight + 4,
+      left: Math.max(40, yAxisDepth(yTickProbe, yLabel)),
+    },
+  };
+  const box = innerBox(frame);
 
   // x domain: the bins that carry something, widened to whole decades.
   const significant = totals.map((t, i) => (t > yMaxRaw * 10 ** -Y_DECADES ? i : -1)).filter((i) => i >= 0);
@@ -80,8 +120,6 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
     Math.min(edges[nb]!, 10 ** Math.ceil(Math.log10(hi) - 1e-9)),
   ];
   const x = scaleLog().domain(xDomain).range([box.x0, box.x1]).clamp(true);
-  const yTop = hasData ? 10 ** Math.ceil(Math.log10(yMaxRaw) - 1e-9) : 1;
-  const yFloor = yTop * 10 ** -Y_DECADES;
   const y = scaleLog().domain([yFloor, yTop]).range([box.y1, box.y0]).clamp(true);
   const yv = (v: number) => y(Math.max(v, yFloor));
 
@@ -108,15 +146,32 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
     const style = seriesStyle(k);
     const pid = `${id}-p${k}`;
     const total = mode === 'per-bin' ? sum(perSource[k]!) : (perSource[k]![0] ?? 0);
-    return { k, d: shape(pts) ?? '', style, pid, total, source: input.series[k]!.source };
+    const s = series[k]!;
+    const side = s.wafer === 'top' || s.wafer === 'bottom' ? s.wafer : null;
+    const who = side ? `${side}${s.waferId ? ` ${s.waferId}` : ' wafer'}` : null;
+    return {
+      k,
+      d: shape(pts) ?? '',
+      style,
+      pid,
+      total,
+      source: s.source,
+      side,
+      who,
+      dash: bySide ? WAFER_OUTLINE[side ?? 'both'] : undefined,
+    };
   });
 
-  const yLabel = mode === 'per-bin' ? `${basis} per size bin` : `${basis} ≥ d`;
   const desc = hasData
     ? `${mode === 'per-bin' ? 'Count per size bin' : 'Cumulative count above each size'} in ${basis}, stacked by source: ` +
-      layers.map((l) => `${l.source} ${fmtNum(l.total)}`).join('; ') +
+      layers.map((l) => `${l.who ? `${l.who}: ` : ''}${l.source} ${fmtNum(l.total)}`).join('; ') +
       `. Log axes; values below ${fmtNum(yFloor)} are drawn on the axis floor.`
     : 'No particles in any source.';
+  const legendRoom = box.x1 - box.x0 - 18;
+  const legendLabel = (l: (typeof layers)[number]) => {
+    const tail = ` — ${fmtNum(l.total)}`;
+    return `${fitText(`${l.who ? `${l.who} · ` : ''}${l.source}`, legendRoom - textWidth(tail))}${tail}`;
+  };
   return (
     <ChartSvg kind="stacked-spectrum" id={id} width={width} height={height} title={input.title} desc={desc}>
       <defs>
@@ -149,13 +204,15 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
             <path
               class="vc-mark vc-layer"
               data-source={l.source}
+              data-wafer={l.side ?? undefined}
               d={l.d}
               fill={seriesFill(l.pid, l.style)}
               fill-opacity={l.style.pattern === 'solid' ? 0.75 : 1}
               stroke={l.style.colour}
-              stroke-width="1"
+              stroke-width={l.dash ? 1.3 : 1}
+              stroke-dasharray={l.dash}
             >
-              <title>{`${l.source}: ${fmtNum(l.total)} ${basis}`}</title>
+              <title>{`${l.who ? `${l.who}: ` : ''}${l.source}: ${fmtNum(l.total)} ${basis}`}</title>
             </path>
           ))}
         </g>
@@ -164,36 +221,49 @@ export function stackedSpectrum(input: StackedSpectrumInput) {
       )}
       {(input.markers ?? [])
         .filter((m) => m.atM >= xDomain[0] && m.atM <= xDomain[1])
-        .map((m) => (
-          <g class="vc-marker">
-            <line
-              x1={r(x(m.atM))}
-              x2={r(x(m.atM))}
-              y1={box.y0}
-              y2={box.y1}
-              stroke="#18202e"
-              stroke-width="1"
-              stroke-dasharray="5 3"
-            />
-            <text x={r(x(m.atM)) + 3} y={box.y0 + 10}>
-              {m.label}
-            </text>
-          </g>
-        ))}
+        .map((m) => {
+          const mx = r(x(m.atM));
+          // The label reads to the right of its line unless it would leave the plot.
+          const left = mx + 3 + textWidth(m.label) > box.x1;
+          return (
+            <g class="vc-marker">
+              <line
+                x1={mx}
+                x2={mx}
+                y1={box.y0}
+                y2={box.y1}
+                stroke="#18202e"
+                stroke-width="1"
+                stroke-dasharray="5 3"
+              />
+              <text x={left ? mx - 3 : mx + 3} y={box.y0 + 10} text-anchor={left ? 'end' : undefined}>
+                {m.label}
+              </text>
+            </g>
+          );
+        })}
       <Legend
         x={box.x0}
-        y={box.y1 + 40}
+        y={box.y1 + X_AXIS_DEPTH + 4}
+        heading={
+          bySide ? fitText(outlineKey(layers.map((l) => l.side)), box.x1 - box.x0, FONT_PX, true) : undefined
+        }
+        rowHeight={LEGEND_ROW}
         entries={layers.map((l) => ({
-          label: `${clip(l.source, Math.floor((box.x1 - box.x0) / 6.4) - 12)} — ${fmtNum(l.total)}`,
+          label: legendLabel(l),
           swatch: (
             <rect
-              x={0}
-              y={0}
+              class="vc-legend-swatch"
+              data-wafer={l.side ?? undefined}
+              x={0.75}
+              y={0.75}
               width={14}
-              height={12}
+              height={11}
               fill={seriesFill(l.pid, l.style)}
               fill-opacity={l.style.pattern === 'solid' ? 0.75 : 1}
               stroke={l.style.colour}
+              stroke-width={l.dash ? 1.5 : 1}
+              stroke-dasharray={l.dash}
             />
           ),
         }))}
@@ -230,6 +300,16 @@ export function stackSpectrum(series: SpectrumSeries[], mode: 'per-bin' | 'cumul
   });
   const stacked = stack<Record<string, number>>().keys(keys)(rows);
   return { perSource, stacked };
+}
+
+/** The legend's heading: which outline means which wafer, for the outlines the chart uses. */
+function outlineKey(sides: ('top' | 'bottom' | null)[]): string {
+  const parts = [
+    sides.includes('bottom') ? 'solid bottom wafer' : null,
+    sides.includes('top') ? 'dashed top wafer' : null,
+    sides.includes(null) ? 'dotted both or pooled' : null,
+  ].filter((p) => p !== null);
+  return `Outline: ${parts.join(' · ')}`;
 }
 
 function sum(a: number[]): number {

@@ -64,9 +64,90 @@ export function ChartSvg(props: {
 }
 
 // ---------------------------------------------------------------------------------------------
+// Text metrics. Charts are laid out on the server, before any font is known, so they reserve room
+// for their words from the advance widths of DejaVu Sans — the font the stylesheet's sans stack
+// falls to on Linux and the widest of the common sans faces (Segoe UI, Roboto, Helvetica and San
+// Francisco set the same words narrower), so room reserved this way is enough for any of them.
+
+/** Chart type size, px (public/voidcast.css: `svg.vc-chart text { font-size: 11px }`). */
+export const FONT_PX = 11;
+/** Ascent and descent of a line of chart text, em (DejaVu Sans: 0.93 and 0.24, measured in Chromium). */
+export const ASCENT_EM = 0.93;
+export const DESCENT_EM = 0.24;
+/** Height of one line's box (ascent + descent) at the chart type size, px. */
+export const LINE_BOX_PX = (ASCENT_EM + DESCENT_EM) * FONT_PX;
+
+/** DejaVu Sans advance widths of U+0021…U+007E in hundredths of an em, rounded up (measured in Chromium). */
+const ASCII_ADVANCE = [
+  41, 46, 84, 64, 96, 78, 28, 40, 40, 50, 84, 32, 37, 32, 34, 64, 64, 64, 64, 64, 64, 64, 64, 64, 64, 34, 34,
+  84, 84, 84, 54, 100, 71, 69, 70, 78, 64, 58, 78, 76, 30, 30, 66, 56, 87, 75, 79, 61, 79, 70, 64, 60, 74, 69,
+  99, 69, 62, 69, 40, 34, 40, 84, 50, 50, 62, 64, 55, 64, 62, 35, 64, 64, 28, 28, 58, 28, 98, 64, 62, 64, 64,
+  40, 53, 40, 64, 60, 82, 60, 60, 53, 64, 34, 64, 84,
+];
+/** The same for the other characters chart labels use; anything else counts as a full em. */
+const OTHER_ADVANCE: Record<string, number> = {
+  ' ': 32,
+  '\u202f': 20,
+  '\u2009': 20,
+  '\u00a0': 32,
+  µ: 64,
+  '×': 84,
+  '−': 84,
+  '–': 50,
+  '—': 100,
+  '≥': 84,
+  '≤': 84,
+  '…': 100,
+  '·': 32,
+  '→': 84,
+  '≈': 84,
+  '±': 84,
+  '°': 50,
+  '⁻': 53,
+  '⌀': 61,
+  '⇄': 84,
+  '▲': 77,
+  '²': 41,
+  '³': 41,
+};
+
+/** DejaVu Sans Bold sets text up to 1.10 × as wide as the regular face (digits 1.09, "a" 1.10). */
+const BOLD_FACTOR = 1.12;
+
+/**
+ * Estimated advance width of a line of chart text, px (never less than Chromium sets it in DejaVu
+ * Sans); `bold` for text drawn at font-weight 600 or more.
+ */
+export function textWidth(s: string, fontPx = FONT_PX, bold = false): number {
+  if (bold) return textWidth(s, fontPx) * BOLD_FACTOR;
+  let em = 0;
+  for (const ch of s) {
+    const c = ch.codePointAt(0)!;
+    if (c >= 0x21 && c <= 0x7e) em += ASCII_ADVANCE[c - 0x21]! / 100;
+    else if (OTHER_ADVANCE[ch] !== undefined) em += OTHER_ADVANCE[ch]! / 100;
+    else if (/[⁰¹⁴-⁹]/u.test(ch)) em += 0.41;
+    else em += 1;
+  }
+  return em * fontPx;
+}
+
+/** The label, shortened with an ellipsis until it fits `maxPx` (the whole label when it fits). */
+export function fitText(s: string, maxPx: number, fontPx = FONT_PX, bold = false): string {
+  if (textWidth(s, fontPx, bold) <= maxPx) return s;
+  const chars = Array.from(s);
+  while (chars.length > 0 && textWidth(`${chars.join('').trimEnd()}…`, fontPx, bold) > maxPx) chars.pop();
+  return chars.length ? `${chars.join('').trimEnd()}…` : '';
+}
+
+// ---------------------------------------------------------------------------------------------
 // Number formats (display only; the numbers themselves stay SI in the data).
 
-/** A compact number: 3 significant figures, thin grouping, exponent for very large/small. */
+/**
+ * A compact number: 3 significant figures, exponent for very large/small, digits grouped in threes
+ * by a narrow no-break space ("100 000"): the SI Brochure (9th ed., 5.4.4) and ISO 80000-1 group
+ * digits with a thin space and never with a comma or point, so that no reader takes "100,000" for
+ * a hundred with a decimal comma.
+ */
 export function fmtNum(v: number, sig = 3): string {
   if (!Number.isFinite(v)) return '—';
   if (v === 0) return '0';
@@ -76,8 +157,29 @@ export function fmtNum(v: number, sig = 3): string {
     const m = v / 10 ** e;
     return `${Number(m.toPrecision(sig))}×10${superscript(e)}`;
   }
-  const s = Number(v.toPrecision(sig));
-  return s.toLocaleString('en-US', { maximumFractionDigits: 6 });
+  return groupDigits(Number(v.toPrecision(sig)));
+}
+
+/**
+ * An airborne concentration (per m³) or a level set on one: whole particles from 100 up, digits
+ * grouped ("10 559", "3517"), so that a level is shown as set and two nearby levels do not round
+ * to the same figure (an action level of 3517 is not the class limit's 3520); three significant
+ * figures below 100.
+ */
+export function fmtConc(v: number): string {
+  if (!Number.isFinite(v)) return '—';
+  return Math.abs(v) >= 100 ? groupDigits(Math.round(v)) : fmtNum(v);
+}
+
+/** U+202F NARROW NO-BREAK SPACE: the digit-group separator (a thin space that never breaks a line). */
+export const DIGIT_GROUP = '\u202f';
+
+/** A number in plain decimal notation with the integer part grouped in threes from 10 000 up. */
+export function groupDigits(v: number): string {
+  if (!Number.isFinite(v)) return '—';
+  const [int, frac] = String(Math.abs(v)).split('.');
+  const grouped = int!.length > 4 ? int!.replace(/\B(?=(\d{3})+$)/g, DIGIT_GROUP) : int!;
+  return `${v < 0 ? '-' : ''}${grouped}${frac ? `.${frac}` : ''}`;
 }
 
 const SUP: Record<string, string> = {
@@ -137,6 +239,29 @@ export interface Tick {
   label: string | null; // null: a minor tick without text
 }
 
+/**
+ * Where the x axis puts its words, px below the axis line: tick labels start below the 5 px tick
+ * and below the box of a y tick label centred on the same corner (so "0" and the first date never
+ * touch), the title one line further down. X_AXIS_DEPTH is the room the axis needs under the plot.
+ */
+const X_TICK_BASELINE = 17;
+const X_TITLE_BASELINE = 33;
+export const X_AXIS_DEPTH = Math.ceil(X_TITLE_BASELINE + DESCENT_EM * FONT_PX + 1);
+/** Baseline offset that centres a line's box on a y position. */
+const CENTRE_BASELINE = r(((ASCENT_EM - DESCENT_EM) / 2) * FONT_PX);
+/** Gap between a y tick and its label, and between the widest tick label and the axis title, px. */
+const Y_TICK_GAP = 8;
+const Y_TITLE_GAP = 4;
+
+/**
+ * The room a y axis needs beside the plot, px: tick, widest tick label and, with a title, the
+ * rotated title's line box. A chart sets its side margin to at least this.
+ */
+export function yAxisDepth(ticks: Tick[], label?: string): number {
+  const widest = Math.max(0, ...ticks.map((t) => (t.label === null ? 0 : textWidth(t.label))));
+  return Math.ceil(Y_TICK_GAP + widest + (label ? Y_TITLE_GAP + LINE_BOX_PX : 0) + 1);
+}
+
 export function XAxis(props: {
   ticks: Tick[];
   y: number;
@@ -161,15 +286,20 @@ export function XAxis(props: {
             stroke="#5d6472"
           />
           {t.label !== null ? (
-            <text x={r(t.at)} y={props.y + 16} text-anchor="middle">
+            <text x={r(t.at)} y={props.y + X_TICK_BASELINE} text-anchor="middle">
               {t.label}
             </text>
           ) : null}
         </g>
       ))}
       {props.label ? (
-        <text class="vc-axis-label" x={r((props.x0 + props.x1) / 2)} y={props.y + 33} text-anchor="middle">
-          {props.label}
+        <text
+          class="vc-axis-label"
+          x={r((props.x0 + props.x1) / 2)}
+          y={props.y + X_TITLE_BASELINE}
+          text-anchor="middle"
+        >
+          {fitText(props.label, props.x1 - props.x0)}
         </text>
       ) : null}
     </g>
@@ -188,7 +318,10 @@ export function YAxis(props: {
   const right = props.side === 'right';
   const dir = right ? 1 : -1;
   const mid = (props.y0 + props.y1) / 2;
-  const lx = props.x + dir * 46;
+  // The title clears the widest tick label. Turned −90° (left) or +90° (right), the title's ascent
+  // points away from the plot, so what faces the tick labels is its descent.
+  const widest = Math.max(0, ...props.ticks.map((t) => (t.label === null ? 0 : textWidth(t.label))));
+  const lx = props.x + dir * (Y_TICK_GAP + widest + Y_TITLE_GAP + DESCENT_EM * FONT_PX);
   return (
     <g class={`vc-axis vc-axis-y${right ? ' vc-axis-y2' : ''}`} data-axis={right ? 'y2' : 'y'}>
       <line class="vc-axis-line" x1={props.x} x2={props.x} y1={props.y0} y2={props.y1} stroke="#5d6472" />
@@ -205,7 +338,11 @@ export function YAxis(props: {
             stroke="#5d6472"
           />
           {t.label !== null ? (
-            <text x={props.x + dir * 8} y={r(t.at) + 4} text-anchor={right ? 'start' : 'end'}>
+            <text
+              x={props.x + dir * Y_TICK_GAP}
+              y={r(r(t.at) + CENTRE_BASELINE)}
+              text-anchor={right ? 'start' : 'end'}
+            >
               {t.label}
             </text>
           ) : null}
@@ -219,7 +356,7 @@ export function YAxis(props: {
           text-anchor="middle"
           transform={`rotate(${right ? 90 : -90} ${r(lx)} ${r(mid)})`}
         >
-          {props.label}
+          {fitText(props.label, Math.abs(props.y1 - props.y0))}
         </text>
       ) : null}
     </g>

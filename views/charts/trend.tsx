@@ -12,18 +12,26 @@
 import { scaleLinear, scaleLog, scaleUtc } from 'd3-scale';
 import { area, line } from 'd3-shape';
 import {
+  ASCENT_EM,
   ChartSvg,
+  DESCENT_EM,
+  FONT_PX,
+  fmtConc,
   fmtNum,
   fmtPow10,
   fmtUtcTick,
   innerBox,
+  LINE_BOX_PX,
   linearTicks,
   logTicks,
   NoData,
   r,
   safeId,
+  textWidth,
+  X_AXIS_DEPTH,
   XAxis,
   YAxis,
+  yAxisDepth,
 } from './svg.tsx';
 
 export interface TrendPoint {
@@ -135,17 +143,12 @@ export function trend(input: TrendInput) {
   const id = safeId(input.id ?? `tr-${input.title}`);
   const width = input.width ?? 640;
   const height = input.height ?? 280;
-  const frame = { width, height, margin: { top: 14, right: 96, bottom: 46, left: 70 } };
-  const box = innerBox(frame);
   const { segments, gaps } = segmentTrend(input.points, input.gapMs);
   const values = segments.flat().map((p) => p.value as number);
   const times = input.points.map((p) => p.tMs).filter(Number.isFinite);
   const t0 = input.fromMs ?? (times.length ? Math.min(...times) : Date.UTC(2000, 0, 1));
   const t1 = input.toMs ?? (times.length ? Math.max(...times) : t0 + 86_400_000);
   const span = Math.max(t1 - t0, 60_000);
-  const x = scaleUtc()
-    .domain([new Date(t0), new Date(t0 + span)])
-    .range([box.x0, box.x1]);
   const levels = [
     input.alert != null
       ? { kind: 'alert', value: input.alert, label: 'alert', dash: '6 4', colour: '#a8660b', w: 1.4 }
@@ -164,6 +167,9 @@ export function trend(input: TrendInput) {
         }
       : null,
   ].filter((l): l is NonNullable<typeof l> => l !== null && Number.isFinite(l.value) && l.value > 0);
+  // Levels at the same value share one label ("action = ISO 5 limit 3520"), so equal levels never
+  // print on top of each other; the label takes the colour of the most severe of them.
+  const levelLabels = levelLabelGroups(levels);
   const vmax = Math.max(0, ...values, ...levels.map((l) => l.value));
   const positives = values.filter((v) => v > 0);
   const vminPos = positives.length ? Math.min(...positives) : vmax / 100;
@@ -172,23 +178,48 @@ export function trend(input: TrendInput) {
     (input.yScale !== 'linear' &&
       vmax > 0 &&
       (vmax / Math.max(Math.max(0, ...values), 1e-300) > 30 || vmax / vminPos > 300));
-  let yTicks: ReturnType<typeof linearTicks>;
-  let yOf: (v: number) => number;
+  // The y scale's domain and tick values do not depend on pixels: take them first, so the margins
+  // can make room for the widest tick label and the level labels.
+  const isLog = wantLog && vmax > 0;
   let floorV = 0;
-  if (wantLog && vmax > 0) {
+  let yDomain: [number, number];
+  if (isLog) {
     const top = 10 ** Math.ceil(Math.log10(vmax * 1.05));
     floorV = Math.min(10 ** Math.floor(Math.log10(Math.max(vminPos, top * 1e-6))), top / 10);
-    const y = scaleLog().domain([floorV, top]).range([box.y1, box.y0]).clamp(true);
-    yOf = (v) => y(Math.max(v, floorV));
-    yTicks = logTicks([floorV, top], y, fmtPow10);
+    yDomain = [floorV, top];
   } else {
-    const y = scaleLinear()
+    const d = scaleLinear()
       .domain([0, vmax > 0 ? vmax * 1.08 : 1])
       .nice(5)
-      .range([box.y1, box.y0]);
-    yOf = (v) => y(v);
-    yTicks = linearTicks(y.ticks(5), y, (v) => fmtNum(v));
+      .domain();
+    yDomain = [d[0]!, d[1]!];
   }
+  const yScaleFor = (range: [number, number]) => {
+    if (isLog) {
+      const y = scaleLog().domain(yDomain).range(range).clamp(true);
+      return { yOf: (v: number) => y(Math.max(v, floorV)), ticks: logTicks(yDomain, y, fmtPow10) };
+    }
+    const y = scaleLinear().domain(yDomain).range(range);
+    return { yOf: (v: number) => y(v), ticks: linearTicks(y.ticks(5), y, (v) => fmtNum(v)) };
+  };
+  const yLabel = `${input.channelLabel} (${input.unit})`;
+  const frame = {
+    width,
+    height,
+    margin: {
+      top: 14,
+      right: Math.ceil(
+        Math.max(24, LEVEL_LABEL_GAP + Math.max(0, ...levelLabels.map((g) => textWidth(g.text))) + 2),
+      ),
+      bottom: X_AXIS_DEPTH + 6,
+      left: Math.max(40, yAxisDepth(yScaleFor([1, 0]).ticks, yLabel)),
+    },
+  };
+  const box = innerBox(frame);
+  const x = scaleUtc()
+    .domain([new Date(t0), new Date(t0 + span)])
+    .range([box.x0, box.x1]);
+  const { yOf, ticks: yTicks } = yScaleFor([box.y1, box.y0]);
   const path = line<TrendPoint>()
     .x((p) => x(new Date(p.tMs)))
     .y((p) => yOf(p.value as number));
@@ -219,19 +250,16 @@ export function trend(input: TrendInput) {
         return c === 'action' || (c === 'alert' && nAlert <= 400);
       })
     : pts;
-  // Level labels at the right end, nudged apart when two levels lie within a line of text.
-  const labelY = new Map<string, number>();
-  [...levels]
-    .sort((a, b) => yOf(b.value) - yOf(a.value))
-    .forEach((l, i, arr) => {
-      let yy = yOf(l.value) + 4;
-      const prev = i > 0 ? labelY.get(arr[i - 1]!.kind) : undefined;
-      if (prev !== undefined && prev - yy < 11) yy = prev - 11;
-      labelY.set(l.kind, yy);
-    });
+  // Level labels at the right end, centred on their line where they can be and spread apart
+  // where two lie within a line of text, kept between the chart's top and the x axis's labels.
+  const labelBaselines = spreadBaselines(
+    levelLabels.map((g) => yOf(g.value) + CENTRE_BASELINE_PX),
+    ASCENT_EM * FONT_PX + 1,
+    box.y1 + CENTRE_BASELINE_PX,
+  );
   const xticks = x.ticks(6).map((d) => ({ at: x(d), label: fmtUtcTick(d.getTime(), span) }));
   const desc =
-    `${input.channelLabel} concentration in ${input.unit}, ${pts.length} samples, ` +
+    `${input.channelLabel} concentration in ${input.unit}, ${pts.length} sample${pts.length === 1 ? '' : 's'}, ` +
     `${nAction} above the action level, ${nAlert} between alert and action, ${gaps.length} gap${gaps.length === 1 ? '' : 's'} in the data` +
     (wantLog ? `; log scale, values below ${fmtNum(floorV)} drawn on the floor` : '') +
     (dense ? `; ${pts.length} samples drawn as the mean with the min–max band per time slice` : '') +
@@ -260,7 +288,7 @@ export function trend(input: TrendInput) {
                 height={box.y1 - box.y0}
                 fill="#f0eee8"
               />
-              {b - a > 34 ? (
+              {b - a > textWidth('no data') + 6 ? (
                 <text x={r((a + b) / 2)} y={box.y0 + 12} text-anchor="middle" font-style="italic">
                   no data
                 </text>
@@ -269,32 +297,37 @@ export function trend(input: TrendInput) {
           );
         })}
       </g>
-      <YAxis
-        ticks={yTicks}
-        x={box.x0}
-        y0={box.y0}
-        y1={box.y1}
-        label={`${input.channelLabel} (${input.unit})`}
-        grid={box.x1}
-      />
+      <YAxis ticks={yTicks} x={box.x0} y0={box.y0} y1={box.y1} label={yLabel} grid={box.x1} />
       <XAxis ticks={xticks} y={box.y1} x0={box.x0} x1={box.x1} label="sample start (UTC)" />
       <g class="vc-levels">
-        {levels.map((l) => (
-          <g class={`vc-level vc-level-${l.kind}`} data-level={l.kind} data-value={l.value}>
-            <line
-              x1={box.x0}
-              x2={box.x1}
-              y1={r(yOf(l.value))}
-              y2={r(yOf(l.value))}
-              stroke={l.colour}
-              stroke-width={l.w}
-              stroke-dasharray={l.dash ?? undefined}
-            />
-            <text x={box.x1 + 5} y={r(labelY.get(l.kind) ?? yOf(l.value) + 4)} fill={l.colour}>
-              {`${l.label} ${fmtNum(l.value)}`}
-            </text>
-          </g>
-        ))}
+        {levels.map((l) => {
+          const gi = levelLabels.findIndex((g) => g.kinds[0] === l.kind);
+          const g = levelLabels[gi];
+          return (
+            <g class={`vc-level vc-level-${l.kind}`} data-level={l.kind} data-value={l.value}>
+              <line
+                x1={box.x0}
+                x2={box.x1}
+                y1={r(yOf(l.value))}
+                y2={r(yOf(l.value))}
+                stroke={l.colour}
+                stroke-width={l.w}
+                stroke-dasharray={l.dash ?? undefined}
+              />
+              {g ? (
+                <text
+                  class="vc-level-label"
+                  data-levels={g.kinds.join(' ')}
+                  x={box.x1 + LEVEL_LABEL_GAP}
+                  y={r(labelBaselines[gi]!)}
+                  fill={g.colour}
+                >
+                  {g.text}
+                </text>
+              ) : null}
+            </g>
+          );
+        })}
       </g>
       {pts.length === 0 ? (
         <NoData x={(box.x0 + box.x1) / 2} y={(box.y0 + box.y1) / 2} text="no samples in this window" />
@@ -362,4 +395,61 @@ export function trend(input: TrendInput) {
       </g>
     </ChartSvg>
   );
+}
+
+/** Gap between the plot's right edge and a level label, px. */
+const LEVEL_LABEL_GAP = 5;
+/** Baseline offset that centres a line of chart text on a y position, px. */
+const CENTRE_BASELINE_PX = ((ASCENT_EM - DESCENT_EM) / 2) * FONT_PX;
+
+interface LevelLike {
+  kind: string;
+  value: number;
+  label: string;
+  colour: string;
+}
+
+/**
+ * One label per distinct level value, top level first: the names of the levels that share the
+ * value joined by " = " and the value once ("action = ISO 5 limit 3520"). `kinds[0]` is the level
+ * that draws the label; the colour is that of the last (most severe) level of the group.
+ */
+export function levelLabelGroups(
+  levels: LevelLike[],
+): { kinds: string[]; value: number; text: string; colour: string }[] {
+  const groups: { kinds: string[]; names: string[]; value: number; colour: string }[] = [];
+  for (const l of levels) {
+    const g = groups.find((x) => Math.abs(x.value - l.value) <= 1e-9 * Math.max(x.value, l.value));
+    if (g) {
+      g.kinds.push(l.kind);
+      g.names.push(l.label);
+      g.colour = l.colour;
+    } else groups.push({ kinds: [l.kind], names: [l.label], value: l.value, colour: l.colour });
+  }
+  return groups
+    .sort((a, b) => b.value - a.value)
+    .map((g) => ({
+      kinds: g.kinds,
+      value: g.value,
+      text: `${g.names.join(' = ')} ${fmtConc(g.value)}`,
+      colour: g.colour,
+    }));
+}
+
+/**
+ * Baselines for a column of one-line labels: each as near its wish as it can be, no two closer
+ * than a line box and a pixel, none above `min` or below `max` (when they fit between them).
+ * Wishes in any order; the result follows the input order.
+ */
+export function spreadBaselines(wish: number[], min: number, max: number): number[] {
+  const step = LINE_BOX_PX + 1;
+  const order = wish.map((w, i) => ({ w, i })).sort((a, b) => a.w - b.w);
+  const y = order.map((o) => o.w);
+  for (let k = 0; k < y.length; k++) y[k] = Math.max(y[k]!, min, k > 0 ? y[k - 1]! + step : min);
+  for (let k = y.length - 1; k >= 0; k--) y[k] = Math.min(y[k]!, k < y.length - 1 ? y[k + 1]! - step : max);
+  const out = new Array<number>(wish.length);
+  order.forEach((o, k) => {
+    out[o.i] = y[k]!;
+  });
+  return out;
 }

@@ -74,6 +74,8 @@ export function waferMap(input: WaferMapInput) {
     .sort((a, b) => a.c - b.c);
   for (const m of marks) counts[m.c]!++;
   const withTitles = marks.length <= 600;
+  // The legend lists the size classes that have marks on this map (none: a line saying so).
+  const shown = counts.map((n, i) => (n > 0 ? i : -1)).filter((i) => i >= 0);
   const classLabel = (i: number) =>
     i === 0
       ? `< ${fmtDiameter(edges[0]!)}`
@@ -146,8 +148,8 @@ export function waferMap(input: WaferMapInput) {
         y={top + 4}
         heading="LSE size (log classes)"
         rowHeight={19}
-        entries={counts.map((n, i) => ({
-          label: `${classLabel(i)}  (${n})`,
+        entries={shown.map((i) => ({
+          label: `${classLabel(i)}  (${counts[i]})`,
           swatch: (
             <circle
               cx={8}
@@ -163,7 +165,7 @@ export function waferMap(input: WaferMapInput) {
       />
       <g
         class="vc-wafer-legend"
-        transform={`translate(${r(lx)} ${r(top + 4 + 14 + counts.length * 19 + 14)})`}
+        transform={`translate(${r(lx)} ${r(top + 4 + 14 + shown.length * 19 + 14)})`}
       >
         <text x={0} y={0}>{`⌀ ${input.diameterMm} mm · notch enlarged`}</text>
         {input.edgeExclusionMm ? (

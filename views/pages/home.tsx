@@ -1,4 +1,6 @@
 /** The overview: what this installation holds, the lots in it, the latest imports, where to go next. */
+import { groupDigits } from '../partials/format.ts';
+
 export interface HomeCounts {
   lots: number;
   pairs: number;
@@ -115,9 +117,9 @@ export function HomePage(props: {
                   <tr>
                     <td class="vc-nowrap">{k.kind}</td>
                     <td class="num">{k.files}</td>
-                    <td class="num">{k.rows.toLocaleString('en-US')}</td>
-                    <td class="num">{k.duplicates.toLocaleString('en-US')}</td>
-                    <td class="num">{k.flags.toLocaleString('en-US')}</td>
+                    <td class="num">{groupDigits(k.rows)}</td>
+                    <td class="num">{groupDigits(k.duplicates)}</td>
+                    <td class="num">{groupDigits(k.flags)}</td>
                     <td class="vc-nowrap">{k.lastAt.replace('T', ' ').slice(0, 16)}</td>
                   </tr>
                 ))}
@@ -138,7 +140,7 @@ export function HomePage(props: {
 function Tile(props: { label: string; value: number; href: string }) {
   return (
     <a class="vc-tile" href={props.href}>
-      <span class="vc-tile-value">{props.value.toLocaleString('en-US')}</span>
+      <span class="vc-tile-value">{groupDigits(props.value)}</span>
       <span class="vc-tile-label">{props.label}</span>
     </a>
   );

@@ -10,7 +10,7 @@ import {
   type ImportFormProps,
   importTargetAttrs,
 } from '../partials/import-form.tsx';
-import { type HistoryRowView, ImportHistory } from '../partials/import-history.tsx';
+import { type HistoryPaging, type HistoryRowView, ImportHistory } from '../partials/import-history.tsx';
 import { ImportJob, type JobView } from '../partials/import-job.tsx';
 
 export interface ImportsPageProps {
@@ -22,6 +22,9 @@ export interface ImportsPageProps {
   notice?: Child;
   history: HistoryRowView[];
   historyTotal: number;
+  historyPaging?: HistoryPaging;
+  /** Why the history page asked for cannot be shown (the page then answers 400). */
+  historyError?: string | null;
 }
 
 export function ImportsPage(props: ImportsPageProps) {
@@ -40,7 +43,12 @@ export function ImportsPage(props: ImportsPageProps) {
         {props.notice ?? null}
         {props.job ? <ImportJob job={props.job} page={props.page} /> : null}
       </section>
-      <ImportHistory rows={props.history} total={props.historyTotal} />
+      <ImportHistory
+        rows={props.history}
+        total={props.historyTotal}
+        paging={props.historyPaging}
+        error={props.historyError ?? null}
+      />
     </section>
   );
 }

@@ -7,12 +7,14 @@ import { CallBadge, CallCounts, type CallName } from '../partials/call.tsx';
 import {
   fmtAreaM2,
   fmtConfidence,
+  fmtCountBound,
   fmtDies,
   fmtEstimate,
   fmtNum,
   fmtPct,
   fmtShare,
   fmtUtc,
+  groupDigits,
 } from '../partials/format.ts';
 import { type ParameterSetRefLike, ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, type ParetoLike, ParetoPanel } from '../partials/pareto-panel.tsx';
@@ -82,7 +84,9 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
         <Figure
           label="die loss (NB), lot"
           value={
-            lot.totals.dieKillsNB === null ? '—' : `${fmtDies(lot.totals.dieKillsNB)} / ${lot.totals.dies}`
+            lot.totals.dieKillsNB === null
+              ? '—'
+              : `${fmtDies(lot.totals.dieKillsNB)} / ${groupDigits(lot.totals.dies)}`
           }
         />
         <Figure
@@ -151,7 +155,10 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
   );
 }
 
-/** A figure over its interval, in one table cell. */
+/**
+ * An expected count over its interval, in one table cell: the expectation as a figure, the
+ * interval's bounds as whole counts (the quantity — voids, killed dies — is a count).
+ */
 function EstimateCell(props: { e: EstimateLike | null; f: (v: number) => string }) {
   if (!props.e) return <td class="num">—</td>;
   return (
@@ -159,7 +166,7 @@ function EstimateCell(props: { e: EstimateLike | null; f: (v: number) => string 
       {props.f(props.e.value)}
       <br />
       <span class="vc-small">
-        {props.f(props.e.low)}–{props.f(props.e.high)}
+        {fmtCountBound(props.e.low, 'low')}–{fmtCountBound(props.e.high, 'high')}
       </span>
     </td>
   );

@@ -1,14 +1,17 @@
 /**
- * Lots: the queue of lots waiting to bond with their calls, and the lots already bonded.
+ * Lots: the queue of lots waiting to bond with their calls, the lots already bonded, and the lots
+ * with no bond pairs (monitor wafers, or pairs not imported yet), which are not in the queue.
  * One row per lot; the worst pair's call is the lot's call.
  */
 import { CallBadge, CallCounts, type CallName } from '../partials/call.tsx';
-import { fmtDies, fmtNum, fmtShare, fmtUtc } from '../partials/format.ts';
+import { fmtDies, fmtNum, fmtShare, fmtUtc, groupDigits } from '../partials/format.ts';
 
 export interface LotRow {
   lotId: string;
   productId: string;
   pairs: number;
+  /** Wafers of the lot known from its scans and ledger. */
+  wafers: number;
   /** null when the lot could not be assessed (see `problem`). */
   call: CallName | null;
   counts: { bond: number; reclean: number; hold: number } | null;
@@ -25,7 +28,7 @@ export interface LotRow {
   problem: string | null;
 }
 
-export function LotsPage(props: { waiting: LotRow[]; bonded: LotRow[]; asOfMs: number }) {
+export function LotsPage(props: { waiting: LotRow[]; bonded: LotRow[]; unpaired: LotRow[]; asOfMs: number }) {
   return (
     <section class="vc-lots">
       <h1>Lots</h1>
@@ -38,6 +41,35 @@ export function LotsPage(props: { waiting: LotRow[]; bonded: LotRow[]; asOfMs: n
       <LotTable rows={props.waiting} bonded={false} />
       <h2 id="bonded">Already bonded ({props.bonded.length})</h2>
       <LotTable rows={props.bonded} bonded={true} />
+      {props.unpaired.length > 0 ? (
+        <>
+          <h2 id="unpaired">Lots without bond pairs ({props.unpaired.length})</h2>
+          <p class="vc-small">
+            No pairs file names these lots, so they are not waiting to bond: monitor or test wafers, or lots
+            whose pairs are not imported yet. Their scans and ledger still count where they apply.
+          </p>
+          <table class="vc-table vc-table-compact" data-table="unpaired">
+            <thead>
+              <tr>
+                <th>Lot</th>
+                <th class="num">Wafers</th>
+                <th>Product</th>
+              </tr>
+            </thead>
+            <tbody>
+              {props.unpaired.map((r) => (
+                <tr data-lot={r.lotId}>
+                  <td>
+                    <a href={`/lots/${encodeURIComponent(r.lotId)}`}>{r.lotId}</a>
+                  </td>
+                  <td class="num">{r.wafers}</td>
+                  <td>{r.productId}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </>
+      ) : null}
     </section>
   );
 }
@@ -76,7 +108,7 @@ function LotTable(props: { rows: LotRow[]; bonded: boolean }) {
             <td class="num">
               {r.dieKillsNB === null
                 ? '—'
-                : `${fmtDies(r.dieKillsNB)} of ${r.dies}${r.dies > 0 ? ` (${fmtShare(r.dieKillsNB / r.dies)})` : ''}`}
+                : `${fmtDies(r.dieKillsNB)} of ${groupDigits(r.dies)}${r.dies > 0 ? ` (${fmtShare(r.dieKillsNB / r.dies)})` : ''}`}
             </td>
             <td>{r.dominant ? `${r.dominant.label} (${fmtShare(r.dominant.share)})` : '—'}</td>
             <td>

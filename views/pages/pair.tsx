@@ -8,7 +8,7 @@
  * computes nothing of the model itself.
  */
 import type { DieGrid, PairAssessment, PairFigures } from '../../src/engine/types.ts';
-import { stackedSpectrum } from '../charts/stacked-spectrum.tsx';
+import { type SpectrumSeries, stackedSpectrum } from '../charts/stacked-spectrum.tsx';
 import { voidMap } from '../charts/void-map.tsx';
 import type { DieRect } from '../charts/wafer-frame.tsx';
 import { waferMap } from '../charts/wafer-map.tsx';
@@ -16,6 +16,8 @@ import { CallBadge } from '../partials/call.tsx';
 import {
   fmtAreaM2,
   fmtConfidence,
+  fmtCountBound,
+  fmtCountEstimate,
   fmtDiameter,
   fmtDies,
   fmtDurationS,
@@ -98,7 +100,9 @@ export function PairPage(props: PairPageProps) {
             {a.specChecks.map((s) => (
               <tr>
                 <td>{SPEC_LABEL[s.metric]}</td>
-                <td class="num">{fmtSpecValue(s.metric, s.bound)}</td>
+                <td class="num">
+                  {s.metric === 'voids' ? fmtCountBound(s.bound, 'high') : fmtSpecValue(s.metric, s.bound)}
+                </td>
                 <td class="num">{fmtSpecValue(s.metric, s.limit)}</td>
                 <td>
                   <span class={s.pass ? 'vc-pass' : 'vc-fail'}>{s.pass ? '✓ pass' : '✗ fail'}</span>
@@ -220,7 +224,7 @@ export function FiguresTiles(props: { f: PairFigures }) {
       <Tile
         label="expected reportable voids"
         value={fmtNum(f.voids.value)}
-        sub={`${fmtEstimate(f.voids)} ${fmtConfidence(f.voids)}`}
+        sub={`${fmtCountEstimate(f.voids)} ${fmtConfidence(f.voids)}`}
       />
       <Tile
         label="unbonded area"
@@ -230,12 +234,12 @@ export function FiguresTiles(props: { f: PairFigures }) {
       <Tile
         label="die loss, Poisson"
         value={f.dieKillsPoisson ? `${fmtDies(f.dieKillsPoisson.value)} / ${f.dieCount}` : '—'}
-        sub={f.dieKillsPoisson ? fmtEstimate(f.dieKillsPoisson, fmtDies) : 'no die layout'}
+        sub={f.dieKillsPoisson ? fmtCountEstimate(f.dieKillsPoisson, fmtDies) : 'no die layout'}
       />
       <Tile
         label="die loss, negative binomial"
         value={f.dieKillsNB ? `${fmtDies(f.dieKillsNB.value)} / ${f.dieCount}` : '—'}
-        sub={f.dieKillsNB ? fmtEstimate(f.dieKillsNB, fmtDies) : 'no die layout'}
+        sub={f.dieKillsNB ? fmtCountEstimate(f.dieKillsNB, fmtDies) : 'no die layout'}
       />
       <Tile
         label="die yield"
@@ -347,7 +351,11 @@ function VoidMapChart(props: {
   });
 }
 
-/** The spectrum at the interface stacked by source; the largest sources alone, the rest pooled. */
+/**
+ * The spectrum at the interface stacked by source; the largest sources alone, the rest pooled.
+ * Sources with no particles at the interface are left out (no layer, no legend entry, not counted
+ * among the pooled ones).
+ */
 export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cumulative' }) {
   const a = props.a;
   const base = `/pairs/${encodeURIComponent(a.pairId)}`;
@@ -355,12 +363,26 @@ export function SpectrumPanel(props: { a: PairAssessment; mode: 'per-bin' | 'cum
   if (!sp) return <p class="vc-small">No spectrum in this assessment.</p>;
   const totals = sp.series
     .map((s) => ({ s, t: s.counts.reduce((x, y) => x + y, 0) }))
+    .filter((x) => x.t > 0)
     .sort((x, y) => y.t - x.t);
-  const head = totals
-    .slice(0, MAX_SPECTRUM_SERIES - 1)
-    .map((x) => ({ source: x.s.label, counts: x.s.counts }));
+  // Each source's wafer (top or bottom) goes to the chart, which says it by outline and at the
+  // front of the legend entry; the label's own "(top wafer …)" ending is then left off.
+  const waferOf = new Map(a.contributions.map((c) => [c.key, { wafer: c.wafer, waferId: c.waferId }]));
+  const entry = (s: (typeof sp.series)[number]): SpectrumSeries => {
+    const w = waferOf.get(s.sourceKey);
+    // A source of the pair as a whole (voids no scanned particle explains) has no wafer side.
+    return w && w.wafer !== 'pair'
+      ? {
+          source: s.label.replace(/\s*\((top|bottom) wafer [^()]*\)$/, ''),
+          counts: s.counts,
+          wafer: w.wafer,
+          waferId: w.waferId,
+        }
+      : { source: s.label, counts: s.counts };
+  };
+  const head = totals.slice(0, MAX_SPECTRUM_SERIES - 1).map((x) => entry(x.s));
   const tail = totals.slice(MAX_SPECTRUM_SERIES - 1);
-  if (tail.length === 1) head.push({ source: tail[0]!.s.label, counts: tail[0]!.s.counts });
+  if (tail.length === 1) head.push(entry(tail[0]!.s));
   else if (tail.length > 1) {
     const pooled = new Array<number>(sp.centresM.length).fill(0);
     for (const x of tail)
@@ -428,7 +450,7 @@ function RecleanSection(props: { a: PairAssessment }) {
           </tr>
         </thead>
         <tbody>
-          {row('expected reportable voids', fmtEstimate(before.voids), fmtEstimate(after.voids))}
+          {row('expected reportable voids', fmtCountEstimate(before.voids), fmtCountEstimate(after.voids))}
           {row(
             'unbonded area fraction',
             fmtEstimate(before.unbondedFraction, fmtPct),
@@ -436,13 +458,13 @@ function RecleanSection(props: { a: PairAssessment }) {
           )}
           {row(
             'die loss, Poisson',
-            fmtEstimate(before.dieKillsPoisson, fmtDies),
-            fmtEstimate(after.dieKillsPoisson, fmtDies),
+            fmtCountEstimate(before.dieKillsPoisson, fmtDies),
+            fmtCountEstimate(after.dieKillsPoisson, fmtDies),
           )}
           {row(
             'die loss, negative binomial',
-            fmtEstimate(before.dieKillsNB, fmtDies),
-            fmtEstimate(after.dieKillsNB, fmtDies),
+            fmtCountEstimate(before.dieKillsNB, fmtDies),
+            fmtCountEstimate(after.dieKillsNB, fmtDies),
           )}
           {row('particles at the interface', fmtNum(before.particles), fmtNum(after.particles))}
         </tbody>

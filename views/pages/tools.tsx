@@ -34,6 +34,35 @@ export interface CleanView {
   at: { diameterM: number; efficiency: number }[];
 }
 
+/**
+ * The rows grouped by tool, each tool once: its own row (the tool-level entry, or one made from
+ * its first chamber's name when the file states chambers only) and its chambers by id. Tools by
+ * their largest adders (tool or chamber) first, then by id.
+ */
+export function groupTools(rows: ToolRow[]): { toolId: string; tool: ToolRow; chambers: ToolRow[] }[] {
+  const by = new Map<string, { own: ToolRow | null; chambers: ToolRow[] }>();
+  for (const t of rows) {
+    const g = by.get(t.toolId) ?? { own: null, chambers: [] };
+    if (t.chamber === null) g.own = t;
+    else g.chambers.push(t);
+    by.set(t.toolId, g);
+  }
+  const most = (g: { own: ToolRow | null; chambers: ToolRow[] }) =>
+    Math.max(-1, ...[g.own, ...g.chambers].map((t) => t?.adders?.countAbove ?? -1));
+  return [...by.entries()]
+    .sort((a, b) => most(b[1]) - most(a[1]) || a[0].localeCompare(b[0]))
+    .map(([toolId, g]) => {
+      const chambers = g.chambers.sort((a, b) => (a.chamber ?? '').localeCompare(b.chamber ?? ''));
+      const tool = g.own ?? {
+        ...chambers[0]!,
+        chamber: null,
+        adders: null,
+        passes: chambers.reduce((n, c) => n + c.passes, 0),
+      };
+      return { toolId, tool, chambers };
+    });
+}
+
 export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[]; learned?: LearnedView | null }) {
   return (
     <section class="vc-tools">
@@ -60,29 +89,39 @@ export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[]; learne
               <th class="num">Passes in ledger</th>
             </tr>
           </thead>
-          <tbody>
-            {[...props.tools]
-              .sort((a, b) => (b.adders?.countAbove ?? -1) - (a.adders?.countAbove ?? -1))
-              .map((t) => (
-                <tr data-tool={t.toolId}>
+          {groupTools(props.tools).map((g) => (
+            <tbody class="vc-tool-group" data-tool-group={g.toolId}>
+              {[g.tool, ...g.chambers].map((t) => (
+                <tr data-tool={t.toolId} data-chamber={t.chamber ?? undefined}>
                   <td>
-                    {t.name} <span class="vc-small">{t.toolId}</span>
+                    {t === g.tool ? (
+                      <>
+                        {t.name} <span class="vc-small">{t.toolId}</span>
+                      </>
+                    ) : null}
                   </td>
-                  <td>{t.chamber ?? '—'}</td>
-                  <td>{t.kind}</td>
+                  <td>{t.chamber ?? (g.chambers.length > 0 ? 'whole tool' : '—')}</td>
+                  <td>{t === g.tool ? t.kind : ''}</td>
                   <td class="num">
                     {t.adders
                       ? `${fmtNum(t.adders.countAbove)} ≥ ${fmtDiameter(t.adders.atDiameterM)}`
-                      : 'none stated'}
+                      : t === g.tool && g.chambers.some((c) => c.adders)
+                        ? 'by chamber'
+                        : 'none stated'}
                   </td>
                   <td class="num">{t.adders?.slope != null ? fmtNum(t.adders.slope) : '—'}</td>
                   <td class="num">{t.adders ? `×/÷ ${fmtNum(t.uncertaintyFactor)}` : '—'}</td>
                   <td class="num">{t.passes}</td>
                 </tr>
               ))}
-          </tbody>
+            </tbody>
+          ))}
         </table>
       )}
+      <p class="vc-small">
+        One group per tool: its own row, then one row per chamber. A tool's passes count every ledger step on
+        it, with or without a chamber; a chamber's, the steps that name it.
+      </p>
       <h2>Cleans</h2>
       {props.cleans.length === 0 ? (
         <p class="vc-small">No cleans defined.</p>

@@ -2,9 +2,10 @@
  * Display formats for the pages: numbers with their intervals, areas, dies, times. SI values
  * come in; the units a fab engineer reads (mm², %, h, UTC) go out. Display only.
  */
-import { fmtNum, fmtPct } from '../charts/svg.tsx';
+import { countBound } from '../../src/engine/format.ts';
+import { fmtNum, fmtPct, groupDigits } from '../charts/svg.tsx';
 
-export { fmtDiameter, fmtNum, fmtPct } from '../charts/svg.tsx';
+export { fmtConc, fmtDiameter, fmtNum, fmtPct, groupDigits } from '../charts/svg.tsx';
 
 /** A figure with its interval: "4.1 (2.3–6.8)". */
 export interface EstimateLike {
@@ -22,6 +23,28 @@ export function fmtEstimate(
   return `${f(e.value)} (${f(e.low)}–${f(e.high)})`;
 }
 
+/**
+ * An expected count with its interval, the bounds as whole counts ("7.53 (2–22)"): where the
+ * quantity is a count (reportable voids, killed dies) an interval on it holds whole numbers only.
+ * The rounding of the bounds is src/engine/format.ts countBound's (nearest, ties outward).
+ */
+export function fmtCountEstimate(
+  e: EstimateLike | null | undefined,
+  f: (v: number) => string = (v) => fmtNum(v),
+): string {
+  if (!e) return '—';
+  return `${f(e.value)} (${fmtWhole(countBound(e.low, 'low'))}–${fmtWhole(countBound(e.high, 'high'))})`;
+}
+
+/** A bound of a count interval alone, as a whole count. */
+export function fmtCountBound(v: number, side: 'low' | 'high'): string {
+  return fmtWhole(countBound(v, side));
+}
+
+function fmtWhole(n: number): string {
+  return Number.isFinite(n) ? groupDigits(n) : '—';
+}
+
 /** Confidence as words: "95 % interval". */
 export function fmtConfidence(e: EstimateLike | null | undefined): string {
   return e ? `${Math.round(e.confidence * 100)} % interval` : '';
@@ -37,7 +60,7 @@ export function fmtAreaM2(a: number): string {
 /** A count of dies with one decimal below 10. */
 export function fmtDies(n: number): string {
   if (!Number.isFinite(n)) return '—';
-  return n < 10 ? n.toFixed(n < 1 ? 2 : 1) : String(Math.round(n));
+  return n < 10 ? n.toFixed(n < 1 ? 2 : 1) : groupDigits(Math.round(n));
 }
 
 /** UTC time "2025-03-04 13:20 UTC". */

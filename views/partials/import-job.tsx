@@ -3,6 +3,7 @@
  * replaces it with the next state; without script a refresh every 2 s does); once finished, the
  * validation report of every file. The same partial serves the full page and the htmx swap.
  */
+import { groupDigits } from './format.ts';
 import { ImportReport, jobIssueLinks, type ReportView } from './import-report.tsx';
 
 export interface JobFileView {
@@ -93,7 +94,7 @@ export function ImportJob(props: { job: JobView; page?: { file: number; page: nu
                   />{' '}
                   {bytes(f.state === 'done' ? f.bytesTotal : f.bytesRead)} / {bytes(f.bytesTotal)}
                 </td>
-                <td class="num">{f.rows.toLocaleString('en-US')}</td>
+                <td class="num">{groupDigits(f.rows)}</td>
               </tr>
             ))}
           </tbody>

@@ -5,6 +5,7 @@
  * Every text here may come from a file (names, values, the file name): it is rendered as text,
  * which hono/jsx escapes; nothing is inserted as raw HTML.
  */
+import { groupDigits } from './format.ts';
 
 /** The shape of an import report as this view needs it (the import contract's ImportReport). */
 export interface ReportView {
@@ -42,7 +43,7 @@ export function StatusBadge(props: { status: ReportView['status'] }) {
   return <span class={`vc-status vc-status-${props.status}`}>{STATUS_TEXT[props.status]}</span>;
 }
 
-const n = (v: number) => v.toLocaleString('en-US');
+const n = (v: number) => groupDigits(v);
 
 /** Where page `p` of a report's rejected rows is: a full page (href) and the table alone (hx-get). */
 export type IssuePageLink = (page: number) => { href: string; hxGet: string };

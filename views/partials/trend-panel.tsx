@@ -4,7 +4,7 @@
  * query. One partial serves the full page and the swap.
  */
 import { type TrendPoint, trend } from '../charts/trend.tsx';
-import { fmtDiameter, fmtNum, fmtUtc } from './format.ts';
+import { fmtConc, fmtDiameter, fmtUtc } from './format.ts';
 
 export const TREND_WINDOWS = [
   { key: '24h', label: 'last 24 h', ms: 86_400_000 },
@@ -69,7 +69,7 @@ export function TrendPanel(props: TrendPanelProps) {
           <select name="channel">
             {props.channels.map((c) => (
               <option
-                value={String(c * 1e6)}
+                value={String(Number((c * 1e6).toPrecision(6)))}
                 selected={props.channelM !== null && sameSize(c, props.channelM)}
               >
                 ≥ {fmtDiameter(c)}
@@ -110,7 +110,7 @@ export function TrendPanel(props: TrendPanelProps) {
           <p class="vc-small">
             {props.points.length} samples from {fmtUtc(props.fromMs)} to {fmtUtc(props.toMs)}
             {levelsApply
-              ? `; alert ${fmtNum(props.alertPerM3 ?? Number.NaN)}, action ${fmtNum(props.actionPerM3 ?? Number.NaN)} per m³; ${above} above action`
+              ? `; alert ${fmtConc(props.alertPerM3 ?? Number.NaN)}, action ${fmtConc(props.actionPerM3 ?? Number.NaN)} per m³; ${above} above action`
               : props.levelsAtM !== null
                 ? `; this location's alert and action levels are set at ≥ ${fmtDiameter(props.levelsAtM)}, pick that channel to see them`
                 : '; no alert or action levels set for this location'}

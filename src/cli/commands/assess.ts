@@ -4,7 +4,7 @@
 
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
+import { fmtCount, fmtCountBound, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { assessPairFromDb } from '../../engine/loader.ts';
 import { assessLotFromDbParallel } from '../../engine/parallel.ts';
 import { parameterSetWords } from '../../engine/parameters.ts';
@@ -44,6 +44,12 @@ function est(e: Estimate | null, f: (x: number) => string = fmtCount): string {
   return `${f(e.value)} [${f(e.low)}–${f(e.high)}]`;
 }
 
+/** An expected count with its interval, the bounds as whole counts (fmtCountBound). */
+function estCount(e: Estimate | null): string {
+  if (!e) return '—';
+  return `${fmtCount(e.value)} [${fmtCountBound(e.low, 'low')}–${fmtCountBound(e.high, 'high')}]`;
+}
+
 function table(rows: string[][]): string {
   const widths = rows[0]!.map((_, i) => Math.max(...rows.map((r) => (r[i] ?? '').length)));
   return rows
@@ -55,10 +61,10 @@ function figureLines(f: PairFigures, conf: number): string[] {
   const pc = `${Math.round(conf * 100)} %`;
   return [
     `  particles at the interface   ${fmtCount(f.particles)}`,
-    `  reportable voids (${pc})      ${est(f.voids)}`,
+    `  reportable voids (${pc})      ${estCount(f.voids)}`,
     `  unbonded area (${pc})         ${est(f.unbondedAreaM2, fmtMm2)}  (${est(f.unbondedFraction, fmtPercent)})`,
-    `  die kills Poisson (${pc})     ${est(f.dieKillsPoisson)}${f.dieCount ? ` of ${f.dieCount} dies` : ''}`,
-    `  die kills NB (${pc})          ${est(f.dieKillsNB)}`,
+    `  die kills Poisson (${pc})     ${estCount(f.dieKillsPoisson)}${f.dieCount ? ` of ${f.dieCount} dies` : ''}`,
+    `  die kills NB (${pc})          ${estCount(f.dieKillsNB)}`,
     `  die yield (${pc})             ${est(f.dieYield, fmtPercent)}`,
   ];
 }
@@ -145,9 +151,9 @@ export function renderLot(l: LotAssessment): string {
       ...l.pairs.map((p) => [
         p.pairId,
         p.call,
-        est(p.figures.voids),
+        estCount(p.figures.voids),
         est(p.figures.unbondedFraction, fmtPercent),
-        est(p.figures.dieKillsNB),
+        estCount(p.figures.dieKillsNB),
         p.dominant ? `${p.dominant.label} (${fmtPercent(p.dominant.share)})` : '—',
       ]),
     ]),

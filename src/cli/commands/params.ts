@@ -3,7 +3,7 @@
  * the parameter sets fitted from the line's own data — which exist, what one holds beside the typed
  * values it would replace, adopting one, going back to the typed values.
  */
-import { fmtCount, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
+import { fmtMean, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { typedCounterparts } from '../../engine/loader.ts';
 import { type ParameterEntry, parameterEntries, type QuantityUnit } from '../../engine/parameter-entries.ts';
 import type { ParameterSet } from '../../engine/parameter-set-types.ts';
@@ -56,7 +56,7 @@ export function fmtQuantity(unit: QuantityUnit, v: number | null): string {
   if (v === null || !Number.isFinite(v)) return '—';
   switch (unit) {
     case 'count':
-      return fmtCount(v);
+      return fmtMean(v);
     case 'length':
       return fmtSize(v);
     case 'area':

@@ -65,8 +65,8 @@ export function register(app: Hono, ctx: AppContext): void {
         classWindow:
           'the last 30 days of each location’s samples; instrument-fault and sentinel samples left out',
         trend,
-        excursions: excursions.slice(0, MAX_EXCURSIONS),
-        excursionsOmitted: Math.max(0, excursions.length - MAX_EXCURSIONS),
+        excursions,
+        excursionsShown: MAX_EXCURSIONS,
       }),
     });
   });
@@ -111,6 +111,8 @@ export function classifyLocation(
 ): LocationStatus {
   const base = {
     locationId: loc.locationId,
+    parentId: loc.parentId,
+    level: loc.level,
     name: loc.name,
     environment: loc.environment,
     targetClass: loc.isoClass,
@@ -134,6 +136,7 @@ export function classifyLocation(
       ...base,
       achievedClass: null,
       pass: null,
+      state: u.length === 0 ? 'no data' : 'not classified',
       sizesM: sizes,
       note:
         count === 0
@@ -148,6 +151,12 @@ export function classifyLocation(
     ...base,
     achievedClass: achieved,
     pass: loc.isoClass === null ? null : achieved !== null && achieved <= loc.isoClass + 1e-9,
+    state:
+      loc.isoClass === null
+        ? 'no target'
+        : achieved !== null && achieved <= loc.isoClass + 1e-9
+          ? 'pass'
+          : 'fail',
     sizesM: sizes,
     note: loc.isoClass === null ? 'no target class' : achieved === null ? 'above ISO 9' : null,
   };

@@ -1,7 +1,8 @@
 /**
  * The Imports page.
  *
- *   GET  /imports                          the form, the history
+ *   GET  /imports                          the form, the history (?history=N page, ?historyKind=K filter)
+ *   GET  /imports/history                  one page of the history (htmx swaps it; plain: 303 to /imports)
  *   POST /imports                          multipart upload → a background job (303 to its page; htmx: its partial)
  *   GET  /imports/jobs/:id                 the job: progress while it runs, then the validation report
  *   GET  /imports/jobs/:id/files/:n/issues one page of a file's rejected rows (htmx swaps the table)
@@ -19,7 +20,11 @@ import { join } from 'node:path';
 import type { Context, Hono } from 'hono';
 import { ImportsPage, type ImportsPageProps } from '../../../views/pages/imports.tsx';
 import { ImportErrors } from '../../../views/partials/import-form.tsx';
-import { type HistoryRowView, ImportHistory } from '../../../views/partials/import-history.tsx';
+import {
+  type HistoryPaging,
+  type HistoryRowView,
+  ImportHistory,
+} from '../../../views/partials/import-history.tsx';
 import { ImportJob, type JobFileView, type JobView } from '../../../views/partials/import-job.tsx';
 import {
   ImportIssues,
@@ -40,8 +45,36 @@ import { formatBytes, multipartBoundary, readMultipart, UploadError, uploadLimit
 /** Where uploads wait for their import, under the data directory (removed once imported). */
 export const UPLOAD_DIR = 'uploads-in-progress';
 
-/** How many imports the history shows. */
+/** How many imports one page of the history shows. */
 const HISTORY_ROWS = 50;
+
+/** Which history page a request asks for, or why that page cannot be shown (a 400). */
+type HistoryRequest = { page: number; kind: ImportKindName | null } | { error: string };
+
+/**
+ * `?history=N` (a whole number from 1, default 1) and `?historyKind=K` (a kind voidcast imports,
+ * empty for every kind), checked against how many pages there are.
+ */
+function historyRequest(db: AppContext['db'], q: Record<string, string>): HistoryRequest {
+  const kindText = (q.historyKind ?? '').trim();
+  if (kindText !== '' && !isKind(kindText))
+    return {
+      error: `“${kindText}” is not a kind of import; choose one of: ${IMPORT_KIND_NAMES.join(', ')}.`,
+    };
+  const kind = kindText === '' ? null : (kindText as ImportKindName);
+  const pageText = (q.history ?? '').trim();
+  if (pageText === '') return { page: 1, kind };
+  if (!/^\d+$/.test(pageText) || Number(pageText) < 1)
+    return { error: `History page “${pageText}” is not a page number: pages are whole numbers from 1.` };
+  const page = Number(pageText);
+  const total = listImportHistory(db, { limit: 1, kind }).total;
+  const pages = Math.max(1, Math.ceil(total / HISTORY_ROWS));
+  if (page > pages)
+    return {
+      error: `History page ${pageText} does not exist: the ${kind ? `${kind} ` : ''}history has ${pages} page${pages === 1 ? '' : 's'} of ${HISTORY_ROWS} imports.`,
+    };
+  return { page, kind };
+}
 
 interface FileProgress extends JobFileView {
   report: Report | null;
@@ -60,10 +93,18 @@ function jobView(job: ImportJobRecord): JobView {
   };
 }
 
-function historyView(db: AppContext['db']): { rows: HistoryRowView[]; total: number } {
-  const { rows, total } = listImportHistory(db, { limit: HISTORY_ROWS });
+function historyView(
+  db: AppContext['db'],
+  at: { page: number; kind: ImportKindName | null } = { page: 1, kind: null },
+): { rows: HistoryRowView[]; total: number; paging: HistoryPaging } {
+  const { rows, total } = listImportHistory(db, {
+    limit: HISTORY_ROWS,
+    offset: (at.page - 1) * HISTORY_ROWS,
+    kind: at.kind,
+  });
   return {
     total,
+    paging: { page: at.page, perPage: HISTORY_ROWS, kind: at.kind, kinds: IMPORT_KIND_NAMES },
     rows: rows.map((r) => ({
       id: r.id,
       importedAt: r.importedAt,
@@ -104,7 +145,8 @@ export function register(app: Hono, ctx: AppContext): void {
 
   const page = (c: Context, extra: Partial<ImportsPageProps>, status: 200 | 400 | 404 | 413 | 422 = 200) => {
     const limit = uploadLimitBytes(ctx.db);
-    const history = historyView(ctx.db);
+    const asked = historyRequest(ctx.db, c.req.query());
+    const history = historyView(ctx.db, 'error' in asked ? undefined : asked);
     const props: ImportsPageProps = {
       form: {
         kinds: kindOptions(),
@@ -116,8 +158,14 @@ export function register(app: Hono, ctx: AppContext): void {
       },
       history: history.rows,
       historyTotal: history.total,
+      historyPaging: history.paging,
       ...extra,
     };
+    // A history page that does not exist: the page (history from its first page) says why, as a 400.
+    if ('error' in asked && status === 200) {
+      props.historyError = asked.error;
+      status = 400;
+    }
     return renderPage(c, ctx, { title: 'Imports', active: '/imports', body: ImportsPage(props) }, status);
   };
 
@@ -302,6 +350,17 @@ export function register(app: Hono, ctx: AppContext): void {
       return c.html(String(ImportErrors({ heading: 'Job not found', errors: [detail] })), 404);
     return page(c, { errors: { heading: 'Job not found', errors: [detail] } }, 404);
   };
+
+  app.get('/imports/history', (c) => {
+    if (!isFragmentRequest(c)) {
+      const q = new URL(c.req.url).search;
+      return c.redirect(`/imports${q}#import-history`, 303);
+    }
+    const asked = historyRequest(ctx.db, c.req.query());
+    if ('error' in asked)
+      return c.html(String(ImportHistory({ ...historyView(ctx.db), error: asked.error })), 400);
+    return c.html(String(ImportHistory(historyView(ctx.db, asked))));
+  });
 
   app.get('/imports/jobs/:id', (c) => {
     const job = jobs.get(c.req.param('id'));

@@ -78,6 +78,9 @@ export function memoised<T>(ctx: AppContext, key: string, compute: () => T): T {
   return v;
 }
 
+/** Why a lot without pairs has no call: it is not (yet) to be bonded. */
+const NO_PAIRS = 'no bond pairs: monitor or test wafers, or a lot whose pairs file is not imported yet';
+
 type LotForPage =
   | { lot: LotAssessment; bonded: boolean; bondedAtMs: number | null }
   | { problem: string }
@@ -103,7 +106,7 @@ function assessLotUncached(
 ): LotForPage {
   const loaded = loadLot(ctx.db, lotId, asOfMs);
   if (!loaded) return null;
-  if (loaded.lot.pairs.length === 0) return { problem: 'no pairs yet (import a pairs file)' };
+  if (loaded.lot.pairs.length === 0) return { problem: NO_PAIRS };
   try {
     const lot = assessLotInSession(loaded.lot, createSession(loaded.line), { asOfMs, detail });
     const times = loaded.lot.pairs.map((p) => p.bondTimeMs);
@@ -120,14 +123,17 @@ export function register(app: Hono, ctx: AppContext): void {
     const asOfMs = asOfFrom(c, ctx);
     const waiting: LotRow[] = [];
     const bonded: LotRow[] = [];
+    const unpaired: LotRow[] = [];
     for (const l of listLots(ctx.db)) {
       const r = assessLotForPage(ctx, l.lotId, asOfMs);
       if (!r) continue;
       if ('problem' in r) {
-        waiting.push({
+        // A lot without pairs has nothing to bond: not in the queue (e.g. the monitor lot).
+        (r.problem === NO_PAIRS ? unpaired : waiting).push({
           lotId: l.lotId,
           productId: l.productId ?? '—',
           pairs: 0,
+          wafers: l.waferCount,
           call: null,
           counts: null,
           expectedVoids: null,
@@ -148,6 +154,7 @@ export function register(app: Hono, ctx: AppContext): void {
         lotId: a.lotId,
         productId: a.productId,
         pairs: a.pairs.length,
+        wafers: l.waferCount,
         call: a.call,
         counts: a.counts,
         expectedVoids: a.totals.voids,
@@ -168,7 +175,7 @@ export function register(app: Hono, ctx: AppContext): void {
     return renderPage(c, ctx, {
       title: 'Lots',
       active: '/lots',
-      body: LotsPage({ waiting, bonded, asOfMs }),
+      body: LotsPage({ waiting, bonded, unpaired, asOfMs }),
     });
   });
 
@@ -180,7 +187,11 @@ export function register(app: Hono, ctx: AppContext): void {
       return renderPage(c, ctx, {
         title: `Lot ${id}`,
         active: '/lots',
-        body: MessagePage({ heading: `Lot ${id} cannot be assessed`, detail: r.problem }),
+        body: MessagePage({
+          heading:
+            r.problem === NO_PAIRS ? `Lot ${id} is not waiting to bond` : `Lot ${id} cannot be assessed`,
+          detail: r.problem,
+        }),
       });
     return renderPage(c, ctx, {
       title: `Lot ${id}`,

@@ -44,7 +44,20 @@ describe('removalCurve', () => {
     expect(ty[5]!).toBeLessThan(ty[0]!);
     const x = svg.children.find((c) => c.attrs['data-axis'] === 'x')!;
     expect(byClass(x, 'vc-tick').map(textOf).filter(Boolean)).toEqual(['10 nm', '100 nm', '1 µm', '10 µm']);
-    expect(textOf(byClass(svg, 'vc-legend')[0]!)).toContain('measured per size band');
+    // Without measured bands the legend names the curve alone.
+    expect(byClass(svg, 'vc-legend-entry').map(textOf)).toEqual(['model PRE(d)']);
+  });
+
+  it('lists in its legend only what it draws', () => {
+    const both = svgOf(
+      removalCurve({ title: 't', curve, measured: [{ fromM: 45e-9, toM: 90e-9, efficiency: 0.6 }] }),
+    );
+    expect(byClass(both, 'vc-legend-entry').map(textOf)).toEqual(['model PRE(d)', 'measured per size band']);
+    const bandsOnly = svgOf(
+      removalCurve({ title: 't', curve: [], measured: [{ fromM: 45e-9, toM: 90e-9, efficiency: 0.6 }] }),
+    );
+    expect(byClass(bandsOnly, 'vc-legend-entry').map(textOf)).toEqual(['measured per size band']);
+    expect(byClass(svgOf(removalCurve({ title: 't', curve: [] })), 'vc-legend-entry')).toHaveLength(0);
   });
 
   it('says there is no data when neither curve nor bands are given, and escapes the title', () => {

@@ -108,6 +108,60 @@ describe('stackedSpectrum', () => {
     expect(textOf(byClass(svg, 'vc-nodata')[0]!)).toBe('no particles from any source');
   });
 
+  it('neither stacks nor lists a source with nothing in any bin', () => {
+    const svg = svgOf(
+      stackedSpectrum({
+        title: 't',
+        series: [...series, { source: 'idle stocker', counts: zeroSpectrum() }],
+      }),
+    );
+    expect(byClass(svg, 'vc-layer').map((l) => l.attrs['data-source'])).toEqual(series.map((s) => s.source));
+    expect(byClass(svg, 'vc-legend-entry').map(textOf).join('|')).not.toContain('idle stocker');
+  });
+
+  it('tells the same source on the two wafers apart by outline and by the wafer named first in the legend', () => {
+    const svg = svgOf(
+      stackedSpectrum({
+        title: 't',
+        width: 560,
+        series: [
+          {
+            source: 'Wait at a very long location name that does not fit on one legend line at all',
+            counts: scan,
+            wafer: 'top',
+            waferId: 'W-01',
+          },
+          {
+            source: 'Wait at a very long location name that does not fit on one legend line at all',
+            counts: scan,
+            wafer: 'bottom',
+            waferId: 'W-02',
+          },
+          { source: '3 other sources', counts: adders },
+        ],
+      }),
+    );
+    const layers = byClass(svg, 'vc-layer');
+    expect(layers.map((l) => l.attrs['data-wafer'] ?? null)).toEqual(['top', 'bottom', null]);
+    // Outlines: dashed top, solid bottom, dotted pooled — three different strokes.
+    const dashes = layers.map((l) => l.attrs['stroke-dasharray'] ?? 'solid');
+    expect(new Set(dashes).size).toBe(3);
+    expect(dashes[1]).toBe('solid');
+    // The legend swatch carries the same outline as its layer.
+    const swatches = byClass(svg, 'vc-legend-swatch');
+    expect(swatches.map((s) => s.attrs['stroke-dasharray'] ?? 'solid')).toEqual(dashes);
+    const legend = byClass(svg, 'vc-legend-entry').map(textOf);
+    expect(legend[0]!.startsWith('top W-01 · Wait at')).toBe(true);
+    expect(legend[1]!.startsWith('bottom W-02 · Wait at')).toBe(true);
+    expect(legend[0]).not.toBe(legend[1]);
+    // Shortened to fit the plot's width, the total kept at the end.
+    expect(legend[0]).toContain('…');
+    expect(legend[0]!.endsWith(` — ${Number(spectrumTotal(scan).toPrecision(3))}`)).toBe(true);
+    expect(textOf(byClass(svg, 'vc-legend-heading')[0]!)).toBe(
+      'Outline: solid bottom wafer · dashed top wafer · dotted both or pooled',
+    );
+  });
+
   it('escapes source names in layers, tooltips and legend', () => {
     const out = String(stackedSpectrum({ title: '<t>', series }));
     expect(out).not.toContain('<adders>');

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { bucketTrend, segmentTrend, trend } from '../../../views/charts/trend.tsx';
+import { LINE_BOX_PX, textWidth } from '../../../views/charts/svg.tsx';
+import { bucketTrend, segmentTrend, spreadBaselines, trend } from '../../../views/charts/trend.tsx';
 import { byClass, svgOf, textOf } from './svg-query.ts';
 
 const T0 = Date.UTC(2025, 2, 3, 0, 0);
@@ -169,7 +170,7 @@ describe('bucketTrend and the dense trend', () => {
     expect(textOf(svg.children.find((c) => c.name === 'desc')!)).toContain('5000 samples drawn as the mean');
   });
 
-  it('nudges level labels apart when two levels coincide', () => {
+  it('gives levels at the same value one label, so they never print on top of each other', () => {
     const svg = svgOf(
       trend({
         title: 't',
@@ -181,7 +182,58 @@ describe('bucketTrend and the dense trend', () => {
         yScale: 'linear',
       }),
     );
-    const ys = byClass(svg, 'vc-level').map((l) => Number(l.children[1]!.attrs.y));
-    expect(Math.abs(ys[0]! - ys[1]!)).toBeGreaterThanOrEqual(11);
+    // Both lines stay drawn; one label names both (values from the input).
+    expect(byClass(svg, 'vc-level')).toHaveLength(2);
+    const labels = byClass(svg, 'vc-level-label');
+    expect(labels.map(textOf)).toEqual(['action = ISO 4 limit 352']);
+    expect(labels[0]!.attrs['data-levels']).toBe('action class-limit');
+  });
+
+  it('spreads labels of nearby levels a line box apart and keeps them inside the chart', () => {
+    const width = 640;
+    const svg = svgOf(
+      trend({
+        title: 't',
+        channelLabel: 'c',
+        unit: 'u',
+        points: series(10, () => 10),
+        alert: 99_000,
+        action: 100_000,
+        classLimit: { value: 101_000, label: 'ISO 5 limit' },
+        yScale: 'linear',
+        width,
+      }),
+    );
+    const labels = byClass(svg, 'vc-level-label');
+    // Digits grouped by U+202F (fmtNum); document order alert, action, class limit.
+    expect(labels.map(textOf)).toEqual([
+      'alert 99\u202f000',
+      'action 100\u202f000',
+      'ISO 5 limit 101\u202f000',
+    ]);
+    const ys = labels.map((l) => Number(l.attrs.y)).sort((a, b) => a - b);
+    // A line box of 11 px DejaVu Sans is (0.93 + 0.24) × 11 = 12.9 px (measured in Chromium);
+    // 0.1 px is the rounding of coordinates.
+    for (let i = 1; i < ys.length; i++) expect(ys[i]! - ys[i - 1]!).toBeGreaterThanOrEqual(12.9 - 0.1);
+    // Right edge of each label from the estimated width (textWidth, DejaVu advance widths).
+    for (const l of labels) expect(Number(l.attrs.x) + textWidth(textOf(l))).toBeLessThanOrEqual(width);
+  });
+});
+
+describe('spreadBaselines', () => {
+  const step = LINE_BOX_PX + 1;
+  it('keeps labels where they wish when they are a line apart, in the input order', () => {
+    expect(spreadBaselines([100, 20, 60], 0, 200)).toEqual([100, 20, 60]);
+  });
+  it('pushes coinciding labels apart by one line box and a pixel, inside the bounds', () => {
+    const y = spreadBaselines([50, 50, 50], 0, 200);
+    expect(y[1]! - y[0]!).toBeCloseTo(step, 9);
+    expect(y[2]! - y[1]!).toBeCloseTo(step, 9);
+    const low = spreadBaselines([195, 195], 0, 200);
+    expect(Math.max(...low)).toBeLessThanOrEqual(200);
+    expect(Math.abs(low[0]! - low[1]!)).toBeCloseTo(step, 9);
+    const high = spreadBaselines([2, 2], 10, 200);
+    // 1e-9: floating-point rounding of the subtraction of a line step.
+    expect(Math.min(...high)).toBeGreaterThanOrEqual(10 - 1e-9);
   });
 });

@@ -45,11 +45,13 @@ describe('waferMap', () => {
     const rOf = new Map(marks.map((m) => [Number(m.attrs['data-size-class']), Number(m.attrs.r)]));
     const radii = [...rOf.entries()].sort((a, b) => a[0] - b[0]).map((e) => e[1]);
     for (let i = 1; i < radii.length; i++) expect(radii[i]!).toBeGreaterThan(radii[i - 1]!);
-    // The legend names every class (one more than edges) with its count.
+    // The legend names every class that has marks, with its count; 100–300 nm has none here
+    // (classes by hand from the diameters above), so it has no entry.
     const entries = byClass(svg, 'vc-legend-entry').map(textOf);
-    expect(entries).toHaveLength(DEFAULT_CLASS_EDGES_M.length + 1);
+    expect(entries).toHaveLength(DEFAULT_CLASS_EDGES_M.length);
     expect(entries[0]).toBe('< 50 nm  (1)');
     expect(entries[1]).toBe('50 nm – 100 nm  (2)');
+    expect(entries[2]).toBe('300 nm – 1 µm  (1)');
     expect(entries.at(-1)).toBe('≥ 3 µm  (2)');
   });
 
