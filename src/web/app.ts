@@ -9,7 +9,8 @@ import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
-import { renderPage } from './render.ts';
+import { BadParamError } from './params.ts';
+import { isFragmentRequest, renderPage } from './render.ts';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
@@ -69,6 +70,24 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
     ),
   );
   app.onError((err, c) => {
+    // A bad request parameter (src/web/params.ts): 400 with the reason, in the form the caller reads.
+    if (err instanceof BadParamError) {
+      const status = err.status;
+      if (c.req.path.startsWith('/api/'))
+        return c.json({ error: status === 404 ? 'not found' : 'bad request', detail: err.message }, status);
+      const body = MessagePage({
+        code: String(status),
+        heading: status === 404 ? 'Nothing here' : 'A value in this request cannot be used',
+        detail: err.message,
+      });
+      if (isFragmentRequest(c)) return c.html(String(body), status);
+      return renderPage(
+        c,
+        ctx,
+        { title: status === 404 ? 'Not found' : 'Bad request', active: '', body },
+        status,
+      );
+    }
     // The stack goes to the log for the operator, never to the browser.
     ctx.log(
       `ERROR ${c.req.method} ${c.req.path}: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`,
