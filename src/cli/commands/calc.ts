@@ -2,6 +2,7 @@ import {
   CALCULATORS,
   CalcInputError,
   type Calculator,
+  describeRange,
   findCalculator,
   formatCalcValue,
   runCalculator,
@@ -19,8 +20,12 @@ function calcUsage(c: Calculator): string {
     `  source: ${c.source}`,
     '',
     ...c.fields.map(
-      (f) => `  --${f.name.padEnd(w)}  ${f.label}${f.unit ? ` (${f.unit})` : ''}, default ${f.default}`,
+      (f) =>
+        `  --${f.name.padEnd(w)}  ${f.label}${f.unit ? ` (${f.unit})` : ''}, default ${f.default}${f.range ? `; ${describeRange(f.range, f.unit)}` : ''}`,
     ),
+    ...(c.jointLimits ? ['', `  together: ${c.jointLimits}`] : []),
+    '',
+    '  exit codes: 0 computed, 2 a bad option or value (the message names the option and its range)',
   ].join('\n');
 }
 
@@ -56,7 +61,9 @@ export const calc: Command = {
       result = runCalculator(c, raw);
     } catch (e) {
       if (e instanceof CalcInputError) {
-        io.err(`voidcast calc ${c.id}: ${e.message}\nusage: ${calcUsage(c)}\n`);
+        // In the user's terms: the option typed, its label and the rule with its unit.
+        const what = e.field ? `--${e.field} (${e.subject})` : e.subject;
+        io.err(`voidcast calc ${c.id}: ${what} ${e.rule}\nusage: ${calcUsage(c)}\n`);
         return EXIT.usage;
       }
       throw e;
