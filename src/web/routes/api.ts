@@ -6,8 +6,8 @@
  *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
  *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
  *
- * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default the installation
- * clock (settings clock.as_of), else now. Errors are JSON
+ * `?asOf=` (UTC ms or ISO 8601 with its zone, 1970 up to 2100; src/engine/as-of.ts) fixes the
+ * assessment time; default the installation clock (settings clock.as_of), else now. Errors are JSON
  * {error, detail} with 400 (bad request), 404 (unknown id), 409 (inputs changed since the assessment
  * that is being signed); never a stack trace.
  */
@@ -76,6 +76,8 @@ export function register(app: Hono, ctx: AppContext): void {
           error: r.code === 'hash-changed' ? 'inputs changed' : 'bad request',
           detail: r.message,
           currentHash: r.currentHash ?? null,
+          matchedAsOfMs: r.matchedAsOfMs ?? null,
+          differences: r.differences ?? [],
         },
         r.code === 'hash-changed' ? 409 : 400,
       );
