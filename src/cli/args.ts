@@ -13,8 +13,23 @@ export function parseOptions<T extends NonNullable<ParseArgsConfig['options']>>(
     return parseArgs({ args: joinNegativeValues(argv, options), options, allowPositionals, strict: true });
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
-    throw new UsageError(msg.replace(/\. To specify a positional argument.*$/s, '').split('\n')[0]!);
+    throw new UsageError(
+      plainParseError(msg.replace(/\. To specify a positional argument.*$/s, '').split('\n')[0]!),
+    );
   }
+}
+
+/** node's parser messages in the words the other usage errors use. */
+function plainParseError(msg: string): string {
+  let m = /^Unknown option '([^']+)'/.exec(msg);
+  if (m) return `unknown option ${m[1]}`;
+  m = /^Option '(--[^ ']+)[^']*' argument missing/.exec(msg);
+  if (m) return `${m[1]} needs a value`;
+  m = /^Option '(--[^ ']+)[^']*' does not take an argument/.exec(msg);
+  if (m) return `${m[1]} takes no value`;
+  m = /^Unexpected argument '([^']+)'/.exec(msg);
+  if (m) return `unexpected argument "${m[1]}"`;
+  return msg;
 }
 
 /**

@@ -53,7 +53,15 @@ export const calc: Command = {
     if (!c) throw new UsageError(`unknown calculator "${id}"`);
     const options: Record<string, { type: 'string' | 'boolean' }> = { json: { type: 'boolean' } };
     for (const f of c.fields) options[f.name] = { type: 'string' };
-    const values = parseOptions(rest, options).values as Record<string, string | boolean | undefined>;
+    let values: Record<string, string | boolean | undefined>;
+    try {
+      values = parseOptions(rest, options).values as Record<string, string | boolean | undefined>;
+    } catch (e) {
+      if (!(e instanceof UsageError)) throw e;
+      // The calculator is known: show its own options, not the list of calculators.
+      io.err(`voidcast calc ${c.id}: ${e.message}\nusage: ${calcUsage(c)}\n`);
+      return EXIT.usage;
+    }
     const raw: Record<string, string | undefined> = {};
     for (const f of c.fields) raw[f.name] = values[f.name] as string | undefined;
     let result: ReturnType<typeof runCalculator>;

@@ -38,7 +38,11 @@ export const signoff: Command = {
     });
     if (!values.pair) throw new UsageError('--pair is required');
     if (!values.hash) throw new UsageError('--hash is required');
-    if (!values.by) throw new UsageError('--by is required');
+    if (!/^[0-9a-f]{64}$/.test(values.hash))
+      throw new UsageError(
+        `--hash must be the 64 hexadecimal digits printed on the "inputs" line of voidcast assess; got "${values.hash}"`,
+      );
+    if (!values.by?.trim()) throw new UsageError('--by is required: the name of the person signing');
     if (values.call !== undefined && !['bond', 're-clean', 'hold'].includes(values.call))
       throw new UsageError(`--call must be bond, re-clean or hold, got "${values.call}"`);
     if (values['as-of'] !== undefined) parseAsOf(values['as-of'], 0); // a bad --as-of is a usage error first
@@ -81,7 +85,13 @@ const isoTime = (ms: number) => new Date(ms).toISOString();
 
 /** A refusal for the terminal: what differs one per line, and the command that shows the current figures. */
 function refusalText(pairId: string, asOfMs: number, r: Extract<SignoffOutcome, { ok: false }>): string {
-  if (r.code !== 'hash-changed') return r.message;
+  if (r.code !== 'hash-changed')
+    // The engine names its request fields; say the options the user typed.
+    return r.message
+      .replace(/^comment: /, '--comment: ')
+      .replace(/^call: /, '--call: ')
+      .replace(/^signedBy: /, '--by: ')
+      .replace(/^inputsHash: /, '--hash: ');
   const review = `voidcast assess --pair ${pairId} --as-of ${isoTime(asOfMs)}`;
   if (r.matchedAsOfMs === undefined || r.matchedAsOfMs === null)
     return `${r.message}\n  Review: ${review} (it prints the current hash${r.currentHash ? `, ${r.currentHash}` : ''}).`;

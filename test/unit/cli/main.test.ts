@@ -35,7 +35,7 @@ describe('voidcast CLI', () => {
     const t = io();
     expect(await main(['serve', '--prot', '80'], t.io)).toBe(2);
     const [first, second] = t.err().split('\n');
-    expect(first).toBe("voidcast serve: Unknown option '--prot'");
+    expect(first).toBe('voidcast serve: unknown option --prot');
     expect(second).toBe('usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]');
   });
 
