@@ -51,8 +51,9 @@ export const serve: Command = {
           }
         : undefined,
     });
-    io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
-    await new Promise<void>((done) => {
+    // The signal handlers go in before the address is printed: whoever reads that line may stop the
+    // server at once, and a signal with no handler would kill it without closing the database.
+    const stopped = new Promise<void>((done) => {
       const stop = () => {
         process.off('SIGINT', stop);
         process.off('SIGTERM', stop);
@@ -61,6 +62,8 @@ export const serve: Command = {
       process.on('SIGINT', stop);
       process.on('SIGTERM', stop);
     });
+    io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
+    await stopped;
     return EXIT.ok;
   },
 };
