@@ -217,6 +217,19 @@ describe('voidcast calc', () => {
 });
 
 describe('Calculators page', () => {
+  it('shows ISO 14644-1 Table 1 class 1 at 0.1 µm as 10, and a blank cell with what the standard calls it (Table 1 and its notes)', async () => {
+    const cell = async (q: string) => {
+      const html = await (await app().request(`/calculators/class-limit/result?${q}`)).text();
+      return /Table 1 value[\s\S]*?<\/dd>|Table 1 value[\s\S]{0,400}/
+        .exec(html)![0]
+        .replace(/<[^>]+>/g, ' ')
+        .replace(/\s+/g, ' ');
+    };
+    expect(await cell('class=1&size=0.1')).toContain('10 particles/m³');
+    expect(await cell('class=7&size=0.1')).toContain('blank — not applicable');
+    expect(await cell('class=1&size=0.2')).toContain('blank — classification inappropriate');
+  });
+
   it('renders every calculator with its formula and source', async () => {
     const res = await app().request('/calculators');
     expect(res.status).toBe(200);
