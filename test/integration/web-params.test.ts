@@ -6,13 +6,17 @@
  * import path; expected statuses follow the validation rules of src/web/params.ts and
  * src/engine/as-of.ts (hand-derived per value below).
  */
+
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
+import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
 import { setSetting } from '../../src/store/settings.ts';
 import { createApp } from '../../src/web/app.ts';
 import { CSRF_COOKIE, csrfSecret, tokenFor } from '../../src/web/csrf.ts';
 import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
-import { AS_OF_MS, importPageLine, type LineFiles, lineFiles } from '../helpers/pages-data.ts';
+import { AS_OF_MS, importPageLine, type LineFiles, LOCATIONS_CSV, lineFiles } from '../helpers/pages-data.ts';
 
 let db: Db;
 let files: LineFiles;
@@ -262,6 +266,47 @@ describe('form and JSON bodies', () => {
       JSON.stringify({ inputsHash: hash, asOfMs: AS_OF_MS, signedBy: 'A' }),
     );
     expect(unknown.status).toBe(404);
+  });
+});
+
+describe("an import job's parameters", () => {
+  it('file and page of /imports/jobs/:id are checked; an impossible file number is a 404', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'voidcast-web-params-'));
+    const fileDb = openDataDir(dir);
+    try {
+      const jobApp = createApp({ db: fileDb, dataDir: dir, version: 'test', log: () => {} });
+      const page = await jobApp.request('/imports');
+      const cookie = (page.headers.get('set-cookie') ?? '').split(';')[0]!;
+      const token = /name="_csrf" value="([^"]+)"/.exec(await page.text())![1]!;
+      const fd = new FormData();
+      fd.append('_csrf', token);
+      fd.append('kind', 'locations');
+      fd.append('files', new File([LOCATIONS_CSV], 'locations.csv', { type: 'text/csv' }));
+      const res = await jobApp.request('/imports', {
+        method: 'POST',
+        body: fd,
+        headers: { cookie, origin: 'http://localhost' },
+      });
+      const where =
+        res.headers.get('location') ?? (await res.text()).match(/\/imports\/jobs\/[0-9a-f-]+/)?.[0];
+      const job = /\/imports\/jobs\/[0-9a-f-]+/.exec(where ?? '')![0];
+      for (const [value] of BAD_VALUES) {
+        const q = enc(value);
+        expect(
+          (await jobApp.request(`${job}?file=${q}&page=1`, { headers: { cookie } })).status,
+          value.slice(0, 40),
+        ).toBe(400);
+        expect((await jobApp.request(`${job}?file=0&page=${q}`, { headers: { cookie } })).status).toBe(400);
+        expect(
+          (await jobApp.request(`${job}/files/${q}/issues`, { headers: { cookie, ...fragment } })).status,
+        ).toBe(404);
+      }
+      expect((await jobApp.request(`${job}?file=1&page=1`, { headers: { cookie } })).status).toBe(400); // one file: index 0 only
+      expect((await jobApp.request(`${job}?file=0&page=1`, { headers: { cookie } })).status).toBe(200);
+    } finally {
+      fileDb.close();
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
 
