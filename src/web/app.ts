@@ -7,6 +7,7 @@ import { createRequire } from 'node:module';
 import { Hono } from 'hono';
 import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
+import { ModelInputError, plainModelError } from '../model/errors.ts';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
 import { BadParamError } from './params.ts';
@@ -87,6 +88,15 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
         { title: status === 404 ? 'Not found' : 'Bad request', active: '', body },
         status,
       );
+    }
+    // A model's range error reached the page: the data cannot be assessed; say why in plain words.
+    if (err instanceof ModelInputError) {
+      ctx.log(`WARN ${c.req.method} ${c.req.path}: ${err.message}`);
+      const detail = `A computed quantity is outside its model's range (${plainModelError(err)}). Check the data and the assessment time.`;
+      if (c.req.path.startsWith('/api/')) return c.json({ error: 'cannot be assessed', detail }, 422);
+      const body = MessagePage({ code: '422', heading: 'These data cannot be assessed', detail });
+      if (isFragmentRequest(c)) return c.html(String(body), 422);
+      return renderPage(c, ctx, { title: 'Cannot be assessed', active: '', body }, 422);
     }
     // The stack goes to the log for the operator, never to the browser.
     ctx.log(

@@ -10,7 +10,9 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import type { Hono } from 'hono';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ModelInputError } from '../../src/model/errors.ts';
 import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
 import { setSetting } from '../../src/store/settings.ts';
 import { createApp } from '../../src/web/app.ts';
@@ -307,6 +309,35 @@ describe("an import job's parameters", () => {
       fileDb.close();
       rmSync(dir, { recursive: true, force: true });
     }
+  });
+});
+
+describe('a model range error that reaches a route', () => {
+  it('is a 422 in plain words, never a 500 and never the model function name', async () => {
+    const throwing = {
+      register(a: Hono) {
+        const fail = () => {
+          throw new ModelInputError(
+            'poissonYield',
+            'expectedDefects',
+            'defects per die',
+            '≤ 1000000 defects per die',
+            2e6,
+          );
+        };
+        a.get('/test-model-error', fail);
+        a.get('/api/test-model-error', fail);
+      },
+    };
+    const local = createApp({ db, dataDir: files.dir, version: 'test', log: () => {} }, [throwing]);
+    const page = await local.request('/test-model-error');
+    expect(page.status).toBe(422);
+    const html = await page.text();
+    expect(html).toContain('expected defects = 2000000 defects per die is out of range');
+    expect(html).not.toContain('poissonYield');
+    const api = await local.request('/api/test-model-error');
+    expect(api.status).toBe(422);
+    expect(((await api.json()) as { detail: string }).detail).not.toContain('expectedDefects');
   });
 });
 
