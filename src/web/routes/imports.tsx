@@ -308,7 +308,12 @@ export function register(app: Hono, ctx: AppContext): void {
     const job = jobs.get(c.req.param('id'));
     if (!job) return missingJob(c);
     const view = jobView(job);
-    const fileN = wholeNumberValue('file', c.req.query('file'), 0, Math.max(0, job.progress.files.length - 1));
+    const fileN = wholeNumberValue(
+      'file',
+      c.req.query('file'),
+      0,
+      Math.max(0, job.progress.files.length - 1),
+    );
     const pageN = queryPage(c);
     const pager = fileN !== null ? { file: fileN, page: pageN } : undefined;
     if (isFragmentRequest(c)) {
