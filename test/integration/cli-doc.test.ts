@@ -150,6 +150,10 @@ describe('docs/cli.md covers the command line', () => {
     }
   });
 
+  it("every command's own usage (voidcast <command> --help) names its exit codes too", () => {
+    for (const c of COMMANDS) expect(c.usage, c.name).toMatch(/exit codes: 0 /);
+  });
+
   it('documents every calculator with an example', () => {
     for (const c of CALCULATORS) {
       expect(DOC).toContain(`\`${c.id}\``);

@@ -37,6 +37,8 @@ const listUsage = (): string =>
     ...CALCULATORS.map((c) => `  ${c.id.padEnd(20)}  ${c.title}`),
     '',
     'voidcast calc <calculator> --help   shows its inputs, formula and source',
+    '',
+    '  exit codes: 0 computed, 2 a bad option or value (the message names the option and its range)',
   ].join('\n');
 
 export const calc: Command = {
