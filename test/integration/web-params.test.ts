@@ -151,6 +151,16 @@ describe('query parameters: a bad value is a 400 with its reason, never a 500', 
   });
 });
 
+describe('routes that read no parameter of these names', () => {
+  it('answer without a server error whatever the query holds', async () => {
+    for (const path of ['/', '/tools', '/calculators', '/imports', '/healthz', '/api/lots'])
+      for (const [value] of BAD_VALUES) {
+        const res = await get(`${path}?asOf=${enc(value)}&page=${enc(value)}&zz=${enc(value)}`);
+        expect(res.status, `${path} with ${value.slice(0, 30)}`).toBeLessThan(500);
+      }
+  });
+});
+
 describe('ids in the path: unknown or impossible ids are 404, never a 500', () => {
   it('pages and API routes', async () => {
     const cases: [string, number][] = [
