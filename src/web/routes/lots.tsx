@@ -31,7 +31,8 @@ function parseInstant(v: string | undefined | null): number | null {
 }
 
 /**
- * The assessment time of a request: `?asOf=` (ISO 8601 with zone, or ms since the epoch), else
+ * The assessment time of a request: `?asOf=` (ISO 8601 with zone, or ms since the epoch, 1970 up to
+ * 2100; anything else is a 400 naming asOf — src/web/params.ts), else
  * the installation's frozen clock (AS_OF_SETTING), else now floored to the minute, so that a page
  * and its swaps within a minute show the same figures.
  */
