@@ -3,6 +3,7 @@
  */
 import { fileURLToPath } from 'node:url';
 import { findCalculator } from '../engine/calculators.ts';
+import { ModelInputError, plainModelError } from '../model/errors.ts';
 import { VERSION } from '../web/version.ts';
 import { assess } from './commands/assess.ts';
 import { calc, calcUsage } from './commands/calc.ts';
@@ -57,7 +58,13 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
       io.err(`voidcast ${cmd.name}: ${e.message}\nusage: ${cmd.usage}\n`);
       return EXIT.usage;
     }
-    const msg = e instanceof Error ? e.message : String(e);
+    // A model's range error names the model's own identifiers: say it in plain words instead.
+    const msg =
+      e instanceof ModelInputError
+        ? `these data cannot be assessed: a computed quantity is outside its model's range (${plainModelError(e)}); check the data and the assessment time`
+        : e instanceof Error
+          ? e.message
+          : String(e);
     io.err(`voidcast ${cmd.name}: ${msg}\n`);
     return EXIT.failure;
   }

@@ -5,7 +5,6 @@
  *
  * Each calculator states its formula and its published source beside the result.
  */
-import { z } from 'zod';
 import {
   cunninghamSlip,
   depositionVelocity,
@@ -14,10 +13,10 @@ import {
   stagnationDiffusionVelocity,
 } from '../model/aerosol.ts';
 import { cc1246CountPer01m2 } from '../model/cc1246.ts';
-import { ModelInputError } from '../model/errors.ts';
 import {
+  ISO_TABLE1_SIZES_NM,
   isoClassLimit,
-  isoTable1Value,
+  isoTable1Cell,
   minimumSampleVolumeM3,
   samplingLocations,
 } from '../model/iso14644.ts';
@@ -25,112 +24,26 @@ import { garwoodInterval } from '../model/stats/garwood.ts';
 import { cToK, M3_PER_FT3, m3ToL, mmToM, umToM } from '../model/units.ts';
 import { particleHeight, SI100_PLATE_MODULUS_PA, voidRadius, workOfAdhesion } from '../model/void.ts';
 import { criticalAreaRectangle, murphyYield, negativeBinomialYield, poissonYield } from '../model/yield.ts';
+import { type CalcChoice, type CalcResult, type Calculator, exactWholeUnits } from './calc-core.ts';
 
-export interface CalcChoice {
-  value: string;
-  label: string;
-}
-
-export interface CalcField {
-  /** Name of the CLI option (`--name`) and of the form field. */
-  name: string;
-  label: string;
-  /** Unit shown beside the input ('' when dimensionless). */
-  unit: string;
-  default: string;
-  /** Choices for a select; absent for a number. */
-  choices?: CalcChoice[];
-  help?: string;
-}
-
-export interface CalcOutput {
-  label: string;
-  value: number | string | null;
-  unit: string;
-  /** Significant figures to show for a number. */
-  digits?: number;
-}
-
-export interface CalcResult {
-  outputs: CalcOutput[];
-  notes: string[];
-}
-
-export interface Calculator {
-  id: string;
-  title: string;
-  summary: string;
-  /** The formula, plain text with Unicode symbols. */
-  formula: string;
-  /** Symbols with their units. */
-  symbols: string;
-  source: string;
-  fields: CalcField[];
-  compute: (values: Record<string, number | string>) => CalcResult;
-}
-
-/** A bad input to a calculator: which field, and the rule broken. */
-export class CalcInputError extends Error {
-  override readonly name = 'CalcInputError';
-  constructor(
-    readonly field: string,
-    message: string,
-  ) {
-    super(message);
-  }
-}
-
-const numberText = z
-  .string()
-  .trim()
-  .min(1, 'is required')
-  .regex(/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/, 'must be a number (use a point for decimals, e.g. 0.5)')
-  .transform(Number)
-  .refine(Number.isFinite, 'must be a finite number');
-
-/**
- * Checks raw text values against a calculator's fields; missing values take the defaults.
- * Returns numbers for number fields and the chosen value for choice fields.
- */
-export function parseCalcValues(
-  calc: Calculator,
-  raw: Record<string, string | undefined>,
-): Record<string, number | string> {
-  const out: Record<string, number | string> = {};
-  for (const f of calc.fields) {
-    const text = raw[f.name] ?? f.default;
-    if (f.choices) {
-      if (!f.choices.some((c) => c.value === text))
-        throw new CalcInputError(
-          f.name,
-          `${f.name} must be one of ${f.choices.map((c) => c.value).join(', ')}; got "${text}"`,
-        );
-      out[f.name] = text;
-    } else {
-      const r = numberText.safeParse(text);
-      if (!r.success)
-        throw new CalcInputError(
-          f.name,
-          `${f.name} ${r.error.issues[0]?.message ?? 'is invalid'}; got "${text}"`,
-        );
-      out[f.name] = r.data;
-    }
-  }
-  return out;
-}
-
-/** Runs a calculator on raw text values; a model's range error comes back as a CalcInputError. */
-export function runCalculator(calc: Calculator, raw: Record<string, string | undefined>): CalcResult {
-  const values = parseCalcValues(calc, raw);
-  try {
-    return calc.compute(values);
-  } catch (e) {
-    if (e instanceof ModelInputError) throw new CalcInputError(e.param, e.message);
-    throw e;
-  }
-}
+export {
+  type CalcChoice,
+  type CalcField,
+  CalcInputError,
+  type CalcOutput,
+  type CalcRange,
+  type CalcResult,
+  type Calculator,
+  describeRange,
+  formatCalcValue,
+  parseCalcValues,
+  runCalculator,
+} from './calc-core.ts';
 
 const num = (v: number | string): number => v as number;
+/** ISO 14644-1:2015: classes 1 to 9 (steps of 0.1), sizes 0.1 to 5 µm. */
+const ISO_CLASS_RANGE = { min: 1, max: 9 };
+const ISO_SIZE_RANGE_UM = { min: 0.1, max: 5 };
 const str = (v: number | string): string => v as string;
 
 const classLimit: Calculator = {
@@ -141,25 +54,45 @@ const classLimit: Calculator = {
   symbols: 'Cₙ particles per m³ of size ≥ D; N ISO class (1–9, steps of 0.1); D threshold size in µm (0.1–5)',
   source: 'ISO 14644-1:2015, eq. (1) and Table 1',
   fields: [
-    { name: 'class', label: 'ISO class N', unit: '', default: '5' },
-    { name: 'size', label: 'Particle size D', unit: 'µm', default: '0.5' },
+    { name: 'class', label: 'ISO class N', unit: '', default: '5', range: ISO_CLASS_RANGE },
+    { name: 'size', label: 'Particle size D', unit: 'µm', default: '0.5', range: ISO_SIZE_RANGE_UM },
   ],
-  compute(v) {
-    const d = umToM(num(v.size!));
+  compute(v, text) {
+    // Decided on the decimals typed: a size of whole nanometres is used as exactly that (100 nm,
+    // not 0.1 / 1e6 m = 1.0000000000000001e-7 m), and Table 1 is looked up on the integers.
+    const sizeNm = exactWholeUnits(text.size!, 3);
+    const classInt = exactWholeUnits(text.class!, 0);
+    const d = sizeNm !== null ? sizeNm / 1e9 : umToM(num(v.size!));
     const c = isoClassLimit(num(v.class!), d);
-    const table = Number.isInteger(num(v.class!)) ? isoTable1Value(num(v.class!), d) : null;
+    const cell =
+      classInt !== null && sizeNm !== null && ISO_TABLE1_SIZES_NM.includes(sizeNm)
+        ? isoTable1Cell(classInt, sizeNm)
+        : null;
+    const table: CalcResult['outputs'][number] = cell
+      ? cell.blank
+        ? { label: 'Table 1 value', value: `blank — ${cell.words}`, unit: '' }
+        : { label: 'Table 1 value', value: cell.valuePerM3, unit: 'particles/m³' }
+      : {
+          label: 'Table 1 value',
+          value:
+            classInt === null
+              ? 'none: Table 1 lists whole classes only (the formula applies)'
+              : 'none: Table 1 lists 0.1, 0.2, 0.3, 0.5, 1 and 5 µm only (the formula applies)',
+          unit: '',
+        };
     return {
       outputs: [
         { label: 'Class limit', value: c, unit: 'particles/m³', digits: 6 },
         { label: 'Class limit', value: c * M3_PER_FT3, unit: 'particles/ft³', digits: 4 },
-        {
-          label: 'Table 1 value',
-          value: table ?? 'not tabulated',
-          unit: table === null ? '' : 'particles/m³',
-        },
+        table,
       ],
       notes: [
-        'Table 1 rounds the formula to a whole number with at most three significant figures and leaves some cells not applicable.',
+        'Table 1 rounds the formula to a whole number with at most three significant figures; cells it leaves blank are marked "not applicable" (very high concentration, note c) or "classification inappropriate" (too few particles, notes d and e).',
+        ...(cell && !cell.blank && cell.notes.includes('b')
+          ? [
+              'Table 1 note b: this concentration needs large air sample volumes; sequential sampling (Annex D) may be applied.',
+            ]
+          : []),
       ],
     };
   },
@@ -173,8 +106,8 @@ const sampleVolume: Calculator = {
   symbols: 'V_s sample volume in L; Cₙ,ₘ class limit (particles/m³) at the largest considered size',
   source: 'ISO 14644-1:2015, Annex A.4.4 (as recalled; not re-verified)',
   fields: [
-    { name: 'class', label: 'ISO class N', unit: '', default: '5' },
-    { name: 'size', label: 'Largest considered size', unit: 'µm', default: '0.5' },
+    { name: 'class', label: 'ISO class N', unit: '', default: '5', range: ISO_CLASS_RANGE },
+    { name: 'size', label: 'Largest considered size', unit: 'µm', default: '0.5', range: ISO_SIZE_RANGE_UM },
   ],
   compute(v) {
     const vs = minimumSampleVolumeM3(num(v.class!), umToM(num(v.size!)));
@@ -195,7 +128,15 @@ const locations: Calculator = {
   formula: 'N_L from Table A.1 by area; above 1000 m²: N_L = 27 × A / 1000, rounded up',
   symbols: 'N_L number of locations; A floor area of the cleanroom or clean zone in m²',
   source: 'ISO 14644-1:2015, Annex A, Table A.1 (basis: 95 % confidence that ≥ 90 % of the area complies)',
-  fields: [{ name: 'area', label: 'Floor area A', unit: 'm²', default: '52' }],
+  fields: [
+    {
+      name: 'area',
+      label: 'Floor area A',
+      unit: 'm²',
+      default: '52',
+      range: { min: 0, minExclusive: true, max: 1e7 },
+    },
+  ],
   compute(v) {
     return {
       outputs: [{ label: 'Sampling locations', value: samplingLocations(num(v.area!)), unit: '' }],
@@ -221,17 +162,43 @@ const deposition: Calculator = {
   source:
     'Hinds, Aerosol Technology, 2nd ed. (1999), ch. 3 and 7; stagnation-flow mass transfer (Homann 1936 flow, Lévêque layer)',
   fields: [
-    { name: 'size', label: 'Particle diameter d', unit: 'µm', default: '0.2' },
+    // aerosol.ts: 1 nm – 100 µm, 0 < U ≤ 10 m/s, wafer 0.01–1 m, 1–25 000 kg/m³, 200–500 K, factor 0–100.
+    {
+      name: 'size',
+      label: 'Particle diameter d',
+      unit: 'µm',
+      default: '0.2',
+      range: { min: 0.001, max: 100 },
+    },
     { name: 'orientation', label: 'Wafer surface', unit: '', default: 'faceUp', choices: ORIENTATIONS },
-    { name: 'downflow', label: 'Downflow speed U', unit: 'm/s', default: '0.3' },
-    { name: 'wafer', label: 'Wafer diameter', unit: 'mm', default: '300' },
-    { name: 'density', label: 'Particle density', unit: 'kg/m³', default: '1000' },
-    { name: 'temperature', label: 'Air temperature', unit: '°C', default: '20' },
+    {
+      name: 'downflow',
+      label: 'Downflow speed U',
+      unit: 'm/s',
+      default: '0.3',
+      range: { min: 0, minExclusive: true, max: 10 },
+    },
+    { name: 'wafer', label: 'Wafer diameter', unit: 'mm', default: '300', range: { min: 10, max: 1000 } },
+    {
+      name: 'density',
+      label: 'Particle density',
+      unit: 'kg/m³',
+      default: '1000',
+      range: { min: 1, max: 25000 },
+    },
+    {
+      name: 'temperature',
+      label: 'Air temperature',
+      unit: '°C',
+      default: '20',
+      range: { min: -73.15, max: 226.85 },
+    },
     {
       name: 'charge',
       label: 'Electrostatic factor',
       unit: '×',
       default: '1',
+      range: { min: 0, minExclusive: true, max: 100 },
       help: 'multiplies the diffusive part',
     },
   ],
@@ -279,8 +246,20 @@ const poissonInterval: Calculator = {
   symbols: 'n observed count; α = 1 − confidence; χ²(p; k) the chi-square quantile with k degrees of freedom',
   source: 'Garwood, Biometrika 28 (1936) 437',
   fields: [
-    { name: 'count', label: 'Observed count n', unit: '', default: '10' },
-    { name: 'confidence', label: 'Confidence', unit: '', default: '0.95' },
+    {
+      name: 'count',
+      label: 'Observed count n',
+      unit: '',
+      default: '10',
+      range: { min: 0, max: 1e8, integer: true },
+    },
+    {
+      name: 'confidence',
+      label: 'Confidence',
+      unit: '',
+      default: '0.95',
+      range: { min: 0, minExclusive: true, max: 1, maxExclusive: true },
+    },
   ],
   compute(v) {
     const r = garwoodInterval(num(v.count!), num(v.confidence!));
@@ -302,8 +281,8 @@ const cc1246: Calculator = {
   symbols: 'N particles ≥ x per 0.1 m²; L cleanliness level; x particle size in µm (≥ 1)',
   source: 'IEST-STD-CC1246E, Product Cleanliness Levels',
   fields: [
-    { name: 'level', label: 'Level L', unit: '', default: '100' },
-    { name: 'size', label: 'Particle size x', unit: 'µm', default: '5' },
+    { name: 'level', label: 'Level L', unit: '', default: '100', range: { min: 1, max: 10000 } },
+    { name: 'size', label: 'Particle size x', unit: 'µm', default: '5', range: { min: 1, max: 10000 } },
   ],
   compute(v) {
     const n = cc1246CountPer01m2(num(v.level!), num(v.size!));
@@ -329,6 +308,8 @@ const CONVENTIONS: CalcChoice[] = [
 
 const voidRadiusCalc: Calculator = {
   id: 'void-radius',
+  jointLimits:
+    'the particle height k_h × d must be below the thickness of the thinner flexible plate, and the work of adhesion at most 100 J/m² (W = 2γ with the per-surface convention, so γ at most 50 J/m²)',
   title: 'Void radius around a trapped particle',
   summary: 'The unbonded ring a particle of a given size holds open between two bonded plates.',
   formula:
@@ -338,24 +319,51 @@ const voidRadiusCalc: Calculator = {
   source:
     'Stengl et al., J. Appl. Phys. 65 (1989) 1876 [M]; Tong & Gösele, Semiconductor Wafer Bonding (1999); small-gap closure: voidcast’s own (see docs/models.md)',
   fields: [
-    { name: 'size', label: 'Particle diameter d', unit: 'µm', default: '1' },
+    // void.ts: sizes and thicknesses above 0 and at most 10 mm, E′ ≤ 1e13 Pa, W ≤ 100 J/m², 0 < k_h ≤ 1.
+    {
+      name: 'size',
+      label: 'Particle diameter d',
+      unit: 'µm',
+      default: '1',
+      range: { min: 0, minExclusive: true, max: 10000 },
+    },
     {
       name: 'kh',
       label: 'Height factor k_h',
       unit: '',
       default: '1',
+      range: { min: 0, minExclusive: true, max: 1 },
       help: '1 for compact particles, < 1 for flakes',
     },
     { name: 'model', label: 'Plates', unit: '', default: 'two-plate', choices: VOID_MODELS },
-    { name: 'top', label: 'Top (or die) thickness', unit: 'µm', default: '775' },
-    { name: 'bottom', label: 'Bottom thickness', unit: 'µm', default: '775' },
+    {
+      name: 'top',
+      label: 'Top (or die) thickness',
+      unit: 'µm',
+      default: '775',
+      range: { min: 0, minExclusive: true, max: 10000 },
+    },
+    {
+      name: 'bottom',
+      label: 'Bottom thickness',
+      unit: 'µm',
+      default: '775',
+      range: { min: 0, minExclusive: true, max: 10000 },
+    },
     {
       name: 'modulus',
       label: 'Plate modulus E′',
       unit: 'GPa',
       default: String(SI100_PLATE_MODULUS_PA / 1e9),
+      range: { min: 0, minExclusive: true, max: 10000 },
     },
-    { name: 'energy', label: 'Interface energy', unit: 'J/m²', default: '0.1' },
+    {
+      name: 'energy',
+      label: 'Interface energy',
+      unit: 'J/m²',
+      default: '0.1',
+      range: { min: 0, minExclusive: true, max: 100 },
+    },
     {
       name: 'convention',
       label: 'Energy convention',
@@ -398,6 +406,8 @@ const voidRadiusCalc: Calculator = {
 
 const dieYield: Calculator = {
   id: 'die-yield',
+  jointLimits:
+    'the expected voids per die, λ × critical area, must be at most 1 000 000 (lower the density or the sizes)',
   title: 'Die yield from a void density',
   summary: 'Expected die yield when voids of one radius are spread over the interface at a given density.',
   formula:
@@ -407,11 +417,24 @@ const dieYield: Calculator = {
   source:
     'Critical area: Minkowski sum (hand geometry); negative binomial: Stapper, IBM J. Res. Dev. 27 (1983); Murphy, Proc. IEEE 52 (1964) 1537',
   fields: [
-    { name: 'density', label: 'Void density λ', unit: 'per cm²', default: '0.01' },
-    { name: 'radius', label: 'Void radius R', unit: 'mm', default: '1' },
-    { name: 'width', label: 'Die (pad array) width W', unit: 'mm', default: '10' },
-    { name: 'height', label: 'Die (pad array) height H', unit: 'mm', default: '5' },
-    { name: 'alpha', label: 'Cluster parameter α', unit: '', default: '2' },
+    // yield.ts: lengths 0–1 m, λA ≤ 1e6 per die, 1e-3 ≤ α ≤ 1e12.
+    { name: 'density', label: 'Void density λ', unit: 'per cm²', default: '0.01', range: { min: 0 } },
+    { name: 'radius', label: 'Void radius R', unit: 'mm', default: '1', range: { min: 0, max: 1000 } },
+    {
+      name: 'width',
+      label: 'Die (pad array) width W',
+      unit: 'mm',
+      default: '10',
+      range: { min: 0, max: 1000 },
+    },
+    {
+      name: 'height',
+      label: 'Die (pad array) height H',
+      unit: 'mm',
+      default: '5',
+      range: { min: 0, max: 1000 },
+    },
+    { name: 'alpha', label: 'Cluster parameter α', unit: '', default: '2', range: { min: 0.001, max: 1e12 } },
   ],
   compute(v) {
     const ac = criticalAreaRectangle(mmToM(num(v.width!)), mmToM(num(v.height!)), mmToM(num(v.radius!)));
@@ -448,15 +471,4 @@ export const CALCULATORS: Calculator[] = [
 
 export function findCalculator(id: string): Calculator | undefined {
   return CALCULATORS.find((c) => c.id === id);
-}
-
-/** A number shown with its significant figures, plain text ("3516.76", "3.56e-6"). */
-export function formatCalcValue(o: CalcOutput): string {
-  if (o.value === null) return '—';
-  if (typeof o.value === 'string') return o.value;
-  if (Number.isInteger(o.value) && o.digits === undefined) return o.value.toLocaleString('en-US');
-  const digits = o.digits ?? 4;
-  const a = Math.abs(o.value);
-  if (a !== 0 && (a < 1e-3 || a >= 1e7)) return o.value.toExponential(digits - 1);
-  return Number(o.value.toPrecision(digits)).toLocaleString('en-US', { maximumSignificantDigits: digits });
 }

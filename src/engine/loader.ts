@@ -10,19 +10,27 @@
  */
 import { readCounterSeries } from '../store/counters.ts';
 import type { Db } from '../store/db.ts';
-import { insertDisposition } from '../store/dispositions.ts';
+import { insertDisposition, readDispositions } from '../store/dispositions.ts';
 import { getLocation } from '../store/locations.ts';
 import { listLots, readLot } from '../store/lots.ts';
 import { readProduct } from '../store/products.ts';
 import { latestScanBefore, scanInputOf } from '../store/scans.ts';
+import { installationClockMs } from '../store/settings.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
+import { type AssessedInputs, describeInputsDiff } from './inputs-diff.ts';
 import { assessLotInSession } from './lot.ts';
-import { assessPairInSession, createSession } from './pair.ts';
+import { assessPairInSession, assessPairWithInputs, createSession } from './pair.ts';
 import type { TypedCounterparts } from './parameter-entries.ts';
 import type { ParameterSet, ParameterValues } from './parameter-set-types.ts';
 import { readAdoptedParameterSet } from './parameter-sets.ts';
 import { applyParameterSet } from './parameters.ts';
-import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
+import {
+  hashChangedMessage,
+  prepareSignoff,
+  type SignoffOutcome,
+  type SignoffRecord,
+  type SignoffRequest,
+} from './signoff.ts';
 import type {
   AssessOptions,
   CleanInput,
@@ -381,10 +389,62 @@ export function signOffPairInDb(
   req: SignoffRequest,
   nowMs: number = Date.now(),
 ): { ok: true; record: SignoffRecord; id: number } | Extract<SignoffOutcome, { ok: false }> | null {
-  const current = assessPairFromDb(db, pairId, { asOfMs: req.asOfMs, detail: 'summary' });
+  const current = assessPairWithInputsFromDb(db, pairId, req.asOfMs);
   if (!current) return null;
-  const out = prepareSignoff(current, req, nowMs);
-  if (!out.ok) return out;
+  const out = prepareSignoff(current.assessment, req, nowMs);
+  if (!out.ok) return out.code === 'hash-changed' ? explainHashChange(db, pairId, req, current, out) : out;
   const id = insertDisposition(db, out.record);
   return { ok: true, record: out.record, id };
+}
+
+/** A pair assessed (summary detail) with the record its inputs' hash is computed over, or null. */
+export function assessPairWithInputsFromDb(db: Db, pairId: string, asOfMs: number): AssessedInputs | null {
+  const loaded = loadPair(db, pairId, asOfMs);
+  if (!loaded) return null;
+  return assessPairWithInputs(loaded.pair, createSession(loaded.line), { asOfMs, detail: 'summary' });
+}
+
+/**
+ * Why a sign-off's hash does not match, computed: the pair is assessed on the current data at the
+ * other times an assessment shown to the signer is likely to have used — the installation clock
+ * (the default of `voidcast assess` and of the pages) and the times of the pair's earlier
+ * sign-offs. When one of them has the hash given, the refusal names that time and what differs
+ * between it and the time given (src/engine/inputs-diff.ts); when none does, it says so.
+ */
+function explainHashChange(
+  db: Db,
+  pairId: string,
+  req: SignoffRequest,
+  current: AssessedInputs,
+  out: Extract<SignoffOutcome, { ok: false }>,
+): Extract<SignoffOutcome, { ok: false }> {
+  const tried: { asOfMs: number; what: string }[] = [];
+  const clock = installationClockMs(db);
+  if (clock !== null) tried.push({ asOfMs: clock, what: 'the installation clock' });
+  for (const d of readDispositions(db, 'pair', pairId).reverse())
+    if (!tried.some((t) => t.asOfMs === d.assessedAtMs))
+      tried.push({ asOfMs: d.assessedAtMs, what: `the sign-off #${d.id}` });
+  for (const t of tried.slice(0, 4)) {
+    if (t.asOfMs === req.asOfMs) continue;
+    const other = assessPairWithInputsFromDb(db, pairId, t.asOfMs);
+    if (other?.assessment.inputsHash !== req.inputsHash) continue;
+    const differences = describeInputsDiff(other, current);
+    return {
+      ...out,
+      matchedAsOfMs: t.asOfMs,
+      differences,
+      message: hashChangedMessage(
+        req.asOfMs,
+        current.assessment.inputsHash,
+        { asOfMs: t.asOfMs, differences },
+        tried,
+      ),
+    };
+  }
+  return {
+    ...out,
+    matchedAsOfMs: null,
+    differences: [],
+    message: hashChangedMessage(req.asOfMs, current.assessment.inputsHash, null, tried.slice(0, 4)),
+  };
 }

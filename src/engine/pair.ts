@@ -157,8 +157,19 @@ function physicsOf(session: EngineSession, product: ProductInput, minVoidM: numb
 }
 
 /** Counter samples of the windows a pair's route used (for the inputs' hash). */
-function counterSlices(session: EngineSession, windows: Map<string, [number, number][]>): unknown[] {
-  const out: unknown[] = [];
+/** The counter samples of one location that an assessment read: its exposure windows and the samples in them. */
+export interface CounterSlice {
+  loc: string;
+  ws: [number, number][];
+  channels: Float64Array;
+  start: Float64Array;
+  end: Float64Array;
+  conc: Float64Array;
+  flags: Uint8Array;
+}
+
+function counterSlices(session: EngineSession, windows: Map<string, [number, number][]>): CounterSlice[] {
+  const out: CounterSlice[] = [];
   for (const [loc, ws] of [...windows.entries()].sort((a, b) => a[0].localeCompare(b[0]))) {
     const s = session.line.counters[loc];
     if (!s) continue;
@@ -384,6 +395,35 @@ export function assessPairInSession(
   session: EngineSession,
   opts: AssessOptions,
 ): PairAssessment {
+  return assessPairWithInputs(pair, session, opts).assessment;
+}
+
+/**
+ * What the inputs' hash of a pair assessment is computed over (src/engine/hash.ts): kept so that
+ * a refused sign-off can say which of these parts differ (src/engine/inputs-diff.ts).
+ */
+export interface PairInputsRecord {
+  /** The adopted parameter set's reference and unexplained-void rate; absent with the typed values. */
+  parameters?: { ref: unknown; unexplained: unknown };
+  modelVersion: string;
+  config: AssessConfig;
+  pair: Omit<PairInput, 'top' | 'bottom'> & { top: string; bottom: string };
+  top: PairInput['top'];
+  bottom: PairInput['bottom'];
+  product: ProductInput;
+  tools: Record<string, unknown>;
+  cleans: LineData['cleans'];
+  locations: Record<string, unknown>;
+  counters: CounterSlice[];
+  routeEnd: 'as-of' | number;
+}
+
+/** assessPairInSession, with the record its inputs' hash is computed over. */
+export function assessPairWithInputs(
+  pair: PairInput,
+  session: EngineSession,
+  opts: AssessOptions,
+): { assessment: PairAssessment; inputs: PairInputsRecord } {
   const { line, config: cfg } = session;
   const product = line.products[pair.productId];
   if (!product) throw new EngineInputError(`pair ${pair.pairId}: product "${pair.productId}" is not loaded`);
@@ -591,7 +631,7 @@ export function assessPairInSession(
 
   const notes = props.flatMap((p) => p.notes);
   const parameters = lineParameters(line);
-  const inputsHash = canonicalHash({
+  const inputs: PairInputsRecord = {
     // The adopted set (absent with the typed values, so their hashes stay what they were): its
     // values replaced the typed ones hashed below, and its unexplained-void rate is a source.
     parameters: line.parameters
@@ -611,9 +651,10 @@ export function assessPairInSession(
     counters: counterSlices(session, windows),
     // Before bonding the route ends at the assessment time; after it the bond time fixes it.
     routeEnd: pair.bondTimeMs === null ? 'as-of' : pair.bondTimeMs,
-  });
+  };
+  const inputsHash = canonicalHash(inputs);
 
-  return {
+  const assessment: PairAssessment = {
     pairId: pair.pairId,
     lotId: pair.lotId,
     productId: pair.productId,
@@ -645,6 +686,7 @@ export function assessPairInSession(
     voidMap: detail === 'full' ? buildVoidMap(asIs, product, physics, cfg) : null,
     spectrum: detail === 'full' ? buildSpectrum(asIs, physics) : null,
   };
+  return { assessment, inputs };
 }
 
 /**

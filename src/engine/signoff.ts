@@ -38,7 +38,53 @@ export interface SignoffRecord {
 
 export type SignoffOutcome =
   | { ok: true; record: SignoffRecord }
-  | { ok: false; code: 'hash-changed' | 'invalid'; message: string; currentHash?: string };
+  | {
+      ok: false;
+      code: 'hash-changed' | 'invalid';
+      message: string;
+      currentHash?: string;
+      /**
+       * For 'hash-changed': the assessment time whose assessment of the current data has the hash
+       * given, when one of the times tried has it (see explainHashChange), else null.
+       */
+      matchedAsOfMs?: number | null;
+      /** For 'hash-changed': what differs, one line each (src/engine/inputs-diff.ts). */
+      differences?: string[];
+    };
+
+const isoTime = (ms: number) => new Date(ms).toISOString();
+
+/**
+ * The refusal of a sign-off whose hash is not that of the assessment at the time given, in words:
+ * when another time's assessment of the same data has that hash, the times differ and `differences`
+ * says what that changes; when none does, the data changed since (or the assessment was made at a
+ * time not tried), and the refusal says so without guessing which.
+ *
+ * @param tried the other assessment times tried, with a word for each ("the installation clock")
+ */
+export function hashChangedMessage(
+  givenAsOfMs: number,
+  currentHash: string,
+  matched: { asOfMs: number; differences: string[] } | null,
+  tried: { asOfMs: number; what: string }[],
+): string {
+  if (matched) {
+    const diffs = matched.differences.filter((d) => !d.startsWith('the assessment time:'));
+    return (
+      `The inputs' hash given is that of the assessment as of ${isoTime(matched.asOfMs)}, not of the one as of ` +
+      `${isoTime(givenAsOfMs)} (the time given; its hash is ${currentHash}). The data are the same; between the two times ` +
+      `${diffs.length ? `these differ: ${diffs.join('; ')}` : 'the assessment time alone differs'}. ` +
+      `Sign with the assessment time ${isoTime(matched.asOfMs)}, or review the assessment as of ${isoTime(givenAsOfMs)} and sign its hash.`
+    );
+  }
+  const others = tried.filter((t) => t.asOfMs !== givenAsOfMs);
+  return (
+    `The inputs' hash given is not that of the assessment of the current data as of ${isoTime(givenAsOfMs)} ` +
+    `(its hash is ${currentHash})${others.length ? `, nor as of ${others.map((t) => `${t.what} ${isoTime(t.asOfMs)}`).join(' or ')}` : ''}. ` +
+    'Either data it rests on were imported since it was made (scans, counter samples, the route, tools, cleans, ' +
+    'locations, the product or its spec) or it was made at another assessment time: review the current assessment before signing.'
+  );
+}
 
 const CALLS: readonly Call[] = ['bond', 're-clean', 'hold'];
 

@@ -46,6 +46,21 @@ export class ImportFileError extends Error {
   override readonly name = 'ImportFileError';
 }
 
+/** Why a file could not be read, in words (the system's code in brackets). */
+function readProblem(e: unknown): string {
+  const code = (e as NodeJS.ErrnoException).code;
+  const words: Record<string, string> = {
+    ENOENT: 'no such file',
+    EACCES: 'permission denied',
+    EPERM: 'permission denied',
+    EISDIR: 'it is a folder, not a file',
+    ENOTDIR: 'a part of the path is not a folder',
+    ELOOP: 'too many symbolic links',
+    ENAMETOOLONG: 'the path is too long',
+  };
+  return code ? `${words[code] ?? 'the system refused'} (${code})` : String(e);
+}
+
 /** sha256 of a file's bytes, hex, streamed. */
 export async function sha256File(path: string): Promise<string> {
   const h = createHash('sha256');
@@ -76,7 +91,7 @@ export async function importFile(db: Db, opts: ImportOptions): Promise<ImportRep
     bytes = st.size;
   } catch (e) {
     if (e instanceof ImportFileError) throw e;
-    throw new ImportFileError(`cannot read ${opts.path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+    throw new ImportFileError(`cannot read ${opts.path}: ${readProblem(e)}`);
   }
   const sha256 = await sha256File(opts.path);
   return importSource(db, kind, {

@@ -22,6 +22,26 @@ export class ModelInputError extends Error {
   }
 }
 
+/** Unit words a parameter name ends with (heightM, diameterUm, workOfAdhesionJm2): dropped in plain words. */
+const UNIT_SUFFIX = /(M|Um|Nm|Mm|Pa|Jm2|Mps|K|S|Ms|M2|M3|PerM3|PerM2|KgM3|Nm)$/;
+
+/**
+ * A model's range error in words a person reads, without the model's function or parameter
+ * identifiers: "expected defects = 17431442557 defects per die is out of range; allowed ≥ 0 …".
+ *
+ * @example plainModelError(new ModelInputError('voidRadius', 'heightM', 'm', '> 0 m', -1))
+ *   // 'height = -1 m is out of range; allowed > 0 m'
+ */
+export function plainModelError(e: ModelInputError): string {
+  const last = e.param.split('.').pop() ?? e.param;
+  const bare = last.replace(/\[\d+\]/g, '').replace(UNIT_SUFFIX, '') || last;
+  const words = bare
+    .replace(/([a-z0-9])([A-Z])/g, '$1 $2')
+    .toLowerCase()
+    .trim();
+  return `${words} = ${formatValue(e.value)}${e.unit ? ` ${e.unit}` : ''} is out of range; allowed ${e.allowed}`;
+}
+
 function formatValue(v: unknown): string {
   if (typeof v === 'number') return Number.isNaN(v) ? 'NaN' : String(v);
   if (typeof v === 'string') return JSON.stringify(v);

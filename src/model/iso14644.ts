@@ -67,41 +67,136 @@ export function roundIsoLimit(valuePerM3: number): number {
   return Math.round(v / step) * step;
 }
 
-/** The six threshold sizes of ISO 14644-1:2015 Table 1, in metres. */
-export const ISO_TABLE1_SIZES_M: readonly number[] = [0.1e-6, 0.2e-6, 0.3e-6, 0.5e-6, 1e-6, 5e-6];
+/**
+ * The six threshold sizes of ISO 14644-1:2015 Table 1 in nanometres (0.1, 0.2, 0.3, 0.5, 1 and
+ * 5 µm), exact integers: which column a size falls in is decided on these, never on a size that
+ * went through a floating-point unit conversion (0.1 µm / 1e6 is 1.0000000000000001e-7 m).
+ */
+export const ISO_TABLE1_SIZES_NM: readonly number[] = [100, 200, 300, 500, 1000, 5000];
+
+/** The six threshold sizes of ISO 14644-1:2015 Table 1, in metres (nm / 1e9, correctly rounded). */
+export const ISO_TABLE1_SIZES_M: readonly number[] = ISO_TABLE1_SIZES_NM.map((nm) => nm / 1e9);
 
 /**
- * A cell of ISO 14644-1:2015 Table 1: the rounded class limit, or null where the table says the
- * classification is not applicable.
+ * The footnotes of ISO 14644-1:2015 Table 1 that mark its cells (the standard's letters):
+ *   b  "These concentrations will lead to large air sample volumes for classification.
+ *       Sequential sampling procedure may be applied; see Annex D."            (on a value)
+ *   c  "Concentration limits are not applicable in this region of the table due to very high
+ *       particle concentration."                                                (a blank cell)
+ *   d  "Sampling and statistical limitations for particles in low concentrations make
+ *       classification inappropriate."                                          (a blank cell)
+ *   e  "Sample collection limitations for both particles in low concentrations and sizes
+ *       greater than 1 µm make classification at this particle size inappropriate, due to
+ *       potential particle losses in the sampling system."                     (a blank cell)
+ *   f  "In order to specify this particle size in association with ISO Class 5, the macroparticle
+ *       descriptor M may be adapted and used in conjunction with at least one other particle
+ *       size (see C.7)."                                                        (class 5 at 5 µm)
+ * Wording as recalled from the standard [M]; which cells carry them is in ISO_TABLE1_NOTES.
+ */
+export type IsoTable1Note = 'b' | 'c' | 'd' | 'e' | 'f';
+
+/**
+ * The notes of every cell of ISO 14644-1:2015 Table 1, rows class 1–9, columns the six sizes
+ * (ISO_TABLE1_SIZES_NM). A cell is blank exactly when it carries c, d or e; b marks a value.
+ * Rows of classes 3, 5 and 7 are [V] for which cells are blank; the letters and the other rows
+ * are as recalled from the standard [M]. The blank cells are a decision of the standard, written
+ * here as it prints them, not derived: the formula would give class 5 at 5 µm = 29 (printed in the
+ * 1999 edition) and class 7 at 0.3 µm = 10 200 000.
+ */
+export const ISO_TABLE1_NOTES: readonly (readonly (readonly IsoTable1Note[])[])[] = [
+  /* class 1 */ [['b'], ['d'], ['d'], ['d'], ['d'], ['e']],
+  /* class 2 */ [[], ['b'], ['b'], ['d'], ['d'], ['e']],
+  /* class 3 */ [[], [], [], ['b'], ['d'], ['e']],
+  /* class 4 */ [[], [], [], [], ['b'], ['e']],
+  /* class 5 */ [[], [], [], [], [], ['d', 'e', 'f']],
+  /* class 6 */ [[], [], [], [], [], []],
+  /* class 7 */ [['c'], ['c'], ['c'], [], [], []],
+  /* class 8 */ [['c'], ['c'], ['c'], [], [], []],
+  /* class 9 */ [['c'], ['c'], ['c'], [], [], []],
+];
+
+/** A cell of ISO 14644-1:2015 Table 1: its printed value, or a blank cell with the reason. */
+export type IsoTable1Cell =
+  | { blank: false; valuePerM3: number; notes: readonly IsoTable1Note[] }
+  | { blank: true; notes: readonly IsoTable1Note[]; words: string };
+
+const BLANK_WORDS: Record<'c' | 'd' | 'e', string> = {
+  c: 'not applicable: the particle concentration is very high (Table 1 note c)',
+  d: 'classification inappropriate: too few particles for sampling and statistics (Table 1 note d)',
+  e: 'classification inappropriate at this size: few particles above 1 µm and their losses in sampling (Table 1 note e)',
+};
+
+/**
+ * A cell of ISO 14644-1:2015 Table 1 on exact inputs: an integer class and a size in whole
+ * nanometres. The value is the formula on the exact ratio 100 nm / D, C = 10^N (100/D_nm)^2.08,
+ * rounded as the table prints it (roundIsoLimit); a blank cell says what the standard calls it —
+ * "not applicable" (note c) or "classification inappropriate" (notes d, e) — and why.
  *
- * The n/a pattern of the 2015 table, reproduced by three rules [D from the table; cells of classes
- * 3, 5, 7 are [V], the others [M]]:
- *   1. limit below 10 particles/m³ (class 1 at ≥ 0.2 µm, class 2 at ≥ 0.5 µm, class 3 at 1 µm, …):
- *      too few particles for a statistically meaningful count;
- *   2. D = 5 µm for classes 1–5 (the 1999 edition still printed class 5 at 5 µm = 29): sampling
- *      losses of large particles at low concentration — the M descriptor (Annex C) covers them;
- *   3. D < 0.5 µm for classes 7–9: concentrations so high that counters are in coincidence.
- * Rule 2 and rule 3 are stated as the table's pattern; its footnotes give the reasons above [M].
+ * @param classN integer 1–9
+ * @param sizeNm one of 100, 200, 300, 500, 1000, 5000 (nm)
+ * @throws ModelInputError when classN is not an integer 1–9 or sizeNm is not a Table 1 column
+ * @example isoTable1Cell(1, 100) // { blank: false, valuePerM3: 10, notes: ['b'] }
+ * @example isoTable1Cell(7, 100).words // 'not applicable: the particle concentration is very high (Table 1 note c)'
+ */
+export function isoTable1Cell(classN: number, sizeNm: number): IsoTable1Cell {
+  const fn = 'isoTable1Cell';
+  const n = requireNumber(fn, 'classN', classN, '', { min: 1, max: 9, integer: true });
+  const col = ISO_TABLE1_SIZES_NM.indexOf(sizeNm);
+  if (col < 0)
+    throw new ModelInputError(fn, 'sizeNm', 'nm', 'one of 100, 200, 300, 500, 1000, 5000 nm', sizeNm);
+  const notes = ISO_TABLE1_NOTES[n - 1]![col]!;
+  const blankNotes = notes.filter((x): x is 'c' | 'd' | 'e' => x === 'c' || x === 'd' || x === 'e');
+  if (blankNotes.length > 0) {
+    // The most specific reason first: e (size) before d (low concentration); f adds the M descriptor.
+    const main = blankNotes.includes('e') ? 'e' : blankNotes[0]!;
+    const words =
+      BLANK_WORDS[main] +
+      (notes.includes('f')
+        ? '; the macroparticle descriptor M may be used instead (Table 1 note f, C.7)'
+        : '');
+    return { blank: true, notes, words };
+  }
+  return { blank: false, valuePerM3: roundIsoLimit(10 ** n * (100 / sizeNm) ** 2.08), notes };
+}
+
+/**
+ * The Table 1 column of a size in metres, in whole nanometres, or null when the size is not one
+ * of the six columns. The size is matched to the nearest whole nanometre with a relative
+ * tolerance of 1e-9 — far wider than the 1e-16 a unit conversion's rounding moves a size, far
+ * narrower than any two sizes a counter reports — so 0.1 µm converted to m (1.0000000000000001e-7)
+ * is the 100 nm column.
+ *
+ * @example isoTable1ColumnNm(0.1 / 1e6) // 100
+ * @example isoTable1ColumnNm(4e-7) // null
+ */
+export function isoTable1ColumnNm(diameterM: number): number | null {
+  const d = requireNumber('isoTable1ColumnNm', 'diameterM', diameterM, 'm', { min: 0, minExclusive: true });
+  const nm = Math.round(d * 1e9);
+  return ISO_TABLE1_SIZES_NM.includes(nm) && Math.abs(nm / 1e9 - d) <= 1e-9 * d ? nm : null;
+}
+
+/**
+ * A cell of ISO 14644-1:2015 Table 1 for a size in metres: the printed value, or null for a blank
+ * cell (isoTable1Cell says which and why). The size is matched to its column by
+ * isoTable1ColumnNm, so a size that went through a unit conversion finds its column exactly.
  * Only integer classes are tabulated in Table 1 (intermediate classes are in Table E.1, not
  * reproduced here); use isoClassLimit and roundIsoLimit for those.
  *
  * @param classN integer 1–9
  * @param diameterM one of ISO_TABLE1_SIZES_M (0.1, 0.2, 0.3, 0.5, 1, 5 µm), matched to 1e-9 relative
- * @returns the Table 1 value in particles per m³, or null for a not-applicable cell
+ * @returns the Table 1 value in particles per m³, or null for a blank cell
  * @throws ModelInputError when classN is not an integer 1–9 or diameterM is not a Table 1 size
- * @example isoTable1Value(5, 0.5e-6) // 3520;  isoTable1Value(7, 0.1e-6) // null
+ * @example isoTable1Value(5, 0.5e-6) // 3520;  isoTable1Value(1, 0.1 / 1e6) // 10;  isoTable1Value(7, 0.1e-6) // null
  */
 export function isoTable1Value(classN: number, diameterM: number): number | null {
   const fn = 'isoTable1Value';
-  const n = requireNumber(fn, 'classN', classN, '', { min: 1, max: 9, integer: true });
+  requireNumber(fn, 'classN', classN, '', { min: 1, max: 9, integer: true });
   const d = requireIsoSize(fn, 'diameterM', diameterM);
-  if (!ISO_TABLE1_SIZES_M.some((s) => Math.abs(s - d) <= 1e-9 * s))
+  const nm = isoTable1ColumnNm(d);
+  if (nm === null)
     throw new ModelInputError(fn, 'diameterM', 'm', 'one of 1e-7, 2e-7, 3e-7, 5e-7, 1e-6, 5e-6 m', diameterM);
-  const exact = isoClassLimit(n, d);
-  if (exact < 10) return null;
-  if (d > 4e-6 && n <= 5) return null;
-  if (d < 0.45e-6 && n >= 7) return null;
-  return roundIsoLimit(exact);
+  const cell = isoTable1Cell(classN, nm);
+  return cell.blank ? null : cell.valuePerM3;
 }
 
 /**

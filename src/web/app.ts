@@ -7,9 +7,11 @@ import { createRequire } from 'node:module';
 import { Hono } from 'hono';
 import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
+import { ModelInputError, plainModelError } from '../model/errors.ts';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
-import { renderPage } from './render.ts';
+import { BadParamError } from './params.ts';
+import { isFragmentRequest, renderPage } from './render.ts';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
@@ -81,6 +83,33 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
     ),
   );
   app.onError((err, c) => {
+    // A bad request parameter (src/web/params.ts): 400 with the reason, in the form the caller reads.
+    if (err instanceof BadParamError) {
+      const status = err.status;
+      if (c.req.path.startsWith('/api/'))
+        return c.json({ error: status === 404 ? 'not found' : 'bad request', detail: err.message }, status);
+      const body = MessagePage({
+        code: String(status),
+        heading: status === 404 ? 'Nothing here' : 'A value in this request cannot be used',
+        detail: err.message,
+      });
+      if (isFragmentRequest(c)) return c.html(String(body), status);
+      return renderPage(
+        c,
+        ctx,
+        { title: status === 404 ? 'Not found' : 'Bad request', active: '', body },
+        status,
+      );
+    }
+    // A model's range error reached the page: the data cannot be assessed; say why in plain words.
+    if (err instanceof ModelInputError) {
+      ctx.log(`WARN ${c.req.method} ${c.req.path}: ${err.message}`);
+      const detail = `A computed quantity is outside its model's range (${plainModelError(err)}). Check the data and the assessment time.`;
+      if (c.req.path.startsWith('/api/')) return c.json({ error: 'cannot be assessed', detail }, 422);
+      const body = MessagePage({ code: '422', heading: 'These data cannot be assessed', detail });
+      if (isFragmentRequest(c)) return c.html(String(body), 422);
+      return renderPage(c, ctx, { title: 'Cannot be assessed', active: '', body }, 422);
+    }
     // The stack goes to the log for the operator, never to the browser.
     ctx.log(
       `ERROR ${c.req.method} ${c.req.path}: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`,

@@ -56,7 +56,7 @@ describe.skipIf(!run)('the app shell in Chromium', () => {
     await page.fill('#class-limit-size', 'abc');
     await page.waitForSelector('#calc-class-limit-result [role="alert"]');
     expect(await page.locator('#calc-class-limit-result [role="alert"]').textContent()).toContain(
-      'size must be a number',
+      'Particle size D must be a number',
     );
     await page.screenshot({ path: screenshotPath('calculators-error'), fullPage: false });
   });

@@ -256,7 +256,9 @@ describe('voidcast assess / signoff', () => {
         b.io,
       ),
     ).toBe(3);
-    expect(b.err.join('')).toMatch(/refused: The inputs changed/);
+    expect(b.err.join('')).toMatch(
+      /refused: The inputs' hash given is not that of the assessment of the current data as of /,
+    );
   });
 
   it('reports a missing database, an unknown lot and a bad option', async () => {

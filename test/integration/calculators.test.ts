@@ -46,9 +46,47 @@ describe('voidcast calc', () => {
     expect(r.source).toContain('ISO 14644-1:2015');
   });
 
-  it('class-limit: ISO 7 at 0.1 µm is not tabulated (ISO 14644-1:2015 Table 1)', async () => {
+  it('class-limit: ISO 7 at 0.1 µm is a blank cell, "not applicable" (ISO 14644-1:2015 Table 1 note c)', async () => {
     const r = await calcJson(['class-limit', '--class', '7', '--size', '0.1']);
-    expect(r.outputs[2]!.value).toBe('not tabulated');
+    expect(r.outputs[2]!.value).toBe(
+      'blank — not applicable: the particle concentration is very high (Table 1 note c)',
+    );
+  });
+
+  it('class-limit: every Table 1 cell typed as the decimals a person writes (ISO 14644-1:2015 Table 1; rows 3, 5, 7 [V], others from memory [M])', async () => {
+    // Printed values; null = blank cell (c: not applicable; d, e: classification inappropriate).
+    const table: Record<number, (number | null)[]> = {
+      1: [10, null, null, null, null, null],
+      2: [100, 24, 10, null, null, null],
+      3: [1000, 237, 102, 35, null, null],
+      4: [10000, 2370, 1020, 352, 83, null],
+      5: [100000, 23700, 10200, 3520, 832, null],
+      6: [1000000, 237000, 102000, 35200, 8320, 293],
+      7: [null, null, null, 352000, 83200, 2930],
+      8: [null, null, null, 3520000, 832000, 29300],
+      9: [null, null, null, 35200000, 8320000, 293000],
+    };
+    const sizes = ['0.1', '0.2', '0.3', '0.5', '1', '5'];
+    for (let n = 1; n <= 9; n++)
+      for (const [j, size] of sizes.entries()) {
+        // the same size written three ways: plain, with trailing zeros, in exponent form
+        for (const typed of [size, `${size}${size.includes('.') ? '' : '.'}00`, `${Number(size) * 10}e-1`]) {
+          const r = await calcJson(['class-limit', '--class', String(n), '--size', typed]);
+          const want = table[n]![j]!;
+          if (want === null)
+            expect(r.outputs[2]!.value, `class ${n} at ${typed} µm`).toMatch(
+              /^blank — (not applicable|classification inappropriate)/,
+            );
+          else expect(r.outputs[2]!.value, `class ${n} at ${typed} µm`).toBe(want);
+        }
+      }
+    // Between the columns and for fractional classes Table 1 has no entry: the formula applies.
+    expect((await calcJson(['class-limit', '--class', '5', '--size', '0.4'])).outputs[2]!.value).toMatch(
+      /^none: Table 1 lists 0\.1, 0\.2/,
+    );
+    expect((await calcJson(['class-limit', '--class', '5.5', '--size', '0.5'])).outputs[2]!.value).toMatch(
+      /^none: Table 1 lists whole classes/,
+    );
   });
 
   it('sample-volume: ISO 5 at 0.5 µm needs 5.69 L (20/C_n × 1000 L, ISO 14644-1:2015 A.4.4)', async () => {
@@ -121,11 +159,48 @@ describe('voidcast calc', () => {
     expect(t.out()).toContain('source:  ISO 14644-1:2015');
   });
 
-  it('rejects a value out of the model range with exit 2 and the rule', async () => {
+  it('rejects a value out of range with exit 2, naming the option, its label and its range', async () => {
     const t = cli();
     expect(await main(['calc', 'class-limit', '--class', '12'], t.io)).toBe(2);
     expect(t.err().split('\n')[0]).toBe(
-      'voidcast calc class-limit: isoClassLimit: classN = 12 is out of range; allowed ≥ 1 and ≤ 9',
+      'voidcast calc class-limit: --class (ISO class N) must be at least 1 and at most 9; got 12',
+    );
+  });
+
+  it('a negative number is read as the value it is and refused by its rule, not as an option', async () => {
+    const t = cli();
+    expect(await main(['calc', 'void-radius', '--size', '-1'], t.io)).toBe(2);
+    expect(t.err().split('\n')[0]).toBe(
+      'voidcast calc void-radius: --size (Particle diameter d) must be positive and at most 10000 µm; got -1',
+    );
+    const u = cli();
+    expect(await main(['calc', 'deposition-velocity', '--temperature', '-20'], u.io)).toBe(0);
+  });
+
+  it('never shows a model function or parameter name: every field beyond its range, every calculator', async () => {
+    for (const c of CALCULATORS)
+      for (const f of c.fields) {
+        if (!f.range) continue;
+        for (const bad of ['-1e9', '1e300', f.range.integer ? '0.5' : null].filter((x) => x !== null)) {
+          const t = cli();
+          const code = await main(['calc', c.id, `--${f.name}`, bad as string], t.io);
+          if (code === 0) continue; // within range for this field (e.g. a density may be large)
+          expect(code).toBe(2);
+          const line = t.err().split('\n')[0]!;
+          expect(line, `${c.id} --${f.name} ${bad}`).toMatch(
+            new RegExp(`^voidcast calc ${c.id}: (--${f.name} \\(|These inputs together)`),
+          );
+          // internal names look like camelCase identifiers followed by ':' or ' = ' (isoClassLimit: classN = …)
+          expect(line).not.toMatch(/[a-z]+[A-Z][A-Za-z]*(:| =)/);
+        }
+      }
+  });
+
+  it('a combination the model refuses is explained in words, not by the model function', async () => {
+    const t = cli();
+    expect(await main(['calc', 'void-radius', '--size', '1000', '--top', '500'], t.io)).toBe(2);
+    expect(t.err().split('\n')[0]).toBe(
+      'voidcast calc void-radius: These inputs together are outside the range the model accepts: the particle height k_h × d must be below the thickness of the thinner flexible plate, and the work of adhesion at most 100 J/m² (W = 2γ with the per-surface convention, so γ at most 50 J/m²).',
     );
   });
 
@@ -133,7 +208,7 @@ describe('voidcast calc', () => {
     const t = cli();
     expect(await main(['calc', 'class-limit', '--size', '0,5'], t.io)).toBe(2);
     expect(t.err().split('\n')[0]).toBe(
-      'voidcast calc class-limit: size must be a number (use a point for decimals, e.g. 0.5); got "0,5"',
+      'voidcast calc class-limit: --size (Particle size D) must be a number (use a point for decimals, e.g. 0.5); got "0,5"',
     );
     const u = cli();
     expect(await main(['calc', 'frobnicate'], u.io)).toBe(2);
@@ -142,6 +217,19 @@ describe('voidcast calc', () => {
 });
 
 describe('Calculators page', () => {
+  it('shows ISO 14644-1 Table 1 class 1 at 0.1 µm as 10, and a blank cell with what the standard calls it (Table 1 and its notes)', async () => {
+    const cell = async (q: string) => {
+      const html = await (await app().request(`/calculators/class-limit/result?${q}`)).text();
+      return /Table 1 value[\s\S]*?<\/dd>|Table 1 value[\s\S]{0,400}/
+        .exec(html)![0]
+        .replace(/<[^>]+>/g, ' ')
+        .replace(/\s+/g, ' ');
+    };
+    expect(await cell('class=1&size=0.1')).toContain('10 particles/m³');
+    expect(await cell('class=7&size=0.1')).toContain('blank — not applicable');
+    expect(await cell('class=1&size=0.2')).toContain('blank — classification inappropriate');
+  });
+
   it('renders every calculator with its formula and source', async () => {
     const res = await app().request('/calculators');
     expect(res.status).toBe(200);

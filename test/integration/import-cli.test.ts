@@ -93,7 +93,7 @@ describe('voidcast import', () => {
         t.io,
       ),
     ).toBe(1);
-    expect(t.err()).toBe(`voidcast import: cannot read ${join(FIX, 'nowhere.csv')}: ENOENT\n`);
+    expect(t.err()).toBe(`voidcast import: cannot read ${join(FIX, 'nowhere.csv')}: no such file (ENOENT)\n`);
     const u = io();
     expect(await main(['import', 'locatoins', 'x.csv', '--data', data], u.io)).toBe(2);
     expect(u.err().split('\n')[0]).toBe(

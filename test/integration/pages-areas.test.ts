@@ -113,9 +113,11 @@ describe('GET /areas/trend', () => {
     expect(res.headers.get('location')).toBe('/areas?location=me-1&window=24h#trend-panel');
   });
 
-  it('says so when asked for an unknown location, falling back to a known one', async () => {
+  it('answers 404 naming the unknown location asked for, shown escaped', async () => {
     const res = await app.request('/areas?location=%3Cnope%3E');
-    expect(res.status).toBe(200);
-    expect(await res.text()).not.toContain('<nope>');
+    expect(res.status).toBe(404);
+    const html = await res.text();
+    expect(html).not.toContain('<nope>');
+    expect(html).toContain('there is no location &quot;&lt;nope&gt;&quot;');
   });
 });

@@ -180,7 +180,9 @@ describe('POST /pairs/:id/signoff', () => {
     });
     expect(res.status).toBe(409);
     const html = await res.text();
-    expect(html).toContain('The inputs changed since this assessment');
+    expect(html).toContain(
+      'The inputs&#39; hash given is not that of the assessment of the current data as of',
+    );
     expect(readDispositions(db, 'pair', 'P-01')).toHaveLength(0);
   });
 

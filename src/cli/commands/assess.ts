@@ -4,6 +4,7 @@
 
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
+import { parseAsOfText } from '../../engine/as-of.ts';
 import { fmtCount, fmtCountBound, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { assessPairFromDb } from '../../engine/loader.ts';
 import { assessLotFromDbParallel } from '../../engine/parallel.ts';
@@ -15,17 +16,15 @@ import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
 
-/** Parses --as-of: an ISO 8601 time with a zone (Z or ±hh:mm) or UTC milliseconds; default now. */
+/**
+ * Parses --as-of: UTC ms or an ISO 8601 time with its zone, from 1970 up to 2100 (src/engine/as-of.ts,
+ * the same rule as the pages' ?asOf=); `nowMs` when not given.
+ */
 export function parseAsOf(value: string | undefined, nowMs: number): number {
   if (value === undefined) return nowMs;
-  if (/^\d{10,}$/.test(value)) return Number(value);
-  if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(value))
-    throw new UsageError(
-      `--as-of must be UTC milliseconds or an ISO 8601 time with its zone (Z or ±hh:mm), got "${value}"`,
-    );
-  const t = Date.parse(value);
-  if (!Number.isFinite(t)) throw new UsageError(`--as-of is not a valid time: "${value}"`);
-  return t;
+  const r = parseAsOfText(value);
+  if (!r.ok) throw new UsageError(`--as-of ${r.reason}`);
+  return r.ms;
 }
 
 export function openExisting(dataFlag: string | undefined, io: CliIo) {
@@ -173,9 +172,12 @@ export const assess: Command = {
   --lot ID     assess every pair of the lot
   --pair ID    assess one pair in full (sources, Paretos, re-clean before/after)
   --json       print the assessment as JSON (the same document as the JSON API)
-  --as-of T    assessment time: ISO 8601 with zone, or UTC ms (default: the installation clock
-               setting clock.as_of when set, as the demo does, else now)
-  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)`,
+  --as-of T    assessment time: ISO 8601 with zone, or UTC ms, from 1970 up to 2100 (default: the
+               installation clock setting clock.as_of when set, as the demo does, else now)
+  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
+
+  exit codes: 0 assessed, 2 usage (a bad option or --as-of), 4 no database, or no such lot or pair,
+  1 the data cannot be assessed (the message says what is missing)`,
   async run(argv, io) {
     const { values } = parseOptions(argv, {
       lot: { type: 'string' },

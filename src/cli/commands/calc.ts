@@ -2,6 +2,7 @@ import {
   CALCULATORS,
   CalcInputError,
   type Calculator,
+  describeRange,
   findCalculator,
   formatCalcValue,
   runCalculator,
@@ -19,8 +20,12 @@ function calcUsage(c: Calculator): string {
     `  source: ${c.source}`,
     '',
     ...c.fields.map(
-      (f) => `  --${f.name.padEnd(w)}  ${f.label}${f.unit ? ` (${f.unit})` : ''}, default ${f.default}`,
+      (f) =>
+        `  --${f.name.padEnd(w)}  ${f.label}${f.unit ? ` (${f.unit})` : ''}, default ${f.default}${f.range ? `; ${describeRange(f.range, f.unit)}` : ''}`,
     ),
+    ...(c.jointLimits ? ['', `  together: ${c.jointLimits}`] : []),
+    '',
+    '  exit codes: 0 computed, 2 a bad option or value (the message names the option and its range)',
   ].join('\n');
 }
 
@@ -32,6 +37,8 @@ const listUsage = (): string =>
     ...CALCULATORS.map((c) => `  ${c.id.padEnd(20)}  ${c.title}`),
     '',
     'voidcast calc <calculator> --help   shows its inputs, formula and source',
+    '',
+    '  exit codes: 0 computed, 2 a bad option or value (the message names the option and its range)',
   ].join('\n');
 
 export const calc: Command = {
@@ -48,7 +55,15 @@ export const calc: Command = {
     if (!c) throw new UsageError(`unknown calculator "${id}"`);
     const options: Record<string, { type: 'string' | 'boolean' }> = { json: { type: 'boolean' } };
     for (const f of c.fields) options[f.name] = { type: 'string' };
-    const values = parseOptions(rest, options).values as Record<string, string | boolean | undefined>;
+    let values: Record<string, string | boolean | undefined>;
+    try {
+      values = parseOptions(rest, options).values as Record<string, string | boolean | undefined>;
+    } catch (e) {
+      if (!(e instanceof UsageError)) throw e;
+      // The calculator is known: show its own options, not the list of calculators.
+      io.err(`voidcast calc ${c.id}: ${e.message}\nusage: ${calcUsage(c)}\n`);
+      return EXIT.usage;
+    }
     const raw: Record<string, string | undefined> = {};
     for (const f of c.fields) raw[f.name] = values[f.name] as string | undefined;
     let result: ReturnType<typeof runCalculator>;
@@ -56,7 +71,9 @@ export const calc: Command = {
       result = runCalculator(c, raw);
     } catch (e) {
       if (e instanceof CalcInputError) {
-        io.err(`voidcast calc ${c.id}: ${e.message}\nusage: ${calcUsage(c)}\n`);
+        // In the user's terms: the option typed, its label and the rule with its unit.
+        const what = e.field ? `--${e.field} (${e.subject})` : e.subject;
+        io.err(`voidcast calc ${c.id}: ${what} ${e.rule}\nusage: ${calcUsage(c)}\n`);
         return EXIT.usage;
       }
       throw e;

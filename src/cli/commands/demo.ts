@@ -17,7 +17,9 @@ export const demo: Command = {
   usage: `voidcast demo load [--data DIR] [--from DIR]
 
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
-  --from DIR   the demo files (default: sample-counts/ of this installation)`,
+  --from DIR   the demo files (default: sample-counts/ of this installation)
+
+  exit codes: 0 loaded (or already there), 2 usage, 1 the demo files cannot be read`,
   async run(argv, io) {
     const { values, positionals } = parseOptions(
       argv,

@@ -20,7 +20,9 @@ export const serve: Command = {
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
-  --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)`,
+  --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)
+
+  exit codes: 0 stopped with Ctrl+C or SIGTERM, 2 a bad option or port, 1 cannot start (e.g. port taken)`,
   async run(argv, io) {
     const { values } = parseOptions(argv, {
       port: { type: 'string' },
@@ -51,8 +53,9 @@ export const serve: Command = {
           }
         : undefined,
     });
-    io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
-    await new Promise<void>((done) => {
+    // The signal handlers go in before the address is printed: whoever reads that line may stop the
+    // server at once, and a signal with no handler would kill it without closing the database.
+    const stopped = new Promise<void>((done) => {
       const stop = () => {
         process.off('SIGINT', stop);
         process.off('SIGTERM', stop);
@@ -61,6 +64,8 @@ export const serve: Command = {
       process.on('SIGINT', stop);
       process.on('SIGTERM', stop);
     });
+    io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
+    await stopped;
     return EXIT.ok;
   },
 };

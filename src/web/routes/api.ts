@@ -6,8 +6,8 @@
  *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
  *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
  *
- * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default the installation
- * clock (settings clock.as_of), else now. Errors are JSON
+ * `?asOf=` (UTC ms or ISO 8601 with its zone, 1970 up to 2100; src/engine/as-of.ts) fixes the
+ * assessment time; default the installation clock (settings clock.as_of), else now. Errors are JSON
  * {error, detail} with 400 (bad request), 404 (unknown id), 409 (inputs changed since the assessment
  * that is being signed); never a stack trace.
  */
@@ -18,16 +18,11 @@ import type { Call } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
+import { asOfValue, queryAsOf, queryChoice } from '../params.ts';
 
-/** ?asOf=, else the installation clock (settings clock.as_of), else now. */
-function asOfFrom(c: Context, db: Db): number | { error: string } {
-  const v = c.req.query('asOf');
-  if (v === undefined || v === '') return installationClockMs(db) ?? Date.now();
-  if (/^\d{10,}$/.test(v)) return Number(v);
-  if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(v))
-    return { error: 'asOf must be UTC milliseconds or ISO 8601 with its zone' };
-  const t = Date.parse(v);
-  return Number.isFinite(t) ? t : { error: `asOf is not a valid time: ${v}` };
+/** ?asOf=, else the installation clock (settings clock.as_of), else now; a bad value is a 400. */
+function asOfFrom(c: Context, db: Db): number {
+  return queryAsOf(c) ?? installationClockMs(db) ?? Date.now();
 }
 
 export function register(app: Hono, ctx: AppContext): void {
@@ -35,8 +30,7 @@ export function register(app: Hono, ctx: AppContext): void {
 
   app.get('/api/lots/:id/assessment', async (c) => {
     const asOf = asOfFrom(c, ctx.db);
-    if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
-    const detail = c.req.query('detail') === 'full' ? 'full' : 'summary';
+    const detail = queryChoice(c, 'detail', ['summary', 'full'] as const) ?? 'summary';
     // on two threads when the database is a file (the result is the same as on one)
     const a = await assessLotFromDbParallel(ctx.db, c.req.param('id'), { asOfMs: asOf, detail });
     if (!a) return c.json({ error: 'not found', detail: `There is no lot "${c.req.param('id')}".` }, 404);
@@ -45,7 +39,6 @@ export function register(app: Hono, ctx: AppContext): void {
 
   app.get('/api/pairs/:id/assessment', (c) => {
     const asOf = asOfFrom(c, ctx.db);
-    if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
     const a = assessPairFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail: 'full' });
     if (!a) return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
     return c.json(a);
@@ -58,9 +51,9 @@ export function register(app: Hono, ctx: AppContext): void {
     } catch {
       return c.json({ error: 'bad request', detail: 'The body must be JSON.' }, 400);
     }
-    const b = (body ?? {}) as Record<string, unknown>;
-    const asOfMs = typeof b.asOfMs === 'number' ? b.asOfMs : Number.NaN;
-    if (!Number.isFinite(asOfMs))
+    const b = (body !== null && typeof body === 'object' ? body : {}) as Record<string, unknown>;
+    const asOfMs = typeof b.asOfMs === 'number' ? asOfValue('asOfMs', String(b.asOfMs)) : null;
+    if (asOfMs === null)
       return c.json(
         {
           error: 'bad request',
@@ -71,7 +64,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const r = signOffPairInDb(ctx.db, c.req.param('id'), {
       inputsHash: String(b.inputsHash ?? ''),
       asOfMs,
-      signedBy: String(b.signedBy ?? ''),
+      signedBy: typeof b.signedBy === 'string' ? b.signedBy : '',
       call: b.call === undefined ? undefined : (String(b.call) as Call),
       comment: typeof b.comment === 'string' ? b.comment : null,
     });
@@ -83,6 +76,8 @@ export function register(app: Hono, ctx: AppContext): void {
           error: r.code === 'hash-changed' ? 'inputs changed' : 'bad request',
           detail: r.message,
           currentHash: r.currentHash ?? null,
+          matchedAsOfMs: r.matchedAsOfMs ?? null,
+          differences: r.differences ?? [],
         },
         r.code === 'hash-changed' ? 409 : 400,
       );

@@ -10,7 +10,6 @@ import {
   type LocationStatus,
 } from '../../../views/pages/areas.tsx';
 import {
-  parseTrendWindow,
   sameSize,
   TREND_WINDOWS,
   TrendPanel,
@@ -27,6 +26,7 @@ import {
   wafersExposedAt,
 } from '../../store/views-areas.ts';
 import type { AppContext } from '../context.ts';
+import { BadParamError, positiveNumberValue, queryTrendWindow } from '../params.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
 
 /** Samples flagged as instrument fault (1) or sentinel values (4) are not used (src/engine/types.ts SAMPLE_FLAG). */
@@ -213,10 +213,13 @@ function trendProps(
   preferredId?: string,
 ): TrendPanelProps {
   const q = c.req.query();
-  const window: TrendWindow = parseTrendWindow(q.window);
+  const window: TrendWindow = queryTrendWindow(c);
+  const asked = q.location?.trim() ? locations.find((l) => l.locationId === q.location) : undefined;
+  if (q.location?.trim() && !asked)
+    throw new BadParamError('location', `names no location: there is no location "${q.location}"`, 404);
   const withData = locations.filter((l) => sampleSpan(ctx.db, l.locationId).count > 0);
   const chosen =
-    locations.find((l) => l.locationId === q.location) ??
+    asked ??
     locations.find((l) => l.locationId === preferredId) ??
     withData.find((l) => l.levels.some((x) => x.actionPerM3 !== null)) ??
     withData[0] ??
@@ -247,7 +250,7 @@ function trendProps(
   const samples = readCumulativeSamples(ctx.db, chosen.locationId, fromMs, toMs);
   const channels = [...new Set(samples.flatMap((s) => s.sizesM))].sort((a, b) => a - b);
   const uniq = channels.filter((d, i) => i === 0 || !sameSize(d, channels[i - 1]!));
-  const askedUm = Number(q.channel);
+  const askedUm = positiveNumberValue('channel', q.channel, 1000) ?? Number.NaN;
   const level = chosen.levels.find((l) => l.actionPerM3 !== null) ?? chosen.levels[0] ?? null;
   const channelM =
     (Number.isFinite(askedUm) && askedUm > 0 ? uniq.find((d) => sameSize(d, askedUm * 1e-6)) : undefined) ??

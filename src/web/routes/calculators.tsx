@@ -34,11 +34,14 @@ export function register(app: Hono, ctx: AppContext): void {
   app.get('/calculators/:id', (c) => {
     const calc = findCalculator(c.req.param('id'));
     if (!calc) return c.notFound();
-    return renderPage(c, ctx, {
-      title: calc.title,
-      active: '/calculators',
-      body: page(c.req.query(), calc.id),
-    });
+    // A bad input is shown in its card, with status 400 (the card names the field and the rule).
+    const bad = cardState(calc, c.req.query()).error !== null;
+    return renderPage(
+      c,
+      ctx,
+      { title: calc.title, active: '/calculators', body: page(c.req.query(), calc.id) },
+      bad ? 400 : 200,
+    );
   });
 
   // With htmx: only the result block, swapped in place. Errors come back as 200 with the message

@@ -39,6 +39,7 @@ import type { AppContext } from '../context.ts';
 import { CSRF_FIELD, csrfDeferred, csrfField, csrfHeaders, forbidden, verifyCsrfToken } from '../csrf.ts';
 import { runImport } from '../import-worker.ts';
 import { createJobRegistry, DEFAULT_JOB_TTL_MS, type Job } from '../jobs.ts';
+import { pathWholeNumber, queryPage, wholeNumberValue } from '../params.ts';
 import { isFragmentRequest, renderPage } from '../render.ts';
 import { formatBytes, multipartBoundary, readMultipart, UploadError, uploadLimitBytes } from '../upload.ts';
 
@@ -366,10 +367,14 @@ export function register(app: Hono, ctx: AppContext): void {
     const job = jobs.get(c.req.param('id'));
     if (!job) return missingJob(c);
     const view = jobView(job);
-    const fileN = Number(c.req.query('file'));
-    const pageN = Number(c.req.query('page'));
-    const pager =
-      Number.isInteger(fileN) && Number.isInteger(pageN) ? { file: fileN, page: pageN } : undefined;
+    const fileN = wholeNumberValue(
+      'file',
+      c.req.query('file'),
+      0,
+      Math.max(0, job.progress.files.length - 1),
+    );
+    const pageN = queryPage(c);
+    const pager = fileN !== null ? { file: fileN, page: pageN } : undefined;
     if (isFragmentRequest(c)) {
       const body = String(ImportJob({ job: view, page: pager }));
       const done = job.state === 'done' || job.state === 'failed';
@@ -384,9 +389,9 @@ export function register(app: Hono, ctx: AppContext): void {
     const id = c.req.param('id');
     const job = jobs.get(id);
     if (!job) return missingJob(c);
-    const n = Number(c.req.param('n'));
-    const file = Number.isInteger(n) ? job.progress.files[n] : undefined;
-    const pageN = Math.max(1, Math.trunc(Number(c.req.query('page'))) || 1);
+    const n = pathWholeNumber(c, 'n') ?? -1;
+    const file = job.progress.files[n];
+    const pageN = queryPage(c);
     if (!file?.report) return missingJob(c);
     if (isFragmentRequest(c))
       return c.html(
@@ -420,7 +425,7 @@ export function register(app: Hono, ctx: AppContext): void {
   });
 
   app.get('/imports/history/:id', (c) => {
-    const id = Number(c.req.param('id'));
+    const id = pathWholeNumber(c, 'id') ?? -1;
     const report = storedReport(id);
     if (!report) {
       const errors = {
@@ -429,7 +434,7 @@ export function register(app: Hono, ctx: AppContext): void {
       };
       return page(c, { errors }, 404);
     }
-    const pageN = Math.max(1, Math.trunc(Number(c.req.query('page'))) || 1);
+    const pageN = queryPage(c);
     return page(c, {
       notice: (
         <div class="vc-job vc-job-done">
@@ -441,9 +446,9 @@ export function register(app: Hono, ctx: AppContext): void {
   });
 
   app.get('/imports/history/:id/issues', (c) => {
-    const id = Number(c.req.param('id'));
+    const id = pathWholeNumber(c, 'id') ?? -1;
     const report = storedReport(id);
-    const pageN = Math.max(1, Math.trunc(Number(c.req.query('page'))) || 1);
+    const pageN = queryPage(c);
     if (!report)
       return c.html(
         String(

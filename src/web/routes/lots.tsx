@@ -6,7 +6,7 @@ import type { Context, Hono } from 'hono';
 import { LotPage } from '../../../views/pages/lot.tsx';
 import { type LotRow, LotsPage } from '../../../views/pages/lots.tsx';
 import { MessagePage } from '../../../views/pages/message.tsx';
-import { ParetoPanel, parseParetoBy } from '../../../views/partials/pareto-panel.tsx';
+import { ParetoPanel } from '../../../views/partials/pareto-panel.tsx';
 import { loadLot } from '../../engine/loader.ts';
 import { assessLotInSession } from '../../engine/lot.ts';
 import { createSession, EngineInputError } from '../../engine/pair.ts';
@@ -16,6 +16,7 @@ import { listLots } from '../../store/lots.ts';
 import { parameterSetsStamp } from '../../store/parameter-sets.ts';
 import { getSetting } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
+import { queryAsOf, queryParetoBy } from '../params.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
 
 /**
@@ -31,13 +32,14 @@ function parseInstant(v: string | undefined | null): number | null {
 }
 
 /**
- * The assessment time of a request: `?asOf=` (ISO 8601 with zone, or ms since the epoch), else
+ * The assessment time of a request: `?asOf=` (ISO 8601 with zone, or ms since the epoch, 1970 up to
+ * 2100; anything else is a 400 naming asOf — src/web/params.ts), else
  * the installation's frozen clock (AS_OF_SETTING), else now floored to the minute, so that a page
  * and its swaps within a minute show the same figures.
  */
 export function asOfFrom(c: Context, ctx: AppContext): number {
   return (
-    parseInstant(c.req.query('asOf')) ??
+    queryAsOf(c) ??
     parseInstant(getSetting(ctx.db, AS_OF_SETTING)) ??
     Math.floor(Date.now() / 60_000) * 60_000
   );
@@ -196,13 +198,13 @@ export function register(app: Hono, ctx: AppContext): void {
     return renderPage(c, ctx, {
       title: `Lot ${id}`,
       active: '/lots',
-      body: LotPage({ lot: r.lot, paretoBy: parseParetoBy(c.req.query('pareto')) }),
+      body: LotPage({ lot: r.lot, paretoBy: queryParetoBy(c, 'pareto') }),
     });
   });
 
   app.get('/lots/:id/pareto', (c) => {
     const id = c.req.param('id');
-    const by = parseParetoBy(c.req.query('by'));
+    const by = queryParetoBy(c, 'by');
     if (!isFragmentRequest(c))
       return c.redirect(`/lots/${encodeURIComponent(id)}?pareto=${by}#pareto-panel`, 303);
     const r = assessLotForPage(ctx, id, asOfFrom(c, ctx));

@@ -7,7 +7,7 @@ import type { Context, Hono } from 'hono';
 import { MessagePage } from '../../../views/pages/message.tsx';
 import { PairPage, SpectrumPanel, type WaferScanView } from '../../../views/pages/pair.tsx';
 import type { CallName } from '../../../views/partials/call.tsx';
-import { ParetoPanel, parseParetoBy } from '../../../views/partials/pareto-panel.tsx';
+import { ParetoPanel } from '../../../views/partials/pareto-panel.tsx';
 import {
   SIGNOFF_ROLES,
   SignoffPanel,
@@ -20,6 +20,7 @@ import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.t
 import { readDispositions } from '../../store/dispositions.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
+import { asOfValue, queryChoice, queryParetoBy } from '../params.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
 import { asOfFrom, memoised, notFound } from './lots.tsx';
 
@@ -99,7 +100,6 @@ function page(
   signoff: { error?: string | null; stored?: SignoffRecordLike | null; values?: Partial<SignoffValues> } = {},
   status: 200 | 409 | 422 = 200,
 ): Response {
-  const q = c.req.query();
   return renderPage(
     c,
     ctx,
@@ -113,8 +113,8 @@ function page(
         flipAxis: l.pair.flipAxis,
         waferDiameterM: l.waferDiameterM,
         edgeExclusionM: l.edgeExclusionM,
-        paretoBy: parseParetoBy(q.pareto),
-        spectrumMode: q.spectrum === 'cumulative' ? 'cumulative' : 'per-bin',
+        paretoBy: queryParetoBy(c, 'pareto'),
+        spectrumMode: queryChoice(c, 'spectrum', SPECTRUM_MODES) ?? 'per-bin',
         signoff: { csrfToken: token(c), records: records(ctx, l.a.pairId), ...signoff },
       }),
     },
@@ -130,6 +130,8 @@ function cannotAssess(c: Context, ctx: AppContext, id: string, problem: string):
   });
 }
 
+const SPECTRUM_MODES = ['per-bin', 'cumulative'] as const;
+
 export function register(app: Hono, ctx: AppContext): void {
   app.get('/pairs/:id', (c) => {
     const id = c.req.param('id');
@@ -141,7 +143,7 @@ export function register(app: Hono, ctx: AppContext): void {
 
   app.get('/pairs/:id/pareto', (c) => {
     const id = c.req.param('id');
-    const by = parseParetoBy(c.req.query('by'));
+    const by = queryParetoBy(c, 'by');
     if (!isFragmentRequest(c))
       return c.redirect(`/pairs/${encodeURIComponent(id)}?pareto=${by}#pareto-panel`, 303);
     const l = assess(ctx, id, asOfFrom(c, ctx));
@@ -160,7 +162,7 @@ export function register(app: Hono, ctx: AppContext): void {
 
   app.get('/pairs/:id/spectrum', (c) => {
     const id = c.req.param('id');
-    const mode = c.req.query('mode') === 'cumulative' ? 'cumulative' : 'per-bin';
+    const mode = queryChoice(c, 'mode', SPECTRUM_MODES) ?? 'per-bin';
     if (!isFragmentRequest(c))
       return c.redirect(`/pairs/${encodeURIComponent(id)}?spectrum=${mode}#spectrum-panel`, 303);
     const l = assess(ctx, id, asOfFrom(c, ctx));
@@ -179,9 +181,9 @@ export function register(app: Hono, ctx: AppContext): void {
       comment: str('comment'),
     };
     const shownHash = str('inputsHash');
-    const asOfMs = Number(str('asOfMs'));
+    const asOfMs = asOfValue('asOfMs', str('asOfMs'));
     const fragment = isFragmentRequest(c);
-    const l = assess(ctx, id, Number.isFinite(asOfMs) && asOfMs > 0 ? asOfMs : asOfFrom(c, ctx));
+    const l = assess(ctx, id, asOfMs ?? asOfFrom(c, ctx));
     if (!l) return notFound(c, ctx, `There is no pair ${id}.`);
     if ('problem' in l) return cannotAssess(c, ctx, id, l.problem);
 

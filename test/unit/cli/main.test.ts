@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { CliIo } from '../../../src/cli/io.ts';
-import { main } from '../../../src/cli/main.ts';
+import { COMMANDS, main } from '../../../src/cli/main.ts';
+import { ModelInputError } from '../../../src/model/errors.ts';
 
 function io() {
   let out = '';
@@ -35,7 +36,7 @@ describe('voidcast CLI', () => {
     const t = io();
     expect(await main(['serve', '--prot', '80'], t.io)).toBe(2);
     const [first, second] = t.err().split('\n');
-    expect(first).toBe("voidcast serve: Unknown option '--prot'");
+    expect(first).toBe('voidcast serve: unknown option --prot');
     expect(second).toBe('usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]');
   });
 
@@ -57,5 +58,34 @@ describe('voidcast CLI', () => {
     const t = io();
     expect(await main([], t.io)).toBe(2);
     expect(t.out()).toContain('usage: voidcast');
+  });
+});
+
+describe('a model range error inside a command', () => {
+  it('exits 1 with plain words, not the model function or parameter name (hand-written expectation)', async () => {
+    const probe = {
+      name: 'model-error-probe',
+      summary: 'test only',
+      usage: 'voidcast model-error-probe',
+      run: async (): Promise<number> => {
+        throw new ModelInputError(
+          'poissonYield',
+          'expectedDefects',
+          'defects per die',
+          '≤ 1000000 defects per die',
+          2e6,
+        );
+      },
+    };
+    COMMANDS.push(probe);
+    try {
+      const t = io();
+      expect(await main(['model-error-probe'], t.io)).toBe(1);
+      expect(t.err()).toBe(
+        "voidcast model-error-probe: these data cannot be assessed: a computed quantity is outside its model's range (expected defects = 2000000 defects per die is out of range; allowed ≤ 1000000 defects per die); check the data and the assessment time\n",
+      );
+    } finally {
+      COMMANDS.splice(COMMANDS.indexOf(probe), 1);
+    }
   });
 });

@@ -6,14 +6,18 @@ import {
   classifyLocations,
   ISO_TABLE_A1,
   ISO_TABLE1_SIZES_M,
+  ISO_TABLE1_SIZES_NM,
   ISO1999_T95,
   iso1999Ucl95,
   isoClassLimit,
+  isoTable1Cell,
+  isoTable1ColumnNm,
   isoTable1Value,
   minimumSampleVolumeM3,
   roundIsoLimit,
   samplingLocations,
 } from '../../../src/model/iso14644.ts';
+import { umToM } from '../../../src/model/units.ts';
 
 // jstat (reference library, devDependency) has no type declarations; the one function used is typed here.
 const jstat = createRequire(import.meta.url)('jstat') as {
@@ -21,7 +25,7 @@ const jstat = createRequire(import.meta.url)('jstat') as {
 };
 
 const um = (x: number) => x * 1e-6;
-const [D01, D02, D03, D05, D1, D5] = ISO_TABLE1_SIZES_M as [number, number, number, number, number, number];
+const [D01, , D03, D05, D1, D5] = ISO_TABLE1_SIZES_M as [number, number, number, number, number, number];
 
 describe('isoClassLimit (ISO 14644-1:2015 formula C_n = 10^N (0.1/D)^2.08)', () => {
   it('class 5 at 0.5 µm unrounded is 3516.76 [D, recomputed: 1e5 · 0.2^2.08]', () => {
@@ -42,50 +46,91 @@ describe('isoClassLimit (ISO 14644-1:2015 formula C_n = 10^N (0.1/D)^2.08)', () 
   });
 });
 
-describe('isoTable1Value reproduces ISO 14644-1:2015 Table 1', () => {
-  it('class 3, 5 and 7 rows, including their not-applicable cells [V, ISO 14644-1:2015 Table 1]', () => {
-    expect([D01, D02, D03, D05, D1, D5].map((d) => isoTable1Value(3, d))).toEqual([
-      1000,
-      237,
-      102,
-      35,
-      null,
-      null,
-    ]);
-    expect([D01, D02, D03, D05, D1, D5].map((d) => isoTable1Value(5, d))).toEqual([
-      100000,
-      23700,
-      10200,
-      3520,
-      832,
-      null,
-    ]);
-    expect([D01, D02, D03, D05, D1, D5].map((d) => isoTable1Value(7, d))).toEqual([
-      null,
-      null,
-      null,
-      352000,
-      83200,
-      2930,
-    ]);
+/**
+ * ISO 14644-1:2015 Table 1, every cell: the printed value, or the footnote letters of a blank cell
+ * (c "not applicable", d and e "classification inappropriate"; f the M descriptor at class 5, 5 µm;
+ * b marks values needing large sample volumes). Rows 3, 5 and 7 — values and which cells are blank —
+ * are [V] (checked against the standard, as in /work/shared/reference/models.md); the other rows and
+ * the note letters are from memory of the standard [M].
+ */
+const TABLE1: Record<number, (number | string)[]> = {
+  //      0.1 µm        0.2 µm      0.3 µm      0.5 µm       1 µm        5 µm
+  1: ['10 b', 'd', 'd', 'd', 'd', 'e'], // [M]
+  2: [100, '24 b', '10 b', 'd', 'd', 'e'], // [M]
+  3: [1000, 237, 102, '35 b', 'd', 'e'], // [V] values and blanks; letters [M]
+  4: [10000, 2370, 1020, 352, '83 b', 'e'], // [M]
+  5: [100000, 23700, 10200, 3520, 832, 'd e f'], // [V] values and blanks; letters [M]
+  6: [1000000, 237000, 102000, 35200, 8320, 293], // [M]
+  7: ['c', 'c', 'c', 352000, 83200, 2930], // [V] values and blanks; letters [M]
+  8: ['c', 'c', 'c', 3520000, 832000, 29300], // [M]
+  9: ['c', 'c', 'c', 35200000, 8320000, 293000], // [M]
+};
+const SIZES_UM = [0.1, 0.2, 0.3, 0.5, 1, 5];
+
+/** A Table 1 entry as [value or null, note letters]. */
+function entry(e: number | string): [number | null, string[]] {
+  if (typeof e === 'number') return [e, []];
+  const parts = e.split(' ');
+  return /^\d+$/.test(parts[0]!) ? [Number(parts[0]), parts.slice(1)] : [null, parts];
+}
+
+describe('ISO 14644-1:2015 Table 1, every cell', () => {
+  it('isoTable1Cell on exact inputs (integer class, size in whole nm) gives each printed value and blank cell', () => {
+    for (let n = 1; n <= 9; n++)
+      ISO_TABLE1_SIZES_NM.forEach((nm, j) => {
+        const [value, notes] = entry(TABLE1[n]![j]!);
+        const cell = isoTable1Cell(n, nm);
+        expect(cell.notes, `class ${n} at ${nm} nm`).toEqual(notes);
+        if (value === null) {
+          expect(cell.blank, `class ${n} at ${nm} nm is blank`).toBe(true);
+          if (cell.blank)
+            expect(cell.words).toMatch(
+              notes.includes('c') ? /^not applicable/ : /^classification inappropriate/,
+            );
+        } else expect(cell).toEqual({ blank: false, valuePerM3: value, notes });
+      });
   });
 
-  it('the other rows as recalled from the 2015 table [M]', () => {
-    const rows: Record<number, (number | null)[]> = {
-      1: [10, null, null, null, null, null],
-      2: [100, 24, 10, null, null, null],
-      4: [10000, 2370, 1020, 352, 83, null],
-      6: [1000000, 237000, 102000, 35200, 8320, 293],
-      8: [null, null, null, 3520000, 832000, 29300],
-      9: [null, null, null, 35200000, 8320000, 293000],
-    };
-    for (const [n, row] of Object.entries(rows))
-      expect(ISO_TABLE1_SIZES_M.map((d) => isoTable1Value(Number(n), d))).toEqual(row);
+  it('isoTable1Value finds every cell from a size in metres however it was converted (µm / 1e6, µm × 1e-6, nm × 1e-9, umToM)', () => {
+    for (let n = 1; n <= 9; n++)
+      SIZES_UM.forEach((um, j) => {
+        const [value] = entry(TABLE1[n]![j]!);
+        const nm = Math.round(um * 1000);
+        for (const d of [um / 1e6, um * 1e-6, nm * 1e-9, umToM(um), ISO_TABLE1_SIZES_M[j]!])
+          expect(isoTable1Value(n, d), `class ${n} at ${um} µm given as ${d} m`).toBe(value);
+      });
+  });
+
+  it('class 1 at 0.1 µm is 10 although 0.1 µm / 1e6 = 1.0000000000000001e-7 m puts the formula at 9.999999999999998', () => {
+    const d = 0.1 / 1e6;
+    expect(d).not.toBe(1e-7);
+    expect(isoClassLimit(1, d)).toBeLessThan(10);
+    expect(isoTable1Value(1, d)).toBe(10);
+    expect(isoTable1ColumnNm(d)).toBe(100);
+  });
+
+  it('names the blank cells as the standard does: c not applicable; d, e classification inappropriate; f the M descriptor', () => {
+    const c = isoTable1Cell(7, 100);
+    const d = isoTable1Cell(1, 200);
+    const e = isoTable1Cell(4, 5000);
+    const f = isoTable1Cell(5, 5000);
+    expect(c.blank && c.words).toContain('not applicable: the particle concentration is very high');
+    expect(d.blank && d.words).toContain('classification inappropriate: too few particles');
+    expect(e.blank && e.words).toContain('classification inappropriate at this size');
+    expect(f.blank && f.words).toContain('macroparticle descriptor M');
   });
 
   it("the 1999 edition's class 5 at 5 µm, dropped in 2015, was 29 = the rounded formula [V, ISO 14644-1:1999 Table 1]", () => {
     expect(isoTable1Value(5, D5)).toBeNull();
     expect(roundIsoLimit(isoClassLimit(5, D5))).toBe(29);
+  });
+
+  it('isoTable1ColumnNm: only the six columns, within 1e-9 relative', () => {
+    expect(ISO_TABLE1_SIZES_M.map(isoTable1ColumnNm)).toEqual([100, 200, 300, 500, 1000, 5000]);
+    expect(isoTable1ColumnNm(4e-7)).toBeNull();
+    expect(isoTable1ColumnNm(1.001e-7)).toBeNull();
+    expect(isoTable1ColumnNm(1e-7 * (1 + 5e-10))).toBe(100);
+    expect(() => isoTable1ColumnNm(-1)).toThrow(ModelInputError);
   });
 
   it('every applicable cell is the formula rounded to a whole number with at most three significant figures [D]', () => {
@@ -116,6 +161,8 @@ describe('isoTable1Value reproduces ISO 14644-1:2015 Table 1', () => {
     );
     expect(() => isoTable1Value(5, um(0.4))).toThrow('isoTable1Value: diameterM = 4e-7 m');
     expect(() => isoTable1Value(10, D05)).toThrow(ModelInputError);
+    expect(() => isoTable1Cell(5, 400)).toThrow('isoTable1Cell: sizeNm = 400 nm is out of range');
+    expect(() => isoTable1Cell(0, 100)).toThrow(ModelInputError);
   });
 });
 
