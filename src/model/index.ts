@@ -8,6 +8,7 @@ export * from './clean.ts';
 export * from './deposition.ts';
 export * from './errors.ts';
 export * from './iso14644.ts';
+export * from './matching/index.ts';
 export * from './rng.ts';
 export * from './spectrum.ts';
 export * from './spectrum-channels.ts';
