@@ -11,6 +11,8 @@ import { listLots, readLot } from '../store/lots.ts';
 import { readProduct } from '../store/products.ts';
 import { latestScanBefore, scanInputOf } from '../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
+import { listInspectedLots, listVoidInspectionsOfLot, readVoids, VOID_CLASSES } from '../store/voids.ts';
+import type { CalibrationLotInput, InspectionInput } from './learn/calibration-types.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
 import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
@@ -343,4 +345,55 @@ export function signOffPairInDb(
   if (!out.ok) return out;
   const id = insertDisposition(db, out.record);
   return { ok: true, record: out.record, id };
+}
+
+/**
+ * The bonded lots with void inspections, loaded for calibration (src/engine/learn/calibration.ts):
+ * each lot with its line data at the time of its latest inspection (so every inspected pair is
+ * bonded by then), and every inspection of its pairs with the voids in the bond frame. `lotIds`
+ * limits it to those lots; an unknown lot or one without inspections is named in `missing`.
+ */
+export function loadInspectedLots(
+  db: Db,
+  lotIds?: readonly string[],
+): { lots: CalibrationLotInput[]; missing: string[] } {
+  const inspected = listInspectedLots(db);
+  const wanted = lotIds ? [...lotIds] : inspected;
+  const missing = wanted.filter((id) => !inspected.includes(id));
+  const lots: CalibrationLotInput[] = [];
+  for (const lotId of wanted.filter((id) => inspected.includes(id))) {
+    const headers = listVoidInspectionsOfLot(db, lotId);
+    const asOfMs = Math.max(...headers.map((h) => h.timeMs));
+    const loaded = loadLot(db, lotId, asOfMs);
+    if (!loaded) {
+      missing.push(lotId);
+      continue;
+    }
+    const inspections: Record<string, InspectionInput[]> = {};
+    for (const h of headers) {
+      const v = readVoids(db, h.inspectionId);
+      if (!v) continue;
+      const list = inspections[h.pairId] ?? [];
+      inspections[h.pairId] = list;
+      list.push({
+        inspectionId: h.inspectionId,
+        pairId: h.pairId,
+        method: h.method,
+        stage: h.stage,
+        toolId: h.toolId,
+        smallestVoidM: h.smallestVoidM,
+        positionSigmaM: h.positionSigmaM,
+        timeMs: h.timeMs,
+        voids: {
+          count: v.count,
+          xM: v.xM,
+          yM: v.yM,
+          diameterM: v.diameterM,
+          classes: Array.from(v.classCode, (c) => VOID_CLASSES[c] ?? 'unknown'),
+        },
+      });
+    }
+    lots.push({ lot: loaded.lot, line: loaded.line, asOfMs, inspections });
+  }
+  return { lots, missing };
 }

@@ -125,3 +125,23 @@ export function insertVoidInspection(db: Db, v: NewVoidInspection): void {
     v.line,
   );
 }
+
+/** The lots with at least one void-inspected pair, by id. */
+export function listInspectedLots(db: Db): string[] {
+  return db
+    .prepare(
+      `SELECT DISTINCT p.lot_id AS lotId FROM void_inspections vi JOIN pairs p ON p.id = vi.pair_id ORDER BY p.lot_id`,
+    )
+    .pluck()
+    .all() as string[];
+}
+
+/** The inspections of a lot's pairs, by pair then time. */
+export function listVoidInspectionsOfLot(db: Db, lotId: string): VoidInspectionHeader[] {
+  return db
+    .prepare(
+      `SELECT ${COLUMNS} FROM void_inspections WHERE pair_id IN (SELECT id FROM pairs WHERE lot_id = ?)
+        ORDER BY pair_id, time_ms, id`,
+    )
+    .all(lotId) as VoidInspectionHeader[];
+}
