@@ -5,6 +5,11 @@
  * exponent Σ λ_k π R_k² (unbonded area, linearised), the expected die-kill events Σ λ_k A_c,k and
  * Σ s·[disc hits die] — is a sum over contributions and the shares are exact and sum to one. The
  * non-linear figures (1 − e^(−E), yields) are apportioned by these linear terms.
+ *
+ * Voids no scanned particle explains (present while an adopted parameter set states their rate) are a
+ * source of their own: in the contributions, the kind Pareto and the dominant source, but not in the
+ * clean and size-band Paretos (no clean left them, no particle size made them), whose shares then sum
+ * to one less the unexplained share.
  */
 import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M } from '../model/spectrum.ts';
 import type { Evaluation } from './evaluate.ts';
@@ -30,6 +35,9 @@ export const SIZE_BANDS: readonly { fromM: number; toM: number; label: string }[
 ];
 
 const share = (x: number, total: number) => (total > 0 ? x / total : 0);
+
+/** The label of the voids no scanned particle explains (a source of its own while a set states a rate). */
+export const UNEXPLAINED_LABEL = 'Voids no scanned particle explains (calibrated)';
 
 export function sourceContributions(
   contributions: Contribution[],
@@ -111,6 +119,7 @@ const KIND_LABEL: Record<SourceKind, string> = {
   incoming: 'Assumed incoming particles (unscanned)',
   tool: 'Tool adders per pass',
   wait: 'Deposition while waiting',
+  unexplained: UNEXPLAINED_LABEL,
 };
 
 export function buildPareto(
@@ -134,15 +143,19 @@ export function buildPareto(
     metric,
     total,
   );
+  // Voids no scanned particle explains have no clean and no particle size: they are in the kind
+  // Pareto (and the dominant source), not in the clean and size-band ones.
   const byClean = group(
     items,
     (c) =>
-      c.lastCleanId
-        ? {
-            key: `clean:${c.lastCleanId}`,
-            label: `Left by ${line.cleans[c.lastCleanId]?.name ?? c.lastCleanId} (a perfect clean there would remove it)`,
-          }
-        : { key: 'none', label: 'Arrived after the last clean' },
+      c.kind === 'unexplained'
+        ? null
+        : c.lastCleanId
+          ? {
+              key: `clean:${c.lastCleanId}`,
+              label: `Left by ${line.cleans[c.lastCleanId]?.name ?? c.lastCleanId} (a perfect clean there would remove it)`,
+            }
+          : { key: 'none', label: 'Arrived after the last clean' },
     metric,
     total,
   );

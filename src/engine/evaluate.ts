@@ -13,6 +13,10 @@
  * A die is killed unless no detected particle hits it and no random one does:
  *   Poisson   P_kill = 1 − (1 − P_det) · e^(−m)
  *   NB        P_kill = 1 − (1 − P_det) · (1 + m/α)^(−α)          (Stapper's cluster parameter α)
+ * Voids no scanned particle explains (an adopted parameter set's rate u per pair, each of area a and
+ * equivalent radius r = √(a/π), uniform over the bonded area A_b): V += u, E += u·a/A_b,
+ * m += (u/A_b)·A_c(r) — the same Boolean-model and critical-area terms as a size bin of random
+ * particles whose voids have that area.
  * Every linear term (V, E, m, Σ s·hits) is a sum over contributions, so shares are exact.
  */
 import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
@@ -132,12 +136,25 @@ export function evaluate(
   const exponentBins = new Float64Array(SPECTRUM_BIN_COUNT);
   const eventsBins = new Float64Array(SPECTRUM_BIN_COUNT);
   const nDies = grid ? grid.count : 0;
+  /** Die-kill mean per die of the sources without a size spectrum (unexplained voids). */
+  let uniformMeanPerDie = 0;
   const per: ContributionFigures[] = contributions.map((c) => {
     const spectrum = interfaceSpectrum(c);
     let particles = 0;
     for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) particles += spectrum[k]!;
     const fig: ContributionFigures = { particles, voids: 0, exponent: 0, dieEvents: 0, spectrum };
     if (c.detected) return fig; // counted particle by particle below
+    if (c.variation.type === 'unexplained') {
+      // Voids with no particle behind them: u per pair over the bonded area, each of area a.
+      const u = c.variation;
+      const lam = u.ratePerPair / ab;
+      const ac = grid ? physics.criticalArea(u.radiusM) : 0;
+      fig.voids = u.ratePerPair;
+      fig.exponent = lam * u.areaM2;
+      fig.dieEvents = lam * ac * nDies;
+      uniformMeanPerDie += lam * ac;
+      return fig;
+    }
     for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) {
       const lam = spectrum[k]! / c.areaBasisM2;
       if (lam === 0) continue;
@@ -228,7 +245,7 @@ export function evaluate(
   }
   voids += detectedVoids;
   exponent += detectedExponent;
-  let randomMeanPerDie = 0;
+  let randomMeanPerDie = uniformMeanPerDie;
   for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) randomMeanPerDie += lambdaBins[k]! * acrit[k]!;
   let dieKillsPoisson: number | null = null;
   let dieKillsNB: number | null = null;

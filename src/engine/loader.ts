@@ -1,7 +1,12 @@
 /**
  * The engine's only database access: reads a lot or a pair with everything its assessment needs
  * through the store's helpers and hands plain inputs (src/engine/types.ts) to the pure engine; and
- * stores sign-offs. Everything else in src/engine is pure.
+ * stores sign-offs. Everything else in src/engine is pure, but for parameter-sets.ts (storing, adopting
+ * and reverting parameter sets) and parallel.ts (a lot's second thread opens its own connection).
+ *
+ * Every load applies the adopted parameter set (src/engine/parameters.ts) to the typed values it
+ * read, or the set it is given (a lot's second thread gets the set the first one read, so both use
+ * the same one even if someone adopts another in between).
  */
 import { readCounterSeries } from '../store/counters.ts';
 import type { Db } from '../store/db.ts';
@@ -15,6 +20,10 @@ import { listInspectedLots, listVoidInspectionsOfLot, readVoids, VOID_CLASSES } 
 import type { CalibrationLotInput, InspectionInput } from './learn/calibration-types.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
+import type { TypedCounterparts } from './parameter-entries.ts';
+import type { ParameterSet, ParameterValues } from './parameter-set-types.ts';
+import { readAdoptedParameterSet } from './parameter-sets.ts';
+import { applyParameterSet } from './parameters.ts';
 import { prepareSignoff, type SignoffOutcome, type SignoffRecord, type SignoffRequest } from './signoff.ts';
 import type {
   AssessOptions,
@@ -154,7 +163,8 @@ function loadPairs(
   db: Db,
   rows: PairRow[],
   asOfMs: number,
-  only?: ReadonlySet<string>,
+  only: ReadonlySet<string> | undefined,
+  set: ParameterSet | null,
 ): { pairs: PairInput[]; line: LineData } {
   const toolsStored = readTools(db);
   const cleansStored = readCleans(db);
@@ -237,7 +247,30 @@ function loadPairs(
   const counters: Record<string, CounterSeriesInput> = {};
   for (const [loc, [from, to]] of windows) counters[loc] = readCounterSeries(db, loc, from, to);
   const locations = readLocations(db, [...windows.keys()]);
-  return { pairs, line: { products, tools, cleans, locations, counters } };
+  return { pairs, line: applyParameterSet({ products, tools, cleans, locations, counters }, set) };
+}
+
+/**
+ * The typed values a set's values would replace (tools file, products), for showing them side by
+ * side: per adders key the chamber's entry, else the tool's — the one the engine used.
+ */
+export function typedCounterparts(db: Db, values: ParameterValues): TypedCounterparts {
+  const stored = readTools(db);
+  const tools: TypedCounterparts['tools'] = {};
+  for (const [k, f] of Object.entries(values.adders)) {
+    const t = stored[k] ?? stored[f.toolId];
+    tools[k] = t ? toToolInput(t) : null;
+  }
+  const storedCleans = readCleans(db);
+  const cleans: TypedCounterparts['cleans'] = {};
+  for (const k of Object.keys(values.removal)) {
+    const c = storedCleans[k];
+    cleans[k] = c ? toCleanInput(c) : null;
+  }
+  const products: TypedCounterparts['products'] = {};
+  for (const k of [...Object.keys(values.voidSize), ...Object.keys(values.unexplainedVoids)])
+    products[k] = readProduct(db, k) ?? null;
+  return { tools, cleans, products };
 }
 
 /** A stored product as the engine's input, or null. */
@@ -245,11 +278,19 @@ export function readProductInput(db: Db, productId: string): ProductInput | null
   return readProduct(db, productId) ?? null;
 }
 
-/** A pair with its line data, or null when the pair is unknown. */
-export function loadPair(db: Db, pairId: string, asOfMs: number): { pair: PairInput; line: LineData } | null {
+/**
+ * A pair with its line data, or null when the pair is unknown. `set`: the parameter set to apply
+ * (default: the adopted one; null: the typed values).
+ */
+export function loadPair(
+  db: Db,
+  pairId: string,
+  asOfMs: number,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
+): { pair: PairInput; line: LineData } | null {
   const row = readPairRow(db, pairId);
   if (!row) return null;
-  const { pairs, line } = loadPairs(db, [row], asOfMs);
+  const { pairs, line } = loadPairs(db, [row], asOfMs, undefined, set);
   return { pair: pairs[0]!, line };
 }
 
@@ -267,18 +308,20 @@ export function lotPairIds(db: Db, lotId: string): string[] | null {
 
 /**
  * A lot with its pairs (all, or those in `only`) and line data, or null when the lot is unknown.
- * The line data covers the whole lot either way.
+ * The line data covers the whole lot either way. `set`: the parameter set to apply (default: the
+ * adopted one; null: the typed values).
  */
 export function loadLot(
   db: Db,
   lotId: string,
   asOfMs: number,
   only?: ReadonlySet<string>,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
 ): { lot: LotInput; line: LineData } | null {
   const lot = readLot(db, lotId);
   if (!lot) return null;
   const rows = lotPairRows(db, lotId);
-  const { pairs, line } = loadPairs(db, rows, asOfMs, only);
+  const { pairs, line } = loadPairs(db, rows, asOfMs, only, set);
   const productId = lot.productId ?? rows[0]?.product_id ?? '';
   return { lot: { lotId, productId, pairs }, line };
 }
@@ -304,8 +347,9 @@ export function assessLotPairsFromDb(
   lotId: string,
   pairIds: readonly string[],
   opts: AssessOptions,
+  set: ParameterSet | null = readAdoptedParameterSet(db),
 ): { productId: string; pairs: PairAssessment[] } | null {
-  const loaded = loadLot(db, lotId, opts.asOfMs, new Set(pairIds));
+  const loaded = loadLot(db, lotId, opts.asOfMs, new Set(pairIds), set);
   if (!loaded) return null;
   const session = createSession(loaded.line, opts.config);
   const detail = opts.detail ?? 'summary';

@@ -6,6 +6,8 @@ import { lotDominant, paretoMetric, sumParetos } from './attribution.ts';
 import { MODEL_VERSION } from './config.ts';
 import { canonicalHash } from './hash.ts';
 import { assessPairInSession, createSession, EngineInputError, type EngineSession } from './pair.ts';
+import type { ParameterSetRef } from './parameter-set-types.ts';
+import { lineParameters } from './parameters.ts';
 import {
   type AssessOptions,
   type Call,
@@ -34,7 +36,7 @@ export function assessLotInSession(
   const pairs = lot.pairs.map((p) =>
     assessPairInSession(p, session, { ...opts, detail: opts.detail ?? 'summary' }),
   );
-  return summariseLot(lot, product, pairs, opts);
+  return summariseLot(lot, product, pairs, opts, lineParameters(session.line));
 }
 
 /**
@@ -47,6 +49,8 @@ export function summariseLot(
   product: ProductInput,
   pairs: PairAssessment[],
   opts: AssessOptions,
+  /** The parameter set the pairs were assessed with (every pair names it too). */
+  parameters: ParameterSetRef,
 ): LotAssessment {
   let call: Call = 'bond';
   for (const p of pairs) if (RANK[p.call] > RANK[call]) call = p.call;
@@ -92,9 +96,15 @@ export function summariseLot(
     lotId: lot.lotId,
     productId: lot.productId,
     asOfMs: opts.asOfMs,
-    inputsHash: canonicalHash({ lot: lot.lotId, pairs: pairs.map((p) => [p.pairId, p.inputsHash]) }),
+    inputsHash: canonicalHash({
+      lot: lot.lotId,
+      pairs: pairs.map((p) => [p.pairId, p.inputsHash]),
+      // the set's hash (absent with the typed values, so their hashes stay what they were)
+      parameters: parameters.valuesHash ?? undefined,
+    }),
     modelVersion: MODEL_VERSION,
     specVersion: product.spec.version,
+    parameters,
     pairs,
     call,
     reasons,

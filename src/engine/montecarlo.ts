@@ -19,12 +19,16 @@
  * the random part of the negative-binomial form drawn with the die mean scaled by a wafer-level
  * Gamma(α, 1/α) factor — the gamma–Poisson mixture that defines it (Stapper).
  * Detected particles keep their nominal radii (their positions are fixed).
+ * Voids no scanned particle explains (an adopted set's rate per pair): the rate is drawn from its
+ * 95 % interval (drawUnexplainedRate in parameters.ts), then counted like the rest — Poisson voids,
+ * discs of their fitted area in the Boolean sum, their critical area in the die-kill mean.
  */
 import { quantileSorted } from 'simple-statistics';
 import { createRng, type Rng } from '../model/rng.ts';
 import { SPECTRUM_BIN_COUNT, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import type { Evaluation, VoidPhysics } from './evaluate.ts';
 import { fractionAbove } from './evaluate.ts';
+import { drawUnexplainedRate, GARWOOD_UPPER_ZERO_95 } from './parameters.ts';
 import type { Contribution } from './propagate.ts';
 import type { AssessConfig, Estimate } from './types.ts';
 
@@ -364,9 +368,15 @@ export function simulate(args: {
     weight: Float64Array;
     shape: TailShape;
   }[] = [];
+  // Voids no scanned particle explains (at most one such source per pair; evaluate.ts).
+  let unexplained: Extract<Contribution['variation'], { type: 'unexplained' }> | null = null;
   contributions.forEach((c, i) => {
     const v = c.variation;
     if (c.detected) return;
+    if (v.type === 'unexplained') {
+      unexplained = v;
+      return;
+    }
     if (v.type === 'tail') {
       const weight = new Float64Array(B);
       for (let k = 0; k < B; k++) weight[k] = c.survivalBins[k]! / c.areaBasisM2;
@@ -405,6 +415,11 @@ export function simulate(args: {
     total += ev.lambdaBins[k]! * ab * nominalArea(k);
     total += ev.detectedCountBins[k]! * ev.detectedAreaPerParticleBins[k]!;
   }
+  // The unexplained voids are one more entry of the area sum: an expected count (the fitted rate, or
+  // for a rate of 0 the mean of its draws) of discs of one area; classified like the bins.
+  const ux = unexplained as Extract<Contribution['variation'], { type: 'unexplained' }> | null;
+  const uxNominal = ux ? (ux.ratePerPair > 0 ? ux.ratePerPair : ux.rateHigh / GARWOOD_UPPER_ZERO_95) : 0;
+  if (ux) total += uxNominal * ux.areaM2;
   const binClass: EntryClass[] = [];
   const exactIndex = new Int32Array(B).fill(-1);
   const exactBins: number[] = [];
@@ -417,6 +432,10 @@ export function simulate(args: {
     }
   }
   const nExact = exactBins.length;
+  const uxClass: EntryClass = ux ? entryClass(uxNominal, ux.areaM2, total) : 'none';
+  // An exact unexplained entry is the last one, after the bins' (index nExact).
+  const nExactAll = nExact + (uxClass === 'exact' ? 1 : 0);
+  const uxAcrit = ux && ev.dieCount > 0 ? physics.criticalArea(ux.radiusM) : 0;
   // Per source, its density in the exact bins (× A_b: expected discs per pair).
   const exactDens = new Float64Array(nSources * nExact); // row e: every source's density in exact bin e
   sourceDens.forEach((d, si) => {
@@ -427,7 +446,7 @@ export function simulate(args: {
     ev.detectedAreaPerParticleBins,
     total,
     ab,
-    nExact,
+    nExactAll,
   );
 
   // Per small-gap grid point (made when a draw first lands there): V, M, BM, BV per source.
@@ -497,13 +516,16 @@ export function simulate(args: {
   const kNB = det ? new Float64Array(nDraws) : null;
   const tailTmp = new Float64Array(B);
   const factor = new Float64Array(nSources);
-  const muExact = new Float64Array(Math.max(nExact, 1));
+  const muExact = new Float64Array(Math.max(nExactAll, 1));
   const exactAreas: (Float64Array | undefined)[] = new Array(gridN); // per grid point, disc areas of the exact bins
   const alpha = args.clusterAlpha;
 
   // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
   const zStride = nGroups + 1;
   const zs = rng.normals(new Float64Array(nDraws * zStride));
+  // Two more normals per draw for the unexplained-void rate, only when there is one (so that the
+  // streams of an assessment without it are what they were).
+  const zu = ux ? rng.normals(new Float64Array(2 * nDraws)) : null;
   for (let t = 0; t < nDraws; t++) {
     const z0 = t * zStride;
     factor[0] = 1;
@@ -533,8 +555,24 @@ export function simulate(args: {
     }
     let areaExact = exactAreas[gi];
     if (!areaExact) {
-      areaExact = Float64Array.from(exactBins, (k) => Math.PI * radii[k]! * radii[k]!);
+      areaExact = new Float64Array(Math.max(nExactAll, 1));
+      for (let e = 0; e < nExact; e++) {
+        const r = radii[exactBins[e]!]!;
+        areaExact[e] = Math.PI * r * r;
+      }
+      if (ux && uxClass === 'exact') areaExact[nExact] = ux.areaM2;
       exactAreas[gi] = areaExact;
+    }
+    if (ux && zu) {
+      // The void area and the critical area of these voids do not depend on the small-gap constant.
+      const rt = drawUnexplainedRate(ux.ratePerPair, ux.rateLow, ux.rateHigh, zu[2 * t]!, zu[2 * t + 1]!);
+      meanVoids += rt;
+      m += (rt / ab) * uxAcrit;
+      if (uxClass === 'exact') muExact[nExact] = rt;
+      else if (uxClass !== 'none') {
+        bigMean += rt * ux.areaM2;
+        if (uxClass === 'normal') bigVar += rt * ux.areaM2 * ux.areaM2;
+      }
     }
     if (tails.length > 0) {
       const frac = grid.frac[gi]!;
@@ -558,7 +596,7 @@ export function simulate(args: {
       }
     }
     voids[t] = rng.poisson(meanVoids);
-    unb[t] = -Math.expm1(-exponent.draw(rng, bigMean, bigVar, muExact, areaExact, nExact));
+    unb[t] = -Math.expm1(-exponent.draw(rng, bigMean, bigVar, muExact, areaExact, nExactAll));
     if (det && kP && kNB) {
       const g = alpha > 0 ? rng.gamma(alpha, 1 / alpha) : 1;
       kP[t] = certain + drawKills(rng, Math.exp(-m), free, hitS, sumS, sumS2, minS, maxS, nDies - certain);

@@ -9,7 +9,13 @@
  * re-clean would buy.
  */
 import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
-import { buildPareto, dominantSource, paretoMetric, sourceContributions } from './attribution.ts';
+import {
+  buildPareto,
+  dominantSource,
+  paretoMetric,
+  sourceContributions,
+  UNEXPLAINED_LABEL,
+} from './attribution.ts';
 import { MODEL_VERSION, resolveConfig } from './config.ts';
 import { type DetectedFlat, type Evaluation, evaluate } from './evaluate.ts';
 import { buildExposureIndex, type ExposureIndex, intervalDose } from './exposure.ts';
@@ -17,6 +23,7 @@ import { fmtCount, fmtHours, fmtPercent, fmtSize } from './format.ts';
 import { buildDieHits, mirrorInto } from './geometry.ts';
 import { canonicalHash } from './hash.ts';
 import { boundFrom, type DrawSet, estimateFrom, simulate, sorted } from './montecarlo.ts';
+import { lineParameters } from './parameters.ts';
 import { buildProductPhysics, type ProductPhysics } from './physics.ts';
 import {
   applyClean,
@@ -415,6 +422,8 @@ export function assessPairInSession(
     propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
+  const unexplained = unexplainedContribution(pair, line, physics);
+  if (unexplained) contributions.push(unexplained);
   const asIs = runScenario(contributions, pair, product, physics, cfg, 1, null, true, session.scratch);
 
   // A modelled extra run of the designated pre-bond clean on both wafers, before the bond step.
@@ -581,7 +590,13 @@ export function assessPairInSession(
   });
 
   const notes = props.flatMap((p) => p.notes);
+  const parameters = lineParameters(line);
   const inputsHash = canonicalHash({
+    // The adopted set (absent with the typed values, so their hashes stay what they were): its
+    // values replaced the typed ones hashed below, and its unexplained-void rate is a source.
+    parameters: line.parameters
+      ? { ref: line.parameters.ref, unexplained: line.parameters.unexplainedVoids[pair.productId] ?? null }
+      : undefined,
     modelVersion: MODEL_VERSION,
     config: cfg,
     pair: { ...pair, top: pair.top.waferId, bottom: pair.bottom.waferId },
@@ -607,6 +622,7 @@ export function assessPairInSession(
     inputsHash,
     modelVersion: MODEL_VERSION,
     specVersion: spec.version,
+    parameters,
     asOfMs,
     draws: cfg.draws,
     seed: cfg.seed,
@@ -631,6 +647,49 @@ export function assessPairInSession(
   };
 }
 
+/**
+ * The source of voids no scanned particle explains, when the line's adopted parameter set states a
+ * rate for the pair's product (none with the typed values). It arises at the bond (a modelled
+ * re-clean does not touch it: nothing says what made these voids) and belongs to the pair, not to a
+ * wafer.
+ */
+function unexplainedContribution(
+  pair: PairInput,
+  line: LineData,
+  physics: ProductPhysics,
+): Contribution | null {
+  const u = line.parameters?.unexplainedVoids[pair.productId];
+  if (!u || !(u.ratePerPair > 0 || u.rateHighPerPair > 0)) return null;
+  return {
+    key: 'pair:unexplained',
+    kind: 'unexplained',
+    label: UNEXPLAINED_LABEL,
+    wafer: 'pair',
+    waferId: pair.pairId,
+    groupKey: 'unexplained',
+    groupLabel: UNEXPLAINED_LABEL,
+    toolId: null,
+    chamber: null,
+    locationId: null,
+    scanId: null,
+    stepSeq: null,
+    lastCleanId: null,
+    base: new Float64Array(SPECTRUM_BIN_COUNT),
+    survivalBins: new Float64Array(SPECTRUM_BIN_COUNT).fill(1),
+    areaBasisM2: physics.bondedAreaM2,
+    variation: {
+      type: 'unexplained',
+      ratePerPair: u.ratePerPair,
+      rateLow: u.rateLowPerPair,
+      rateHigh: u.rateHighPerPair,
+      areaM2: u.meanAreaM2,
+      radiusM: Math.sqrt(u.meanAreaM2 / Math.PI),
+    },
+    atBond: true,
+    detected: null,
+  };
+}
+
 function buildVoidMap(
   s: Scenario,
   product: ProductInput,
@@ -651,7 +710,7 @@ function buildVoidMap(
       rM: det.rM[i]!,
       survival: det.survival[i]!,
       sourceKey: c.key,
-      wafer: c.wafer,
+      wafer: c.wafer === 'top' ? 'top' : 'bottom', // discs come from a wafer's detected particles
       diameterM: c.detected!.diameterM[i - det.sourceStart[det.source[i]!]!]!,
     };
   });
@@ -699,11 +758,18 @@ function buildSpectrum(s: Scenario, physics: ProductPhysics): StackedSpectrum {
     edgesM: Array.from(SPECTRUM_EDGES_M),
     centresM: Array.from(SPECTRUM_CENTRES_M),
     voidRadiusM: Array.from(physics.radiiNominal),
-    series: s.contributions.map((c, i) => ({
-      sourceKey: c.key,
-      label: c.label,
-      kind: c.kind,
-      counts: Array.from(s.evaluation.perContribution[i]?.spectrum ?? interfaceSpectrum(c)),
-    })),
+    // Voids no scanned particle explains have no particle size: not in the spectrum.
+    series: s.contributions.flatMap((c, i) =>
+      c.kind === 'unexplained'
+        ? []
+        : [
+            {
+              sourceKey: c.key,
+              label: c.label,
+              kind: c.kind,
+              counts: Array.from(s.evaluation.perContribution[i]?.spectrum ?? interfaceSpectrum(c)),
+            },
+          ],
+    ),
   };
 }

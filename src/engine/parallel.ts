@@ -15,6 +15,9 @@ import { type Db, openDatabase } from '../store/db.ts';
 import { databaseFile, startModuleWorker } from '../store/worker-thread.ts';
 import { assessLotFromDb, assessLotPairsFromDb, lotPairIds, readProductInput } from './loader.ts';
 import { summariseLot } from './lot.ts';
+import type { ParameterSet } from './parameter-set-types.ts';
+import { readAdoptedParameterSet } from './parameter-sets.ts';
+import { parameterSetRef } from './parameters.ts';
 import type { AssessOptions, LotAssessment, PairAssessment } from './types.ts';
 
 /** Below this many pairs a second thread costs more than it saves. */
@@ -26,6 +29,8 @@ interface Job {
   lotId: string;
   pairIds: string[];
   opts: AssessOptions;
+  /** The parameter set this thread read (both threads apply the same one). */
+  set: ParameterSet | null;
 }
 
 type Reply = { id: number; ok: true; pairs: PairAssessment[] } | { id: number; ok: false; message: string };
@@ -102,24 +107,33 @@ export async function assessLotFromDbParallel(
   if (ids === null) return null;
   if (file === null || ids.length < MIN_PAIRS_FOR_WORKER || opts.config !== undefined)
     return assessLotFromDb(db, lotId, opts);
+  // Read once, here, and handed to the worker: a set adopted while the lot is being assessed must
+  // not split the lot between two sets.
+  const set = readAdoptedParameterSet(db);
   const cut = Math.floor(ids.length / 2);
   const mine = ids.slice(0, cut);
   const theirs = ids.slice(cut);
   shared ??= new AssessWorker();
-  const remote = shared.run({ dbFile: file, lotId, pairIds: theirs, opts });
+  const remote = shared.run({ dbFile: file, lotId, pairIds: theirs, opts, set });
   // If the worker fails, this thread assesses its half too; the answer is the same, only slower.
   remote.catch(() => {});
-  const here = assessLotPairsFromDb(db, lotId, mine, opts);
+  const here = assessLotPairsFromDb(db, lotId, mine, opts, set);
   if (!here) return null;
   let there: PairAssessment[];
   try {
     there = await remote;
   } catch {
-    there = assessLotPairsFromDb(db, lotId, theirs, opts)?.pairs ?? [];
+    there = assessLotPairsFromDb(db, lotId, theirs, opts, set)?.pairs ?? [];
   }
   const product = readProductInput(db, here.productId);
   if (!product) return assessLotFromDb(db, lotId, opts); // the serial path reports the missing product
-  return summariseLot({ lotId, productId: here.productId }, product, [...here.pairs, ...there], opts);
+  return summariseLot(
+    { lotId, productId: here.productId },
+    product,
+    [...here.pairs, ...there],
+    opts,
+    parameterSetRef(set),
+  );
 }
 
 // ── the worker thread ──────────────────────────────────────────────────────────────────────────
@@ -133,7 +147,7 @@ function workerMain(): void {
         db = openDatabase(job.dbFile);
         connections.set(job.dbFile, db);
       }
-      const r = assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts);
+      const r = assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts, job.set);
       port.postMessage({ id: job.id, ok: true, pairs: r?.pairs ?? [] } satisfies Reply);
     } catch (e) {
       port.postMessage({

@@ -8,6 +8,11 @@
  * SI units as everywhere in the engine (types.ts). Every fitted value carries its interval, the
  * method, and the data it rests on (methods.md §1–§4 of the project reference: every fit returns an
  * interval and the data it came from; a fit with too little data proposes nothing).
+ *
+ * Intervals are two-sided 95 % intervals. How a set replaces the typed values is in
+ * src/engine/parameters.ts (applyParameterValues) and docs/engine.md §9; how it is stored, adopted and
+ * reverted in src/store/parameter-sets.ts (append-only: a stored set is never changed, adoption is a
+ * log of events whose latest decides).
  */
 
 /** Where a fitted value came from: enough for a reader to find the rows again. */
@@ -91,6 +96,11 @@ export interface ParameterValues {
   unexplainedVoids: Record<string, FittedUnexplainedVoids>;
 }
 
+/**
+ * proposed: never adopted; adopted: the set assessments use now (at most one); retired: adopted
+ * once and no longer (another set was adopted after it, or the line went back to the typed values).
+ * A retired set may be adopted again.
+ */
 export type ParameterSetState = 'proposed' | 'adopted' | 'retired';
 
 /** A stored parameter set. */
@@ -106,8 +116,12 @@ export interface ParameterSet {
   notes: string[];
   createdAtMs: number;
   createdBy: string;
+  /** The latest adoption of this set, UTC ms, and who adopted it (null: never adopted). */
   adoptedAtMs: number | null;
   adoptedBy: string | null;
+  /** When that adoption ended and who ended it (null: never adopted, or adopted now). */
+  retiredAtMs: number | null;
+  retiredBy: string | null;
   /** sha256 of the canonical serialisation of `values` (part of every assessment's inputs' hash). */
   valuesHash: string;
 }
@@ -119,4 +133,14 @@ export interface ParameterSetRef {
   version: number | null;
   label: string;
   valuesHash: string | null;
+}
+
+/**
+ * What the loader hands the engine besides the applied values (LineData.parameters): which set was
+ * applied, and what has no typed counterpart to replace — the rate of voids no scanned particle
+ * explains, per product (a source of its own in the assessment).
+ */
+export interface AppliedParameters {
+  ref: ParameterSetRef;
+  unexplainedVoids: Record<string, FittedUnexplainedVoids>;
 }

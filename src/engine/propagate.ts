@@ -40,7 +40,18 @@ export type Variation =
   | { type: 'wait' }
   | { type: 'tool'; toolKey: string; uncertaintyFactor: number }
   | { type: 'incoming' }
-  | { type: 'detected' };
+  | { type: 'detected' }
+  | {
+      /** Voids no scanned particle explains: a Poisson number per pair at a fitted rate (evaluate.ts). */
+      type: 'unexplained';
+      /** Expected reportable voids per pair and its 95 % interval. */
+      ratePerPair: number;
+      rateLow: number;
+      rateHigh: number;
+      /** Area of each such void, m², and the radius of a disc of that area, m. */
+      areaM2: number;
+      radiusM: number;
+    };
 
 /** Detected particles of one wafer's scan as they stand at bonding. */
 export interface DetectedState {

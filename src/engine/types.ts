@@ -17,6 +17,7 @@
  * Stability: engineer F builds the pages from the result types; fields are only ever added.
  */
 import type { Spectrum } from '../model/spectrum.ts';
+import type { AppliedParameters, ParameterSetRef } from './parameter-set-types.ts';
 
 // ───────────────────────────────────────── inputs ─────────────────────────────────────────
 
@@ -308,6 +309,12 @@ export interface LineData {
   locations: Record<string, LocationInput>;
   /** Counter samples by location id, covering at least every exposure interval of the pairs. */
   counters: Record<string, CounterSeriesInput>;
+  /**
+   * The adopted parameter set, when one is: its values already replace the typed ones above
+   * (src/engine/parameters.ts); this names the set and carries what has no typed counterpart (the
+   * rate of voids no scanned particle explains). Absent: the typed values, nothing adopted.
+   */
+  parameters?: AppliedParameters;
 }
 
 export interface LotInput {
@@ -378,7 +385,11 @@ export interface Estimate {
   confidence: number;
 }
 
-export type SourceKind = 'detected' | 'tail' | 'incoming' | 'tool' | 'wait';
+/**
+ * 'unexplained': voids no scanned particle explains, at the rate a calibration from the line's void
+ * inspections measured (present only while an adopted parameter set states it for the product).
+ */
+export type SourceKind = 'detected' | 'tail' | 'incoming' | 'tool' | 'wait' | 'unexplained';
 
 /** One contribution to the particles at the bond interface, with its downstream figures. */
 export interface SourceContribution {
@@ -387,7 +398,9 @@ export interface SourceContribution {
   kind: SourceKind;
   /** Plain-words label ("Wait at Bay 3, 2.0 h, open cassette (top wafer)"). */
   label: string;
-  wafer: 'top' | 'bottom';
+  /** 'pair': a source of the bonded pair as a whole (voids no scanned particle explains). */
+  wafer: 'top' | 'bottom' | 'pair';
+  /** The wafer's id; for wafer 'pair', the pair's id. */
   waferId: string;
   /** Group for the dominant-source call: "tool:ACT-1", "location:BAY-3", "detected", "tail", "incoming". */
   groupKey: string;
@@ -438,7 +451,7 @@ export interface Pareto {
   byClean: ParetoEntry[];
   /** Per size band of the particle diameter at the interface. */
   bySizeBand: (ParetoEntry & { fromM: number; toM: number })[];
-  /** Per source kind (detected, tail, incoming, tool, wait). */
+  /** Per source kind (detected, tail, incoming, tool, wait, unexplained). */
   byKind: ParetoEntry[];
 }
 
@@ -622,6 +635,8 @@ export interface PairAssessment {
   inputsHash: string;
   modelVersion: string;
   specVersion: string;
+  /** The parameter set the assessment used ("typed values" when none was adopted); the hash covers it. */
+  parameters: ParameterSetRef;
   /** Assessment time, UTC ms. */
   asOfMs: number;
   /** Monte Carlo draws behind every interval, and its seed. */
@@ -667,6 +682,8 @@ export interface LotAssessment {
   inputsHash: string;
   modelVersion: string;
   specVersion: string;
+  /** The parameter set every pair was assessed with ("typed values" when none was adopted). */
+  parameters: ParameterSetRef;
   pairs: PairAssessment[];
   /** Worst call of the pairs (hold > re-clean > bond). */
   call: Call;

@@ -11,8 +11,19 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadDemoOnce } from '../../src/cli/demo.ts';
 import { assessLotFromDb } from '../../src/engine/loader.ts';
 import { assessLotFromDbParallel, stopAssessWorker } from '../../src/engine/parallel.ts';
+import {
+  adoptParameterSetInDb,
+  proposeParameterSet,
+  revertToTypedValuesInDb,
+} from '../../src/engine/parameter-sets.ts';
 import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
 import { installationClockMs } from '../../src/store/settings.ts';
+import {
+  fittedAdders,
+  fittedRemoval,
+  fittedUnexplained,
+  fittedVoidSize,
+} from '../helpers/parameter-values.ts';
 
 describe('assessLotFromDbParallel', () => {
   let dir: string;
@@ -35,6 +46,40 @@ describe('assessLotFromDbParallel', () => {
       const serial = assessLotFromDb(db, lotId, { asOfMs });
       const parallel = await assessLotFromDbParallel(db, lotId, { asOfMs });
       expect(JSON.stringify(parallel)).toBe(JSON.stringify(serial));
+    }
+  }, 120_000);
+
+  it('gives exactly the single-thread result with a parameter set adopted (both threads apply the same set)', async () => {
+    const proposed = proposeParameterSet(
+      db,
+      {
+        adders: { 'LACT-1/B': fittedAdders('LACT-1', 'B', { countAbove: 1.5, countLow: 1, countHigh: 2.2 }) },
+        removal: { 'CLN-RIN1': fittedRemoval('CLN-RIN1') },
+        voidSize: {
+          'GALE-7': fittedVoidSize('GALE-7', { energyJm2: 1.1, energyLowJm2: 1, energyHighJm2: 1.2 }),
+        },
+        unexplainedVoids: {
+          'GALE-7': fittedUnexplained('GALE-7', {
+            ratePerPair: 0.8,
+            rateLowPerPair: 0.3,
+            rateHighPerPair: 1.6,
+          }),
+        },
+      },
+      [],
+      'parallel check',
+      'test',
+    );
+    if (!proposed.ok) throw new Error(proposed.message);
+    adoptParameterSetInDb(db, proposed.set.id, 'test');
+    try {
+      const serial = assessLotFromDb(db, 'TR2652', { asOfMs })!;
+      const parallel = await assessLotFromDbParallel(db, 'TR2652', { asOfMs });
+      expect(serial.parameters.id).toBe(proposed.set.id);
+      expect(serial.pairs.every((p) => p.contributions.some((c) => c.kind === 'unexplained'))).toBe(true);
+      expect(JSON.stringify(parallel)).toBe(JSON.stringify(serial));
+    } finally {
+      revertToTypedValuesInDb(db, 'test');
     }
   }, 120_000);
 

@@ -7,6 +7,7 @@ import { join } from 'node:path';
 import { fmtCount, fmtHours, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { assessPairFromDb } from '../../engine/loader.ts';
 import { assessLotFromDbParallel } from '../../engine/parallel.ts';
+import { parameterSetWords } from '../../engine/parameters.ts';
 import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
 import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
@@ -68,6 +69,7 @@ export function renderPair(a: PairAssessment): string {
   out.push(
     `Pair ${a.pairId} (lot ${a.lotId}, product ${a.productId}): top ${a.topWaferId}, bottom ${a.bottomWaferId}`,
     `assessed ${new Date(a.asOfMs).toISOString()} · model ${a.modelVersion} · spec ${a.specVersion} · ${a.draws} Monte Carlo draws (seed ${a.seed})`,
+    `parameters: ${parameterSetWords(a.parameters)}`,
     `inputs ${a.inputsHash}`,
     '',
     `CALL: ${CALL_WORD[a.call]}`,
@@ -135,6 +137,7 @@ export function renderLot(l: LotAssessment): string {
   const out: string[] = [];
   out.push(
     `Lot ${l.lotId} (product ${l.productId}), assessed ${new Date(l.asOfMs).toISOString()} · model ${l.modelVersion} · spec ${l.specVersion}`,
+    `parameters: ${parameterSetWords(l.parameters)}`,
     `CALL: ${CALL_WORD[l.call]}   (${l.counts.bond} bond, ${l.counts.reclean} re-clean, ${l.counts.hold} hold)`,
     '',
     table([

@@ -96,6 +96,48 @@ describe('migrations', () => {
     db.close();
   });
 
+  it('0021 adds the parameter sets to a database of 0020 with its sign-offs intact, and keeps them append-only', () => {
+    const file = join(tempDir(), 'params.db');
+    const db = openDatabase(file);
+    migrate(db, { upTo: 20 });
+    db.prepare(
+      `INSERT INTO dispositions (subject_kind, subject_id, call, proposed_call, inputs_hash, model_version, spec_version,
+         figures_json, reasons_json, signed_by, comment, signed_at_ms, assessed_at_ms)
+       VALUES ('pair', 'P1', 'bond', 'bond', ?, 'voidcast-chain/2', 'spec-1', '{}', '[]', 'A. Signer', NULL, 1000, 900)`,
+    ).run('c'.repeat(64));
+    const before = db.prepare('SELECT * FROM dispositions').all();
+    expect(migrate(db)).toContain(21);
+    expect(db.prepare('SELECT * FROM dispositions').all()).toEqual(before);
+    db.prepare(
+      `INSERT INTO parameter_sets (version, label, values_json, values_hash, notes_json, created_by, created_at_ms)
+       VALUES (1, 'fit', '{}', ?, '[]', 'A. Fitter', 5)`,
+    ).run('d'.repeat(64));
+    db.prepare(
+      "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('adopt', 1, 'A. Adopter', 6)",
+    ).run();
+    // Append-only: the database itself refuses to change or delete a set or an event.
+    expect(() => db.prepare("UPDATE parameter_sets SET values_json = '[]'").run()).toThrow(/append-only/);
+    expect(() => db.prepare('DELETE FROM parameter_sets').run()).toThrow(/append-only/);
+    expect(() => db.prepare("UPDATE parameter_set_events SET by_name = 'x'").run()).toThrow(/append-only/);
+    expect(() => db.prepare('DELETE FROM parameter_set_events').run()).toThrow(/append-only/);
+    // An event must name a stored set (foreign key) and a known action.
+    expect(() =>
+      db
+        .prepare(
+          "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('adopt', 9, 'x', 1)",
+        )
+        .run(),
+    ).toThrow(/FOREIGN KEY/);
+    expect(() =>
+      db
+        .prepare(
+          "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('edit', 1, 'x', 1)",
+        )
+        .run(),
+    ).toThrow(/CHECK/);
+    db.close();
+  });
+
   it('rolls a failing migration back whole, leaving the earlier schema and its record', () => {
     const dir = tempDir();
     writeFileSync(join(dir, '0001_a.sql'), 'CREATE TABLE a (x INTEGER);');
