@@ -93,7 +93,7 @@ export function backtestPrepared(
       if (fittedSomething) {
         let s = sessions.get(p.line);
         if (!s) {
-          s = createSession(applyCalibrationValues(p.line, values), config);
+          s = createSession(applyCalibrationValues(p.line, values, `fitted without lot ${lotId}`), config);
           sessions.set(p.line, s);
         }
         const a = assessPairInSession(p.pair, s, { asOfMs: p.asOfMs, detail: 'full' });
@@ -103,7 +103,7 @@ export function backtestPrepared(
           p.dieGrid,
           p.bondedRadiusM,
           pairSeed(c.pairId),
-          unexplained ? unexplained.meanDiameterM : null,
+          unexplained ? Math.sqrt(unexplained.meanAreaM2 / Math.PI) : null,
         );
         addCoverage(after, c.observed, predicted);
         sumAfter += predicted.voids.value;

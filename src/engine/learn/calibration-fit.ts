@@ -216,8 +216,12 @@ export function fitVoidSize(a: VoidSizeFitArgs): VoidSizeFitResult {
       ...base,
       note: `The ${n} explained voids of ${a.productId} put the energy at the edge of the searched range (${fmtCount(toEnergy(Math.exp(lo)))}–${fmtCount(toEnergy(Math.exp(hi)))} J/m²): no estimate inside the model's range; nothing proposed.`,
     };
-  const step = 0.02;
-  const curvature = (profile(theta + step).value - 2 * opt.f + profile(theta - step).value) / (step * step);
+  // Curvature of the profile by a second difference; the profile is not a parabola (it is ~ (n/2) ln S),
+  // so the step is taken again at a tenth of the first estimate of SE (relative error ≈ 10⁻²/(2n)).
+  const curvatureAt = (h: number) =>
+    (profile(theta + h).value - 2 * opt.f + profile(theta - h).value) / (h * h);
+  let curvature = curvatureAt(0.02);
+  if (curvature > 0) curvature = curvatureAt(Math.max(1e-4, 0.1 / Math.sqrt(curvature)));
   const fitSigma = Math.exp(profile(theta).lnSigma);
   if (!(curvature > 0))
     return {

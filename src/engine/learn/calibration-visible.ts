@@ -13,7 +13,7 @@
  *   the assessment's reportable particle size), scaled so that their sum is the source's expected
  *   reportable voids (which carries its area basis), at the bin's void radius;
  * - voids no scanned particle explains (a source of its own when a calibration is applied): its
- *   reportable voids at the fitted mean diameter.
+ *   reportable voids at the radius of their fitted mean area, as the assessment draws them.
  * A seeded Monte Carlo draws the visible voids — scanned particles by Bernoulli(s_j), the rest by
  * Poisson per bin, placed uniformly over the bonded area as the assessment's random part is — and
  * sums their areas and counts the dies whose critical rectangle a drawn disc touches (geometry.ts
@@ -36,7 +36,7 @@ interface RandomVoids {
   mean: number[];
 }
 
-function randomVisible(a: PairAssessment, otherDiameterM: number | null): RandomVoids {
+function randomVisible(a: PairAssessment, unexplainedRadiusM: number | null): RandomVoids {
   const out: RandomVoids = { radiusM: [], mean: [] };
   const sp = a.spectrum;
   const frac = fractionAbove(a.reportableParticleM);
@@ -47,13 +47,14 @@ function randomVisible(a: PairAssessment, otherDiameterM: number | null): Random
   };
   for (const c of a.contributions) {
     if (c.kind === 'detected' || !(c.expectedVoids > 0)) continue;
-    const series = sp?.series.find((s) => s.sourceKey === c.key);
-    if (!sp || !series) {
-      // A source without a spectrum (voids no scanned particle explains): its voids at their
-      // fitted mean size, else at the smallest reportable size.
-      add((otherDiameterM ?? a.smallestReportableVoidM) / 2, c.expectedVoids);
+    if (c.kind === 'unexplained') {
+      // No size spectrum: its reportable voids at the radius of the fitted mean void area (as the
+      // assessment draws them), else at the smallest reportable size.
+      add(unexplainedRadiusM ?? a.smallestReportableVoidM / 2, c.expectedVoids);
       continue;
     }
+    const series = sp?.series.find((s) => s.sourceKey === c.key);
+    if (!sp || !series) continue;
     let base = 0;
     for (let k = 0; k < series.counts.length; k++) base += series.counts[k]! * frac[k]!;
     if (!(base > 0)) continue;
@@ -73,13 +74,13 @@ export function visibleFigures(
   dieGrid: DieGridIndex | null,
   bondedRadiusM: number,
   seed: number,
-  /** Mean diameter of the voids no scanned particle explains, when the assessment has that source, m. */
-  unexplainedDiameterM: number | null = null,
+  /** Radius of the mean area of the voids no scanned particle explains (that source's void), m. */
+  unexplainedRadiusM: number | null = null,
   draws = VISIBLE_DRAWS,
 ): PredictedFigures {
   const dMin = a.smallestReportableVoidM;
   const det = (a.voidMap?.discs ?? []).filter((d) => 2 * d.rM >= dMin && d.survival > 0);
-  const rnd = randomVisible(a, unexplainedDiameterM);
+  const rnd = randomVisible(a, unexplainedRadiusM);
   let areaMean = 0;
   for (const d of det) areaMean += d.survival * Math.PI * d.rM * d.rM;
   for (let k = 0; k < rnd.mean.length; k++) areaMean += rnd.mean[k]! * Math.PI * rnd.radiusM[k]! ** 2;

@@ -76,12 +76,15 @@ export function assessedFigures(a: PairAssessment, product: ProductInput): Predi
   };
 }
 
-/** Expected reportable voids of the undetected tail, and of every source the scans do not see. */
+/**
+ * Expected reportable voids of the undetected tail, and of every source the scans do not see (the
+ * tail, tool adders, waits, incoming; not a fitted rate of unexplained voids, which is what is measured).
+ */
 export function unscannedVoids(a: PairAssessment): { tail: number; unscanned: number } {
   let tail = 0;
   let unscanned = 0;
   for (const c of a.contributions) {
-    if (c.kind === 'detected') continue;
+    if (c.kind === 'detected' || c.kind === 'unexplained') continue;
     unscanned += c.expectedVoids;
     if (c.kind === 'tail') tail += c.expectedVoids;
   }
