@@ -393,8 +393,8 @@ export function signOffPairInDb(
 
 /**
  * The bonded lots with void inspections, loaded for calibration (src/engine/learn/calibration.ts):
- * each lot with its line data at the time of its latest inspection (so every inspected pair is
- * bonded by then), and every inspection of its pairs with the voids in the bond frame. `lotIds`
+ * each lot with its line data (the typed values, not an adopted parameter set) at the time of its
+ * latest inspection (so every inspected pair is bonded by then), and every inspection of its pairs with the voids in the bond frame. `lotIds`
  * limits it to those lots; an unknown lot or one without inspections is named in `missing`.
  */
 export function loadInspectedLots(
@@ -408,7 +408,8 @@ export function loadInspectedLots(
   for (const lotId of wanted.filter((id) => inspected.includes(id))) {
     const headers = listVoidInspectionsOfLot(db, lotId);
     const asOfMs = Math.max(...headers.map((h) => h.timeMs));
-    const loaded = loadLot(db, lotId, asOfMs);
+    // The typed values: calibration measures against them, whatever set is adopted now.
+    const loaded = loadLot(db, lotId, asOfMs, undefined, null);
     if (!loaded) {
       missing.push(lotId);
       continue;

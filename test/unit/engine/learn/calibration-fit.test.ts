@@ -158,7 +158,7 @@ describe('fitVoidSize', () => {
     const lnW = Math.log(W0) + mean;
     expect(Math.log(2 * f.fitted!.energyJm2)).toBeCloseTo(lnW, 6);
     const s = Math.sqrt(res.reduce((a, b) => a + (b - mean) ** 2, 0) / (res.length - 1));
-    const half = (2.2621571627409915 * s) / Math.sqrt(res.length); // t(0.975; 9), SciPy 1.17.1
+    const half = (2.262157162798205 * s) / Math.sqrt(res.length); // t(0.975; 9), SciPy 1.17.1
     // The fit takes the curvature by a second difference at a tenth of SE: relative error ≈ 10⁻²/(2n)
     // = 5·10⁻⁴ here, so 10⁻³ relative.
     expect(Math.abs(Math.log(f.fitted!.energyHighJm2 / f.fitted!.energyJm2) / half - 1)).toBeLessThan(1e-3);
