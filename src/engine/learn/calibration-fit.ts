@@ -145,7 +145,7 @@ export function fitVoidSize(a: VoidSizeFitArgs): VoidSizeFitResult {
   const c = Float64Array.from(matches, (m) => Math.log(m.truncationRadiusM));
   const d = Float64Array.from(matches, (m) => m.particleDiameterM);
   const mu = (theta: number, out: Float64Array) => {
-    const W = Math.exp(theta);
+    const W = Math.min(Math.exp(theta), W_MAX); // e^(ln 100) may round just above 100
     for (let j = 0; j < n; j++) out[j] = Math.log(radius(d[j]!, W, f).radiusM);
   };
   const mu0 = new Float64Array(n);
@@ -236,7 +236,7 @@ export function fitVoidSize(a: VoidSizeFitArgs): VoidSizeFitResult {
   const muFit = new Float64Array(n);
   mu(theta, muFit);
   let thick = 0;
-  for (let j = 0; j < n; j++) if (radius(d[j]!, Math.exp(theta), f).regime === 'thick-plate') thick++;
+  for (let j = 0; j < n; j++) if (radius(d[j]!, Math.min(Math.exp(theta), W_MAX), f).regime === 'thick-plate') thick++;
   const multiplierAt = (t: number) => {
     const mt = new Float64Array(n);
     mu(t, mt);
