@@ -8,13 +8,15 @@ import { assess } from './commands/assess.ts';
 import { calc, calcUsage } from './commands/calc.ts';
 import { demo } from './commands/demo.ts';
 import { importCommand } from './commands/import.ts';
+import { learn } from './commands/learn.ts';
 import { params } from './commands/params.ts';
 import { serve } from './commands/serve.ts';
 import { signoff } from './commands/signoff.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve, calc, importCommand, assess, signoff, params, demo];
+import { learn } from './commands/learn.ts';
+import { params } from './commands/params.ts';
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -15,6 +15,7 @@
  */
 import { ModelInputError, requireNumber } from './errors.ts';
 import { chiSquareSurvival } from './stats/chi-square.ts';
+import { invertSymmetricMatrix } from './stats/linalg.ts';
 
 export interface RemovalCurveParams {
   /** d50, the size at which removal is half of maxEfficiency, m. 10⁻¹⁰ ≤ d50 ≤ 10⁻². */
@@ -453,7 +454,7 @@ function standardErrors(
       H[j]![i] = -v;
     }
   }
-  const inv = invertSymmetric(H);
+  const inv = invertSymmetricMatrix(H);
   if (!inv) return null;
   const variance = inv.map((row, i) => row[i]!);
   if (variance.some((v) => !(v > 0) || !Number.isFinite(v))) return null;
@@ -463,21 +464,4 @@ function standardErrors(
     maxEfficiency: atTop ? null : sd[1]!,
     steepness: Math.exp(lnK) * sd[m - 1]!,
   };
-}
-
-/** Inverse of a small symmetric positive-definite matrix by Gauss–Jordan; null if singular or not positive definite. */
-function invertSymmetric(a: number[][]): number[][] | null {
-  const n = a.length;
-  const m = a.map((row, i) => [...row, ...Array.from({ length: n }, (_, j) => (i === j ? 1 : 0))]);
-  for (let c = 0; c < n; c++) {
-    const pivot = m[c]![c]!;
-    if (!(pivot > 0) || !Number.isFinite(pivot)) return null;
-    for (let j = 0; j < 2 * n; j++) m[c]![j]! /= pivot;
-    for (let r = 0; r < n; r++) {
-      if (r === c) continue;
-      const f = m[r]![c]!;
-      for (let j = 0; j < 2 * n; j++) m[r]![j]! -= f * m[c]![j]!;
-    }
-  }
-  return m.map((row) => row.slice(n));
 }

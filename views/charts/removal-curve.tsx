@@ -4,7 +4,9 @@
  *
  * The curve is drawn from the points given (the caller evaluates its model); a measured band is
  * a square at the band's geometric centre with a horizontal bar across the band and, when an
- * interval is known, a vertical bar over it. PRE is on a linear 0–100 % axis.
+ * interval is known, a vertical bar over it. PRE is on a linear 0–100 % axis. Optionally: a
+ * confidence band around the curve (a shaded area between its lower and upper limits) and a
+ * second, typed curve drawn dashed beside a fitted one.
  */
 import { scaleLinear, scaleLog } from 'd3-scale';
 import { line } from 'd3-shape';
@@ -39,9 +41,22 @@ export interface MeasuredBand {
   n?: number;
 }
 
+export interface RemovalCurveBandPoint {
+  diameterM: number;
+  lower: number;
+  upper: number;
+}
+
 export interface RemovalCurveInput {
   title: string;
   curve: RemovalCurvePoint[];
+  /** Legend words of the curve (default "model PRE(d)"). */
+  curveLabel?: string;
+  /** Pointwise confidence band of the curve, drawn as a shaded area. */
+  band?: RemovalCurveBandPoint[];
+  /** A second curve drawn dashed (the typed values beside a fitted curve). */
+  typed?: RemovalCurvePoint[];
+  typedLabel?: string;
   measured?: MeasuredBand[];
   xDomainM?: [number, number];
   markers?: { atM: number; label: string }[];
@@ -52,11 +67,19 @@ export interface RemovalCurveInput {
 
 export function removalCurve(input: RemovalCurveInput) {
   const id = safeId(input.id ?? `rc-${input.title}`);
+  // A second legend row when the band or the typed curve is drawn.
+  const extra = input.band?.length || input.typed?.length ? 16 : 0;
   const width = input.width ?? 520;
-  const height = input.height ?? 300;
-  const frame = { width, height, margin: { top: 14, right: 28, bottom: 70, left: 60 } };
+  const height = (input.height ?? 300) + extra;
+  const frame = { width, height, margin: { top: 14, right: 28, bottom: 70 + extra, left: 60 } };
   const box = innerBox(frame);
   const curve = input.curve
+    .filter((p) => p.diameterM > 0 && Number.isFinite(p.efficiency))
+    .sort((a, b) => a.diameterM - b.diameterM);
+  const bandPts = (input.band ?? [])
+    .filter((p) => p.diameterM > 0 && Number.isFinite(p.lower) && Number.isFinite(p.upper))
+    .sort((a, b) => a.diameterM - b.diameterM);
+  const typedPts = (input.typed ?? [])
     .filter((p) => p.diameterM > 0 && Number.isFinite(p.efficiency))
     .sort((a, b) => a.diameterM - b.diameterM);
   const measured = (input.measured ?? []).filter(
@@ -70,6 +93,15 @@ export function removalCurve(input: RemovalCurveInput) {
     line<RemovalCurvePoint>()
       .x((p) => x(p.diameterM))
       .y((p) => y(clamp01(p.efficiency)))(inDomain) ?? '';
+  const bandIn = bandPts.filter((p) => p.diameterM >= xDomain[0] && p.diameterM <= xDomain[1]);
+  const bandPath = bandIn.length
+    ? `M${[...bandIn.map((p) => `${r(x(p.diameterM))},${r(y(clamp01(p.upper)))}`), ...[...bandIn].reverse().map((p) => `${r(x(p.diameterM))},${r(y(clamp01(p.lower)))}`)].join('L')}Z`
+    : '';
+  const typedIn = typedPts.filter((p) => p.diameterM >= xDomain[0] && p.diameterM <= xDomain[1]);
+  const typedPath =
+    line<RemovalCurvePoint>()
+      .x((p) => x(p.diameterM))
+      .y((p) => y(clamp01(p.efficiency)))(typedIn) ?? '';
   const desc =
     (inDomain.length
       ? `Removal efficiency from ${fmtPct(inDomain[0]!.efficiency)} at ${fmtDiameter(inDomain[0]!.diameterM)} to ${fmtPct(inDomain.at(-1)!.efficiency)} at ${fmtDiameter(inDomain.at(-1)!.diameterM)}`
@@ -80,6 +112,7 @@ export function removalCurve(input: RemovalCurveInput) {
           .map((m) => `${fmtDiameter(m.fromM)}–${fmtDiameter(m.toM)} ${fmtPct(m.efficiency)}`)
           .join(', ')
       : '; no measured bands') +
+    (typedIn.length ? '; the typed curve drawn dashed beside it' : '') +
     '.';
   return (
     <ChartSvg kind="removal-curve" id={id} width={width} height={height} title={input.title} desc={desc}>
@@ -120,6 +153,19 @@ export function removalCurve(input: RemovalCurveInput) {
           </g>
         ))}
       <g class="vc-marks">
+        {bandPath ? (
+          <path class="vc-curve-band" d={bandPath} fill="#1f6f8b" fill-opacity="0.18" stroke="none" />
+        ) : null}
+        {typedPath ? (
+          <path
+            class="vc-mark vc-typed"
+            d={typedPath}
+            fill="none"
+            stroke="#5d6472"
+            stroke-width="1.6"
+            stroke-dasharray="6 4"
+          />
+        ) : null}
         {d ? <path class="vc-mark vc-curve" d={d} fill="none" stroke="#1f6f8b" stroke-width="2" /> : null}
         {measured.map((m) => {
           const cxv = Math.sqrt(m.fromM * m.toM);
@@ -165,9 +211,35 @@ export function removalCurve(input: RemovalCurveInput) {
         columnWidth={(box.x1 - box.x0) / 2}
         entries={[
           {
-            label: 'model PRE(d)',
+            label: input.curveLabel ?? 'model PRE(d)',
             swatch: <line x1={0} x2={14} y1={6} y2={6} stroke="#1f6f8b" stroke-width="2" />,
           },
+          ...(bandPath
+            ? [
+                {
+                  label: 'its 95 % band',
+                  swatch: <rect x={0} y={1} width="14" height="10" fill="#1f6f8b" fill-opacity="0.18" />,
+                },
+              ]
+            : []),
+          ...(typedPath
+            ? [
+                {
+                  label: input.typedLabel ?? 'typed PRE(d)',
+                  swatch: (
+                    <line
+                      x1={0}
+                      x2={14}
+                      y1={6}
+                      y2={6}
+                      stroke="#5d6472"
+                      stroke-width="1.6"
+                      stroke-dasharray="6 4"
+                    />
+                  ),
+                },
+              ]
+            : []),
           {
             label: 'measured per size band',
             swatch: (

@@ -4,6 +4,7 @@
  */
 import { removalCurve } from '../charts/removal-curve.tsx';
 import { fmtDiameter, fmtNum, fmtPct } from '../partials/format.ts';
+import { LearnedSection, type LearnedView } from '../partials/learned-tools.tsx';
 
 export interface ToolRow {
   toolId: string;
@@ -33,7 +34,7 @@ export interface CleanView {
   at: { diameterM: number; efficiency: number }[];
 }
 
-export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[] }) {
+export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[]; learned?: LearnedView | null }) {
   return (
     <section class="vc-tools">
       <h1>Tools &amp; cleans</h1>
@@ -108,6 +109,7 @@ export function ToolsPage(props: { tools: ToolRow[]; cleans: CleanView[] }) {
           ))}
         </div>
       )}
+      <LearnedSection learned={props.learned ?? null} />
       <aside class="vc-caution" role="note">
         Pre-bond cleans use hazardous chemicals (HF and buffered oxide etch, SC-1/SC-2 and peroxide mixtures).
         Any change of a clean goes through the site's authorised recipes, its chemical hygiene plan and the

@@ -11,13 +11,15 @@
  */
 import type { Hono } from 'hono';
 import { type CleanView, type ToolRow, ToolsPage } from '../../../views/pages/tools.tsx';
+import { LearnedSection, type LearnedView } from '../../../views/partials/learned-tools.tsx';
+import { learnAdders, learnRemoval } from '../../engine/learn/index.ts';
 import { fitRemovalCurve, type RemovalCurveParams, removalEfficiency } from '../../model/clean.ts';
 import { ModelInputError } from '../../model/errors.ts';
 import { SPECTRUM_CENTRES_M } from '../../model/spectrum.ts';
 import { listTools, readCleans, type StoredClean, toolKey } from '../../store/tools.ts';
 import { ledgerPassesByTool } from '../../store/views-tools.ts';
 import type { AppContext } from '../context.ts';
-import { renderPage } from '../render.ts';
+import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
 
 /** Reference sizes for the table under each curve: a scan threshold, 100 nm, 300 nm. */
 const REFERENCE_SIZES_M = [45e-9, 100e-9, 300e-9];
@@ -80,7 +82,46 @@ export function cleanView(c: StoredClean): CleanView {
   }
 }
 
+/**
+ * The fits learned from the line's scans, made on request through the engine (src/engine/learn):
+ * adders per pass per tool and chamber, removal curves per clean, each with the typed values beside.
+ */
+export function learnedView(ctx: AppContext): LearnedView {
+  const adders = learnAdders(ctx.db);
+  const removal = learnRemoval(ctx.db);
+  const cleans = readCleans(ctx.db);
+  return {
+    adders,
+    removal,
+    cleans: removal.results.map((learning) => {
+      const stored = cleans[learning.cleanId];
+      const t = learning.typed;
+      const sizes = learning.curve.length
+        ? learning.curve.map((p) => p.diameterM)
+        : Array.from(SPECTRUM_CENTRES_M).filter((d) => d <= 10e-6);
+      return {
+        learning,
+        typedCurve:
+          t && stored
+            ? sizes.map((d) => ({
+                diameterM: d,
+                efficiency: removalEfficiency(
+                  d,
+                  paramsFromWidth(t.maxEfficiency, t.halfSizeM, t.widthDecades),
+                ),
+              }))
+            : [],
+      };
+    }),
+  };
+}
+
 export function register(app: Hono, ctx: AppContext): void {
+  // The learned section alone (htmx); without script the form asks for /tools?learn=1.
+  app.get('/tools/learned', (c) => {
+    if (isFragmentRequest(c)) return renderFragment(c, LearnedSection({ learned: learnedView(ctx) }));
+    return c.redirect('/tools?learn=1#vc-learned', 303);
+  });
   app.get('/tools', (c) => {
     const passes = ledgerPassesByTool(ctx.db);
     const tools: ToolRow[] = listTools(ctx.db).map((t) => {
@@ -113,7 +154,7 @@ export function register(app: Hono, ctx: AppContext): void {
     return renderPage(c, ctx, {
       title: 'Tools & cleans',
       active: '/tools',
-      body: ToolsPage({ tools, cleans }),
+      body: ToolsPage({ tools, cleans, learned: c.req.query('learn') === '1' ? learnedView(ctx) : null }),
     });
   });
 }

@@ -54,4 +54,32 @@ describe('removalCurve', () => {
     expect(textOf(byClass(svg, 'vc-nodata')[0]!)).toBe('no removal data');
     expect(textOf(byName(svg, 'title')[0]!)).toBe('<clean & "co">');
   });
+
+  it('draws a confidence band as a closed area between its limits, and a typed curve dashed beside', () => {
+    // Hand-built band: upper 0.9 and lower 0.5 at 100 nm; the area's points must include both.
+    const band = [50e-9, 100e-9, 200e-9].map((d) => ({ diameterM: d, lower: 0.5, upper: 0.9 }));
+    const typed = curve.map((p) => ({ diameterM: p.diameterM, efficiency: p.efficiency * 0.9 }));
+    const svg = svgOf(removalCurve({ title: 't', curve, band, typed, curveLabel: 'fitted PRE(d)' }));
+    const area = byClass(svg, 'vc-curve-band');
+    expect(area).toHaveLength(1);
+    const d = area[0]!.attrs.d!;
+    expect(d.startsWith('M')).toBe(true);
+    expect(d.endsWith('Z')).toBe(true);
+    // 3 upper + 3 lower points; the two y values (0.9 and 0.5) on a 0–1 axis.
+    const ys = new Set(
+      d
+        .slice(1, -1)
+        .split('L')
+        .map((p) => p.split(',')[1]),
+    );
+    expect(d.slice(1, -1).split('L')).toHaveLength(6);
+    expect(ys.size).toBe(2);
+    const typedPath = byClass(svg, 'vc-typed');
+    expect(typedPath).toHaveLength(1);
+    expect(typedPath[0]!.attrs['stroke-dasharray']).toBe('6 4');
+    const legend = textOf(byClass(svg, 'vc-legend')[0]!);
+    expect(legend).toContain('fitted PRE(d)');
+    expect(legend).toContain('its 95 % band');
+    expect(legend).toContain('typed PRE(d)');
+  });
 });

@@ -16,6 +16,8 @@ export interface JStat {
     cdf(x: number, mean: number, sd: number): number;
   };
   studentt: { cdf(x: number, dof: number): number; inv(p: number, dof: number): number };
+  ibeta(x: number, a: number, b: number): number;
+  beta: { inv(p: number, a: number, b: number): number };
 }
 
 export const jStat = createRequire(import.meta.url)('jstat') as JStat;
