@@ -9,7 +9,8 @@
  * method, and the data it rests on (methods.md §1–§4 of the project reference: every fit returns an
  * interval and the data it came from; a fit with too little data proposes nothing).
  *
- * Intervals are two-sided 95 % intervals. How a set replaces the typed values is in
+ * Intervals are two-sided 95 % intervals. A fit may add fields beyond these (its data points for a
+ * chart, say): checkParameterValues keeps them with the value and the set's hash covers them. How a set replaces the typed values is in
  * src/engine/parameters.ts (applyParameterValues) and docs/engine.md §9; how it is stored, adopted and
  * reverted in src/store/parameter-sets.ts (append-only: a stored set is never changed, adoption is a
  * log of events whose latest decides).

@@ -91,7 +91,7 @@ const provenance = {
 };
 
 const addersSchema = z
-  .object({
+  .looseObject({
     ...provenance,
     toolId: z.string().trim().min(1),
     chamber: z.string().min(1).nullable(),
@@ -109,7 +109,7 @@ const addersSchema = z
   });
 
 const removalSchema = z
-  .object({
+  .looseObject({
     ...provenance,
     cleanId: z.string().trim().min(1),
     maxEfficiency: finite.min(0).max(1),
@@ -128,7 +128,7 @@ const removalSchema = z
   });
 
 const voidSizeSchema = z
-  .object({
+  .looseObject({
     ...provenance,
     productId: z.string().trim().min(1),
     energyJm2: positive.max(100),
@@ -141,7 +141,7 @@ const voidSizeSchema = z
   });
 
 const unexplainedSchema = z
-  .object({
+  .looseObject({
     ...provenance,
     productId: z.string().trim().min(1),
     ratePerPair: nonNegative,
@@ -166,7 +166,9 @@ const valuesSchema = z
 /**
  * Checks a set's values: every number finite and in range, every interval holding its value, and
  * every key the id its value names (adders by toolKeyOf(toolId, chamber)). Returns the values (maps
- * left out become empty) or every problem, each naming its path.
+ * left out become empty) or every problem, each naming its path. Fields a fit adds beyond the
+ * contract (its data points, say) are kept with the value, and hashed with it; a map other than the
+ * four is refused.
  */
 export function checkParameterValues(
   input: unknown,

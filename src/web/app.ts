@@ -18,6 +18,7 @@ import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
 import * as lots from './routes/lots.tsx';
 import * as pairs from './routes/pairs.tsx';
+import * as parameters from './routes/parameters.tsx';
 import * as tools from './routes/tools.tsx';
 
 const require = createRequire(import.meta.url);
@@ -28,7 +29,18 @@ const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
 
 /** Route modules, one per area of the product. Later areas add themselves here. */
-const ROUTES: RouteModule[] = [home, health, calculators, imports, areas, tools, api, lots, pairs];
+const ROUTES: RouteModule[] = [
+  home,
+  health,
+  calculators,
+  imports,
+  areas,
+  tools,
+  api,
+  lots,
+  pairs,
+  parameters,
+];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();

@@ -14,6 +14,7 @@ import {
   fmtShare,
   fmtUtc,
 } from '../partials/format.ts';
+import { type ParameterSetRefLike, ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, type ParetoLike, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { type ReasonLike, ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 
@@ -54,6 +55,8 @@ export interface LotLike {
   pareto: ParetoLike;
   dominant: { label: string; share: number } | null;
   totals: { voids: number; dieKillsNB: number | null; dies: number };
+  /** The parameter set the assessment used. */
+  parameters: ParameterSetRefLike;
 }
 
 export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
@@ -70,7 +73,8 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
       </h1>
       <p class="vc-lede">
         Product {lot.productId} · {lot.pairs.length} pair{lot.pairs.length === 1 ? '' : 's'} ·{' '}
-        <CallCounts counts={lot.counts} /> · assessed {fmtUtc(lot.asOfMs)}
+        <CallCounts counts={lot.counts} /> · assessed {fmtUtc(lot.asOfMs)} ·{' '}
+        <ParametersUsed parameters={lot.parameters} />
       </p>
       {lot.caution ? <RecleanCaution text={lot.caution} /> : null}
       <div class="vc-tiles vc-tiles-figures">

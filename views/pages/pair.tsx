@@ -25,6 +25,7 @@ import {
   fmtShare,
   fmtUtc,
 } from '../partials/format.ts';
+import { ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 import { SignoffPanel, type SignoffProps } from '../partials/signoff.tsx';
@@ -71,7 +72,7 @@ export function PairPage(props: PairPageProps) {
       </h1>
       <p class="vc-lede">
         Top wafer {a.topWaferId} on bottom wafer {a.bottomWaferId} · product {a.productId} · assessed{' '}
-        {fmtUtc(a.asOfMs)}
+        {fmtUtc(a.asOfMs)} · <ParametersUsed parameters={a.parameters} />
       </p>
       <div class="vc-call-box" data-call={a.call}>
         <h2>

@@ -13,6 +13,7 @@ import { createSession, EngineInputError } from '../../engine/pair.ts';
 import type { LotAssessment } from '../../engine/types.ts';
 import { latestDisposition } from '../../store/dispositions.ts';
 import { listLots } from '../../store/lots.ts';
+import { parameterSetsStamp } from '../../store/parameter-sets.ts';
 import { getSetting } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -45,7 +46,8 @@ export function asOfFrom(c: Context, ctx: AppContext): number {
 /**
  * A small memo of assessments for the pages: the engine is deterministic (seeded), so the same
  * subject at the same time on the same data gives the same figures. The data's version is the
- * imports table (every stored change comes through an import). Bounded; oldest entries go first.
+ * imports table (every stored change of data comes through an import) and the parameter sets'
+ * stamp (a set adopted or reverted changes every assessment). Bounded; oldest entries go first.
  */
 const MEMO_MAX = 64;
 const memos = new WeakMap<object, Map<string, unknown>>();
@@ -56,7 +58,7 @@ function dataVersion(ctx: AppContext): string {
       n: number;
       m: number | null;
     };
-    return `${r.n}:${r.m ?? 0}`;
+    return `${r.n}:${r.m ?? 0}:${parameterSetsStamp(ctx.db)}`;
   } catch {
     return '0:0';
   }

@@ -147,6 +147,17 @@ describe('checkParameterValues', () => {
     if (r.ok) expect(r.values.removal).toEqual({});
   });
 
+  it('keeps the fields a fit adds beyond the contract (its data points), and so hashes them', () => {
+    const points = [{ fromM: 45e-9, toM: 60e-9, before: 40, after: 12 }];
+    const r = checkParameterValues({ removal: { PBC: { ...fittedRemoval('PBC'), points } } });
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect((r.values.removal.PBC as unknown as { points: unknown }).points).toEqual(points);
+    expect(parameterValuesHash(r.values)).not.toBe(
+      parameterValuesHash(values({ removal: { PBC: fittedRemoval('PBC') } })),
+    );
+  });
+
   it('names the path of every problem', () => {
     const r = checkParameterValues({
       adders: { ACT: fittedAdders('ACT', 'B'), X: fittedAdders('X', null, { countLow: 5 }) },
