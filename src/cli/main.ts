@@ -15,8 +15,7 @@ import { signoff } from './commands/signoff.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-import { learn } from './commands/learn.ts';
-import { params } from './commands/params.ts';
+export const COMMANDS: Command[] = [serve, calc, importCommand, assess, learn, signoff, params, demo];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
