@@ -236,7 +236,8 @@ export function fitVoidSize(a: VoidSizeFitArgs): VoidSizeFitResult {
   const muFit = new Float64Array(n);
   mu(theta, muFit);
   let thick = 0;
-  for (let j = 0; j < n; j++) if (radius(d[j]!, Math.min(Math.exp(theta), W_MAX), f).regime === 'thick-plate') thick++;
+  for (let j = 0; j < n; j++)
+    if (radius(d[j]!, Math.min(Math.exp(theta), W_MAX), f).regime === 'thick-plate') thick++;
   const multiplierAt = (t: number) => {
     const mt = new Float64Array(n);
     mu(t, mt);

@@ -5,15 +5,15 @@
  * tolerance and the chance matches (hand computations from methods.md §1 and §4).
  */
 import { describe, expect, it } from 'vitest';
+import { buildDieGrid } from '../../../../src/engine/geometry.ts';
+import { preparePairs } from '../../../../src/engine/learn/calibration.ts';
 import {
   calibrationInspection,
   DEFAULT_SCANNER_SIGMA_M,
   matchPairVoids,
   observedFigures,
 } from '../../../../src/engine/learn/calibration-match.ts';
-import { preparePairs } from '../../../../src/engine/learn/calibration.ts';
 import type { InspectionInput } from '../../../../src/engine/learn/calibration-types.ts';
-import { buildDieGrid } from '../../../../src/engine/geometry.ts';
 import type { VoidDisc } from '../../../../src/engine/types.ts';
 import { H, line, pair, product, scan, step, T0, tool, wafer } from '../../../helpers/engine-inputs.ts';
 
