@@ -16,7 +16,14 @@ import { listLots, readLot } from '../store/lots.ts';
 import { readProduct } from '../store/products.ts';
 import { latestScanBefore, scanInputOf } from '../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
-import { listInspectedLots, listVoidInspectionsOfLot, readVoids, VOID_CLASSES } from '../store/voids.ts';
+import {
+  listInspectedLots,
+  listVoidInspections,
+  listVoidInspectionsOfLot,
+  readVoids,
+  VOID_CLASSES,
+  type VoidInspectionHeader,
+} from '../store/voids.ts';
 import type { CalibrationLotInput, InspectionInput } from './learn/calibration-types.ts';
 import { assessLotInSession } from './lot.ts';
 import { assessPairInSession, createSession } from './pair.ts';
@@ -416,29 +423,43 @@ export function loadInspectedLots(
     }
     const inspections: Record<string, InspectionInput[]> = {};
     for (const h of headers) {
-      const v = readVoids(db, h.inspectionId);
-      if (!v) continue;
+      const insp = inspectionInput(db, h);
+      if (!insp) continue;
       const list = inspections[h.pairId] ?? [];
       inspections[h.pairId] = list;
-      list.push({
-        inspectionId: h.inspectionId,
-        pairId: h.pairId,
-        method: h.method,
-        stage: h.stage,
-        toolId: h.toolId,
-        smallestVoidM: h.smallestVoidM,
-        positionSigmaM: h.positionSigmaM,
-        timeMs: h.timeMs,
-        voids: {
-          count: v.count,
-          xM: v.xM,
-          yM: v.yM,
-          diameterM: v.diameterM,
-          classes: Array.from(v.classCode, (c) => VOID_CLASSES[c] ?? 'unknown'),
-        },
-      });
+      list.push(insp);
     }
     lots.push({ lot: loaded.lot, line: loaded.line, asOfMs, inspections });
   }
   return { lots, missing };
+}
+
+/** One stored inspection as the calibration takes it (voids in the bond frame), or null. */
+function inspectionInput(db: Db, h: VoidInspectionHeader): InspectionInput | null {
+  const v = readVoids(db, h.inspectionId);
+  if (!v) return null;
+  return {
+    inspectionId: h.inspectionId,
+    pairId: h.pairId,
+    method: h.method,
+    stage: h.stage,
+    toolId: h.toolId,
+    smallestVoidM: h.smallestVoidM,
+    positionSigmaM: h.positionSigmaM,
+    timeMs: h.timeMs,
+    voids: {
+      count: v.count,
+      xM: v.xM,
+      yM: v.yM,
+      diameterM: v.diameterM,
+      classes: Array.from(v.classCode, (c) => VOID_CLASSES[c] ?? 'unknown'),
+    },
+  };
+}
+
+/** The void inspections of a pair (oldest first), for its page's observed-over-predicted map. */
+export function loadPairInspections(db: Db, pairId: string): InspectionInput[] {
+  return listVoidInspections(db, pairId)
+    .map((h) => inspectionInput(db, h))
+    .filter((x): x is InspectionInput => x !== null);
 }

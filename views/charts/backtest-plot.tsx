@@ -3,13 +3,15 @@
  * 1:1 line and each prediction's 95 % interval as a horizontal whisker.
  *
  * Predicted on x, observed on y: a point on the dashed 1:1 line is a pair the prediction got right;
+ * (whole-number observations may be dodged a little below/above their value for before/after, and
+ * areas drawn on square-root axes; the chart says so when they are);
  * a whisker that crosses the line holds the observed value in its interval. Before: hollow circles
  * (grey); after: filled diamonds (blue) — shape and fill tell them apart without colour. Linear axes
  * from 0 (counts and areas are ≥ 0); the upper end takes the larger of the points and the
  * interval ends, capped at twice the largest point so one wide interval does not flatten the rest
  * (a capped whisker ends in an arrow).
  */
-import { scaleLinear } from 'd3-scale';
+import { scaleLinear, scaleSqrt } from 'd3-scale';
 import { ChartSvg, innerBox, Legend, linearTicks, NoData, r, safeId, XAxis, YAxis } from './svg.tsx';
 
 export interface BacktestPoint {
@@ -28,6 +30,16 @@ export interface BacktestPlotInput {
   after: BacktestPoint[];
   /** Tick labels (the values are in the caller's display unit already). */
   format?: (v: number) => string;
+  /**
+   * 'sqrt': square-root axes (still from 0), for quantities spanning decades such as areas; default
+   * linear.
+   */
+  scale?: 'linear' | 'sqrt';
+  /**
+   * Whole-number observations (counts): before is drawn this far below its observed value and after
+   * this far above, in the quantity's units, so the two do not hide each other (the legend says so).
+   */
+  dodge?: number;
   id?: string;
   width?: number;
   height?: number;
@@ -48,7 +60,10 @@ export function backtestPlot(input: BacktestPlotInput) {
   );
   const desc =
     `${input.before.length} pairs before and ${input.after.length} after calibration: predicted ${input.quantity} ` +
-    '(x, with its 95 % interval as a whisker) against observed (y); dashed line 1:1.';
+    '(x, with its 95 % interval as a whisker) against observed (y); dashed line 1:1' +
+    (input.scale === 'sqrt' ? '; square-root axes' : '') +
+    (input.dodge ? '; before drawn just below and after just above the observed value' : '') +
+    '.';
   if (all.length === 0)
     return (
       <ChartSvg kind="backtest" id={id} width={width} height={height} title={input.title} desc={desc}>
@@ -58,14 +73,16 @@ export function backtestPlot(input: BacktestPlotInput) {
   const pointMax = Math.max(...all.map((p) => Math.max(p.observed, p.predicted)), 1e-12);
   const whiskerMax = Math.max(...all.map((p) => p.high));
   const maxV = Math.min(Math.max(pointMax, whiskerMax), 2 * pointMax) * 1.05;
-  const x = scaleLinear().domain([0, maxV]).range([box.x0, box.x1]).nice();
-  const y = scaleLinear().domain([0, maxV]).range([box.y1, box.y0]).nice();
+  const make = input.scale === 'sqrt' ? scaleSqrt : scaleLinear;
+  const x = make().domain([0, maxV]).range([box.x0, box.x1]).nice();
+  const y = make().domain([0, maxV]).range([box.y1, box.y0]).nice();
+  const dodge = input.dodge ?? 0;
   const top = Math.min(x.domain()[1]!, y.domain()[1]!);
   const ticks = x.ticks(5);
   const clampX = (v: number) => Math.min(Math.max(v, 0), x.domain()[1]!);
   const point = (p: BacktestPoint, after: boolean) => {
     const px = x(p.predicted);
-    const py = y(p.observed);
+    const py = y(Math.max(0, p.observed + (after ? dodge : -dodge)));
     const lo = x(clampX(p.low));
     const hiCapped = p.high > x.domain()[1]!;
     const hi = x(clampX(p.high));
@@ -90,9 +107,18 @@ export function backtestPlot(input: BacktestPlotInput) {
             fill={colour}
             stroke="#18202e"
             stroke-width="0.6"
+            stroke-opacity="1"
           />
         ) : (
-          <circle cx={r(px)} cy={r(py)} r={4} fill="#ffffff" stroke={colour} stroke-width="1.4" />
+          <circle
+            cx={r(px)}
+            cy={r(py)}
+            r={4}
+            fill="#ffffff"
+            stroke={colour}
+            stroke-width="1.4"
+            stroke-opacity="1"
+          />
         )}
         <title>{`${p.label} ${after ? 'after' : 'before'}: predicted ${fmt(p.predicted)} [${fmt(p.low)}–${fmt(p.high)}], observed ${fmt(p.observed)}${inside ? '' : ' (outside the interval)'}`}</title>
       </g>
@@ -133,6 +159,16 @@ export function backtestPlot(input: BacktestPlotInput) {
         {input.before.map((p) => point(p, false))}
         {input.after.map((p) => point(p, true))}
       </g>
+      {input.dodge || input.scale === 'sqrt' ? (
+        <text class="vc-backtest-note" x={box.x0} y={height - 6}>
+          {[
+            input.scale === 'sqrt' ? 'square-root axes' : '',
+            input.dodge ? 'before drawn a little below, after above' : '',
+          ]
+            .filter(Boolean)
+            .join('; ')}
+        </text>
+      ) : null}
       <Legend
         x={box.x0}
         y={box.y1 + 44}

@@ -58,7 +58,7 @@ const MIN_PX = 1.5;
 export function voidOverlay(input: VoidOverlayInput) {
   const id = safeId(input.id ?? `vo-${input.title}`);
   const size = input.sizePx ?? 340;
-  const legendW = 214;
+  const legendW = 246;
   const top = 24;
   const width = size + legendW + 16;
   const height = Math.max(size + top + 12, 250);
@@ -235,7 +235,7 @@ export function voidOverlay(input: VoidOverlayInput) {
         ]}
       />
       <text class="vc-overlay-note" x={lx} y={top + 4 + 14 + 3 * 19 + 12 + 14 + 2 * 19 + 16}>
-        {`voids drawn ≥ ${MIN_PX * 2} px across; to scale above`}
+        {`voids ≥ ${MIN_PX * 2} px across, to scale when larger`}
       </text>
     </ChartSvg>
   );

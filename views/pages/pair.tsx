@@ -7,6 +7,7 @@
  * Type-only imports of the engine's result types: the page draws what the engine returned and
  * computes nothing of the model itself.
  */
+import type { PairMatching } from '../../src/engine/learn/calibration-types.ts';
 import type { DieGrid, PairAssessment, PairFigures } from '../../src/engine/types.ts';
 import { stackedSpectrum } from '../charts/stacked-spectrum.tsx';
 import { voidMap } from '../charts/void-map.tsx';
@@ -29,6 +30,7 @@ import { ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 import { SignoffPanel, type SignoffProps } from '../partials/signoff.tsx';
+import { VoidOverlayPanel } from '../partials/void-overlay-panel.tsx';
 
 export interface WaferScanView {
   waferId: string;
@@ -54,6 +56,8 @@ export interface PairPageProps {
   paretoBy: ParetoBy;
   spectrumMode: 'per-bin' | 'cumulative';
   signoff: Omit<SignoffProps, 'pairId' | 'inputsHash' | 'proposedCall' | 'asOfMs'>;
+  /** A bonded pair's void inspection matched to the predicted discs (null: none inspected). */
+  inspection?: { matching: PairMatching; otherInspections: string[] } | null;
 }
 
 const MAX_SPECTRUM_SERIES = 7;
@@ -187,6 +191,28 @@ export function PairPage(props: PairPageProps) {
           <SpectrumPanel a={a} mode={props.spectrumMode} />
         </figure>
       </div>
+
+      {props.inspection ? (
+        <>
+          <h2>Observed voids over the prediction</h2>
+          <div class="vc-grid2">
+            <VoidOverlayPanel
+              id="pair-void-overlay"
+              pairId={a.pairId}
+              matching={props.inspection.matching}
+              otherInspections={props.inspection.otherInspections}
+              waferDiameterM={props.waferDiameterM}
+              edgeExclusionM={props.edgeExclusionM}
+            />
+            <p class="vc-small">
+              The void inspection of this bonded pair, matched to the predicted voids of its scanned particles
+              as the <a href="/calibration">Calibration</a> page matches every inspected pair. Unexplained
+              voids come from particles the scans did not see (below their threshold, added later) or from
+              none at all (bubbles, bevel defects).
+            </p>
+          </div>
+        </>
+      ) : null}
 
       <h2>Where the risk comes from</h2>
       {a.dominant ? (

@@ -10,7 +10,14 @@
  */
 import { assessPairInSession, createSession } from '../pair.ts';
 import type { AssessConfig, LineData } from '../types.ts';
-import { calibrationMethod, fitPairs, type PreparedPair, pairSeed, preparePairs } from './calibration.ts';
+import {
+  calibrationMethod,
+  calibrationReport,
+  fitPairs,
+  type PreparedPair,
+  pairSeed,
+  preparePairs,
+} from './calibration.ts';
 import { applyCalibrationValues } from './calibration-apply.ts';
 import type {
   BacktestLot,
@@ -18,6 +25,7 @@ import type {
   BacktestReport,
   CalibrationLotInput,
   CalibrationOptions,
+  CalibrationReport,
   Coverage,
   ObservedFigures,
   PredictedFigures,
@@ -137,5 +145,21 @@ export function backtestPrepared(
       'Coverage: the fraction of observed values inside the predicted 95 % interval (near 95 % when calibrated).',
       ...calibrationMethod(opts),
     ],
+  };
+}
+
+/**
+ * The calibration and its backtest from one assessment of every inspected pair (what the Calibration
+ * page shows): the same figures as calibrate() and backtest() run apart.
+ */
+export function calibrateWithBacktest(
+  lots: readonly CalibrationLotInput[],
+  opts: CalibrationOptions = {},
+): { calibration: CalibrationReport; backtest: BacktestReport } {
+  const fittedAtMs = opts.nowMs ?? Date.now();
+  const prepared = preparePairs(lots, opts);
+  return {
+    calibration: calibrationReport(prepared, opts, fittedAtMs),
+    backtest: backtestPrepared(prepared.pairs, opts, fittedAtMs, prepared.notes),
   };
 }

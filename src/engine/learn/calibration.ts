@@ -280,7 +280,15 @@ export function calibrate(
   opts: CalibrationOptions = {},
 ): CalibrationReport {
   const fittedAtMs = opts.nowMs ?? Date.now();
-  const prepared = preparePairs(lots, opts);
+  return calibrationReport(preparePairs(lots, opts), opts, fittedAtMs);
+}
+
+/** The calibration report of pairs already assessed and matched (preparePairs). */
+export function calibrationReport(
+  prepared: { pairs: PreparedPair[]; notes: string[] },
+  opts: CalibrationOptions,
+  fittedAtMs: number,
+): CalibrationReport {
   const fit = fitPairs(prepared.pairs, opts, fittedAtMs);
   const notes = [...prepared.notes, ...fit.notes];
   if (prepared.pairs.length === 0) notes.push('No bonded pair with a void inspection: nothing to calibrate.');
