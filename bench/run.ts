@@ -4,12 +4,14 @@
  */
 import { run as assessBench } from './assess.ts';
 import { run as importBench } from './import.ts';
+import { run as matchBench } from './match.ts';
 import { run as scansReadBench } from './scans-read.ts';
 
 const BENCHES: { name: string; run: () => Promise<void> }[] = [
   { name: 'import', run: importBench },
   { name: 'assess', run: assessBench },
   { name: 'scans-read', run: scansReadBench },
+  { name: 'match', run: matchBench },
 ];
 
 const only = process.argv.slice(2).filter((a) => !a.startsWith('-'));

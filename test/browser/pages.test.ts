@@ -96,6 +96,22 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     expect(errors).toEqual([]);
   });
 
+  it('Tools & cleans: the fit from the scans swaps in on request, without leaving the page', async () => {
+    const { page, errors } = await open('tools');
+    expect(await page.locator('#vc-learned button[type="submit"]').textContent()).toBe('Fit from the scans');
+    await page.evaluate('window.__marker = 11');
+    await page.locator('#vc-learned button[type="submit"]').click();
+    await page.waitForSelector('#vc-learned h3');
+    // htmx swapped the section: same window, the learned tables and notes in place of the form.
+    expect(await page.evaluate('window.__marker')).toBe(11);
+    expect(await page.locator('#vc-learned form').count()).toBe(0);
+    expect(await page.locator('#vc-learned h3').allTextContents()).toEqual([
+      'Adders per wafer pass',
+      'Removal by clean',
+    ]);
+    expect(errors).toEqual([]);
+  });
+
   it('Lots: the queue with each lot’s call told by word, and the bonded lots', async () => {
     const { page, errors } = await open('lots');
     expect(await page.locator('h1').textContent()).toBe('Lots');

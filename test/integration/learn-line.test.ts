@@ -309,7 +309,7 @@ describe('learning from an invented line', () => {
       /wafer LM1-11: scan LM1-11-PRE \(scans\.csv line \d+\) states a 300 mm wafer and scan LM1-11-POST \(scans-200mm\.csv line \d+\) a 200 mm one/,
     );
     expect(notes).toMatch(
-      /wafer LM1-12: scans LM1-12-PRE \(scans\.csv line \d+, \d+ defects, convention [^)]+\) and LM1-12-POST .* share only \d defects/,
+      /wafer LM1-12: scan LM1-12-PRE \(scans\.csv line \d+\) \(\d+ defects, convention [^)]+\) and scan LM1-12-POST \(scans\.csv line \d+\) .* share only \d defects/,
     );
   });
 

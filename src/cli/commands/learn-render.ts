@@ -83,7 +83,15 @@ function adderBlock(r: AdderLearning): string[] {
             : '—',
           t ? t.slope.toFixed(2) : '—',
         ],
-        ['variance/mean', f.dispersion?.index != null ? fmtCount(f.dispersion.index) : '— (one pass)', ''],
+        [
+          'variance/mean',
+          f.dispersion === null
+            ? '— (one pass)'
+            : f.dispersion.index === null
+              ? '— (no adders)'
+              : fmtCount(f.dispersion.index),
+          '',
+        ],
       ]),
     );
     out.push(`  history: ${historyText(r)}`);

@@ -13,7 +13,7 @@
  */
 import { fitAddersPerPass } from '../../model/adders-fit.ts';
 import type { Db } from '../../store/db.ts';
-import { readTools, type StoredTool } from '../../store/tools.ts';
+import type { StoredTool } from '../../store/tools.ts';
 import { fmtCount, fmtSize } from '../format.ts';
 import type { FittedAdders } from '../parameter-set-types.ts';
 import {
@@ -24,6 +24,7 @@ import {
   passRecord,
   toolSelected,
 } from './common.ts';
+import { type LearnData, learnDataFrom } from './loader.ts';
 import { type MatchedPass, matchPasses } from './match-pass.ts';
 import { collectPasses } from './passes.ts';
 import type { AdderLearning, AddersReport, TypedAdders } from './types.ts';
@@ -123,12 +124,20 @@ export function learnAdders(
   db: Db,
   options: { toolId?: string; confidence?: number; nowMs?: number } = {},
 ): AddersReport {
+  return learnAddersFrom(learnDataFrom(db), options);
+}
+
+/** learnAdders on data already read (learnDataFrom). */
+export function learnAddersFrom(
+  data: LearnData,
+  options: { toolId?: string; confidence?: number; nowMs?: number } = {},
+): AddersReport {
   const confidence = options.confidence ?? 0.95;
   const fittedAtMs = options.nowMs ?? Date.now();
-  const collected = collectPasses(db);
+  const collected = collectPasses(data);
   const passes = collected.passes.filter((p) => toolSelected(p.toolKey, p.toolId, options.toolId));
-  const { matched, issues: matchIssues, position } = matchPasses(db, passes, collected.passes);
-  const tools = readTools(db);
+  const { matched, issues: matchIssues, position } = matchPasses(data, passes, collected.passes);
+  const tools = data.tools;
   const allIssues = [...collected.issues, ...matchIssues];
   const keys = new Map<string, { toolId: string; chamber: string | null }>();
   for (const p of passes) keys.set(p.toolKey, { toolId: p.toolId, chamber: p.chamber });

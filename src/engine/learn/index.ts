@@ -3,7 +3,7 @@
  * removal curve of each clean (docs/engine.md "Learning from the line"). The results carry the
  * proposals a parameter set takes (src/engine/parameter-set-types.ts) or the reason there is none.
  */
-export { learnAdders, learnToolAdders } from './adders.ts';
+export { learnAdders, learnAddersFrom, learnToolAdders } from './adders.ts';
 export {
   MIN_ADDER_PASSES,
   MIN_REMOVAL_OUTCOMES,
@@ -11,6 +11,7 @@ export {
   MIN_SIZE_SPREAD,
   MIN_SLOPE_ADDERS,
 } from './common.ts';
+export { type LearnData, learnDataFrom } from './loader.ts';
 export {
   CAPTURE_FRACTION,
   DEFAULT_SIGMA_M,
@@ -19,5 +20,5 @@ export {
   SEARCH_RADIUS_M,
 } from './match-pass.ts';
 export { collectPasses, type ScanPass } from './passes.ts';
-export { learnCleanRemoval, learnRemoval, survivalBands } from './removal.ts';
+export { learnCleanRemoval, learnRemoval, learnRemovalFrom, survivalBands } from './removal.ts';
 export type * from './types.ts';

@@ -20,9 +20,7 @@ import {
   type ScanMatch,
   type StageOffsetEstimate,
 } from '../../model/matching/index.ts';
-import type { Db } from '../../store/db.ts';
-import { scanSource } from '../../store/learning.ts';
-import { PARTICLE_LIKE_CLASSES, readScanDefects, type ScanHeader, selectDefects } from '../../store/scans.ts';
+import type { LearnData } from './loader.ts';
 import type { ScanPass } from './passes.ts';
 import type { LearnIssue, PositionErrorUsed } from './types.ts';
 
@@ -52,23 +50,6 @@ export const NEAR_THRESHOLD_FACTOR = 1.5;
 export const FRAME_CHECK_MIN_DEFECTS = 20;
 const SHARED_MIN = 2;
 
-/** A scan's particle-like defects inside a radius, with its threshold. */
-function loadScan(db: Db, h: ScanHeader, radiusM: number): MatchableScan | null {
-  const d = readScanDefects(db, h.scanId);
-  if (!d) return null;
-  const p = selectDefects(d, PARTICLE_LIKE_CLASSES);
-  const keep: number[] = [];
-  for (let i = 0; i < p.count; i++) if (Math.hypot(p.xM[i]!, p.yM[i]!) <= radiusM) keep.push(i);
-  const pick = (a: Float64Array) => Float64Array.from(keep, (i) => a[i]!);
-  return {
-    count: keep.length,
-    xM: pick(p.xM),
-    yM: pick(p.yM),
-    diameterM: pick(p.diameterM),
-    thresholdM: h.thresholdM,
-  };
-}
-
 export interface MatchedPass {
   pass: ScanPass;
   before: MatchableScan;
@@ -82,14 +63,11 @@ export interface MatchedPasses {
   position: PositionErrorUsed;
 }
 
-function sameFrameIssue(db: Db, p: ScanPass): string | null {
+function sameFrameIssue(data: LearnData, p: ScanPass): string | null {
   const a = p.before;
   const b = p.after;
-  if (Math.abs(a.waferDiameterM - b.waferDiameterM) > 1e-9) {
-    const sa = scanSource(db, a.scanId);
-    const sb = scanSource(db, b.scanId);
-    return `wafer ${p.waferId}: scan ${a.scanId} (${sa?.fileName ?? '?'} line ${sa?.line ?? '?'}) states a ${a.waferDiameterM * 1000} mm wafer and scan ${b.scanId} (${sb?.fileName ?? '?'} line ${sb?.line ?? '?'}) a ${b.waferDiameterM * 1000} mm one: not one wafer in one frame; the pass through ${p.toolKey} is left out`;
-  }
+  if (Math.abs(a.waferDiameterM - b.waferDiameterM) > 1e-9)
+    return `wafer ${p.waferId}: ${data.scanWhere(a.scanId)} states a ${a.waferDiameterM * 1000} mm wafer and ${data.scanWhere(b.scanId)} a ${b.waferDiameterM * 1000} mm one: not one wafer in one frame; the pass through ${p.toolKey} is left out`;
   return null;
 }
 
@@ -100,7 +78,7 @@ function sameFrameIssue(db: Db, p: ScanPass): string | null {
  * positioning error as learning them all.
  */
 export function matchPasses(
-  db: Db,
+  data: LearnData,
   passes: readonly ScanPass[],
   sigmaFrom: readonly ScanPass[] = passes,
 ): MatchedPasses {
@@ -115,7 +93,7 @@ export function matchPasses(
   const selected = new Set(passes);
   const all = [...passes, ...sigmaFrom.filter((p) => !selected.has(p))];
   for (const p of all) {
-    const frame = sameFrameIssue(db, p);
+    const frame = sameFrameIssue(data, p);
     if (frame) {
       if (selected.has(p)) issues.push({ subject: p.toolKey, message: frame });
       continue;
@@ -124,8 +102,8 @@ export function matchPasses(
       p.before.waferDiameterM / 2 - p.before.edgeExclusionM,
       p.after.waferDiameterM / 2 - p.after.edgeExclusionM,
     );
-    const before = loadScan(db, p.before, r);
-    const after = loadScan(db, p.after, r);
+    const before = data.defects(p.before, r);
+    const after = data.defects(p.after, r);
     if (!before || !after) continue;
     loaded.push({
       pass: p,
@@ -184,11 +162,9 @@ export function matchPasses(
       match.matched <= SHARED_MIN &&
       match.expectedChanceMatches < 0.5
     ) {
-      const sa = scanSource(db, l.pass.before.scanId);
-      const sb = scanSource(db, l.pass.after.scanId);
       issues.push({
         subject: l.pass.toolKey,
-        message: `wafer ${l.pass.waferId}: scans ${l.pass.before.scanId} (${sa?.fileName ?? '?'} line ${sa?.line ?? '?'}, ${l.before.count} defects, convention ${l.pass.before.convention}) and ${l.pass.after.scanId} (${sb?.fileName ?? '?'} line ${sb?.line ?? '?'}, ${l.after.count} defects, convention ${l.pass.after.convention}) share only ${match.matched} defects (chance alone: ${match.expectedChanceMatches.toFixed(2)}): another frame or a wrongly declared coordinate convention? the pass through ${l.pass.toolKey} is left out`,
+        message: `wafer ${l.pass.waferId}: ${data.scanWhere(l.pass.before.scanId)} (${l.before.count} defects, convention ${l.pass.before.convention}) and ${data.scanWhere(l.pass.after.scanId)} (${l.after.count} defects, convention ${l.pass.after.convention}) share only ${match.matched} defects (chance alone: ${match.expectedChanceMatches.toFixed(2)}): another frame or a wrongly declared coordinate convention? the pass through ${l.pass.toolKey} is left out`,
       });
       continue;
     }

@@ -19,11 +19,9 @@
  * - The last acting step before a wafer's first scan has a scan after it but none before: reported
  *   per tool ("no scan before the tool"), since nothing can be learned from it.
  */
-import type { Db } from '../../store/db.ts';
-import { ledgerRowSource, listAllScanHeaders, scanSource } from '../../store/learning.ts';
-import { type LedgerStep, readLedger } from '../../store/ledger.ts';
+import type { LedgerStep } from '../../store/ledger.ts';
 import type { ScanHeader } from '../../store/scans.ts';
-import { findCleanFor } from '../../store/tools.ts';
+import type { LearnData } from './loader.ts';
 import type { LearnIssue } from './types.ts';
 
 /** A pass of one wafer through one tool step between two of its scans. */
@@ -70,27 +68,21 @@ function fmtTime(ms: number): string {
  * Reads every scanned wafer's ledger and returns the usable passes and the refused ones' messages.
  * Messages name the scans (id, file and line) and ledger rows (file and line) concerned.
  */
-export function collectPasses(db: Db): CollectedPasses {
+export function collectPasses(data: LearnData): CollectedPasses {
   const passes: ScanPass[] = [];
   const issues: LearnIssue[] = [];
-  const where = (h: ScanHeader) => {
-    const s = scanSource(db, h.scanId);
-    return s ? `scan ${h.scanId} (${s.fileName} line ${s.line})` : `scan ${h.scanId}`;
-  };
-  const rowWhere = (s: LedgerStep) => {
-    const src = ledgerRowSource(db, s.rowId);
-    return src ? `${src.fileName} line ${src.line}` : `ledger row ${s.rowId}`;
-  };
+  const where = (h: ScanHeader) => data.scanWhere(h.scanId);
+  const rowWhere = data.rowWhere;
   const noScanBefore = new Map<string, string[]>();
   const noLedger: string[] = [];
 
-  const headers = listAllScanHeaders(db);
+  const headers = data.scans;
   let i = 0;
   while (i < headers.length) {
     const waferId = headers[i]!.waferId;
     const scans: ScanHeader[] = [];
     while (i < headers.length && headers[i]!.waferId === waferId) scans.push(headers[i++]!);
-    const ledger = readLedger(db, waferId);
+    const ledger = data.ledger(waferId);
     if (ledger.length === 0) {
       noLedger.push(waferId);
       continue;
@@ -170,7 +162,7 @@ export function collectPasses(db: Db): CollectedPasses {
       }
       let cleanId: string | null = null;
       if (s.kind === 'clean') {
-        cleanId = s.cleanId ?? findCleanFor(db, s.toolId, s.recipe)?.cleanId ?? null;
+        cleanId = s.cleanId ?? data.cleanFor(s.toolId, s.recipe);
         if (!cleanId)
           issues.push({
             subject: keyOf(s),

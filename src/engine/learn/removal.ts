@@ -20,7 +20,7 @@ import { MATCH_STATUS } from '../../model/matching/index.ts';
 import { fitRemovalParticles, removalCurveBand } from '../../model/removal-fit.ts';
 import { clopperPearsonInterval, wilsonInterval } from '../../model/stats/binomial.ts';
 import type { Db } from '../../store/db.ts';
-import { readCleans, type StoredClean } from '../../store/tools.ts';
+import type { StoredClean } from '../../store/tools.ts';
 import { fmtCount, fmtSize } from '../format.ts';
 import type { FittedRemoval } from '../parameter-set-types.ts';
 import {
@@ -31,6 +31,7 @@ import {
   nearThresholdNote,
   passRecord,
 } from './common.ts';
+import { type LearnData, learnDataFrom } from './loader.ts';
 import { type MatchedPass, matchPasses } from './match-pass.ts';
 import { collectPasses } from './passes.ts';
 import type {
@@ -218,14 +219,22 @@ export function learnRemoval(
   db: Db,
   options: { cleanId?: string; confidence?: number; nowMs?: number } = {},
 ): RemovalReport {
+  return learnRemovalFrom(learnDataFrom(db), options);
+}
+
+/** learnRemoval on data already read (learnDataFrom). */
+export function learnRemovalFrom(
+  data: LearnData,
+  options: { cleanId?: string; confidence?: number; nowMs?: number } = {},
+): RemovalReport {
   const confidence = options.confidence ?? 0.95;
   const fittedAtMs = options.nowMs ?? Date.now();
-  const collected = collectPasses(db);
+  const collected = collectPasses(data);
   const passes = collected.passes.filter(
     (p) => p.cleanId !== null && (options.cleanId === undefined || p.cleanId === options.cleanId),
   );
-  const { matched, issues: matchIssues, position } = matchPasses(db, passes, collected.passes);
-  const cleans = readCleans(db);
+  const { matched, issues: matchIssues, position } = matchPasses(data, passes, collected.passes);
+  const cleans = data.cleans;
   const issues = [...collected.issues, ...matchIssues];
   const toolOfIssue = (i: { subject: string | null }) => i.subject?.split('/')[0] ?? null;
   const ids = new Set(passes.map((p) => p.cleanId!));

@@ -5,26 +5,33 @@
  * Cells are squares of side `cellM` (for matching, the match radius r_m: a query of radius ≤ r_m then
  * reads at most 3 × 3 cells). The cells are not stored as a dense array — a 300 mm wafer with 30 µm
  * cells would need 10⁸ of them — but hashed into a table of about two slots per point (spatial
- * hashing, Teschner et al. 2003, "Optimized spatial hashing for collision detection of deformable
- * objects", VMV 2003). Points are laid out slot by slot by a counting sort, so building is linear in
- * the number of points and memory is a few integers per point. Each point keeps its cell
- * coordinates, so two cells that share a slot never mix in a query's answer.
+ * hashing, as in Teschner et al. 2003, "Optimized spatial hashing for collision detection of
+ * deformable objects", VMV 2003; here the hash is the cell's row-major index modulo the table size,
+ * which keeps neighbouring cells in neighbouring memory). Points are laid out slot by slot by a
+ * counting sort, so building is linear in the number of points and memory is a few numbers per
+ * point. Each point keeps its cell coordinates, so two cells that share a slot never mix in a
+ * query's answer. `order` lists the points in that layout: querying in that order reads memory
+ * nearly in sequence.
  */
 import { ModelInputError, requireNumber, requirePositive } from '../errors.ts';
 
 /** Largest number of points a grid accepts (Int32 indices). */
 export const POINT_GRID_MAX_POINTS = 100_000_000;
 
-function slotOf(cx: number, cy: number, mask: number): number {
-  // Two large odd multipliers (Teschner et al. 2003 use primes of this size) and an xor.
-  return (Math.imul(cx, 73856093) ^ Math.imul(cy, 19349663)) & mask;
+/**
+ * The slot of a cell: its row-major index over the points' bounding box of cells, modulo the table
+ * size (a power of two; Math.imul wraps modulo 2³², of which the mask keeps the low bits). Cells
+ * next to each other in x share neighbouring slots, so a query's 3 × 3 cells read nearby memory.
+ */
+function slotOf(cx: number, cy: number, x0: number, y0: number, width: number, mask: number): number {
+  return (Math.imul(cy - y0, width) + (cx - x0)) & mask;
 }
 
 /**
  * A grid index over `count` points (x, y) with square cells of side `cellM`.
  *
  * Build: O(n). Query of radius r: O(points in the (2⌈r/cell⌉ + 1)² cells around the query point).
- * The index keeps references to the coordinate arrays: do not change them while the grid is in use.
+ * The index copies the coordinates in cell order (a query reads neighbours from consecutive memory).
  *
  * @example
  *   const g = new PointGrid(Float64Array.of(0, 1e-5, 1), Float64Array.of(0, 0, 0), 3, 2e-5);
@@ -35,13 +42,19 @@ export class PointGrid {
   readonly cellM: number;
   readonly xM: Float64Array;
   readonly yM: Float64Array;
-  private readonly cellX: Int32Array;
-  private readonly cellY: Int32Array;
   private readonly mask: number;
+  private readonly x0: number;
+  private readonly y0: number;
+  private readonly width: number;
   /** Start of each slot's run in `order` (slot s: order[start[s] … start[s + 1])). */
   private readonly start: Int32Array;
-  /** Point indices, slot by slot. */
-  private readonly order: Int32Array;
+  /** Point indices, slot by slot (neighbouring cells close together). */
+  readonly order: Int32Array;
+  /** Cell coordinates and positions in the same slot-by-slot order (a query reads them in sequence). */
+  private readonly sCellX: Int32Array;
+  private readonly sCellY: Int32Array;
+  private readonly sX: Float64Array;
+  private readonly sY: Float64Array;
 
   /**
    * @param xM x of each point, m
@@ -68,13 +81,15 @@ export class PointGrid {
     let size = 16;
     while (size < 2 * count) size *= 2;
     this.mask = size - 1;
-    this.cellX = new Int32Array(count);
-    this.cellY = new Int32Array(count);
+    const cellX = new Int32Array(count);
+    const cellY = new Int32Array(count);
     this.start = new Int32Array(size + 1);
     this.order = new Int32Array(count);
     const inv = 1 / cellM;
     const limit = 2 ** 30;
-    const slots = new Int32Array(count);
+    let x0 = 0;
+    let y0 = 0;
+    let x1 = 0;
     for (let i = 0; i < count; i++) {
       const fx = Math.floor(xM[i]! * inv);
       const fy = Math.floor(yM[i]! * inv);
@@ -82,15 +97,35 @@ export class PointGrid {
         throw new ModelInputError(fn, `xM[${i}]`, 'm', `a finite coordinate within 2³⁰ cells of 0`, xM[i]);
       if (!(Math.abs(fy) < limit))
         throw new ModelInputError(fn, `yM[${i}]`, 'm', `a finite coordinate within 2³⁰ cells of 0`, yM[i]);
-      this.cellX[i] = fx;
-      this.cellY[i] = fy;
-      const s = slotOf(fx, fy, this.mask);
+      cellX[i] = fx;
+      cellY[i] = fy;
+      if (i === 0 || fx < x0) x0 = fx;
+      if (i === 0 || fx > x1) x1 = fx;
+      if (i === 0 || fy < y0) y0 = fy;
+    }
+    this.x0 = x0;
+    this.y0 = y0;
+    this.width = x1 - x0 + 1;
+    const slots = new Int32Array(count);
+    for (let i = 0; i < count; i++) {
+      const s = slotOf(cellX[i]!, cellY[i]!, x0, y0, this.width, this.mask);
       slots[i] = s;
       this.start[s + 1]!++;
     }
     for (let s = 0; s < size; s++) this.start[s + 1]! += this.start[s]!;
     const fill = this.start.slice(0, size);
     for (let i = 0; i < count; i++) this.order[fill[slots[i]!]!++] = i;
+    this.sCellX = new Int32Array(count);
+    this.sCellY = new Int32Array(count);
+    this.sX = new Float64Array(count);
+    this.sY = new Float64Array(count);
+    for (let k = 0; k < count; k++) {
+      const i = this.order[k]!;
+      this.sCellX[k] = cellX[i]!;
+      this.sCellY[k] = cellY[i]!;
+      this.sX[k] = xM[i]!;
+      this.sY[k] = yM[i]!;
+    }
   }
 
   /**
@@ -114,18 +149,17 @@ export class PointGrid {
     const y1 = Math.floor((yM + radiusM) * inv);
     const r2 = radiusM * radiusM;
     let found = 0;
-    for (let cx = x0; cx <= x1; cx++)
-      for (let cy = y0; cy <= y1; cy++) {
-        const s = slotOf(cx, cy, this.mask);
+    for (let cy = y0; cy <= y1; cy++)
+      for (let cx = x0; cx <= x1; cx++) {
+        const s = slotOf(cx, cy, this.x0, this.y0, this.width, this.mask);
         const end = this.start[s + 1]!;
         for (let k = this.start[s]!; k < end; k++) {
-          const i = this.order[k]!;
-          if (this.cellX[i] !== cx || this.cellY[i] !== cy) continue;
-          const dx = this.xM[i]! - xM;
-          const dy = this.yM[i]! - yM;
+          if (this.sCellX[k] !== cx || this.sCellY[k] !== cy) continue;
+          const dx = this.sX[k]! - xM;
+          const dy = this.sY[k]! - yM;
           const d2 = dx * dx + dy * dy;
           if (d2 <= r2) {
-            visit(i, d2);
+            visit(this.order[k]!, d2);
             found++;
           }
         }
@@ -165,16 +199,16 @@ export class PointGrid {
     const y1 = Math.floor((yM + radiusM) * inv);
     let best = -1;
     let bestD2 = radiusM * radiusM;
-    for (let cx = x0; cx <= x1; cx++)
-      for (let cy = y0; cy <= y1; cy++) {
-        const s = slotOf(cx, cy, this.mask);
+    for (let cy = y0; cy <= y1; cy++)
+      for (let cx = x0; cx <= x1; cx++) {
+        const s = slotOf(cx, cy, this.x0, this.y0, this.width, this.mask);
         const end = this.start[s + 1]!;
         for (let k = this.start[s]!; k < end; k++) {
+          if (this.sCellX[k] !== cx || this.sCellY[k] !== cy) continue;
           const i = this.order[k]!;
-          if (this.cellX[i] !== cx || this.cellY[i] !== cy) continue;
           if (taken?.[i]) continue;
-          const dx = this.xM[i]! - xM;
-          const dy = this.yM[i]! - yM;
+          const dx = this.sX[k]! - xM;
+          const dy = this.sY[k]! - yM;
           const d2 = dx * dx + dy * dy;
           if (d2 < bestD2 || (d2 === bestD2 && (best === -1 || i < best))) {
             best = i;

@@ -218,8 +218,8 @@ export function greedyMatch(
   const gridB = new PointGrid(bx, by, nb, radiusM);
   const takenA = new Uint8Array(na);
   const takenB = new Uint8Array(nb);
-  const active = new Int32Array(nb);
-  for (let i = 0; i < nb; i++) active[i] = i;
+  // Before points in the grid's layout: consecutive queries read neighbouring memory.
+  const active = gridB.order.slice();
   let nActive = nb;
   const choice = new Int32Array(nb);
   for (;;) {
@@ -291,7 +291,8 @@ export function estimateStageOffset(
   const keep = (j: number) => {
     only = j;
   };
-  for (let i = 0; i < nb; i++) {
+  for (let k = 0; k < nb; k++) {
+    const i = gridB.order[k]!;
     const x = before.xM[i]!;
     const y = before.yM[i]!;
     if (gridA.forEachWithin(x, y, searchRadiusM, keep) !== 1) continue;

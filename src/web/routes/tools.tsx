@@ -12,7 +12,7 @@
 import type { Hono } from 'hono';
 import { type CleanView, type ToolRow, ToolsPage } from '../../../views/pages/tools.tsx';
 import { LearnedSection, type LearnedView } from '../../../views/partials/learned-tools.tsx';
-import { learnAdders, learnRemoval } from '../../engine/learn/index.ts';
+import { learnAddersFrom, learnDataFrom, learnRemovalFrom } from '../../engine/learn/index.ts';
 import { fitRemovalCurve, type RemovalCurveParams, removalEfficiency } from '../../model/clean.ts';
 import { ModelInputError } from '../../model/errors.ts';
 import { SPECTRUM_CENTRES_M } from '../../model/spectrum.ts';
@@ -87,9 +87,10 @@ export function cleanView(c: StoredClean): CleanView {
  * adders per pass per tool and chamber, removal curves per clean, each with the typed values beside.
  */
 export function learnedView(ctx: AppContext): LearnedView {
-  const adders = learnAdders(ctx.db);
-  const removal = learnRemoval(ctx.db);
-  const cleans = readCleans(ctx.db);
+  const data = learnDataFrom(ctx.db);
+  const adders = learnAddersFrom(data);
+  const removal = learnRemovalFrom(data);
+  const cleans = data.cleans;
   return {
     adders,
     removal,
