@@ -14,7 +14,7 @@ import { loadDemo } from '../../src/cli/demo.ts';
 import { backtest } from '../../src/engine/learn/backtest.ts';
 import { calibrate } from '../../src/engine/learn/calibration.ts';
 import type { BacktestReport, CalibrationReport } from '../../src/engine/learn/calibration-types.ts';
-import { loadInspectedLots } from '../../src/engine/loader.ts';
+import { loadInspectedLots } from '../../src/engine/learn/loader.ts';
 import { normalCdf } from '../../src/model/stats/normal.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 

@@ -14,7 +14,7 @@ import type {
   Coverage,
   PredictedFigures,
 } from '../../engine/learn/calibration-types.ts';
-import { loadInspectedLots } from '../../engine/loader.ts';
+import { loadInspectedLots } from '../../engine/learn/loader.ts';
 import { proposeParameterSet } from '../../engine/parameter-sets.ts';
 import type { Estimate } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';

@@ -13,7 +13,7 @@ import type {
   CalibrationReport,
   PairCalibration,
 } from '../../engine/learn/calibration-types.ts';
-import { loadInspectedLots } from '../../engine/loader.ts';
+import { loadInspectedLots } from '../../engine/learn/loader.ts';
 import { EngineInputError } from '../../engine/pair.ts';
 import { proposeParameterSet } from '../../engine/parameter-sets.ts';
 import type { AppContext } from '../context.ts';

@@ -21,7 +21,8 @@ import {
   matchPairVoids,
 } from '../../engine/learn/calibration-match.ts';
 import type { PairMatching } from '../../engine/learn/calibration-types.ts';
-import { loadPair, loadPairInspections, signOffPairInDb } from '../../engine/loader.ts';
+import { loadPairInspections } from '../../engine/learn/loader.ts';
+import { loadPair, signOffPairInDb } from '../../engine/loader.ts';
 import { assessPairInSession, createSession, EngineInputError } from '../../engine/pair.ts';
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
 import { readDispositions } from '../../store/dispositions.ts';
