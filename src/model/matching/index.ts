@@ -2,3 +2,4 @@
 export * from './frame.ts';
 export * from './grid.ts';
 export * from './match.ts';
+export * from './offset.ts';
