@@ -30,7 +30,7 @@ import { ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 import { SignoffPanel, type SignoffProps } from '../partials/signoff.tsx';
-import { VoidOverlayPanel } from '../partials/void-overlay-panel.tsx';
+import { PairInspectionSection } from '../partials/void-overlay-panel.tsx';
 
 export interface WaferScanView {
   waferId: string;
@@ -193,25 +193,12 @@ export function PairPage(props: PairPageProps) {
       </div>
 
       {props.inspection ? (
-        <>
-          <h2>Observed voids over the prediction</h2>
-          <div class="vc-grid2">
-            <VoidOverlayPanel
-              id="pair-void-overlay"
-              pairId={a.pairId}
-              matching={props.inspection.matching}
-              otherInspections={props.inspection.otherInspections}
-              waferDiameterM={props.waferDiameterM}
-              edgeExclusionM={props.edgeExclusionM}
-            />
-            <p class="vc-small">
-              The void inspection of this bonded pair, matched to the predicted voids of its scanned particles
-              as the <a href="/calibration">Calibration</a> page matches every inspected pair. Unexplained
-              voids come from particles the scans did not see (below their threshold, added later) or from
-              none at all (bubbles, bevel defects).
-            </p>
-          </div>
-        </>
+        <PairInspectionSection
+          pairId={a.pairId}
+          {...props.inspection}
+          waferDiameterM={props.waferDiameterM}
+          edgeExclusionM={props.edgeExclusionM}
+        />
       ) : null}
 
       <h2>Where the risk comes from</h2>

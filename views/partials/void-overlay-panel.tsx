@@ -65,3 +65,27 @@ export function VoidOverlayPanel(props: VoidOverlayPanelProps) {
     </figure>
   );
 }
+
+/** The pair page's section: its inspection over the prediction, and what the map means. */
+export function PairInspectionSection(props: {
+  pairId: string;
+  matching: PairMatching;
+  otherInspections: string[];
+  waferDiameterM: number;
+  edgeExclusionM: number;
+}) {
+  return (
+    <>
+      <h2>Observed voids over the prediction</h2>
+      <div class="vc-grid2">
+        <VoidOverlayPanel id="pair-void-overlay" {...props} />
+        <p class="vc-small">
+          The void inspection of this bonded pair, matched to the predicted voids of its scanned particles as
+          the <a href="/calibration">Calibration</a> page matches every inspected pair. Unexplained voids come
+          from particles the scans did not see (below their threshold, added later) or from none at all
+          (bubbles, bevel defects).
+        </p>
+      </div>
+    </>
+  );
+}
