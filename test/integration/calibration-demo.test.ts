@@ -54,6 +54,24 @@ describe('calibration on the demo’s bonded lots', () => {
     }
   });
 
+  it('stores both inspections of a pair in one frame: the IR (centre origin) and acoustic (lower-left) files put the same void in the same place', () => {
+    // TR2642-P02's largest void (a 0.49 µm particle's, ≈ 1.5–1.7 mm) is seen by both inspections; their
+    // position errors are 0.15 and 0.05 mm (σ per axis), so the two stored centres lie within 1 mm.
+    const { lots } = loadInspectedLots(db, ['TR2642']);
+    const list = lots[0]!.inspections['TR2642-P02']!;
+    const largest = (id: string) => {
+      const v = list.find((x) => x.inspectionId === id)!.voids;
+      let k = 0;
+      for (let i = 1; i < v.count; i++) if (v.diameterM[i]! > v.diameterM[k]!) k = i;
+      return { x: v.xM[k]!, y: v.yM[k]!, d: v.diameterM[k]! };
+    };
+    const ir = largest('TR2642-P02-IR');
+    const sam = largest('TR2642-P02-SAM');
+    expect(ir.d).toBeGreaterThan(1e-3);
+    expect(sam.d).toBeGreaterThan(1e-3);
+    expect(Math.hypot(ir.x - sam.x, ir.y - sam.y)).toBeLessThan(1e-3);
+  });
+
   it('recovers the line’s true interface energy (0.5 J/m²), not the typed 0.8, from ≥ 20 explained voids', () => {
     const v = report.products[0]!.voidSize;
     expect(v.fitted).not.toBeNull();
