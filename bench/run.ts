@@ -3,6 +3,7 @@
  * against a baseline in the same run). Pass names to run only some: `npm run bench -- import`.
  */
 import { run as assessBench } from './assess.ts';
+import { run as calibrateBench } from './calibrate.ts';
 import { run as importBench } from './import.ts';
 import { run as matchBench } from './match.ts';
 import { run as scansReadBench } from './scans-read.ts';
@@ -12,6 +13,7 @@ const BENCHES: { name: string; run: () => Promise<void> }[] = [
   { name: 'assess', run: assessBench },
   { name: 'scans-read', run: scansReadBench },
   { name: 'match', run: matchBench },
+  { name: 'calibrate', run: calibrateBench },
 ];
 
 const only = process.argv.slice(2).filter((a) => !a.startsWith('-'));

@@ -1,5 +1,5 @@
 /**
- * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools}.png,
+ * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools,calibration}.png,
  * from a running voidcast server with the demo line.
  *
  *   npm run screenshots                         start a demo server in a temporary data directory
@@ -114,6 +114,7 @@ async function main(): Promise<number> {
     await shoot(page, new URL(pair, server.url).href, 'pair', 2050);
     await shoot(page, new URL('areas', server.url).href, 'areas');
     await shoot(page, new URL('tools', server.url).href, 'tools');
+    await shoot(page, new URL('calibration', server.url).href, 'calibration');
     return 0;
   } finally {
     await browser.close();

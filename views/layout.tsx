@@ -12,6 +12,7 @@ export const NAV: NavItem[] = [
   { href: '/lots', label: 'Lots' },
   { href: '/areas', label: 'Areas' },
   { href: '/tools', label: 'Tools & cleans' },
+  { href: '/calibration', label: 'Calibration' },
   { href: '/parameters', label: 'Parameters' },
   { href: '/calculators', label: 'Calculators' },
   { href: '/imports', label: 'Imports' },

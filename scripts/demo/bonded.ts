@@ -10,7 +10,7 @@
  *   bond                    + the bonder's adders
  * The top wafer is flipped about its y axis onto the bottom wafer: (x, y) → (−x, y) in the bond frame.
  * Each interface particle holds a void of radius R(d) (src/model/void.ts, two flexible 775 µm plates,
- * γ = 0.8 J/m²); overlapping discs merge into one void of the union's area (approximated by the sum
+ * at the line's true γ = 0.5 J/m², not the product file's typed 0.8 — line.ts TRUE_INTERFACE_ENERGY_JM2); overlapping discs merge into one void of the union's area (approximated by the sum
  * of the disc areas) at their area-weighted centre.
  *
  * Voids no particle explains are added on purpose: edge voids at the bevel (both inspections) and

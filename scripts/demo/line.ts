@@ -565,6 +565,16 @@ export function lineClean(id: string): LineClean {
 
 // ───────────────────────────── the product ─────────────────────────────
 
+/**
+ * The interface energy the line's voids really follow (the truth behind the void inspections), per
+ * surface, J/m². The product file states the typed 0.8 J/m² (the middle of the hybrid-dielectric
+ * range); the line's bonds at contact are weaker, 0.5 J/m² (the low end of that range, Tong & Gösele
+ * 1999 as quoted in docs/models.md), so its particle voids are larger than the typed value predicts —
+ * in the small-gap regime R ∝ 1/W, 1.6 × larger. Calibration from the inspections should recover it
+ * (docs/demo.md, "What calibration recovers").
+ */
+export const TRUE_INTERFACE_ENERGY_JM2 = 0.5;
+
 export const PRODUCT = {
   id: 'GALE-7',
   name: 'Gale-7 logic-on-memory hybrid stack (wafer-to-wafer)',

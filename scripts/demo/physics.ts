@@ -2,7 +2,7 @@
  * The model-library functions the demo's truth is drawn through, bound to the demo line's numbers:
  * clean survival (src/model/clean.ts), deposition velocity and deposition during an exposure
  * (src/model/aerosol.ts, src/model/deposition.ts), and the void radius of the product's stack
- * (src/model/void.ts). Using the same library as the engine keeps the planted truth and what
+ * (src/model/void.ts) at the line's true interface energy. Using the same library as the engine keeps the planted truth and what
  * voidcast infers from the files physically consistent.
  */
 import { depositionVelocity } from '../../src/model/aerosol.ts';
@@ -16,7 +16,13 @@ import {
 } from '../../src/model/spectrum.ts';
 import { voidRadius, workOfAdhesion } from '../../src/model/void.ts';
 import { type AirPath, concentrationAbove, MINUTES } from './air.ts';
-import { type LineClean, type LineLocation, PRODUCT, WINDOW_START_MS } from './line.ts';
+import {
+  type LineClean,
+  type LineLocation,
+  PRODUCT,
+  TRUE_INTERFACE_ENERGY_JM2,
+  WINDOW_START_MS,
+} from './line.ts';
 import { TRUTH_FLOOR_M } from './surfaces.ts';
 
 /**
@@ -32,9 +38,10 @@ export function survivalThrough(clean: LineClean, dM: number): number {
   });
 }
 
-const W = workOfAdhesion(PRODUCT.surfacePrep.energyJm2, 'per-surface-gamma');
+// The line's true energy, not the product file's typed one (line.ts, TRUE_INTERFACE_ENERGY_JM2).
+const W = workOfAdhesion(TRUE_INTERFACE_ENERGY_JM2, 'per-surface-gamma');
 
-/** Void radius of a particle of diameter dM between the product's two wafers, m. */
+/** Void radius of a particle of diameter dM between the product's two wafers, at the line's true energy, m. */
 export function voidRadiusOf(dM: number): number {
   return voidRadius({
     heightM: PRODUCT.heightFactor * dM,

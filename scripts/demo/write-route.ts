@@ -208,7 +208,7 @@ export function voidInspectionCsv(
   const R = (PRODUCT.waferDiameterM / 2) * 1e3;
   let out = `# format: voidcast void-inspections 1${NL}${DEMO_NOTE}${NL}`;
   out += `# inspection_id: ${id}${NL}# pair: ${pairId(lot.id, truth.pairIndex)}${NL}# method: ${spec.method}${NL}# stage: ${spec.stage}${NL}# tool: ${spec.toolId}${NL}`;
-  out += `# smallest_void_mm: ${num(spec.smallestM * 1e3, 3)}${NL}# inspection_time: ${t(inspectionTimeMs(truth, spec))}${NL}`;
+  out += `# smallest_void_mm: ${num(spec.smallestM * 1e3, 3)}${NL}# position_sigma_mm: ${num(spec.positionSigmaM * 1e3, 3)}${NL}# inspection_time: ${t(inspectionTimeMs(truth, spec))}${NL}`;
   out += lowerLeft
     ? `# coordinates: origin=lower-left x=right y=up view=front${NL}`
     : `# coordinates: origin=centre x=right y=up view=front${NL}`;

@@ -25,6 +25,7 @@ import {
   particleHeight,
   type VoidModel,
   type VoidRadiusInput,
+  type VoidRadiusResult,
   voidRadius,
   workOfAdhesion,
 } from '../model/void.ts';
@@ -77,23 +78,31 @@ export function buildProductPhysics(
   return built;
 }
 
-function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: number): ProductPhysics {
-  const radiusW = product.waferDiameterM / 2;
-  const waferAreaM2 = Math.PI * radiusW * radiusW;
-  const rb = radiusW - product.edgeExclusionM;
-  const bondedAreaM2 = Math.PI * rb * rb;
-  const W = workOfAdhesion(
+/** The product's work of adhesion W, J/m² (W = 2γ for a per-surface γ), from its surface preparation. */
+export function productWorkOfAdhesion(product: ProductInput): number {
+  return workOfAdhesion(
     product.surfacePrep.energyJm2,
     product.surfacePrep.convention === 'per-surface' ? 'per-surface-gamma' : 'work-of-adhesion',
   );
+}
+
+/**
+ * The void around one particle between the product's plates (src/model/void.ts voidRadius with the
+ * product's stack and height factor), at a work of adhesion W (J/m²) and small-gap factor f — the
+ * function every void radius of the assessment comes from, exported so that a calibration can ask
+ * it at other energies. Heights above the flexible plate's thickness are outside the plate model
+ * and held at h = t.
+ */
+export function particleVoidRadius(
+  product: ProductInput,
+): (diameterM: number, workOfAdhesionJm2: number, smallGapFactor: number) => VoidRadiusResult {
   const model = VOID_MODEL[product.stack.model];
   const E = product.stack.plateModulusPa;
   const tMax =
     model === 'two-plate'
       ? Math.min(product.stack.topThicknessM, product.stack.bottomThicknessM)
       : product.stack.topThicknessM;
-  const radiusFor = (diameterM: number, f: number): number => {
-    // Heights above the flexible plate's thickness are outside the plate model: held at h = t.
+  return (diameterM, W, f) => {
     const h = Math.min(particleHeight(Math.min(diameterM, 0.01), product.heightFactor), tMax);
     const input: VoidRadiusInput = {
       heightM: h,
@@ -104,8 +113,18 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     };
     if (model === 'two-plate')
       input.bottom = { thicknessM: product.stack.bottomThicknessM, plateModulusPa: E };
-    return voidRadius(input).radiusM;
+    return voidRadius(input);
   };
+}
+
+function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: number): ProductPhysics {
+  const radiusW = product.waferDiameterM / 2;
+  const waferAreaM2 = Math.PI * radiusW * radiusW;
+  const rb = radiusW - product.edgeExclusionM;
+  const bondedAreaM2 = Math.PI * rb * rb;
+  const W = productWorkOfAdhesion(product);
+  const particleVoid = particleVoidRadius(product);
+  const radiusFor = (diameterM: number, f: number): number => particleVoid(diameterM, W, f).radiusM;
   const binRadii = (f: number): Float64Array => {
     const out = new Float64Array(SPECTRUM_BIN_COUNT);
     for (let k = 0; k < SPECTRUM_BIN_COUNT; k++) out[k] = radiusFor(SPECTRUM_CENTRES_M[k]!, f);

@@ -22,6 +22,8 @@ export * from './stats/gamma.ts';
 export * from './stats/garwood.ts';
 export * from './stats/hill.ts';
 export * from './stats/linalg.ts';
+export * from './stats/normal.ts';
+export * from './stats/student-t.ts';
 export * from './units.ts';
 export * from './void.ts';
 export * from './yield.ts';

@@ -25,6 +25,8 @@ export interface VoidInspectionHeader {
   toolId: string | null;
   /** Smallest void the inspection reports, equivalent diameter, m. */
   smallestVoidM: number;
+  /** Position error the inspection states, one standard deviation per axis, m (null: not stated). */
+  positionSigmaM: number | null;
   timeMs: number;
   timeText: string;
   convention: string;
@@ -44,7 +46,7 @@ export interface InspectionVoids {
 }
 
 const COLUMNS = `id AS rowId, inspection_key AS inspectionId, pair_id AS pairId, method, stage, tool_id AS toolId,
-  smallest_void_m AS smallestVoidM, time_ms AS timeMs, time_text AS timeText, convention, void_count AS voidCount,
+  smallest_void_m AS smallestVoidM, position_sigma_m AS positionSigmaM, time_ms AS timeMs, time_text AS timeText, convention, void_count AS voidCount,
   import_id AS importId`;
 
 export function readVoidInspection(db: Db, inspectionId: string): VoidInspectionHeader | null {
@@ -99,9 +101,9 @@ export function voidInspectionContentOf(
 
 export function insertVoidInspection(db: Db, v: NewVoidInspection): void {
   db.prepare(
-    `INSERT INTO void_inspections (inspection_key, pair_id, method, stage, tool_id, smallest_void_m, time_ms, time_text,
-       convention, void_count, x_m, y_m, diameter_m, class_codes, content_sha256, import_id, line)
-     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    `INSERT INTO void_inspections (inspection_key, pair_id, method, stage, tool_id, smallest_void_m, position_sigma_m,
+       time_ms, time_text, convention, void_count, x_m, y_m, diameter_m, class_codes, content_sha256, import_id, line)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   ).run(
     v.inspectionId,
     v.pairId,
@@ -109,6 +111,7 @@ export function insertVoidInspection(db: Db, v: NewVoidInspection): void {
     v.stage,
     v.toolId,
     v.smallestVoidM,
+    v.positionSigmaM,
     v.timeMs,
     v.timeText,
     v.convention,
@@ -121,4 +124,24 @@ export function insertVoidInspection(db: Db, v: NewVoidInspection): void {
     v.importId,
     v.line,
   );
+}
+
+/** The lots with at least one void-inspected pair, by id. */
+export function listInspectedLots(db: Db): string[] {
+  return db
+    .prepare(
+      `SELECT DISTINCT p.lot_id AS lotId FROM void_inspections vi JOIN pairs p ON p.id = vi.pair_id ORDER BY p.lot_id`,
+    )
+    .pluck()
+    .all() as string[];
+}
+
+/** The inspections of a lot's pairs, by pair then time. */
+export function listVoidInspectionsOfLot(db: Db, lotId: string): VoidInspectionHeader[] {
+  return db
+    .prepare(
+      `SELECT ${COLUMNS} FROM void_inspections WHERE pair_id IN (SELECT id FROM pairs WHERE lot_id = ?)
+        ORDER BY pair_id, time_ms, id`,
+    )
+    .all(lotId) as VoidInspectionHeader[];
 }

@@ -15,6 +15,7 @@ import { isFragmentRequest, renderPage } from './render.ts';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
+import * as calibration from './routes/calibration.tsx';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
@@ -41,6 +42,7 @@ const ROUTES: RouteModule[] = [
   api,
   lots,
   pairs,
+  calibration,
   parameters,
 ];
 

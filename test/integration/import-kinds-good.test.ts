@@ -203,6 +203,37 @@ describe('good files of the six kinds', () => {
     expect(listVoidInspections(db, 'P2403-04').map((i) => i.inspectionId)).toEqual(['IR-P2403-04-A']);
   });
 
+  it('keeps the position error an inspection states (mm → m), null when it states none, and refuses a bad one', async () => {
+    const db = freshDb();
+    await importAll(db, [...BASE_FILES, ...PAIR_FILES]);
+    const text = readFileSync(good('void-inspections-pair.csv'), 'utf8');
+    const withSigma = text
+      .replace('# inspection_id: IR-P2403-04-A', '# inspection_id: IR-P2403-04-S')
+      .replace('# smallest_void_mm: 0.3', '# smallest_void_mm: 0.3\n# position_sigma_mm: 0.15');
+    expect(
+      (await importFile(db, { kind: 'void-inspections', path: temp('sigma.csv', withSigma) })).status,
+    ).toBe('imported');
+    expect(readVoidInspection(db, 'IR-P2403-04-S')?.positionSigmaM).toBe(0.00015);
+    await importAll(db, INSPECTION_FILES);
+    expect(readVoidInspection(db, 'IR-P2403-04-A')?.positionSigmaM).toBeNull();
+    const before = snapshot(db);
+    const bad = withSigma
+      .replace('IR-P2403-04-S', 'IR-P2403-04-T')
+      .replace('# position_sigma_mm: 0.15', '# position_sigma_mm: -1');
+    const r = await importFile(db, { kind: 'void-inspections', path: temp('sigma-bad.csv', bad) });
+    expect(r.status).toBe('rejected');
+    expect(r.issues).toEqual([
+      {
+        file: 'sigma-bad.csv',
+        line: 8,
+        column: null,
+        value: '# position_sigma_mm: -1',
+        rule: 'position_sigma_mm must be a number > 0 and ≤ 10 (mm)',
+      },
+    ]);
+    expect(snapshot(db)).toEqual(before);
+  });
+
   it('reads products and cleans in the engine’s shapes', async () => {
     const db = freshDb();
     await importAll(db, BASE_FILES);

@@ -7,6 +7,7 @@
  * Type-only imports of the engine's result types: the page draws what the engine returned and
  * computes nothing of the model itself.
  */
+import type { PairMatching } from '../../src/engine/learn/calibration-types.ts';
 import type { DieGrid, PairAssessment, PairFigures } from '../../src/engine/types.ts';
 import { type SpectrumSeries, stackedSpectrum } from '../charts/stacked-spectrum.tsx';
 import { voidMap } from '../charts/void-map.tsx';
@@ -31,6 +32,7 @@ import { ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 import { SignoffPanel, type SignoffProps } from '../partials/signoff.tsx';
+import { PairInspectionSection } from '../partials/void-overlay-panel.tsx';
 
 export interface WaferScanView {
   waferId: string;
@@ -56,6 +58,8 @@ export interface PairPageProps {
   paretoBy: ParetoBy;
   spectrumMode: 'per-bin' | 'cumulative';
   signoff: Omit<SignoffProps, 'pairId' | 'inputsHash' | 'proposedCall' | 'asOfMs'>;
+  /** A bonded pair's void inspection matched to the predicted discs (null: none inspected). */
+  inspection?: { matching: PairMatching; otherInspections: string[] } | null;
 }
 
 const MAX_SPECTRUM_SERIES = 7;
@@ -165,6 +169,15 @@ export function PairPage(props: PairPageProps) {
           <SpectrumPanel a={a} mode={props.spectrumMode} />
         </figure>
       </div>
+
+      {props.inspection ? (
+        <PairInspectionSection
+          pairId={a.pairId}
+          {...props.inspection}
+          waferDiameterM={props.waferDiameterM}
+          edgeExclusionM={props.edgeExclusionM}
+        />
+      ) : null}
 
       <h2>Where the risk comes from</h2>
       {a.dominant ? (

@@ -1,6 +1,7 @@
 /**
  * `voidcast learn <what> [options]`: fits from the line's own data — adders per pass of each tool
- * and chamber, removal curves of each clean. Each subcommand is one entry of LEARN_SUBCOMMANDS.
+ * and chamber, removal curves of each clean, and the calibration from post-bond void inspections with
+ * its backtest (learn-calibration.ts). Each subcommand is one entry of LEARN_SUBCOMMANDS.
  */
 import type { ParseArgsConfig } from 'node:util';
 import { learnAdders, learnRemoval } from '../../engine/learn/index.ts';
@@ -9,10 +10,12 @@ import { readCleans, readTools } from '../../store/tools.ts';
 import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting } from './assess.ts';
+import { backtestSubcommand, calibrationSubcommand } from './learn-calibration.ts';
 import { renderAdders, renderRemoval } from './learn-render.ts';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
-type Values = Record<string, string | boolean | undefined>;
+/** Parsed options; an option declared `multiple` (such as --lot) gives an array. */
+type Values = Record<string, string | boolean | (string | boolean)[] | undefined>;
 
 /** One `voidcast learn <name>`: its options (besides --json and --data) and what it does. */
 export interface LearnSubcommand {
@@ -66,7 +69,12 @@ const removal: LearnSubcommand = {
 };
 
 /** The subcommands of `voidcast learn`, in the order the usage lists them. Add new ones here. */
-export const LEARN_SUBCOMMANDS: LearnSubcommand[] = [adders, removal];
+export const LEARN_SUBCOMMANDS: LearnSubcommand[] = [
+  adders,
+  removal,
+  calibrationSubcommand,
+  backtestSubcommand,
+];
 
 function learnUsage(): string {
   const width = Math.max(...LEARN_SUBCOMMANDS.map((s) => s.name.length));
@@ -75,16 +83,22 @@ function learnUsage(): string {
     '',
     ...LEARN_SUBCOMMANDS.map((s) => `  ${s.name.padEnd(width)}  ${s.summary}`),
     '',
+    '  --lot ID     calibration, backtest: only these bonded lots (repeat for more; default every lot with inspections)',
+    '  --propose    calibration: store the fitted values as a proposed parameter set (--as NAME: who; --label TEXT)',
     '  --json       print the result as JSON (values in SI units: m, UTC ms)',
     '  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)',
     '',
-    'Nothing is stored or changed: a fit becomes a parameter only when a person adopts it.',
+    'No assessment changes: a fit becomes a parameter only when a person adopts it (voidcast params adopt).',
+    '',
+    '  exit codes: 0 fitted (also when a fit has too little data and proposes nothing), 2 usage,',
+    '  4 no database, or a --tool, --clean or --lot that names nothing',
   ].join('\n');
 }
 
 export const learn: Command = {
   name: 'learn',
-  summary: 'fit adders and removal curves from the line’s own scans (nothing is changed)',
+  summary:
+    'fit adders, removal curves and the void calibration from the line’s own scans and void inspections (nothing is changed)',
   get usage() {
     return learnUsage();
   },

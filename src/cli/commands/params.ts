@@ -27,7 +27,10 @@ const USAGE = `voidcast params list | show ID | adopt ID --as NAME | revert --as
   revert        go back to the typed values (tools file, products): no set adopted
   --as NAME     who adopts or reverts (required for adopt and revert)
   --json        print JSON instead of text
-  --data DIR    data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)`;
+  --data DIR    data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
+
+  exit codes: 0 done (also when nothing had to change), 2 usage (a missing id or --as, an unknown
+  action), 4 no database or no such set`;
 
 function when(ms: number | null): string {
   return ms === null ? '—' : `${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;

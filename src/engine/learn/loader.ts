@@ -9,6 +9,16 @@ import { ledgerRowSource, listAllScanHeaders, type RecordSource, scanSource } fr
 import { type LedgerStep, readLedger } from '../../store/ledger.ts';
 import { PARTICLE_LIKE_CLASSES, readScanDefects, type ScanHeader, selectDefects } from '../../store/scans.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../../store/tools.ts';
+import {
+  listInspectedLots,
+  listVoidInspections,
+  listVoidInspectionsOfLot,
+  readVoids,
+  VOID_CLASSES,
+  type VoidInspectionHeader,
+} from '../../store/voids.ts';
+import { loadLot } from '../loader.ts';
+import type { CalibrationLotInput, InspectionInput } from './calibration-types.ts';
 
 export interface LearnData {
   /** Every scan header, by wafer then time. */
@@ -68,4 +78,70 @@ export function learnDataFrom(db: Db): LearnData {
     tools: readTools(db),
     cleans: readCleans(db),
   };
+}
+
+/**
+ * The bonded lots with void inspections, loaded for calibration (src/engine/learn/calibration.ts):
+ * each lot with its line data (the typed values, not an adopted parameter set) at the time of its
+ * latest inspection (so every inspected pair is bonded by then), and every inspection of its pairs with the voids in the bond frame. `lotIds`
+ * limits it to those lots; an unknown lot or one without inspections is named in `missing`.
+ */
+export function loadInspectedLots(
+  db: Db,
+  lotIds?: readonly string[],
+): { lots: CalibrationLotInput[]; missing: string[] } {
+  const inspected = listInspectedLots(db);
+  const wanted = lotIds ? [...lotIds] : inspected;
+  const missing = wanted.filter((id) => !inspected.includes(id));
+  const lots: CalibrationLotInput[] = [];
+  for (const lotId of wanted.filter((id) => inspected.includes(id))) {
+    const headers = listVoidInspectionsOfLot(db, lotId);
+    const asOfMs = Math.max(...headers.map((h) => h.timeMs));
+    // The typed values: calibration measures against them, whatever set is adopted now.
+    const loaded = loadLot(db, lotId, asOfMs, undefined, null);
+    if (!loaded) {
+      missing.push(lotId);
+      continue;
+    }
+    const inspections: Record<string, InspectionInput[]> = {};
+    for (const h of headers) {
+      const insp = inspectionInput(db, h);
+      if (!insp) continue;
+      const list = inspections[h.pairId] ?? [];
+      inspections[h.pairId] = list;
+      list.push(insp);
+    }
+    lots.push({ lot: loaded.lot, line: loaded.line, asOfMs, inspections });
+  }
+  return { lots, missing };
+}
+
+/** One stored inspection as the calibration takes it (voids in the bond frame), or null. */
+function inspectionInput(db: Db, h: VoidInspectionHeader): InspectionInput | null {
+  const v = readVoids(db, h.inspectionId);
+  if (!v) return null;
+  return {
+    inspectionId: h.inspectionId,
+    pairId: h.pairId,
+    method: h.method,
+    stage: h.stage,
+    toolId: h.toolId,
+    smallestVoidM: h.smallestVoidM,
+    positionSigmaM: h.positionSigmaM,
+    timeMs: h.timeMs,
+    voids: {
+      count: v.count,
+      xM: v.xM,
+      yM: v.yM,
+      diameterM: v.diameterM,
+      classes: Array.from(v.classCode, (c) => VOID_CLASSES[c] ?? 'unknown'),
+    },
+  };
+}
+
+/** The void inspections of a pair (oldest first), for its page's observed-over-predicted map. */
+export function loadPairInspections(db: Db, pairId: string): InspectionInput[] {
+  return listVoidInspections(db, pairId)
+    .map((h) => inspectionInput(db, h))
+    .filter((x): x is InspectionInput => x !== null);
 }

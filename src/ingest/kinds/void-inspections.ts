@@ -1,7 +1,7 @@
 /**
  * Import kind `void-inspections`: one post-bond void inspection per file — its header in the
- * metadata block (pair, method, stage, smallest reported void, time, coordinate convention) and a
- * table of its voids (x, y, equivalent diameter, class).
+ * metadata block (pair, method, stage, smallest reported void, position error, time, coordinate
+ * convention) and a table of its voids (x, y, equivalent diameter, class).
  *
  * Voids are seen through the bonded stack; positions are given in the stated convention of the
  * bottom wafer (view=front: looking down through the top wafer onto the bottom wafer's device side;
@@ -108,6 +108,12 @@ export const VOID_METADATA: readonly MetadataSpec[] = [
     example: '0.3',
   },
   {
+    key: 'position_sigma_mm',
+    description:
+      'position error of the inspection, one standard deviation per axis, mm (optional; calibration assumes 0.2 mm when absent)',
+    example: '0.15',
+  },
+  {
     key: 'inspection_time',
     description: 'time of the inspection, ISO 8601 with offset',
     example: '2026-03-04T14:05:00+01:00',
@@ -169,6 +175,9 @@ export const voidInspections: ImportKind = {
       numberCell({ min: 0, minExclusive: true, unit: 'mm' }),
       true,
     );
+    const positionSigmaMm =
+      hf.get('position_sigma_mm', numberCell({ min: 0, minExclusive: true, max: 10, unit: 'mm' }), false) ??
+      null;
     const time = hf.time('inspection_time', true);
     const conv = hf.convention(true);
     const inspectionId = hf.get('inspection_id', textCell(), false);
@@ -205,6 +214,7 @@ export const voidInspections: ImportKind = {
     const yDig = LENGTH_DIGITS[yCol.unit]!;
     const dDig = LENGTH_DIGITS[dCol.unit]!;
     const smallestM = shiftDecimal(smallestMm, 3);
+    const positionSigmaM = positionSigmaMm === null ? null : shiftDecimal(positionSigmaMm, 3);
     const xs: number[] = [];
     const ys: number[] = [];
     const ds: number[] = [];
@@ -268,7 +278,21 @@ export const voidInspections: ImportKind = {
         };
         const convText = conventionText(conv);
         const h = createHash('sha256');
-        h.update(JSON.stringify([id, pairId, method, stage, toolId, smallestM, time.ms, convText]));
+        // The position error enters only when stated, so an inspection stored before the field
+        // existed keeps its content hash.
+        h.update(
+          JSON.stringify([
+            id,
+            pairId,
+            method,
+            stage,
+            toolId,
+            smallestM,
+            time.ms,
+            convText,
+            ...(positionSigmaM === null ? [] : [positionSigmaM]),
+          ]),
+        );
         h.update(packFloat64(voids.xM));
         h.update(packFloat64(voids.yM));
         h.update(packFloat64(voids.diameterM));
@@ -300,6 +324,7 @@ export const voidInspections: ImportKind = {
           stage,
           toolId,
           smallestVoidM: smallestM,
+          positionSigmaM,
           timeMs: time.ms,
           timeText: time.text,
           convention: convText,

@@ -14,6 +14,14 @@ import {
   type SignoffRecordLike,
   type SignoffValues,
 } from '../../../views/partials/signoff.tsx';
+import {
+  calibrationInspection,
+  DEFAULT_INSPECTION_SIGMA_M,
+  DEFAULT_SCANNER_SIGMA_M,
+  matchPairVoids,
+} from '../../engine/learn/calibration-match.ts';
+import type { PairMatching } from '../../engine/learn/calibration-types.ts';
+import { loadPairInspections } from '../../engine/learn/loader.ts';
 import { loadPair, signOffPairInDb } from '../../engine/loader.ts';
 import { assessPairInSession, createSession, EngineInputError } from '../../engine/pair.ts';
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
@@ -29,6 +37,7 @@ interface Loaded {
   pair: PairInput;
   waferDiameterM: number;
   edgeExclusionM: number;
+  inspection: { matching: PairMatching; otherInspections: string[] } | null;
 }
 
 function assess(ctx: AppContext, id: string, asOfMs: number): Loaded | { problem: string } | null {
@@ -41,16 +50,45 @@ function assessUncached(ctx: AppContext, id: string, asOfMs: number): Loaded | {
   try {
     const a = assessPairInSession(loaded.pair, createSession(loaded.line), { asOfMs, detail: 'full' });
     const product = loaded.line.products[loaded.pair.productId];
+    const waferDiameterM = product?.waferDiameterM ?? 0.3;
+    const edgeExclusionM = product?.edgeExclusionM ?? 0;
     return {
       a,
       pair: loaded.pair,
-      waferDiameterM: product?.waferDiameterM ?? 0.3,
-      edgeExclusionM: product?.edgeExclusionM ?? 0,
+      waferDiameterM,
+      edgeExclusionM,
+      inspection: inspectionOf(ctx, loaded.pair, a, waferDiameterM / 2 - edgeExclusionM),
     };
   } catch (e) {
     if (e instanceof EngineInputError) return { problem: e.message };
     throw e;
   }
+}
+
+/**
+ * A bonded pair's void inspection (the one reporting the smallest voids) matched to the predicted
+ * discs of this assessment, as calibration matches it; null before bonding or without inspections.
+ */
+function inspectionOf(
+  ctx: AppContext,
+  pair: PairInput,
+  a: PairAssessment,
+  bondedRadiusM: number,
+): Loaded['inspection'] {
+  if (pair.bondTimeMs === null || !a.voidMap) return null;
+  const list = loadPairInspections(ctx.db, pair.pairId);
+  const insp = calibrationInspection(list);
+  if (!insp) return null;
+  return {
+    matching: matchPairVoids({
+      inspection: insp,
+      discs: a.voidMap.discs,
+      bondedRadiusM,
+      inspectionSigmaM: DEFAULT_INSPECTION_SIGMA_M,
+      scannerSigmaM: DEFAULT_SCANNER_SIGMA_M,
+    }),
+    otherInspections: list.filter((x) => x !== insp).map((x) => x.inspectionId),
+  };
 }
 
 function scanView(w: WaferInput): WaferScanView {
@@ -116,6 +154,7 @@ function page(
         paretoBy: queryParetoBy(c, 'pareto'),
         spectrumMode: queryChoice(c, 'spectrum', SPECTRUM_MODES) ?? 'per-bin',
         signoff: { csrfToken: token(c), records: records(ctx, l.a.pairId), ...signoff },
+        inspection: l.inspection,
       }),
     },
     status,

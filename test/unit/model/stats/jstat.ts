@@ -11,7 +11,11 @@ export interface JStat {
   gammaln(x: number): number;
   lowRegGamma(a: number, x: number): number;
   chisquare: { cdf(x: number, k: number): number; inv(p: number, k: number): number };
-  normal: { inv(p: number, mean: number, sd: number): number };
+  normal: {
+    inv(p: number, mean: number, sd: number): number;
+    cdf(x: number, mean: number, sd: number): number;
+  };
+  studentt: { cdf(x: number, dof: number): number; inv(p: number, dof: number): number };
   ibeta(x: number, a: number, b: number): number;
   beta: { inv(p: number, a: number, b: number): number };
 }

@@ -1,0 +1,156 @@
+/**
+ * Calibration: the page (/calibration, ?pair= picks the map), its map swap (/calibration/map?pair=)
+ * and proposing the fitted values as a parameter set (POST /calibration/propose → 303 to the set on
+ * the Parameters page, where a person adopts it). Thin: the engine loads, assesses, matches, fits
+ * and backtests (src/engine/learn/), memoised per data version (imports and parameter sets).
+ */
+import type { Context, Hono } from 'hono';
+import { CalibrationPage } from '../../../views/pages/calibration.tsx';
+import { VoidOverlayPanel } from '../../../views/partials/void-overlay-panel.tsx';
+import { calibrateWithBacktest } from '../../engine/learn/backtest.ts';
+import type {
+  BacktestReport,
+  CalibrationReport,
+  PairCalibration,
+} from '../../engine/learn/calibration-types.ts';
+import { loadInspectedLots } from '../../engine/learn/loader.ts';
+import { EngineInputError } from '../../engine/pair.ts';
+import { proposeParameterSet } from '../../engine/parameter-sets.ts';
+import type { AppContext } from '../context.ts';
+import { csrfToken } from '../csrf.ts';
+import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
+import { memoised } from './lots.tsx';
+
+interface Calibrated {
+  calibration: CalibrationReport;
+  backtest: BacktestReport;
+  waferDiameterM: number;
+  edgeExclusionM: number;
+}
+
+function calibrated(ctx: AppContext): Calibrated | { problem: string } {
+  return memoised(ctx, 'calibration', () => {
+    try {
+      const { lots } = loadInspectedLots(ctx.db);
+      const r = calibrateWithBacktest(lots);
+      const product = lots[0] ? Object.values(lots[0].line.products)[0] : undefined;
+      return {
+        ...r,
+        waferDiameterM: product?.waferDiameterM ?? 0.3,
+        edgeExclusionM: product?.edgeExclusionM ?? 0,
+      };
+    } catch (e) {
+      if (e instanceof EngineInputError) return { problem: e.message };
+      throw e;
+    }
+  });
+}
+
+function token(c: Context): string {
+  try {
+    return csrfToken(c);
+  } catch {
+    return '';
+  }
+}
+
+/** The pair to map: the one asked for, else the pair with the most explained voids. */
+function pickPair(r: CalibrationReport, asked: string | undefined): PairCalibration | null {
+  if (asked) return r.pairs.find((p) => p.pairId === asked) ?? null;
+  let best: PairCalibration | null = null;
+  for (const p of r.pairs) if (!best || p.matching.explained > best.matching.explained) best = p;
+  return best;
+}
+
+function page(
+  c: Context,
+  ctx: AppContext,
+  extra: { error?: string; name?: string; label?: string } = {},
+  status: 200 | 400 | 422 = 200,
+): Response {
+  const r = calibrated(ctx);
+  if ('problem' in r)
+    return renderPage(
+      c,
+      ctx,
+      {
+        title: 'Calibration',
+        active: '/calibration',
+        body: (
+          <section>
+            <h1>Calibration from void inspections</h1>
+            <p class="vc-error">The inspected pairs cannot be assessed: {r.problem}</p>
+          </section>
+        ),
+      },
+      200,
+    );
+  const asked = c.req.query('pair');
+  const pair = pickPair(r.calibration, asked);
+  const missing = asked !== undefined && pair === null;
+  return renderPage(
+    c,
+    ctx,
+    {
+      title: 'Calibration',
+      active: '/calibration',
+      body: CalibrationPage({
+        calibration: r.calibration,
+        backtest: r.backtest,
+        pair: missing ? pickPair(r.calibration, undefined) : pair,
+        waferDiameterM: r.waferDiameterM,
+        edgeExclusionM: r.edgeExclusionM,
+        csrfToken: token(c),
+        ...(missing ? { error: `There is no inspected pair "${asked}"; the map shows another.` } : {}),
+        ...extra,
+      }),
+    },
+    missing ? 400 : status,
+  );
+}
+
+export function register(app: Hono, ctx: AppContext): void {
+  app.get('/calibration', (c) => page(c, ctx));
+
+  app.get('/calibration/map', (c) => {
+    const id = c.req.query('pair') ?? '';
+    if (!isFragmentRequest(c))
+      return c.redirect(`/calibration?pair=${encodeURIComponent(id)}#calibration-map`, 303);
+    const r = calibrated(ctx);
+    const pair = 'problem' in r ? null : r.calibration.pairs.find((p) => p.pairId === id);
+    if (!pair || 'problem' in r)
+      return c.html(`<p class="vc-error">There is no inspected pair with that id.</p>`, 404);
+    return renderFragment(
+      c,
+      VoidOverlayPanel({
+        id: 'calibration-map-panel',
+        pairId: pair.pairId,
+        matching: pair.matching,
+        otherInspections: pair.otherInspections,
+        waferDiameterM: r.waferDiameterM,
+        edgeExclusionM: r.edgeExclusionM,
+      }),
+    );
+  });
+
+  app.post('/calibration/propose', async (c) => {
+    const body = await c.req.parseBody();
+    const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string).trim() : '');
+    const name = str('name').slice(0, 120);
+    const label = str('label').slice(0, 200);
+    const refused = c.req.header('HX-Request') === 'true' ? 200 : 422;
+    if (!name)
+      return page(
+        c,
+        ctx,
+        { error: 'Your name: the name of the person proposing the set is required.', label },
+        refused,
+      );
+    if (!label) return page(c, ctx, { error: 'Label: a label for the set is required.', name }, refused);
+    const r = calibrated(ctx);
+    if ('problem' in r) return page(c, ctx, { error: r.problem, name, label }, refused);
+    const out = proposeParameterSet(ctx.db, r.calibration.values, r.calibration.notes, label, name);
+    if (!out.ok) return page(c, ctx, { error: out.message, name, label }, refused);
+    return c.redirect(`/parameters/${out.set.id}`, 303);
+  });
+}
