@@ -27,7 +27,10 @@ export function Layout(props: { title: string; active?: string; children?: Child
         <title>{`${props.title} · voidcast`}</title>
         <link rel="stylesheet" href="/assets/voidcast.css" />
         <link rel="icon" href="/assets/favicon.svg" type="image/svg+xml" />
+        {/* No inline script or style anywhere (Content-Security-Policy, src/web/hardening.ts). */}
+        <meta name="htmx-config" content='{"includeIndicatorStyles":false,"allowEval":false}' />
         <script src="/assets/htmx.min.js" defer></script>
+        <script src="/assets/voidcast.js" defer></script>
       </head>
       <body hx-boost="true">
         <header class="vc-masthead">

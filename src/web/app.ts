@@ -9,6 +9,7 @@ import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
+import { hostAllowList, securityHeaders } from './hardening.ts';
 import { renderPage } from './render.ts';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
@@ -23,6 +24,7 @@ import * as tools from './routes/tools.tsx';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
+const SCRIPT = readFileSync(new URL('../../public/voidcast.js', import.meta.url));
 const CSS = readFileSync(new URL('../../public/voidcast.css', import.meta.url));
 const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url));
 
@@ -44,6 +46,9 @@ const ROUTES: RouteModule[] = [
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();
+  // Before anything else: a foreign Host name (DNS rebinding) is refused; then the security headers.
+  app.use('*', hostAllowList(ctx.allowedHosts ?? [], ctx.log));
+  app.use('*', securityHeaders());
   app.use(
     '*',
     logger((line: string) => ctx.log(line)),
@@ -59,6 +64,7 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
       headers: { 'content-type': type, 'cache-control': 'public, max-age=3600' },
     });
   app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
+  app.get('/assets/voidcast.js', asset(SCRIPT, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
   app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
 

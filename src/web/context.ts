@@ -7,4 +7,6 @@ export interface AppContext {
   version: string;
   /** Where log lines go (stdout in production, a buffer in tests). */
   log: (line: string) => void;
+  /** Host names besides the loopback ones this server answers to (src/web/hardening.ts). */
+  allowedHosts?: string[];
 }

@@ -11,6 +11,8 @@ export interface ServerOptions {
   port: number;
   dataDir: string;
   log?: (line: string) => void;
+  /** Host names besides the loopback ones the server answers to (DNS-rebinding defence). */
+  allowedHosts?: string[];
   /** Runs after the database is open and migrated, before the server listens (e.g. the demo loader). */
   beforeListen?: (db: Db) => Promise<void> | void;
 }
@@ -22,11 +24,24 @@ export interface RunningServer {
   close: () => Promise<void>;
 }
 
+/** A specific bind address is a name clients may use; a wildcard (0.0.0.0, ::) is not. */
+function bindName(host: string): string[] {
+  const h = host.trim();
+  if (h === '0.0.0.0' || h === '::' || h === '[::]' || h === '') return [];
+  return [h.includes(':') && !h.startsWith('[') ? `[${h}]` : h];
+}
+
 export async function startServer(opts: ServerOptions): Promise<RunningServer> {
   const log = opts.log ?? ((line: string) => process.stdout.write(`${line}\n`));
   const db = openDataDir(opts.dataDir);
   if (opts.beforeListen) await opts.beforeListen(db);
-  const ctx: AppContext = { db, dataDir: opts.dataDir, version: VERSION, log };
+  const ctx: AppContext = {
+    db,
+    dataDir: opts.dataDir,
+    version: VERSION,
+    log,
+    allowedHosts: [...(opts.allowedHosts ?? []), ...bindName(opts.host)],
+  };
   const app = createApp(ctx);
   const server: ServerType = await new Promise((resolve, reject) => {
     const s = serve({ fetch: app.fetch, hostname: opts.host, port: opts.port }, () => resolve(s));

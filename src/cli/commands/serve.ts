@@ -1,4 +1,5 @@
 import { resolve } from 'node:path';
+import { parseAllowedHosts } from '../../web/hardening.ts';
 import { startServer } from '../../web/server.ts';
 import { parseOptions, parsePort } from '../args.ts';
 import { loadDemoOnce } from '../demo.ts';
@@ -20,13 +21,17 @@ export const serve: Command = {
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
-  --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)`,
+  --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)
+  --allowed-host NAME
+               a host name clients may use besides the loopback names (repeatable; also
+               VOIDCAST_ALLOWED_HOSTS, comma-separated); any other Host header is refused`,
   async run(argv, io) {
     const { values } = parseOptions(argv, {
       port: { type: 'string' },
       host: { type: 'string' },
       data: { type: 'string' },
       empty: { type: 'boolean' },
+      'allowed-host': { type: 'string', multiple: true },
     });
     const port =
       values.port !== undefined
@@ -37,6 +42,10 @@ export const serve: Command = {
     const host = values.host ?? DEFAULT_HOST;
     if (host.trim() === '') throw new UsageError('--host must not be empty');
     const dataDir = resolveDataDir(values.data, io);
+    const allowedHosts = [
+      ...parseAllowedHosts(io.env.VOIDCAST_ALLOWED_HOSTS),
+      ...(values['allowed-host'] ?? []).flatMap((h) => parseAllowedHosts(h)),
+    ];
     const loadDemo = !(values.empty || io.env.VOIDCAST_EMPTY === '1');
     const log = (l: string) => io.out(`${l}\n`);
     const server = await startServer({
@@ -44,6 +53,7 @@ export const serve: Command = {
       port,
       dataDir,
       log,
+      allowedHosts,
       // First start on a fresh data directory: import the demo line once (src/cli/demo.ts).
       beforeListen: loadDemo
         ? async (db) => {

@@ -3,8 +3,12 @@
  *
  *   GET  /api/lots                      lots with their product and pair count
  *   GET  /api/lots/:id/assessment       LotAssessment (pairs in summary detail; ?detail=full for all maps)
- *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
- *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
+ *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum) and
+ *                                       assessmentRef, the server's signed reference to it
+ *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, assessmentRef, signedBy, call?, comment?}
+ *
+ * The assessment a sign-off refers to is the server's: its time comes from `assessmentRef` as the
+ * assessment GET returned it (src/web/assessment-ref.ts), never from a time the client sends.
  *
  * `?asOf=` (UTC ms or ISO 8601 with its zone) fixes the assessment time; default the installation
  * clock (settings clock.as_of), else now. Errors are JSON
@@ -17,6 +21,7 @@ import { assessLotFromDbParallel } from '../../engine/parallel.ts';
 import type { Call } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
 import type { AppContext } from '../context.ts';
 
 /** ?asOf=, else the installation clock (settings clock.as_of), else now. */
@@ -48,7 +53,7 @@ export function register(app: Hono, ctx: AppContext): void {
     if (typeof asOf !== 'number') return c.json({ error: 'bad request', detail: asOf.error }, 400);
     const a = assessPairFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail: 'full' });
     if (!a) return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
-    return c.json(a);
+    return c.json({ ...a, assessmentRef: assessmentRef(ctx.db, 'pair', a.pairId, a.asOfMs) });
   });
 
   app.post('/api/pairs/:id/signoff', async (c) => {
@@ -59,12 +64,13 @@ export function register(app: Hono, ctx: AppContext): void {
       return c.json({ error: 'bad request', detail: 'The body must be JSON.' }, 400);
     }
     const b = (body ?? {}) as Record<string, unknown>;
-    const asOfMs = typeof b.asOfMs === 'number' ? b.asOfMs : Number.NaN;
-    if (!Number.isFinite(asOfMs))
+    const asOfMs = readAssessmentRef(ctx.db, 'pair', c.req.param('id'), b.assessmentRef);
+    if (asOfMs === null)
       return c.json(
         {
           error: 'bad request',
-          detail: 'asOfMs: the assessment time (UTC ms) of the assessment signed is required.',
+          detail:
+            'assessmentRef: the reference this server returned with the assessment signed (GET /api/pairs/:id/assessment) is required.',
         },
         400,
       );

@@ -18,6 +18,7 @@ import { loadPair, signOffPairInDb } from '../../engine/loader.ts';
 import { assessPairInSession, createSession, EngineInputError } from '../../engine/pair.ts';
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
 import { readDispositions } from '../../store/dispositions.ts';
+import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -84,6 +85,11 @@ function records(ctx: AppContext, pairId: string): SignoffRecordLike[] {
   }));
 }
 
+/** The server's reference to the assessment a page shows; a sign-off must return it. */
+function ref(ctx: AppContext, a: PairAssessment): string {
+  return assessmentRef(ctx.db, 'pair', a.pairId, a.asOfMs);
+}
+
 function token(c: Context): string {
   try {
     return csrfToken(c);
@@ -115,7 +121,12 @@ function page(
         edgeExclusionM: l.edgeExclusionM,
         paretoBy: parseParetoBy(q.pareto),
         spectrumMode: q.spectrum === 'cumulative' ? 'cumulative' : 'per-bin',
-        signoff: { csrfToken: token(c), records: records(ctx, l.a.pairId), ...signoff },
+        signoff: {
+          csrfToken: token(c),
+          records: records(ctx, l.a.pairId),
+          assessmentRef: ref(ctx, l.a),
+          ...signoff,
+        },
       }),
     },
     status,
@@ -179,9 +190,11 @@ export function register(app: Hono, ctx: AppContext): void {
       comment: str('comment'),
     };
     const shownHash = str('inputsHash');
-    const asOfMs = Number(str('asOfMs'));
+    // The assessment time is the one the server put in the page's signed reference, never the
+    // client's own; a form without a valid reference is refused after the current assessment.
+    const asOfMs = readAssessmentRef(ctx.db, 'pair', id, str('assessmentRef'));
     const fragment = isFragmentRequest(c);
-    const l = assess(ctx, id, Number.isFinite(asOfMs) && asOfMs > 0 ? asOfMs : asOfFrom(c, ctx));
+    const l = assess(ctx, id, asOfMs ?? asOfFrom(c, ctx));
     if (!l) return notFound(c, ctx, `There is no pair ${id}.`);
     if ('problem' in l) return cannotAssess(c, ctx, id, l.problem);
 
@@ -197,6 +210,7 @@ export function register(app: Hono, ctx: AppContext): void {
             asOfMs: l.a.asOfMs,
             proposedCall: l.a.call as CallName,
             csrfToken: token(c),
+            assessmentRef: ref(ctx, l.a),
             records: records(ctx, id),
             error,
             values,
@@ -208,6 +222,11 @@ export function register(app: Hono, ctx: AppContext): void {
     if (!SIGNOFF_ROLES.includes(values.role as (typeof SIGNOFF_ROLES)[number]))
       return refuse(`Role: one of ${SIGNOFF_ROLES.join(', ')}.`, 422);
     if (str('call') && !values.call) return refuse('Call: one of bond, re-clean, hold.', 422);
+    if (asOfMs === null)
+      return refuse(
+        'The form does not carry a reference to an assessment this server showed. Reload the page and sign again.',
+        422,
+      );
 
     const out = signOffPairInDb(ctx.db, id, {
       inputsHash: shownHash,
@@ -235,6 +254,7 @@ export function register(app: Hono, ctx: AppContext): void {
         asOfMs: l.a.asOfMs,
         proposedCall: l.a.call as CallName,
         csrfToken: token(c),
+        assessmentRef: ref(ctx, l.a),
         records: all,
         stored,
       }),
