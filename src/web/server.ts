@@ -33,7 +33,7 @@ function bindName(host: string): string[] {
 
 export async function startServer(opts: ServerOptions): Promise<RunningServer> {
   const log = opts.log ?? ((line: string) => process.stdout.write(`${line}\n`));
-  const db = openDataDir(opts.dataDir);
+  const db = openDataDir(opts.dataDir, log);
   if (opts.beforeListen) await opts.beforeListen(db);
   const ctx: AppContext = {
     db,

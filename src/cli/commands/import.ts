@@ -110,7 +110,8 @@ export const importCommand: Command = {
       throw new UsageError(`kind "${kindName}" cannot be imported by this build yet`);
     }
     if (files.length === 0) throw new UsageError('name at least one file to import');
-    const db = openDataDir(resolveDataDir(values.data, io));
+    // An import that has to wait for another writer (the server, another CLI) says so and waits.
+    const db = openDataDir(resolveDataDir(values.data, io), (m) => io.err(`voidcast import: ${m}\n`));
     const reports: (ImportReport | null)[] = [];
     try {
       for (const f of files) {
