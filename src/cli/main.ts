@@ -5,6 +5,7 @@ import { fileURLToPath } from 'node:url';
 import { findCalculator } from '../engine/calculators.ts';
 import { VERSION } from '../web/version.ts';
 import { assess } from './commands/assess.ts';
+import { backup } from './commands/backup.ts';
 import { calc, calcUsage } from './commands/calc.ts';
 import { demo } from './commands/demo.ts';
 import { importCommand } from './commands/import.ts';
@@ -14,7 +15,7 @@ import { signoff } from './commands/signoff.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve, calc, importCommand, assess, signoff, params, demo];
+export const COMMANDS: Command[] = [serve, calc, importCommand, assess, signoff, params, demo, backup];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
