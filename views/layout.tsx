@@ -27,8 +27,12 @@ export function Layout(props: { title: string; active?: string; children?: Child
         <title>{`${props.title} · voidcast`}</title>
         <link rel="stylesheet" href="/assets/voidcast.css" />
         <link rel="icon" href="/assets/favicon.svg" type="image/svg+xml" />
-        {/* No inline script or style anywhere (Content-Security-Policy, src/web/hardening.ts). */}
-        <meta name="htmx-config" content='{"includeIndicatorStyles":false,"allowEval":false}' />
+        {/* No inline script or style anywhere (Content-Security-Policy, src/web/hardening.ts): htmx
+            injects no indicator style, evaluates no string, and settles no style attribute. */}
+        <meta
+          name="htmx-config"
+          content='{"includeIndicatorStyles":false,"allowEval":false,"attributesToSettle":["class","width","height"]}'
+        />
         <script src="/assets/htmx.min.js" defer></script>
         <script src="/assets/voidcast.js" defer></script>
       </head>

@@ -218,7 +218,7 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
       // The lot's own page, reached through its (percent-encoded) link.
       await page.goto(`${server.url}lots`);
       await page.getByRole('link', { name: LOT_ID }).click();
-      await page.waitForFunction(`location.pathname.startsWith('/lots/')`);
+      await page.waitForURL(/\/lots\/[^/]+$/);
       expect((await page.locator('main').textContent()) ?? '').toContain(LOT_ID);
       expect(await page.locator('script').count()).toBe(2);
       expect(await pwned(page)).toBeUndefined();

@@ -5,8 +5,8 @@
  * so a single connection could not show the behaviour.
  *
  * The busy timeout every connection sets is 5 s (src/store/db.ts); the holder below keeps the
- * write lock for 7 s, longer than that, so the waiting import must go round the retry of
- * src/store/writer.ts at least once.
+ * write lock until the import has said that it waits, i.e. longer than that, so the waiting import
+ * goes round the retry of src/store/writer.ts.
  */
 import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -31,7 +31,7 @@ function run(cmd: string[], env: Record<string, string> = {}) {
   const child = spawn(process.execPath, cmd, {
     cwd: ROOT,
     env: { ...process.env, NO_COLOR: '1', ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
+    stdio: ['pipe', 'pipe', 'pipe'],
   });
   let out = '';
   let err = '';
@@ -51,7 +51,10 @@ function cli(...args: string[]) {
   return run(['--import', 'tsx', join(ROOT, 'src/cli/main.ts'), ...args]);
 }
 
-/** Another process that takes the write lock, says "locked", and keeps it for `ms`. */
+/**
+ * Another process that takes the write lock, says "locked", and keeps it until a line arrives on its
+ * stdin (or `ms` have passed), so the test decides when it lets go whatever the machine's load.
+ */
 function holder(ms: number): { proc: ReturnType<typeof run>; locked: Promise<void> } {
   const file = join(data, DATABASE_FILE_NAME);
   const script = `
@@ -60,7 +63,9 @@ function holder(ms: number): { proc: ReturnType<typeof run>; locked: Promise<voi
     db.exec('BEGIN IMMEDIATE');
     db.prepare("INSERT INTO settings (key, value, updated_at) VALUES ('test.holder', '1', 'now')").run();
     process.stdout.write('locked\\n');
-    setTimeout(() => { db.exec('COMMIT'); process.stdout.write('released ' + Date.now() + '\\n'); db.close(); }, ${ms});
+    const release = () => { db.exec('COMMIT'); process.stdout.write('released ' + Date.now() + '\\n'); db.close(); process.exit(0); };
+    process.stdin.once('data', release);
+    setTimeout(release, ${ms});
   `;
   const proc = run(['-e', script]);
   const locked = new Promise<void>((r) => {
@@ -82,9 +87,15 @@ function count(table: string): number {
 
 describe('two writers', () => {
   it('a CLI import waits for another process holding the write lock, says so, and then stores its rows', async () => {
-    const h = holder(7000);
+    const h = holder(60_000);
     await h.locked;
     const imp = cli('import', 'locations', join(FIX, 'good/locations-line.csv'), '--data', data);
+    // Let go only once the import has said that it waits — which it says when its first busy timeout
+    // (5 s) has run out — so the path exercised is the retry's.
+    while (!imp.err().includes('waiting:') && imp.child.exitCode === null)
+      await new Promise((r) => setTimeout(r, 50));
+    await new Promise((r) => setTimeout(r, 1000));
+    h.proc.child.stdin!.write('release\n');
     const [held, r] = await Promise.all([h.proc.done, imp.done]);
     expect(held.code).toBe(0);
     expect(imp.err()).toContain('waiting: another process is writing to');
