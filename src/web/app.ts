@@ -7,10 +7,12 @@ import { createRequire } from 'node:module';
 import { Hono } from 'hono';
 import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
+import { authorize, identify } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
 import { hostAllowList, securityHeaders } from './hardening.ts';
 import { renderPage } from './render.ts';
+import * as accounts from './routes/accounts.tsx';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
@@ -42,6 +44,7 @@ const ROUTES: RouteModule[] = [
   lots,
   pairs,
   parameters,
+  accounts,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
@@ -53,11 +56,15 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
     '*',
     logger((line: string) => ctx.log(line)),
   );
+  // Who is asking (a session, an API token, or open mode: src/web/auth/session.ts).
+  app.use('*', identify(ctx));
   // Every POST/PUT/PATCH/DELETE needs a same-origin browser and the form token (src/web/csrf.ts).
   app.use(
     '*',
     csrfProtection({ secret: csrfSecret(ctx.db), streamingPaths: ['/imports'], version: ctx.version }),
   );
+  // What the asker's role allows (src/web/auth/permissions.ts).
+  app.use('*', authorize(ctx));
 
   const asset = (body: Buffer, type: string) => () =>
     new Response(new Uint8Array(body), {

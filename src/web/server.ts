@@ -3,7 +3,10 @@ import type { AddressInfo } from 'node:net';
 import { type ServerType, serve } from '@hono/node-server';
 import { type Db, openDataDir } from '../store/db.ts';
 import { createApp } from './app.ts';
+import { ensureFirstAdmin } from './auth/bootstrap.ts';
+import { sessionSecret } from './auth/secret.ts';
 import type { AppContext } from './context.ts';
+import { isLoopbackBind } from './hardening.ts';
 import { VERSION } from './version.ts';
 
 export interface ServerOptions {
@@ -13,12 +16,21 @@ export interface ServerOptions {
   log?: (line: string) => void;
   /** Host names besides the loopback ones the server answers to (DNS-rebinding defence). */
   allowedHosts?: string[];
+  /**
+   * 'accounts' (sign-in required; the first start makes the first administrator) or 'open' (nobody
+   * signs in: loopback addresses only).
+   */
+  auth?: 'accounts' | 'open';
+  /** VOIDCAST_ADMIN_PASSWORD: the first administrator's password instead of a one-time one. */
+  adminPassword?: string;
   /** Runs after the database is open and migrated, before the server listens (e.g. the demo loader). */
   beforeListen?: (db: Db) => Promise<void> | void;
 }
 
 export interface RunningServer {
   url: string;
+  /** Set on the first start with accounts: who signs in first, and the one-time password (null when given). */
+  firstAdmin: { username: string; oneTimePassword: string | null } | null;
   port: number;
   db: Db;
   close: () => Promise<void>;
@@ -33,14 +45,25 @@ function bindName(host: string): string[] {
 
 export async function startServer(opts: ServerOptions): Promise<RunningServer> {
   const log = opts.log ?? ((line: string) => process.stdout.write(`${line}\n`));
+  const mode = opts.auth ?? 'open';
+  if (mode === 'open' && !isLoopbackBind(opts.host))
+    throw new Error(
+      `open mode serves this machine only; binding to ${opts.host} requires accounts (start without --open)`,
+    );
   const db = openDataDir(opts.dataDir, log);
   if (opts.beforeListen) await opts.beforeListen(db);
+  let firstAdmin: RunningServer['firstAdmin'] = null;
+  if (mode === 'accounts') {
+    const made = await ensureFirstAdmin(db, opts.adminPassword);
+    if (made.created) firstAdmin = { username: made.username, oneTimePassword: made.oneTimePassword };
+  }
   const ctx: AppContext = {
     db,
     dataDir: opts.dataDir,
     version: VERSION,
     log,
     allowedHosts: [...(opts.allowedHosts ?? []), ...bindName(opts.host)],
+    auth: mode === 'accounts' ? { mode, sessionSecret: sessionSecret(opts.dataDir) } : { mode },
   };
   const app = createApp(ctx);
   const server: ServerType = await new Promise((resolve, reject) => {
@@ -51,6 +74,7 @@ export async function startServer(opts: ServerOptions): Promise<RunningServer> {
   const shownHost = opts.host.includes(':') ? `[${opts.host}]` : opts.host;
   return {
     url: `http://${shownHost}:${port}/`,
+    firstAdmin,
     port,
     db,
     close: () =>

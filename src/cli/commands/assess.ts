@@ -16,10 +16,21 @@ import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
 
+/** 9999-12-31T23:59:59.999Z in UTC ms. */
+const MAX_TIME_MS = Date.UTC(9999, 11, 31, 23, 59, 59, 999);
+
 /** Parses --as-of: an ISO 8601 time with a zone (Z or ±hh:mm) or UTC milliseconds; default now. */
 export function parseAsOf(value: string | undefined, nowMs: number): number {
   if (value === undefined) return nowMs;
-  if (/^\d{10,}$/.test(value)) return Number(value);
+  if (/^\d{10,}$/.test(value)) {
+    // A time the calendar has (up to 9999-12-31), not any number the digits make (1e300 was taken).
+    const ms = Number(value);
+    if (!Number.isSafeInteger(ms) || ms > MAX_TIME_MS)
+      throw new UsageError(
+        `--as-of in milliseconds must be at most ${MAX_TIME_MS} (9999-12-31), got "${value.slice(0, 30)}"`,
+      );
+    return ms;
+  }
   if (!/(Z|[+-]\d{2}:?\d{2})$/i.test(value))
     throw new UsageError(
       `--as-of must be UTC milliseconds or an ISO 8601 time with its zone (Z or ±hh:mm), got "${value}"`,

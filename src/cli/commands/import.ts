@@ -13,6 +13,7 @@ import {
 } from '../../ingest/types.ts';
 import { openDataDir } from '../../store/db.ts';
 import { parseOptions } from '../args.ts';
+import { cliAudit } from '../audit.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
 
@@ -127,6 +128,14 @@ export const importCommand: Command = {
           });
           bar?.clear();
           reports.push(r);
+          if (r.status === 'imported' || r.status === 'partial')
+            cliAudit(db, 'import', f, {
+              kind: r.kind,
+              status: r.status,
+              importId: r.importId,
+              sha256: r.sha256,
+              rowsStored: r.rowsStored,
+            });
           if (!values.json) io.out(formatReport(r));
         } catch (e) {
           bar?.clear();

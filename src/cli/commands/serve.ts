@@ -1,5 +1,5 @@
 import { resolve } from 'node:path';
-import { parseAllowedHosts } from '../../web/hardening.ts';
+import { isLoopbackBind, parseAllowedHosts } from '../../web/hardening.ts';
 import { startServer } from '../../web/server.ts';
 import { parseOptions, parsePort } from '../args.ts';
 import { loadDemoOnce } from '../demo.ts';
@@ -16,12 +16,15 @@ export function resolveDataDir(flag: string | undefined, io: CliIo): string {
 export const serve: Command = {
   name: 'serve',
   summary: 'run the web application',
-  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]
+  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--allowed-host NAME]...
 
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
   --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)
+  --open       open mode: nobody signs in, a banner on every page says so; this machine only
+               (also VOIDCAST_OPEN=1). Without it everyone signs in; the first start makes the
+               administrator "admin" with VOIDCAST_ADMIN_PASSWORD, else a one-time password printed once
   --allowed-host NAME
                a host name clients may use besides the loopback names (repeatable; also
                VOIDCAST_ALLOWED_HOSTS, comma-separated); any other Host header is refused`,
@@ -32,6 +35,7 @@ export const serve: Command = {
       data: { type: 'string' },
       empty: { type: 'boolean' },
       'allowed-host': { type: 'string', multiple: true },
+      open: { type: 'boolean' },
     });
     const port =
       values.port !== undefined
@@ -46,6 +50,11 @@ export const serve: Command = {
       ...parseAllowedHosts(io.env.VOIDCAST_ALLOWED_HOSTS),
       ...(values['allowed-host'] ?? []).flatMap((h) => parseAllowedHosts(h)),
     ];
+    const open = values.open === true || io.env.VOIDCAST_OPEN === '1';
+    if (open && !isLoopbackBind(host))
+      throw new UsageError(
+        `--open serves this machine only; binding to ${host} requires accounts (drop --open)`,
+      );
     const loadDemo = !(values.empty || io.env.VOIDCAST_EMPTY === '1');
     const log = (l: string) => io.out(`${l}\n`);
     const server = await startServer({
@@ -54,6 +63,8 @@ export const serve: Command = {
       dataDir,
       log,
       allowedHosts,
+      auth: open ? 'open' : 'accounts',
+      adminPassword: io.env.VOIDCAST_ADMIN_PASSWORD,
       // First start on a fresh data directory: import the demo line once (src/cli/demo.ts).
       beforeListen: loadDemo
         ? async (db) => {
@@ -61,6 +72,13 @@ export const serve: Command = {
           }
         : undefined,
     });
+    if (server.firstAdmin)
+      io.out(
+        server.firstAdmin.oneTimePassword
+          ? `First start: sign in at ${server.url}login as "${server.firstAdmin.username}" with the one-time password\n\n    ${server.firstAdmin.oneTimePassword}\n\nIt is shown only now; you choose your own password at the first sign-in.\n`
+          : `First start: sign in as "${server.firstAdmin.username}" with the password in VOIDCAST_ADMIN_PASSWORD.\n`,
+      );
+    if (open) io.out('Open mode: nobody signs in (this machine only).\n');
     io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
     await new Promise<void>((done) => {
       const stop = () => {

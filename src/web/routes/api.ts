@@ -22,6 +22,8 @@ import type { Call } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
 import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 
 /** ?asOf=, else the installation clock (settings clock.as_of), else now. */
@@ -64,6 +66,7 @@ export function register(app: Hono, ctx: AppContext): void {
       return c.json({ error: 'bad request', detail: 'The body must be JSON.' }, 400);
     }
     const b = (body ?? {}) as Record<string, unknown>;
+    const account = accountOf(c);
     const asOfMs = readAssessmentRef(ctx.db, 'pair', c.req.param('id'), b.assessmentRef);
     if (asOfMs === null)
       return c.json(
@@ -77,7 +80,8 @@ export function register(app: Hono, ctx: AppContext): void {
     const r = signOffPairInDb(ctx.db, c.req.param('id'), {
       inputsHash: String(b.inputsHash ?? ''),
       asOfMs,
-      signedBy: String(b.signedBy ?? ''),
+      // With accounts the signer is the account (token or session), never a name the body gives.
+      signedBy: account ? `${account.user.displayName} [${account.user.username}]` : String(b.signedBy ?? ''),
       call: b.call === undefined ? undefined : (String(b.call) as Call),
       comment: typeof b.comment === 'string' ? b.comment : null,
     });
@@ -92,6 +96,19 @@ export function register(app: Hono, ctx: AppContext): void {
         },
         r.code === 'hash-changed' ? 409 : 400,
       );
+    audit(
+      c,
+      ctx,
+      'signoff',
+      `pair ${c.req.param('id')}`,
+      {
+        dispositionId: r.id,
+        call: r.record.call,
+        proposedCall: r.record.proposedCall,
+        inputsHash: r.record.inputsHash,
+      },
+      r.record.signedBy,
+    );
     return c.json({ id: r.id, record: r.record }, 201);
   });
 }

@@ -19,6 +19,8 @@ import { assessPairInSession, createSession, EngineInputError } from '../../engi
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
 import { readDispositions } from '../../store/dispositions.ts';
 import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -85,6 +87,11 @@ function records(ctx: AppContext, pairId: string): SignoffRecordLike[] {
   }));
 }
 
+function accountName(c: Context): string | undefined {
+  const a = accountOf(c);
+  return a ? `${a.user.displayName} [${a.user.username}]` : undefined;
+}
+
 /** The server's reference to the assessment a page shows; a sign-off must return it. */
 function ref(ctx: AppContext, a: PairAssessment): string {
   return assessmentRef(ctx.db, 'pair', a.pairId, a.asOfMs);
@@ -126,6 +133,8 @@ function page(
           records: records(ctx, l.a.pairId),
           assessmentRef: ref(ctx, l.a),
           ...signoff,
+          // Signed in, the name is the account's (the server uses it whatever the field holds).
+          values: { name: accountName(c), ...signoff.values },
         },
       }),
     },
@@ -183,8 +192,10 @@ export function register(app: Hono, ctx: AppContext): void {
     const id = c.req.param('id');
     const body = await c.req.parseBody();
     const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string) : '');
+    // Signed in, the signer is the account (whatever the name field says); open mode, the name typed.
+    const account = accountOf(c);
     const values: Partial<SignoffValues> = {
-      name: str('name').trim(),
+      name: account ? `${account.user.displayName} [${account.user.username}]` : str('name').trim(),
       role: str('role'),
       call: (['bond', 're-clean', 'hold'] as const).find((x) => x === str('call')),
       comment: str('comment'),
@@ -236,6 +247,21 @@ export function register(app: Hono, ctx: AppContext): void {
       comment: values.comment || null,
     });
     if (!out) return notFound(c, ctx, `There is no pair ${id}.`);
+    if (out.ok)
+      audit(
+        c,
+        ctx,
+        'signoff',
+        `pair ${id}`,
+        {
+          dispositionId: out.id,
+          call: out.record.call,
+          proposedCall: out.record.proposedCall,
+          inputsHash: out.record.inputsHash,
+          assessedAtMs: out.record.assessedAtMs,
+        },
+        values.name,
+      );
     if (!out.ok)
       return refuse(
         out.code === 'hash-changed'

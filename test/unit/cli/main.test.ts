@@ -36,7 +36,9 @@ describe('voidcast CLI', () => {
     expect(await main(['serve', '--prot', '80'], t.io)).toBe(2);
     const [first, second] = t.err().split('\n');
     expect(first).toBe("voidcast serve: Unknown option '--prot'");
-    expect(second).toBe('usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]');
+    expect(second).toBe(
+      'usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--allowed-host NAME]...',
+    );
   });
 
   it('a bad port exits 2 naming the rule', async () => {
