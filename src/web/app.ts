@@ -16,6 +16,7 @@ import * as accounts from './routes/accounts.tsx';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
+import * as feed from './routes/feed.ts';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
@@ -45,6 +46,7 @@ const ROUTES: RouteModule[] = [
   pairs,
   parameters,
   accounts,
+  feed,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {

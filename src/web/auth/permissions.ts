@@ -39,6 +39,7 @@ export function isPublic(method: string, path: string): boolean {
 /** Rules for state-changing requests: the first match decides. */
 export const RULES: { method: string; path: RegExp; role: Role; what: string }[] = [
   { method: 'POST', path: /^\/imports$/, role: 'engineer', what: 'import files' },
+  { method: 'POST', path: /^\/api\/feed\/counter-samples$/, role: 'engineer', what: 'push counter samples' },
   { method: 'POST', path: /^\/pairs\/[^/]+\/signoff$/, role: 'approver', what: 'sign a call off' },
   { method: 'POST', path: /^\/api\/pairs\/[^/]+\/signoff$/, role: 'approver', what: 'sign a call off' },
   { method: 'POST', path: /^\/parameters\/[^/]+\/adopt$/, role: 'approver', what: 'adopt a parameter set' },
