@@ -6,6 +6,7 @@ import { createApp } from './app.ts';
 import { ensureFirstAdmin } from './auth/bootstrap.ts';
 import { sessionSecret } from './auth/secret.ts';
 import type { AppContext } from './context.ts';
+import { type DropFolder, watchDropFolder } from './drop-folder.ts';
 import { isLoopbackBind } from './hardening.ts';
 import { VERSION } from './version.ts';
 
@@ -23,6 +24,8 @@ export interface ServerOptions {
   auth?: 'accounts' | 'open';
   /** VOIDCAST_ADMIN_PASSWORD: the first administrator's password instead of a one-time one. */
   adminPassword?: string;
+  /** A folder to watch for counter-samples files (src/web/drop-folder.ts). */
+  dropDir?: string;
   /** Runs after the database is open and migrated, before the server listens (e.g. the demo loader). */
   beforeListen?: (db: Db) => Promise<void> | void;
 }
@@ -71,6 +74,7 @@ export async function startServer(opts: ServerOptions): Promise<RunningServer> {
     s.once('error', reject);
   });
   const port = (server.address() as AddressInfo).port;
+  const drop: DropFolder | null = opts.dropDir ? watchDropFolder(db, opts.dropDir, log) : null;
   const shownHost = opts.host.includes(':') ? `[${opts.host}]` : opts.host;
   return {
     url: `http://${shownHost}:${port}/`,
@@ -79,7 +83,8 @@ export async function startServer(opts: ServerOptions): Promise<RunningServer> {
     db,
     close: () =>
       new Promise<void>((resolve) => {
-        server.close(() => {
+        server.close(async () => {
+          await drop?.stop();
           db.close();
           resolve();
         });

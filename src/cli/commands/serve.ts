@@ -16,7 +16,7 @@ export function resolveDataDir(flag: string | undefined, io: CliIo): string {
 export const serve: Command = {
   name: 'serve',
   summary: 'run the web application',
-  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--allowed-host NAME]...
+  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--drop DIR] [--allowed-host NAME]...
 
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
@@ -25,6 +25,8 @@ export const serve: Command = {
   --open       open mode: nobody signs in, a banner on every page says so; this machine only
                (also VOIDCAST_OPEN=1). Without it everyone signs in; the first start makes the
                administrator "admin" with VOIDCAST_ADMIN_PASSWORD, else a one-time password printed once
+  --drop DIR   watch DIR for counter-samples files (*.csv) and import each once it stops growing
+               (also VOIDCAST_DROP); done files move to DIR/imported or DIR/rejected with a report
   --allowed-host NAME
                a host name clients may use besides the loopback names (repeatable; also
                VOIDCAST_ALLOWED_HOSTS, comma-separated); any other Host header is refused`,
@@ -36,6 +38,7 @@ export const serve: Command = {
       empty: { type: 'boolean' },
       'allowed-host': { type: 'string', multiple: true },
       open: { type: 'boolean' },
+      drop: { type: 'string' },
     });
     const port =
       values.port !== undefined
@@ -64,6 +67,10 @@ export const serve: Command = {
       log,
       allowedHosts,
       auth: open ? 'open' : 'accounts',
+      dropDir:
+        values.drop !== undefined || (io.env.VOIDCAST_DROP ?? '') !== ''
+          ? resolve(io.cwd, values.drop ?? io.env.VOIDCAST_DROP!)
+          : undefined,
       adminPassword: io.env.VOIDCAST_ADMIN_PASSWORD,
       // First start on a fresh data directory: import the demo line once (src/cli/demo.ts).
       beforeListen: loadDemo

@@ -37,7 +37,7 @@ describe('voidcast CLI', () => {
     const [first, second] = t.err().split('\n');
     expect(first).toBe("voidcast serve: Unknown option '--prot'");
     expect(second).toBe(
-      'usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--allowed-host NAME]...',
+      'usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--drop DIR] [--allowed-host NAME]...',
     );
   });
 
