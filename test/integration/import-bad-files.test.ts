@@ -129,6 +129,19 @@ const CASES: [string, Expected[]][] = [
     ],
   ],
   [
+    // Found by the property test (test/unit/properties/parsers.test.ts): an empty volume cell used to
+    // reach the database as NULL and fail its NOT NULL constraint (an internal error, not an issue).
+    'counter-samples-empty-volume.csv',
+    [
+      {
+        line: 3,
+        column: 'volume_L',
+        value: null,
+        rule: 'the sampled volume is required: give volume_L as a number > 0',
+      },
+    ],
+  ],
+  [
     'counter-samples-negative-count.csv',
     [{ line: 3, column: 'ge_0.3um', value: '-3', rule: 'must be a whole number ≥ 0' }],
   ],
