@@ -92,8 +92,8 @@ export function effectiveRigidity(d1Nm: number, d2Nm: number | 'rigid'): number 
   const d1 = requirePositive('effectiveRigidity', 'd1Nm', d1Nm, 'N·m');
   if (d2Nm === 'rigid') return d1;
   const d2 = requirePositive('effectiveRigidity', 'd2Nm', d2Nm, 'N·m');
-  // d1·d2 overflows for huge rigidities; d1 / (1 + d1/d2) is the same value without the product.
-  return finiteResult('effectiveRigidity', d1 / (1 + d1 / d2));
+  // The product overflows for rigidities near the largest double: refused, never Infinity out.
+  return finiteResult('effectiveRigidity', (d1 * d2) / (d1 + d2));
 }
 
 /**
