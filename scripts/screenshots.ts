@@ -25,7 +25,7 @@ async function startDemoServer(): Promise<{ url: string; stop: () => Promise<voi
   const dataDir = mkdtempSync(join(tmpdir(), 'voidcast-shots-'));
   const child: ChildProcess = spawn(
     process.execPath,
-    ['--import', 'tsx', join(ROOT, 'src/cli/main.ts'), 'serve', '--port', '0', '--data', dataDir],
+    ['--import', 'tsx', join(ROOT, 'src/cli/main.ts'), 'serve', '--open', '--port', '0', '--data', dataDir],
     { cwd: ROOT, env: { ...process.env, NO_COLOR: '1' }, stdio: ['ignore', 'pipe', 'pipe'] },
   );
   let out = '';

@@ -18,7 +18,23 @@ export const NAV: NavItem[] = [
   { href: '/imports', label: 'Imports' },
 ];
 
-export function Layout(props: { title: string; active?: string; children?: Child; version?: string }) {
+export interface LayoutAccount {
+  username: string;
+  displayName: string;
+  role: string;
+}
+
+export function Layout(props: {
+  title: string;
+  active?: string;
+  children?: Child;
+  version?: string;
+  /** True when nobody signs in (open mode): a banner on every page says so. */
+  openMode?: boolean;
+  /** The signed-in account, shown with its pages and a sign-out button. */
+  account?: LayoutAccount | null;
+  csrfToken?: string;
+}) {
   const active = props.active ?? '';
   return (
     <html lang="en">
@@ -28,7 +44,14 @@ export function Layout(props: { title: string; active?: string; children?: Child
         <title>{`${props.title} · voidcast`}</title>
         <link rel="stylesheet" href="/assets/voidcast.css" />
         <link rel="icon" href="/assets/favicon.svg" type="image/svg+xml" />
+        {/* No inline script or style anywhere (Content-Security-Policy, src/web/hardening.ts): htmx
+            injects no indicator style, evaluates no string, and settles no style attribute. */}
+        <meta
+          name="htmx-config"
+          content='{"includeIndicatorStyles":false,"allowEval":false,"attributesToSettle":["class","width","height"]}'
+        />
         <script src="/assets/htmx.min.js" defer></script>
+        <script src="/assets/voidcast.js" defer></script>
       </head>
       <body hx-boost="true">
         <header class="vc-masthead">
@@ -59,7 +82,14 @@ export function Layout(props: { title: string; active?: string; children?: Child
               </a>
             ))}
           </nav>
+          <AccountBox {...props} active={active} />
         </header>
+        {props.openMode ? (
+          <p class="vc-open-banner" role="note">
+            Open mode: nobody signs in, and everyone who can reach this machine's loopback address may import,
+            sign off and adopt. Serve without --open to require accounts before others use it.
+          </p>
+        ) : null}
         <main id="main" class="vc-main">
           {props.children}
         </main>
@@ -72,6 +102,43 @@ export function Layout(props: { title: string; active?: string; children?: Child
         </footer>
       </body>
     </html>
+  );
+}
+
+/** The account's own links (Audit, Accounts for admins, the account) and the sign-out button. */
+function AccountBox(props: {
+  account?: LayoutAccount | null;
+  openMode?: boolean;
+  csrfToken?: string;
+  active: string;
+}) {
+  const link = (href: string, label: string) => (
+    <a
+      href={href}
+      class={isActive(href, props.active) ? 'active' : undefined}
+      aria-current={isActive(href, props.active) ? 'page' : undefined}
+    >
+      {label}
+    </a>
+  );
+  if (!props.account)
+    return (
+      <nav class="vc-nav vc-account-nav" aria-label="Records">
+        {link('/audit', 'Audit')}
+      </nav>
+    );
+  return (
+    <nav class="vc-nav vc-account-nav" aria-label="Account">
+      {link('/audit', 'Audit')}
+      {props.account.role === 'admin' ? link('/admin/users', 'Accounts') : null}
+      {link('/account', `${props.account.displayName} (${props.account.role})`)}
+      <form method="post" action="/logout" class="vc-inline-form">
+        <input type="hidden" name="_csrf" value={props.csrfToken ?? ''} />
+        <button type="submit" class="vc-link-button">
+          Sign out
+        </button>
+      </form>
+    </nav>
   );
 }
 

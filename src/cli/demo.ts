@@ -17,6 +17,7 @@ import { importFile } from '../ingest/pipeline.ts';
 import type { ImportKindName, ImportReport } from '../ingest/types.ts';
 import type { Db } from '../store/db.ts';
 import { getSetting, setSetting } from '../store/settings.ts';
+import { writeTransaction } from '../store/writer.ts';
 
 /** Settings key recording that (and when, from which manifest) the demo was loaded. */
 export const DEMO_LOADED_SETTING = 'demo.loaded';
@@ -149,8 +150,8 @@ export async function loadDemoOnce(db: Db, opts: DemoLoadOptions = {}): Promise<
 
 /** Writes the settings that say the demo is in this database. */
 export function recordDemo(db: Db, r: DemoLoadResult): void {
-  db.transaction(() => {
+  writeTransaction(db, () => {
     setSetting(db, DEMO_LOADED_SETTING, JSON.stringify({ files: r.files, rows: r.rows, asOf: r.asOf }));
     if (getSetting(db, CLOCK_AS_OF_SETTING) === undefined) setSetting(db, CLOCK_AS_OF_SETTING, r.asOf);
-  })();
+  });
 }

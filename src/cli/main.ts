@@ -6,6 +6,7 @@ import { findCalculator } from '../engine/calculators.ts';
 import { ModelInputError, plainModelError } from '../model/errors.ts';
 import { VERSION } from '../web/version.ts';
 import { assess } from './commands/assess.ts';
+import { backup } from './commands/backup.ts';
 import { calc, calcUsage } from './commands/calc.ts';
 import { demo } from './commands/demo.ts';
 import { importCommand } from './commands/import.ts';
@@ -16,7 +17,7 @@ import { signoff } from './commands/signoff.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve, calc, importCommand, assess, learn, signoff, params, demo];
+export const COMMANDS: Command[] = [serve, calc, importCommand, assess, learn, signoff, params, demo, backup];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

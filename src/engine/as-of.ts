@@ -86,7 +86,7 @@ export function parseAsOfText(text: string): AsOfText {
   if (!Number.isSafeInteger(ms) || ms < AS_OF_MIN_MS || ms >= AS_OF_END_MS)
     return {
       ok: false,
-      reason: `"${t}" is outside the accepted range: the time must be from 1970-01-01T00:00Z up to (not including) 2100-01-01T00:00Z`,
+      reason: `"${t.length > 40 ? `${t.slice(0, 40)}…` : t}" is outside the accepted range: the time must be from 1970-01-01T00:00Z up to (not including) 2100-01-01T00:00Z`,
     };
   return { ok: true, ms };
 }

@@ -37,6 +37,16 @@ export function numberRuleText(r: NumberRule): string {
   return `must be ${what}${range}${r.unit ? ` (${r.unit})` : ''}`;
 }
 
+/**
+ * Whole numbers above 2^53 − 1 are refused: a double holds every whole number only up to there
+ * (IEEE 754 binary64, 53-bit significand), so a larger count would be stored as a different number.
+ */
+export const SAFE_WHOLE_TEXT = `must be at most ${Number.MAX_SAFE_INTEGER} (2^53 − 1, the largest whole number stored exactly)`;
+
+function isSafeWhole(v: number, r: NumberRule): boolean {
+  return !r.integer || Number.isSafeInteger(v);
+}
+
 function inRange(v: number, r: NumberRule): boolean {
   if (!Number.isFinite(v)) return false;
   if (r.integer && !Number.isInteger(v)) return false;
@@ -93,7 +103,8 @@ export function numberCell(rule: NumberRule): Cell<number> {
     .string()
     .regex(NUMBER_TEXT, { error: text })
     .transform(Number)
-    .refine((v) => inRange(v, rule), { error: text });
+    .refine((v) => inRange(v, rule), { error: text, abort: true })
+    .refine((v) => isSafeWhole(v, rule), { error: SAFE_WHOLE_TEXT });
   return {
     schema,
     numeric: true,
@@ -113,7 +124,7 @@ export function numberCell(rule: NumberRule): Cell<number> {
       }
       if (!isNumberText(s)) return CELL_FAIL;
       v = Number(s);
-      return inRange(v, rule) ? v : CELL_FAIL;
+      return inRange(v, rule) && isSafeWhole(v, rule) ? v : CELL_FAIL;
     },
   };
 }

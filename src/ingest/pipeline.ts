@@ -17,6 +17,7 @@ import { createHash } from 'node:crypto';
 import { createReadStream, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Db } from '../store/db.ts';
+import { writeTransaction } from '../store/writer.ts';
 import { CELL_FAIL } from './cells.ts';
 import { type ByteSource, CsvReadError, CsvReader, fileSource } from './csv.ts';
 import { matchHeader } from './header.ts';
@@ -154,7 +155,7 @@ export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions
       opts.onProgress?.({ bytesRead, bytesTotal, rows: report.rowsRead }),
   });
   try {
-    db.transaction(() => {
+    writeTransaction(db, () => {
       runInTransaction(db, kind, reader, report, addIssue, now, opts.acceptValidRows === true);
       if (report.status === 'rejected') {
         finishIssues();
@@ -170,7 +171,7 @@ export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions
         JSON.stringify(report.issues),
         report.importId,
       );
-    })();
+    });
   } catch (e) {
     if (e instanceof Rejection) {
       report.importId = null;

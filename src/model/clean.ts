@@ -454,6 +454,7 @@ function standardErrors(
       H[j]![i] = -v;
     }
   }
+  if (H.some((row) => row.some((v) => !Number.isFinite(v)))) return null;
   const inv = invertSymmetricMatrix(H);
   if (!inv) return null;
   const variance = inv.map((row, i) => row[i]!);

@@ -11,7 +11,7 @@
  * re-verified here (other Table 1 cells, the intermediate steps of Table A.1, the minimum sample
  * volume wording, the 1999 edition's t table); [D] derived from a stated formula.
  */
-import { ModelInputError, requireNumber } from './errors.ts';
+import { finiteResult, ModelInputError, requireNumber } from './errors.ts';
 
 const FN_LIMIT = 'isoClassLimit';
 const D_MIN_M = 0.1e-6;
@@ -64,7 +64,7 @@ export function roundIsoLimit(valuePerM3: number): number {
   const v = requireNumber('roundIsoLimit', 'valuePerM3', valuePerM3, 'per m³', { min: 0 });
   if (v < 1000) return Math.round(v);
   const step = 10 ** (Math.floor(Math.log10(v)) - 2);
-  return Math.round(v / step) * step;
+  return finiteResult('roundIsoLimit', Math.round(v / step) * step);
 }
 
 /**
@@ -398,7 +398,7 @@ export function iso1999Ucl95(locationMeansPerM3: readonly number[]): number {
   const m = x.length;
   const mean = x.reduce((a, b) => a + b, 0) / m;
   const s = Math.sqrt(x.reduce((a, b) => a + (b - mean) ** 2, 0) / (m - 1));
-  return mean + (ISO1999_T95[m - 2]! * s) / Math.sqrt(m);
+  return finiteResult(fn, mean + (ISO1999_T95[m - 2]! * s) / Math.sqrt(m));
 }
 
 function classify(

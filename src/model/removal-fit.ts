@@ -22,7 +22,7 @@
  * intervals on ln d50 and ln k (so they stay positive) and, for the curve, on logit PRE (delta
  * method), so the band stays inside [0, 1].
  */
-import { ModelInputError, requireNumber } from './errors.ts';
+import { finiteResult, ModelInputError, requireNumber } from './errors.ts';
 import { chiSquareQuantile } from './stats/chi-square.ts';
 import { invertSymmetricMatrix } from './stats/linalg.ts';
 
@@ -154,6 +154,7 @@ function derivatives(
 
 /** Solves A δ = g for small symmetric positive-definite A (null when it is not). */
 function solve(a: number[][], g: number[]): number[] | null {
+  if (a.some((row) => row.some((v) => !Number.isFinite(v)))) return null;
   const inv = invertSymmetricMatrix(a);
   if (!inv) return null;
   return inv.map((row) => row.reduce((s, v, j) => s + v * g[j]!, 0));
@@ -452,33 +453,52 @@ export interface RemovalBandPoint {
  * @param fit a result of fitRemovalParticles
  * @param diametersM sizes, m, each in (0, 0.01]
  * @param confidence two-sided level (default: the fit's)
- * @throws ModelInputError for a bad size or level
+ * @throws ModelInputError for a bad size or level, a malformed fit (non-finite parameters, reference ≤ 0,
+ *   E_max outside [0, 1], a covariance that is not a finite 2 × 2 or 3 × 3 matrix), or an overflow
  * @example removalCurveBand(fit, [50e-9, 100e-9]) // [{ diameterM: 5e-8, efficiency, lower, upper }, …]
  */
 export function removalCurveBand(
   fit: RemovalParticleFit,
   diametersM: readonly number[],
-  confidence = fit.confidence,
+  confidence?: number,
 ): RemovalBandPoint[] {
   const fn = 'removalCurveBand';
-  requireNumber(fn, 'confidence', confidence, '', { min: 0, max: 1, minExclusive: true, maxExclusive: true });
-  const z = Math.sqrt(chiSquareQuantile(confidence, 1));
-  const c = fit.covariance;
-  const withE = c.length === 3;
+  if (typeof fit !== 'object' || fit === null)
+    throw new ModelInputError(fn, 'fit', '', 'a result of fitRemovalParticles', fit);
+  const ref = requireNumber(fn, 'fit.referenceM', fit.referenceM, 'm', { min: 0, minExclusive: true });
+  const a = requireNumber(fn, 'fit.a', fit.a, '');
+  const b = requireNumber(fn, 'fit.b', fit.b, '');
+  const e = requireNumber(fn, 'fit.maxEfficiency', fit.maxEfficiency, '', { min: 0, max: 1 });
+  const c: unknown = fit.covariance;
+  if (!Array.isArray(c) || (c.length !== 2 && c.length !== 3))
+    throw new ModelInputError(fn, 'fit.covariance', '', 'a 2 × 2 or 3 × 3 matrix', c);
+  for (let r = 0; r < c.length; r++) {
+    const row: unknown = c[r];
+    if (!Array.isArray(row) || row.length !== c.length)
+      throw new ModelInputError(fn, `fit.covariance[${r}]`, '', `an array of ${c.length} numbers`, row);
+    for (let q = 0; q < row.length; q++) requireNumber(fn, `fit.covariance[${r}][${q}]`, row[q], '');
+  }
+  const cov = c as number[][];
+  const level = confidence ?? fit.confidence;
+  requireNumber(fn, 'confidence', level, '', { min: 0, max: 1, minExclusive: true, maxExclusive: true });
+  if (!Array.isArray(diametersM))
+    throw new ModelInputError(fn, 'diametersM', 'm', 'an array of sizes', diametersM);
+  const z = Math.sqrt(chiSquareQuantile(level, 1));
+  const withE = cov.length === 3;
   return diametersM.map((d, i) => {
     requireNumber(fn, `diametersM[${i}]`, d, 'm', { min: 0, minExclusive: true, max: 0.01 });
-    const x = Math.log(d / fit.referenceM);
-    const s = sigmoid(fit.a + fit.b * x);
-    const p = fit.maxEfficiency * s;
+    const x = finiteResult(fn, Math.log(d / ref), `ln(diametersM[${i}] / referenceM)`);
+    const s = sigmoid(finiteResult(fn, a + b * x, `logit at diametersM[${i}]`));
+    const p = e * s;
     if (!(p > 0 && p < 1)) return { diameterM: d, efficiency: p, lower: p, upper: p };
     const k = 1 / (p * (1 - p));
-    const grad = [k * fit.maxEfficiency * s * (1 - s), k * fit.maxEfficiency * s * (1 - s) * x];
+    const grad = [k * e * s * (1 - s), k * e * s * (1 - s) * x];
     if (withE) grad.push(k * s);
     let v = 0;
     for (let r = 0; r < grad.length; r++)
-      for (let q = 0; q < grad.length; q++) v += grad[r]! * c[r]![q]! * grad[q]!;
+      for (let q = 0; q < grad.length; q++) v += grad[r]! * cov[r]![q]! * grad[q]!;
     const lp = Math.log(p / (1 - p));
-    const se = Math.sqrt(Math.max(v, 0));
+    const se = Math.sqrt(Math.max(finiteResult(fn, v, `variance at diametersM[${i}]`), 0));
     return { diameterM: d, efficiency: p, lower: sigmoid(lp - z * se), upper: sigmoid(lp + z * se) };
   });
 }

@@ -24,7 +24,13 @@ const MASK64 = (1n << 64n) - 1n;
  */
 export function splitMix64(state: bigint): { value: bigint; state: bigint } {
   if (typeof state !== 'bigint' || state < 0n || state > MASK64)
-    throw new ModelInputError('splitMix64', 'state', '', 'a bigint in [0, 2^64)', String(state));
+    throw new ModelInputError(
+      'splitMix64',
+      'state',
+      '',
+      'a bigint in [0, 2^64)',
+      typeof state === 'bigint' ? String(state) : typeof state,
+    );
   const next = (state + 0x9e3779b97f4a7c15n) & MASK64;
   let z = next;
   z = ((z ^ (z >> 30n)) * 0xbf58476d1ce4e5b9n) & MASK64;

@@ -27,7 +27,7 @@
  *    the grid's within-bin log-uniform assumption, so it returns N_i only to within about 1 %
  *    (exactly when d_i is a bin edge, e.g. 0.1 µm and 1 µm).
  */
-import { ModelInputError, requireNumber } from './errors.ts';
+import { finiteResult, ModelInputError, requireNumber } from './errors.ts';
 import {
   SPECTRUM_BIN_COUNT,
   SPECTRUM_EDGES_M,
@@ -60,7 +60,7 @@ export function twoChannelSlope(n1: number, d1M: number, n2: number, d2M: number
   const d1 = requireNumber(fn, 'd1M', d1M, 'm', { min: 0, minExclusive: true });
   const b = requireNumber(fn, 'n2', n2, '', { min: 0, minExclusive: true, max: a });
   const d2 = requireNumber(fn, 'd2M', d2M, 'm', { min: d1, minExclusive: true });
-  return Math.log(a / b) / Math.log(d2 / d1);
+  return finiteResult(fn, Math.log(a / b) / Math.log(d2 / d1));
 }
 
 /** Input of spectrumFromChannels. */

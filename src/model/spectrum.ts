@@ -159,6 +159,14 @@ export function powerLawSpectrum(opts: {
   toM?: number;
 }): Spectrum {
   const fn = 'powerLawSpectrum';
+  if (typeof opts !== 'object' || opts === null)
+    throw new ModelInputError(
+      fn,
+      'opts',
+      '',
+      'an object {countAbove, atDiameterM, slope, fromM, toM?}',
+      opts,
+    );
   const n0 = requireNumber(fn, 'countAbove', opts.countAbove, 'count', { min: 0 });
   const d0 = requirePositive(fn, 'atDiameterM', opts.atDiameterM, 'm');
   const a = requireNumber(fn, 'slope', opts.slope, '', { min: 0, max: 10 });

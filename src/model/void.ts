@@ -17,7 +17,7 @@
  * small-gap branch is its own modelling choice, documented in docs/models.md and at
  * `voidRadius`.
  */
-import { ModelInputError, requireNumber, requireOneOf, requirePositive } from './errors.ts';
+import { finiteResult, ModelInputError, requireNumber, requireOneOf, requirePositive } from './errors.ts';
 
 /**
  * Plate modulus E' of a (100) silicon wafer, Pa: 155.4 GPa.
@@ -92,7 +92,8 @@ export function effectiveRigidity(d1Nm: number, d2Nm: number | 'rigid'): number 
   const d1 = requirePositive('effectiveRigidity', 'd1Nm', d1Nm, 'N·m');
   if (d2Nm === 'rigid') return d1;
   const d2 = requirePositive('effectiveRigidity', 'd2Nm', d2Nm, 'N·m');
-  return (d1 * d2) / (d1 + d2);
+  // The product overflows for rigidities near the largest double: refused, never Infinity out.
+  return finiteResult('effectiveRigidity', (d1 * d2) / (d1 + d2));
 }
 
 /**

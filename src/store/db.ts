@@ -9,6 +9,7 @@ import { mkdirSync, readdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import Database from 'better-sqlite3';
+import { onWriterWait, writeTransaction } from './writer.ts';
 
 export type Db = Database.Database;
 
@@ -74,18 +75,26 @@ export function migrate(db: Db, opts: { upTo?: number; migrations?: Migration[] 
   for (const m of all) {
     if (done.has(m.version)) continue;
     if (opts.upTo !== undefined && m.version > opts.upTo) break;
-    db.transaction(() => {
+    // Another process may be migrating the same file at this moment: wait for it, then look again.
+    const already = writeTransaction(db, () => {
+      if (db.prepare('SELECT 1 FROM schema_migrations WHERE version = ?').get(m.version)) return true;
       db.exec(m.sql);
       record.run(m.version, m.name, new Date().toISOString());
-    })();
+      return false;
+    });
+    if (already) continue;
     applied.push(m.version);
   }
   return applied;
 }
 
-/** Opens the data directory's database and brings its schema up to date. */
-export function openDataDir(dataDir: string): Db {
+/**
+ * Opens the data directory's database and brings its schema up to date. `onWait` hears when a write
+ * waits for another process (src/store/writer.ts).
+ */
+export function openDataDir(dataDir: string, onWait?: (message: string) => void): Db {
   const db = openDatabase(join(dataDir, DATABASE_FILE_NAME));
+  if (onWait) onWriterWait(db, onWait);
   migrate(db);
   return db;
 }

@@ -5,6 +5,7 @@
  * inputs' hash is unchanged); it keeps what it is given and reads it back.
  */
 import type { Db } from './db.ts';
+import { writeTransaction } from './writer.ts';
 
 export type DispositionCall = 'bond' | 're-clean' | 'hold';
 
@@ -69,27 +70,29 @@ function fromRow(r: Row): StoredDisposition {
 
 /** Stores one sign-off; returns its id. */
 export function insertDisposition(db: Db, d: NewDisposition): number {
-  const info = db
-    .prepare(
-      `INSERT INTO dispositions (subject_kind, subject_id, call, proposed_call, inputs_hash, model_version,
+  const info = writeTransaction(db, () =>
+    db
+      .prepare(
+        `INSERT INTO dispositions (subject_kind, subject_id, call, proposed_call, inputs_hash, model_version,
          spec_version, figures_json, reasons_json, signed_by, comment, signed_at_ms, assessed_at_ms)
        VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-    )
-    .run(
-      d.subjectKind,
-      d.subjectId,
-      d.call,
-      d.proposedCall,
-      d.inputsHash,
-      d.modelVersion,
-      d.specVersion,
-      JSON.stringify(d.figures),
-      JSON.stringify(d.reasons),
-      d.signedBy,
-      d.comment,
-      Math.round(d.signedAtMs),
-      Math.round(d.assessedAtMs),
-    );
+      )
+      .run(
+        d.subjectKind,
+        d.subjectId,
+        d.call,
+        d.proposedCall,
+        d.inputsHash,
+        d.modelVersion,
+        d.specVersion,
+        JSON.stringify(d.figures),
+        JSON.stringify(d.reasons),
+        d.signedBy,
+        d.comment,
+        Math.round(d.signedAtMs),
+        Math.round(d.assessedAtMs),
+      ),
+  );
   return Number(info.lastInsertRowid);
 }
 

@@ -15,6 +15,7 @@
  * does not import the engine).
  */
 import type { Db } from './db.ts';
+import { writeTransaction } from './writer.ts';
 
 export type StoredParameterSetState = 'proposed' | 'adopted' | 'retired';
 
@@ -142,28 +143,26 @@ function withStates(rows: SetRow[], events: ParameterSetEvent[]): StoredParamete
 
 /** Stores a proposed set with the next version; returns its id and version. */
 export function insertParameterSet(db: Db, s: NewParameterSet): { id: number; version: number } {
-  return db
-    .transaction(() => {
-      const v = db.prepare('SELECT COALESCE(MAX(version), 0) + 1 AS v FROM parameter_sets').get() as {
-        v: number;
-      };
-      const info = db
-        .prepare(
-          `INSERT INTO parameter_sets (version, label, values_json, values_hash, notes_json, created_by, created_at_ms)
+  return writeTransaction(db, () => {
+    const v = db.prepare('SELECT COALESCE(MAX(version), 0) + 1 AS v FROM parameter_sets').get() as {
+      v: number;
+    };
+    const info = db
+      .prepare(
+        `INSERT INTO parameter_sets (version, label, values_json, values_hash, notes_json, created_by, created_at_ms)
          VALUES (?, ?, ?, ?, ?, ?, ?)`,
-        )
-        .run(
-          v.v,
-          s.label,
-          JSON.stringify(s.values),
-          s.valuesHash,
-          JSON.stringify(s.notes),
-          s.createdBy,
-          Math.round(s.createdAtMs),
-        );
-      return { id: Number(info.lastInsertRowid), version: v.v };
-    })
-    .immediate();
+      )
+      .run(
+        v.v,
+        s.label,
+        JSON.stringify(s.values),
+        s.valuesHash,
+        JSON.stringify(s.notes),
+        s.createdBy,
+        Math.round(s.createdAtMs),
+      );
+    return { id: Number(info.lastInsertRowid), version: v.v };
+  });
 }
 
 /** Every stored set with its state, newest version first. */
@@ -199,18 +198,16 @@ export type AdoptOutcome =
  * set that is adopted already stores nothing (changed: false).
  */
 export function adoptParameterSet(db: Db, id: number, by: string, atMs: number): AdoptOutcome {
-  return db
-    .transaction((): AdoptOutcome => {
-      if (!db.prepare('SELECT 1 FROM parameter_sets WHERE id = ?').get(id))
-        return { ok: false, reason: 'not-found' };
-      const current = adoptedParameterSetId(db);
-      if (current === id) return { ok: true, changed: false, previousId: current };
-      db.prepare(
-        "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('adopt', ?, ?, ?)",
-      ).run(id, by, Math.round(atMs));
-      return { ok: true, changed: true, previousId: current };
-    })
-    .immediate();
+  return writeTransaction(db, (): AdoptOutcome => {
+    if (!db.prepare('SELECT 1 FROM parameter_sets WHERE id = ?').get(id))
+      return { ok: false, reason: 'not-found' };
+    const current = adoptedParameterSetId(db);
+    if (current === id) return { ok: true, changed: false, previousId: current };
+    db.prepare(
+      "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('adopt', ?, ?, ?)",
+    ).run(id, by, Math.round(atMs));
+    return { ok: true, changed: true, previousId: current };
+  });
 }
 
 /**
@@ -222,16 +219,14 @@ export function revertToTypedValues(
   by: string,
   atMs: number,
 ): { changed: boolean; retiredId: number | null } {
-  return db
-    .transaction(() => {
-      const current = adoptedParameterSetId(db);
-      if (current === null) return { changed: false, retiredId: null };
-      db.prepare(
-        "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('revert', ?, ?, ?)",
-      ).run(current, by, Math.round(atMs));
-      return { changed: true, retiredId: current };
-    })
-    .immediate();
+  return writeTransaction(db, () => {
+    const current = adoptedParameterSetId(db);
+    if (current === null) return { changed: false, retiredId: null };
+    db.prepare(
+      "INSERT INTO parameter_set_events (action, set_id, by_name, at_ms) VALUES ('revert', ?, ?, ?)",
+    ).run(current, by, Math.round(atMs));
+    return { changed: true, retiredId: current };
+  });
 }
 
 /**

@@ -1,4 +1,5 @@
 import type { Db } from './db.ts';
+import { writeTransaction } from './writer.ts';
 
 export function getSetting(db: Db, key: string): string | undefined {
   const row = db.prepare('SELECT value FROM settings WHERE key = ?').get(key) as
@@ -8,10 +9,14 @@ export function getSetting(db: Db, key: string): string | undefined {
 }
 
 export function setSetting(db: Db, key: string, value: string): void {
-  db.prepare(
-    `INSERT INTO settings (key, value, updated_at) VALUES (?, ?, ?)
+  writeTransaction(db, () =>
+    db
+      .prepare(
+        `INSERT INTO settings (key, value, updated_at) VALUES (?, ?, ?)
      ON CONFLICT(key) DO UPDATE SET value = excluded.value, updated_at = excluded.updated_at`,
-  ).run(key, value, new Date().toISOString());
+      )
+      .run(key, value, new Date().toISOString()),
+  );
 }
 
 /** The installation's clock setting: a fixed "now" for assessments (the demo sets it). */

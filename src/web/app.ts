@@ -8,14 +8,18 @@ import { Hono } from 'hono';
 import { logger } from 'hono/logger';
 import { MessagePage } from '../../views/pages/message.tsx';
 import { ModelInputError, plainModelError } from '../model/errors.ts';
+import { authorize, identify } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
+import { hostAllowList, securityHeaders } from './hardening.ts';
 import { BadParamError } from './params.ts';
 import { isFragmentRequest, renderPage } from './render.ts';
+import * as accounts from './routes/accounts.tsx';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
 import * as calculators from './routes/calculators.tsx';
 import * as calibration from './routes/calibration.tsx';
+import * as feed from './routes/feed.ts';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
@@ -26,6 +30,7 @@ import * as tools from './routes/tools.tsx';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
+const SCRIPT = readFileSync(new URL('../../public/voidcast.js', import.meta.url));
 const CSS = readFileSync(new URL('../../public/voidcast.css', import.meta.url));
 const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url));
 
@@ -44,25 +49,35 @@ const ROUTES: RouteModule[] = [
   pairs,
   calibration,
   parameters,
+  accounts,
+  feed,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
   const app = new Hono();
+  // Before anything else: a foreign Host name (DNS rebinding) is refused; then the security headers.
+  app.use('*', hostAllowList(ctx.allowedHosts ?? [], ctx.log));
+  app.use('*', securityHeaders());
   app.use(
     '*',
     logger((line: string) => ctx.log(line)),
   );
+  // Who is asking (a session, an API token, or open mode: src/web/auth/session.ts).
+  app.use('*', identify(ctx));
   // Every POST/PUT/PATCH/DELETE needs a same-origin browser and the form token (src/web/csrf.ts).
   app.use(
     '*',
     csrfProtection({ secret: csrfSecret(ctx.db), streamingPaths: ['/imports'], version: ctx.version }),
   );
+  // What the asker's role allows (src/web/auth/permissions.ts).
+  app.use('*', authorize(ctx));
 
   const asset = (body: Buffer, type: string) => () =>
     new Response(new Uint8Array(body), {
       headers: { 'content-type': type, 'cache-control': 'public, max-age=3600' },
     });
   app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
+  app.get('/assets/voidcast.js', asset(SCRIPT, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
   app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
 

@@ -7,4 +7,12 @@ export interface AppContext {
   version: string;
   /** Where log lines go (stdout in production, a buffer in tests). */
   log: (line: string) => void;
+  /** Host names besides the loopback ones this server answers to (src/web/hardening.ts). */
+  allowedHosts?: string[];
+  /**
+   * Accounts (src/web/auth/): 'accounts' needs a signed-in account for everything; 'open' (the
+   * default, and the demo's on this machine only) lets anyone who reaches the server in, with a
+   * banner on every page saying so.
+   */
+  auth?: { mode: 'open' } | { mode: 'accounts'; sessionSecret: string };
 }

@@ -5,6 +5,7 @@
 import type { Context } from 'hono';
 import type { Child } from 'hono/jsx';
 import { Layout } from '../../views/layout.tsx';
+import { accountOf } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 
 export const DOCTYPE = '<!doctype html>';
@@ -23,9 +24,21 @@ export function renderPage(
         active: page.active ?? c.req.path,
         version: ctx.version,
         children: page.body,
+        ...shell(c, ctx),
       }),
     );
   return c.html(html, status);
+}
+
+/** What the page frame shows of the session: the account, or the open-mode banner. */
+function shell(c: Context, ctx: AppContext) {
+  const a = accountOf(c);
+  const token = c.get('csrfToken');
+  return {
+    openMode: ctx.auth?.mode !== 'accounts',
+    account: a ? { username: a.user.username, displayName: a.user.displayName, role: a.role } : null,
+    csrfToken: typeof token === 'string' ? token : undefined,
+  };
 }
 
 /** True when htmx asked for a fragment (not a boosted full-page navigation). */

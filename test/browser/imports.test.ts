@@ -204,8 +204,9 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
       checked.push(`/${path}`);
       const text = (await page.locator('main').textContent()) ?? '';
       for (const n of names) expect(text).toContain(n);
-      // The only script elements are our own htmx; no element came from a file.
-      expect(await page.locator('script').count()).toBe(1);
+      // The only script elements are our own (htmx and the page script); no element came from a file.
+      expect(await page.locator('script').count()).toBe(2);
+      expect(await page.locator('script:not([src])').count()).toBe(0);
       expect(await page.locator('main img, main svg[onload]').count()).toBe(0);
       expect(await pwned(page)).toBeUndefined();
       if (path === 'tools' || path === 'lots')
@@ -217,9 +218,9 @@ describe.skipIf(!run)('the Imports page in Chromium', () => {
       // The lot's own page, reached through its (percent-encoded) link.
       await page.goto(`${server.url}lots`);
       await page.getByRole('link', { name: LOT_ID }).click();
-      await page.waitForFunction(`location.pathname.startsWith('/lots/')`);
+      await page.waitForURL(/\/lots\/[^/]+$/);
       expect((await page.locator('main').textContent()) ?? '').toContain(LOT_ID);
-      expect(await page.locator('script').count()).toBe(1);
+      expect(await page.locator('script').count()).toBe(2);
       expect(await pwned(page)).toBeUndefined();
       checked.push('/lots/:id');
     }

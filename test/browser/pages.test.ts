@@ -74,9 +74,10 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     expect(await chart.locator('.vc-level').count()).toBe(3);
     await page.evaluate('window.__marker = 7');
     await page.locator('#trend-panel select[name="location"]').selectOption('me-1');
-    await page.waitForFunction(
-      "document.querySelector('#trend-panel svg title')?.textContent.startsWith('Bonder mini-environment')",
-    );
+    await page
+      .locator('#trend-panel svg title', { hasText: /^Bonder mini-environment/ })
+      .first()
+      .waitFor({ state: 'attached' });
     // htmx swapped the panel: same window, new chart.
     expect(await page.evaluate('window.__marker')).toBe(7);
     expect(await page.locator('#trend-panel .vc-point').count()).toBeGreaterThan(50);

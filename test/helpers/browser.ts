@@ -37,11 +37,12 @@ export interface TestServer {
 }
 
 /**
- * Starts `voidcast serve` as its own process (exactly what `npm start` runs) on a free port.
- * `args` are passed on (e.g. ['--empty']); env adds variables.
+ * Starts `voidcast serve` as its own process (what `npm start` runs) on a free port, in open mode
+ * (nobody signs in) unless `accounts` is set. `args` are passed on (e.g. ['--empty']); env adds
+ * variables.
  */
 export async function startTestServer(
-  opts: { args?: string[]; env?: Record<string, string>; dataDir?: string } = {},
+  opts: { args?: string[]; env?: Record<string, string>; dataDir?: string; accounts?: boolean } = {},
 ): Promise<TestServer> {
   const dataDir = opts.dataDir ?? mkdtempSync(join(tmpdir(), 'voidcast-test-'));
   const child: ChildProcess = spawn(
@@ -55,6 +56,7 @@ export async function startTestServer(
       '0',
       '--data',
       dataDir,
+      ...(opts.accounts ? [] : ['--open']),
       ...(opts.args ?? []),
     ],
     {

@@ -120,7 +120,7 @@ describe('JSON API', () => {
     const token = tokenFor(csrfSecret(db), cookie.slice(CSRF_COOKIE.length + 1));
     const assessed = (await (
       await a.request(`/api/pairs/P2/assessment?asOf=${AS_OF}`)
-    ).json()) as PairAssessment;
+    ).json()) as PairAssessment & { assessmentRef: string };
     const post = (body: unknown) =>
       a.request('/api/pairs/P2/signoff', {
         method: 'POST',
@@ -132,7 +132,16 @@ describe('JSON API', () => {
         },
         body: JSON.stringify(body),
       });
-    const ok = await post({ inputsHash: assessed.inputsHash, asOfMs: AS_OF, signedBy: 'A. Engineer' });
+    // The assessment time is the server's (issue 14): a client's own time, without the reference the
+    // GET returned, is refused and stores nothing.
+    const ownTime = await post({ inputsHash: assessed.inputsHash, asOfMs: 1e300, signedBy: 'A. Engineer' });
+    expect(ownTime.status).toBe(400);
+    expect(readDispositions(db, 'pair', 'P2')).toHaveLength(0);
+    const ok = await post({
+      inputsHash: assessed.inputsHash,
+      assessmentRef: assessed.assessmentRef,
+      signedBy: 'A. Engineer',
+    });
     expect(ok.status).toBe(201);
     const rec = readDispositions(db, 'pair', 'P2');
     expect(rec).toHaveLength(1);
@@ -143,13 +152,20 @@ describe('JSON API', () => {
     // A different call without a comment is refused; with one it is kept with both calls.
     const other = assessed.call === 'hold' ? 'bond' : 'hold';
     expect(
-      (await post({ inputsHash: assessed.inputsHash, asOfMs: AS_OF, signedBy: 'B', call: other })).status,
+      (
+        await post({
+          inputsHash: assessed.inputsHash,
+          assessmentRef: assessed.assessmentRef,
+          signedBy: 'B',
+          call: other,
+        })
+      ).status,
     ).toBe(400);
     expect(
       (
         await post({
           inputsHash: assessed.inputsHash,
-          asOfMs: AS_OF,
+          assessmentRef: assessed.assessmentRef,
           signedBy: 'B',
           call: other,
           comment: 'line decision',
@@ -161,7 +177,11 @@ describe('JSON API', () => {
     const x = Buffer.from(row.x_m);
     x.writeDoubleLE(x.readDoubleLE(0) + 1e-4, 0);
     db.prepare("UPDATE scans SET x_m = ? WHERE scan_key = 'S-W2-T'").run(x);
-    const refused = await post({ inputsHash: assessed.inputsHash, asOfMs: AS_OF, signedBy: 'A. Engineer' });
+    const refused = await post({
+      inputsHash: assessed.inputsHash,
+      assessmentRef: assessed.assessmentRef,
+      signedBy: 'A. Engineer',
+    });
     expect(refused.status).toBe(409);
     const body = (await refused.json()) as { error: string; currentHash: string };
     expect(body.error).toBe('inputs changed');

@@ -57,6 +57,8 @@ let data: string;
 beforeAll(async () => {
   work = mkdtempSync(join(tmpdir(), 'voidcast-cli-doc-'));
   data = join(work, 'data');
+  // A place for the files an example writes (voidcast backup $WORK/…), outside the repository.
+  vars.WORK = work;
   const io: CliIo = { out: () => {}, err: () => {}, isTty: false, env: {}, cwd: ROOT };
   expect(await main(['demo', 'load', '--data', data], io)).toBe(EXIT.ok);
 }, 120_000);

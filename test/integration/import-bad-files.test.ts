@@ -117,6 +117,31 @@ const CASES: [string, Expected[]][] = [
     ],
   ],
   [
+    // 2^53 + 1 = 9007199254740993 has no double of its own (IEEE 754 binary64): it would be stored as 2^53.
+    'counter-samples-count-above-2-53.csv',
+    [
+      {
+        line: 3,
+        column: 'ge_0.1um',
+        value: '9007199254740993',
+        rule: 'must be at most 9007199254740991 (2^53 − 1, the largest whole number stored exactly)',
+      },
+    ],
+  ],
+  [
+    // Found by the property test (test/unit/properties/parsers.test.ts): an empty volume cell used to
+    // reach the database as NULL and fail its NOT NULL constraint (an internal error, not an issue).
+    'counter-samples-empty-volume.csv',
+    [
+      {
+        line: 3,
+        column: 'volume_L',
+        value: null,
+        rule: 'the sampled volume is required: give volume_L as a number > 0',
+      },
+    ],
+  ],
+  [
     'counter-samples-negative-count.csv',
     [{ line: 3, column: 'ge_0.3um', value: '-3', rule: 'must be a whole number ≥ 0' }],
   ],

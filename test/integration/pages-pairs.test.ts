@@ -25,12 +25,19 @@ afterAll(() => {
 /** A session: the cookie and form token the CSRF middleware hands a page (src/web/csrf.ts). */
 async function session(
   path: string,
-): Promise<{ cookie: string; token: string; hash: string; asOf: string; html: string }> {
+): Promise<{ cookie: string; token: string; hash: string; asOf: string; ref: string; html: string }> {
   const res = await app.request(path);
   const cookie = (res.headers.get('set-cookie') ?? '').split(';')[0]!;
   const html = await res.text();
   const field = (name: string) => new RegExp(`name="${name}" value="([^"]+)"`).exec(html)![1]!;
-  return { cookie, token: field('_csrf'), hash: field('inputsHash'), asOf: field('asOfMs'), html };
+  return {
+    cookie,
+    token: field('_csrf'),
+    hash: field('inputsHash'),
+    asOf: field('asOfMs'),
+    ref: field('assessmentRef'),
+    html,
+  };
 }
 
 function post(path: string, s: { cookie: string }, form: Record<string, string>, htmx = false) {
@@ -158,7 +165,13 @@ describe('POST /pairs/:id/signoff', () => {
     const res = await post(
       '/pairs/P-01/signoff',
       s,
-      { _csrf: s.token, inputsHash: s.hash, asOfMs: s.asOf, name: ' ', role: 'bonding process engineer' },
+      {
+        _csrf: s.token,
+        inputsHash: s.hash,
+        assessmentRef: s.ref,
+        name: ' ',
+        role: 'bonding process engineer',
+      },
       true,
     );
     expect(res.status).toBe(200);
@@ -174,7 +187,7 @@ describe('POST /pairs/:id/signoff', () => {
     const res = await post('/pairs/P-01/signoff', s, {
       _csrf: s.token,
       inputsHash: stale,
-      asOfMs: s.asOf,
+      assessmentRef: s.ref,
       name: 'A. Engineer',
       role: 'bonding process engineer',
     });
@@ -188,7 +201,7 @@ describe('POST /pairs/:id/signoff', () => {
 
   it('refuses an overridden call without a comment, then stores a signed call with name and role', async () => {
     const s = await session('/pairs/P-01');
-    const base = { _csrf: s.token, inputsHash: s.hash, asOfMs: s.asOf, role: 'line or yield owner' };
+    const base = { _csrf: s.token, inputsHash: s.hash, assessmentRef: s.ref, role: 'line or yield owner' };
     const refused = await post('/pairs/P-01/signoff', s, { ...base, name: 'B. Owner', call: 'hold' }, true);
     expect(await refused.text()).toContain('needs a comment');
     const ok = await post(
@@ -216,7 +229,7 @@ describe('POST /pairs/:id/signoff', () => {
     const res = await post('/pairs/P-04/signoff', s, {
       _csrf: s.token,
       inputsHash: s.hash,
-      asOfMs: s.asOf,
+      assessmentRef: s.ref,
       name: 'C. Engineer',
       role: 'bonding process engineer',
     });
@@ -229,10 +242,63 @@ describe('POST /pairs/:id/signoff', () => {
     const s = await session('/pairs/P-01');
     const res = await post('/pairs/P-01/signoff', s, {
       inputsHash: s.hash,
-      asOfMs: s.asOf,
+      assessmentRef: s.ref,
       name: 'X',
       role: 'line or yield owner',
     });
     expect(res.status).toBe(403);
+  });
+});
+
+describe('the assessment a sign-off refers to is the server’s', () => {
+  // Issue 14: a client-sent assessment time such as 1e300 used to be stored. The form now returns the
+  // server's signed reference (src/web/assessment-ref.ts); a time of the client's own is never used.
+  it('refuses a form whose assessment time is the client’s own (1e300, no reference) and stores nothing', async () => {
+    const s = await session('/pairs/P-02');
+    const res = await post('/pairs/P-02/signoff', s, {
+      _csrf: s.token,
+      inputsHash: s.hash,
+      asOfMs: '1e300',
+      name: 'D. Engineer',
+      role: 'bonding process engineer',
+    });
+    expect(res.status).toBe(422);
+    expect(await res.text()).toContain('does not carry a reference to an assessment this server showed');
+    expect(readDispositions(db, 'pair', 'P-02')).toHaveLength(0);
+  });
+
+  it('refuses a reference with a time changed by the client, or one made for another pair', async () => {
+    const s = await session('/pairs/P-02');
+    const other = await session('/pairs/P-01');
+    const [, mac] = s.ref.split('.');
+    for (const assessmentRef of [`${Number(s.asOf) + 60_000}.${mac}`, other.ref, '1e300.x']) {
+      const res = await post('/pairs/P-02/signoff', s, {
+        _csrf: s.token,
+        inputsHash: s.hash,
+        assessmentRef,
+        name: 'D. Engineer',
+        role: 'bonding process engineer',
+      });
+      expect(res.status).toBe(422);
+    }
+    expect(readDispositions(db, 'pair', 'P-02')).toHaveLength(0);
+  });
+
+  it('stores the assessment time the server put in the page, whatever asOfMs the form carries', async () => {
+    const s = await session('/pairs/P-02');
+    const res = await post('/pairs/P-02/signoff', s, {
+      _csrf: s.token,
+      inputsHash: s.hash,
+      assessmentRef: s.ref,
+      asOfMs: '1e300',
+      name: 'D. Engineer',
+      role: 'bonding process engineer',
+    });
+    expect(res.status).toBe(303);
+    const stored = readDispositions(db, 'pair', 'P-02');
+    expect(stored).toHaveLength(1);
+    // AS_OF_MS: the installation clock this test set (pages-data.ts), which the page assessed at.
+    expect(stored[0]!.assessedAtMs).toBe(AS_OF_MS);
+    expect(String(AS_OF_MS)).toBe(s.asOf);
   });
 });

@@ -91,6 +91,11 @@ describe('POST /api/pairs/:id/signoff', () => {
     const cookie = (page.headers.get('set-cookie') ?? '').split(';')[0]!;
     const token = tokenFor(csrfSecret(db), cookie.slice(CSRF_COOKIE.length + 1));
     const hash = assessPairWithInputsFromDb(db, 'P-01', AS_OF_MS)!.assessment.inputsHash;
+    // The server's reference to the assessment two hours earlier (the time the signer claims to have
+    // seen), as the JSON API hands it out with that assessment.
+    const earlier = (await (
+      await app.request(`/api/pairs/P-01/assessment?asOf=${AS_OF_MS - 2 * H}`)
+    ).json()) as { assessmentRef: string };
     const res = await app.request('/api/pairs/P-01/signoff', {
       method: 'POST',
       headers: {
@@ -99,7 +104,7 @@ describe('POST /api/pairs/:id/signoff', () => {
         'X-CSRF-Token': token,
         origin: 'http://localhost',
       },
-      body: JSON.stringify({ inputsHash: hash, asOfMs: AS_OF_MS - 2 * H, signedBy: 'A' }),
+      body: JSON.stringify({ inputsHash: hash, assessmentRef: earlier.assessmentRef, signedBy: 'A' }),
     });
     expect(res.status).toBe(409);
     const body = (await res.json()) as { matchedAsOfMs: number; differences: string[] };

@@ -215,13 +215,16 @@ describe('form and JSON bodies', () => {
     return { cookie, formToken, token: tokenFor(csrfSecret(db), cookie.slice(CSRF_COOKIE.length + 1)) };
   }
 
-  it('POST /pairs/:id/signoff with a hostile asOfMs is a 400 page naming asOfMs', async () => {
+  it('POST /pairs/:id/signoff with a hostile or forged assessment reference is refused, nothing stored', async () => {
     const s = await csrf();
-    for (const [value] of TIMES_REFUSED) {
+    // The assessment time is the server's (src/web/assessment-ref.ts): a client-made time, a
+    // reference signed for another pair, or garbage re-renders the form (422) with the reason.
+    const forged = [...TIMES_REFUSED.map(([v]) => v), `${AS_OF_MS}.${'0'.repeat(64)}`, '1e300.abc'];
+    for (const value of forged) {
       const body = new URLSearchParams({
         _csrf: s.formToken,
         inputsHash: '0'.repeat(64),
-        asOfMs: value,
+        assessmentRef: value,
         name: 'A. Engineer',
         role: 'bonding process engineer',
       }).toString();
@@ -236,9 +239,9 @@ describe('form and JSON bodies', () => {
         },
         body,
       });
-      expect(res.status, value.slice(0, 40)).toBe(400);
-      expect(await res.text()).toContain('asOfMs ');
+      expect(res.status, value.slice(0, 40)).toBe(422);
     }
+    expect(db.prepare('SELECT COUNT(*) AS n FROM dispositions').get()).toEqual({ n: 0 });
   });
 
   it('POST /api/pairs/:id/signoff with hostile JSON is a 400 (or 404 for an unknown pair)', async () => {
@@ -255,18 +258,22 @@ describe('form and JSON bodies', () => {
         body,
       });
     const hash = '0'.repeat(64);
+    const assessed = (await (await app.request(`/api/pairs/P-01/assessment?asOf=${AS_OF_MS}`)).json()) as {
+      assessmentRef: string;
+    };
+    const ref = assessed.assessmentRef;
     const bodies = [
       'not json',
       'null',
       '5',
       '[]',
       JSON.stringify({ inputsHash: hash, asOfMs: 1e300, signedBy: 'A' }),
-      JSON.stringify({ inputsHash: hash, asOfMs: -5, signedBy: 'A' }),
-      JSON.stringify({ inputsHash: hash, asOfMs: 1.5, signedBy: 'A' }),
-      JSON.stringify({ inputsHash: hash, asOfMs: '2025-03-03T20:00Z', signedBy: 'A' }),
-      JSON.stringify({ inputsHash: hash, asOfMs: AS_OF_MS, signedBy: { name: 'A' } }),
-      JSON.stringify({ inputsHash: 'short', asOfMs: AS_OF_MS, signedBy: 'A' }),
-      JSON.stringify({ inputsHash: hash, asOfMs: AS_OF_MS, signedBy: 'A', call: 'launch' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: `${1e300}.abc`, signedBy: 'A' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: -5, signedBy: 'A' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: `${AS_OF_MS}.${'0'.repeat(64)}`, signedBy: 'A' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: ref, signedBy: { name: 'A' } }),
+      JSON.stringify({ inputsHash: 'short', assessmentRef: ref, signedBy: 'A' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: ref, signedBy: 'A', call: 'launch' }),
     ];
     for (const b of bodies) {
       const res = await post('/api/pairs/P-01/signoff', b);
@@ -275,7 +282,7 @@ describe('form and JSON bodies', () => {
     }
     const unknown = await post(
       '/api/pairs/NO-SUCH-PAIR/signoff',
-      JSON.stringify({ inputsHash: hash, asOfMs: AS_OF_MS, signedBy: 'A' }),
+      JSON.stringify({ inputsHash: hash, assessmentRef: ref, signedBy: 'A' }),
     );
     expect(unknown.status).toBe(404);
   });

@@ -370,13 +370,16 @@ describe('names from files are shown as text, never as markup', () => {
     }
     expect(html).toContain('Import report');
     expect(html).toContain('&lt;script&gt;alert(1)&lt;/script&gt; &quot;q&quot; &amp; &#39;a&#39;.csv');
-    // The only <script> elements on the page are our own (htmx); none from the file name.
-    expect(html.match(/<script/g)).toHaveLength(1);
+    // The only <script> elements on the page are our own (htmx and the page script); none from the file name.
+    expect(html.match(/<script[^>]*>/g)).toEqual([
+      '<script src="/assets/htmx.min.js" defer="">',
+      '<script src="/assets/voidcast.js" defer="">',
+    ]);
     const stored = h.db.prepare('SELECT name FROM locations').get() as { name: string };
     expect(stored.name).toBe(`<script>alert(1)</script> "A" & B`);
     for (const path of ['/imports', '/']) {
       const page = await (await h.app.request(path, { headers: { cookie: h.cookie } })).text();
-      expect(page.match(/<script/g)).toHaveLength(1);
+      expect(page.match(/<script/g)).toHaveLength(2); // htmx and the page script, both from /assets
     }
   });
 

@@ -239,7 +239,7 @@ export function pareto(input: ParetoInput) {
               x={r(cx(i))}
               y={r(valueLabel(b).y)}
               text-anchor="middle"
-              style={valueLabel(b).inside && !b.rest && b.pooled <= 1 ? 'fill:#fff' : undefined}
+              fill={valueLabel(b).inside && !b.rest && b.pooled <= 1 ? '#fff' : undefined}
               stroke={valueLabel(b).inside && b.rest ? '#fff' : undefined}
               stroke-width={valueLabel(b).inside && b.rest ? 3 : undefined}
               paint-order={valueLabel(b).inside && b.rest ? 'stroke' : undefined}

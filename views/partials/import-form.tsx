@@ -5,8 +5,9 @@
  *
  * Responses the server marks as refused (400, 403, 413, 422) carry their explanation as HTML;
  * htmx 2 does not swap 4xx responses by default, so `#import-job` (the swap target, where
- * htmx:beforeSwap fires) turns swapping on for exactly those codes and keeps every other error
- * code unswapped. `importTargetAttrs` holds that rule for the page to spread on the target.
+ * htmx:beforeSwap fires) names exactly those codes in `data-swap-error-codes` and the served script
+ * (public/voidcast.js) turns swapping on for them, keeping every other error code unswapped.
+ * The size check and the progress bar live in that script too (htmx events on #import-form).
  */
 import type { Child } from 'hono/jsx';
 
@@ -32,27 +33,13 @@ export interface ImportFormProps {
 /** Status codes whose bodies explain a refusal and are swapped into #import-job. */
 export const SWAPPED_ERROR_CODES = [400, 403, 404, 413, 422] as const;
 
-/** htmx attributes of the swap target #import-job: swap the explanatory 4xx responses. */
+/**
+ * Attributes of the swap target #import-job: the status codes whose explanatory bodies are swapped
+ * (read by /assets/voidcast.js; no inline handler, so the Content-Security-Policy forbids them all).
+ */
 export const importTargetAttrs: Record<string, string> = {
-  'hx-on::before-swap': `var s=event.detail.xhr.status;if(${SWAPPED_ERROR_CODES.map((c) => `s===${c}`).join('||')}){event.detail.shouldSwap=true;event.detail.isError=false;}`,
+  'data-swap-error-codes': SWAPPED_ERROR_CODES.join(' '),
 };
-
-// Runs before htmx sends the form: refuse oversize files at once, else show the upload progress.
-const BEFORE_REQUEST = [
-  'if(event.detail.elt!==this)return;',
-  "var big=document.getElementById('import-too-large'),send=document.getElementById('import-sending');",
-  'var t=0,fs=this.elements.files.files;for(var i=0;i<fs.length;i++)t+=fs[i].size;',
-  'if(t>Number(this.dataset.limitBytes)){event.preventDefault();big.hidden=false;send.hidden=true;return;}',
-  "big.hidden=true;send.hidden=false;send.querySelector('progress').value=0;",
-].join('');
-const XHR_PROGRESS =
-  "if(event.detail.lengthComputable){var p=document.querySelector('#import-sending progress');p.max=event.detail.total;p.value=event.detail.loaded;}";
-const AFTER_REQUEST = [
-  "document.getElementById('import-sending').hidden=true;",
-  "if(event.detail.xhr&&event.detail.xhr.status===200)this.elements.files.value='';",
-].join('');
-const SEND_ERROR =
-  "document.getElementById('import-sending').hidden=true;document.getElementById('import-send-error').hidden=false;";
 
 export function ImportForm(props: ImportFormProps) {
   const htmx: Record<string, string> = {
@@ -61,10 +48,6 @@ export function ImportForm(props: ImportFormProps) {
     'hx-target': '#import-job',
     'hx-swap': 'innerHTML',
     'hx-headers': props.csrfHeaders,
-    'hx-on::before-request': BEFORE_REQUEST,
-    'hx-on::xhr:progress': XHR_PROGRESS,
-    'hx-on::after-request': AFTER_REQUEST,
-    'hx-on::send-error': SEND_ERROR,
   };
   return (
     <form

@@ -30,11 +30,12 @@ export function historyQuery(page: number, kind: string | null): string {
   return s ? `?${s}` : '';
 }
 
-/** htmx on the section: a refusal (400: a page or kind that does not exist) is swapped in with its reason. */
-const SWAP_REFUSALS = {
-  'hx-on::before-swap':
-    'if(event.detail.xhr.status===400){event.detail.shouldSwap=true;event.detail.isError=false;}',
-};
+/**
+ * htmx on the section: a refusal (400: a page or kind that does not exist) is swapped in with its
+ * reason — by the served script's data-swap-error-codes rule (public/voidcast.js), as the CSP allows
+ * no inline handler.
+ */
+const SWAP_REFUSALS = { 'data-swap-error-codes': '400' };
 
 export interface HistoryRowView {
   id: number;

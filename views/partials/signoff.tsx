@@ -4,7 +4,8 @@
  *
  * The form carries the hash of the inputs the page was drawn from; the server refuses the
  * sign-off when the inputs have changed since (new scans, ledger steps or counter data), so
- * nobody signs figures they have not seen.
+ * nobody signs figures they have not seen. The assessment time is the server's: the form returns the
+ * signed reference the server issued with the page, never a time of the client's choosing.
  */
 import { CallBadge, type CallName } from './call.tsx';
 import { fmtUtc } from './format.ts';
@@ -35,6 +36,8 @@ export interface SignoffProps {
   asOfMs: number;
   proposedCall: CallName;
   csrfToken: string;
+  /** The server's signed reference to the assessment shown (src/web/assessment-ref.ts). */
+  assessmentRef: string;
   records: SignoffRecordLike[];
   /** Set when a sign-off was refused: what to fix, in plain words. */
   error?: string | null;
@@ -81,6 +84,7 @@ export function SignoffPanel(props: SignoffProps) {
         <input type="hidden" name="_csrf" value={props.csrfToken} />
         <input type="hidden" name="inputsHash" value={props.inputsHash} />
         <input type="hidden" name="asOfMs" value={String(props.asOfMs)} />
+        <input type="hidden" name="assessmentRef" value={props.assessmentRef} />
         <label for="signoff-name">Name</label>
         <input
           id="signoff-name"

@@ -12,6 +12,7 @@ import { parameterSetWords } from '../../engine/parameters.ts';
 import type { Call, Estimate, LotAssessment, PairAssessment, PairFigures } from '../../engine/types.ts';
 import { DATABASE_FILE_NAME, migrate, openDatabase } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { onWriterWait } from '../../store/writer.ts';
 import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
@@ -32,6 +33,8 @@ export function openExisting(dataFlag: string | undefined, io: CliIo) {
   const file = join(dir, DATABASE_FILE_NAME);
   if (!existsSync(file)) return { db: null, file };
   const db = openDatabase(file);
+  // A write that has to wait for another process (the server importing) says so on stderr.
+  onWriterWait(db, (m) => io.err(`voidcast: ${m}\n`));
   migrate(db);
   return { db, file };
 }

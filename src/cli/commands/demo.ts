@@ -32,7 +32,7 @@ export const demo: Command = {
       );
     const dataDir = resolveDataDir(values.data, io);
     const dir = values.from ? resolve(io.cwd, values.from) : DEFAULT_DEMO_DIR;
-    const db = openDataDir(dataDir);
+    const db = openDataDir(dataDir, (m) => io.err(`voidcast demo: ${m}\n`));
     try {
       const before = demoLoaded(db);
       const r = await loadDemo(db, { dir, log: (l) => io.out(`${l}\n`) });

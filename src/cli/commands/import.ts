@@ -13,6 +13,7 @@ import {
 } from '../../ingest/types.ts';
 import { openDataDir } from '../../store/db.ts';
 import { parseOptions } from '../args.ts';
+import { cliAudit } from '../audit.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { resolveDataDir } from './serve.ts';
 
@@ -110,7 +111,8 @@ export const importCommand: Command = {
       throw new UsageError(`kind "${kindName}" cannot be imported by this build yet`);
     }
     if (files.length === 0) throw new UsageError('name at least one file to import');
-    const db = openDataDir(resolveDataDir(values.data, io));
+    // An import that has to wait for another writer (the server, another CLI) says so and waits.
+    const db = openDataDir(resolveDataDir(values.data, io), (m) => io.err(`voidcast import: ${m}\n`));
     const reports: (ImportReport | null)[] = [];
     try {
       for (const f of files) {
@@ -126,6 +128,14 @@ export const importCommand: Command = {
           });
           bar?.clear();
           reports.push(r);
+          if (r.status === 'imported' || r.status === 'partial')
+            cliAudit(db, 'import', f, {
+              kind: r.kind,
+              status: r.status,
+              importId: r.importId,
+              sha256: r.sha256,
+              rowsStored: r.rowsStored,
+            });
           if (!values.json) io.out(formatReport(r));
         } catch (e) {
           bar?.clear();

@@ -16,6 +16,7 @@ import {
 import { parameterCounts } from '../../engine/parameters.ts';
 import type { Db } from '../../store/db.ts';
 import { parseOptions } from '../args.ts';
+import { cliAudit } from '../audit.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting } from './assess.ts';
 
@@ -179,6 +180,8 @@ export const params: Command = {
             return EXIT.notFound;
           }
           const s = r.set;
+          if (r.changed)
+            cliAudit(db, 'parameters.adopt', `parameter set ${s.id}`, { setId: s.id }, values.as);
           out(
             r,
             r.changed
@@ -196,6 +199,14 @@ export const params: Command = {
           throw new UsageError('--as NAME is required: who goes back to the typed values');
         return withDb(values.data, io, (db) => {
           const r = revertToTypedValuesInDb(db, values.as!);
+          if (r.changed)
+            cliAudit(
+              db,
+              'parameters.revert',
+              'typed values',
+              { retiredSetId: r.retired?.id ?? null },
+              values.as,
+            );
           out(
             r,
             r.changed

@@ -1,4 +1,5 @@
 import { resolve } from 'node:path';
+import { isLoopbackBind, parseAllowedHosts } from '../../web/hardening.ts';
 import { startServer } from '../../web/server.ts';
 import { parseOptions, parsePort } from '../args.ts';
 import { loadDemoOnce } from '../demo.ts';
@@ -15,12 +16,20 @@ export function resolveDataDir(flag: string | undefined, io: CliIo): string {
 export const serve: Command = {
   name: 'serve',
   summary: 'run the web application',
-  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]
+  usage: `voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--drop DIR] [--allowed-host NAME]...
 
   --port N     port to listen on (default $PORT, else ${DEFAULT_PORT}; 0 picks a free one)
   --host ADDR  address to bind (default ${DEFAULT_HOST}: this machine only)
   --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
   --empty      start without loading the demo line (also VOIDCAST_EMPTY=1)
+  --open       open mode: nobody signs in, a banner on every page says so; this machine only
+               (also VOIDCAST_OPEN=1). Without it everyone signs in; the first start makes the
+               administrator "admin" with VOIDCAST_ADMIN_PASSWORD, else a one-time password printed once
+  --drop DIR   watch DIR for counter-samples files (*.csv) and import each once it stops growing
+               (also VOIDCAST_DROP); done files move to DIR/imported or DIR/rejected with a report
+  --allowed-host NAME
+               a host name clients may use besides the loopback names (repeatable; also
+               VOIDCAST_ALLOWED_HOSTS, comma-separated); any other Host header is refused
 
   exit codes: 0 stopped with Ctrl+C or SIGTERM, 2 a bad option or port, 1 cannot start (e.g. port taken)`,
   async run(argv, io) {
@@ -29,6 +38,9 @@ export const serve: Command = {
       host: { type: 'string' },
       data: { type: 'string' },
       empty: { type: 'boolean' },
+      'allowed-host': { type: 'string', multiple: true },
+      open: { type: 'boolean' },
+      drop: { type: 'string' },
     });
     const port =
       values.port !== undefined
@@ -39,6 +51,15 @@ export const serve: Command = {
     const host = values.host ?? DEFAULT_HOST;
     if (host.trim() === '') throw new UsageError('--host must not be empty');
     const dataDir = resolveDataDir(values.data, io);
+    const allowedHosts = [
+      ...parseAllowedHosts(io.env.VOIDCAST_ALLOWED_HOSTS),
+      ...(values['allowed-host'] ?? []).flatMap((h) => parseAllowedHosts(h)),
+    ];
+    const open = values.open === true || io.env.VOIDCAST_OPEN === '1';
+    if (open && !isLoopbackBind(host))
+      throw new UsageError(
+        `--open serves this machine only; binding to ${host} requires accounts (drop --open)`,
+      );
     const loadDemo = !(values.empty || io.env.VOIDCAST_EMPTY === '1');
     const log = (l: string) => io.out(`${l}\n`);
     const server = await startServer({
@@ -46,6 +67,13 @@ export const serve: Command = {
       port,
       dataDir,
       log,
+      allowedHosts,
+      auth: open ? 'open' : 'accounts',
+      dropDir:
+        values.drop !== undefined || (io.env.VOIDCAST_DROP ?? '') !== ''
+          ? resolve(io.cwd, values.drop ?? io.env.VOIDCAST_DROP!)
+          : undefined,
+      adminPassword: io.env.VOIDCAST_ADMIN_PASSWORD,
       // First start on a fresh data directory: import the demo line once (src/cli/demo.ts).
       beforeListen: loadDemo
         ? async (db) => {
@@ -64,6 +92,13 @@ export const serve: Command = {
       process.on('SIGINT', stop);
       process.on('SIGTERM', stop);
     });
+    if (server.firstAdmin)
+      io.out(
+        server.firstAdmin.oneTimePassword
+          ? `First start: sign in at ${server.url}login as "${server.firstAdmin.username}" with the one-time password\n\n    ${server.firstAdmin.oneTimePassword}\n\nIt is shown only now; you choose your own password at the first sign-in.\n`
+          : `First start: sign in as "${server.firstAdmin.username}" with the password in VOIDCAST_ADMIN_PASSWORD.\n`,
+      );
+    if (open) io.out('Open mode: nobody signs in (this machine only).\n');
     io.out(`voidcast is running at ${server.url}  (data: ${dataDir}; Ctrl+C stops it)\n`);
     await stopped;
     return EXIT.ok;

@@ -7,6 +7,7 @@ import type { SignoffOutcome } from '../../engine/signoff.ts';
 import type { Call } from '../../engine/types.ts';
 import { installationClockMs } from '../../store/settings.ts';
 import { parseOptions } from '../args.ts';
+import { cliAudit } from '../audit.ts';
 import { type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting, parseAsOf } from './assess.ts';
 
@@ -73,6 +74,18 @@ export const signoff: Command = {
         io.err(`voidcast signoff: refused: ${refusalText(values.pair, asOfMs, r)}\n`);
         return EXIT.rejected;
       }
+      cliAudit(
+        db,
+        'signoff',
+        `pair ${values.pair}`,
+        {
+          dispositionId: r.id,
+          call: r.record.call,
+          proposedCall: r.record.proposedCall,
+          inputsHash: r.record.inputsHash,
+        },
+        r.record.signedBy,
+      );
       io.out(`signed: pair ${values.pair} ${r.record.call} by ${r.record.signedBy} (record ${r.id})\n`);
       return EXIT.ok;
     } finally {

@@ -7,6 +7,7 @@
  */
 import { z } from 'zod';
 import { mmToM, nmToM } from '../../model/units.ts';
+import { SAFE_WHOLE_TEXT } from '../cells.ts';
 
 export interface NumberRule {
   min?: number;
@@ -34,18 +35,22 @@ export function describeRange(r: NumberRule, unit: string): string {
 /** A JSON number in `unit`, within `rule`. */
 export function num(unit: string, rule: NumberRule = {}): z.ZodType<number> {
   const expected = `must be a number ${describeRange(rule, unit)}`.replace('a number a number', 'a number');
-  return z
-    .number({
-      error: (iss) => (iss.input === undefined ? 'is required' : `${expected} (a JSON number, not text)`),
-    })
-    .refine(
-      (v) =>
-        Number.isFinite(v) &&
-        (!rule.integer || Number.isInteger(v)) &&
-        (rule.min === undefined || (rule.minExclusive ? v > rule.min : v >= rule.min)) &&
-        (rule.max === undefined || (rule.maxExclusive ? v < rule.max : v <= rule.max)),
-      { error: expected },
-    );
+  return (
+    z
+      .number({
+        error: (iss) => (iss.input === undefined ? 'is required' : `${expected} (a JSON number, not text)`),
+      })
+      .refine(
+        (v) =>
+          Number.isFinite(v) &&
+          (!rule.integer || Number.isInteger(v)) &&
+          (rule.min === undefined || (rule.minExclusive ? v > rule.min : v >= rule.min)) &&
+          (rule.max === undefined || (rule.maxExclusive ? v < rule.max : v <= rule.max)),
+        { error: expected, abort: true },
+      )
+      // A whole number above 2^53 − 1 would be stored as another number (src/ingest/cells.ts).
+      .refine((v) => !rule.integer || Number.isSafeInteger(v), { error: SAFE_WHOLE_TEXT })
+  );
 }
 
 /** A non-empty JSON string (kept verbatim: names are data, never markup). */

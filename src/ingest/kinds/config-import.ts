@@ -6,6 +6,7 @@
  * to `importConfigSource`; only the reading differs (a whole, small file instead of streamed rows).
  */
 import type { Db } from '../../store/db.ts';
+import { writeTransaction } from '../../store/writer.ts';
 import type { ByteSource } from '../csv.ts';
 import { startReport } from '../report.ts';
 import type { CsvDialect, ImportKind, ImportReport, KindIssue } from '../types.ts';
@@ -99,7 +100,7 @@ export function importConfigSource(db: Db, kind: ImportKind, opts: ConfigSourceO
   };
   const now = (opts.now ?? (() => new Date()))().toISOString();
   try {
-    db.transaction(() => {
+    writeTransaction(db, () => {
       const info = db
         .prepare(
           `INSERT INTO imports (kind, file_name, sha256, status, bytes, rows_read, rows_stored, rows_rejected, duplicates,
@@ -128,7 +129,7 @@ export function importConfigSource(db: Db, kind: ImportKind, opts: ConfigSourceO
       db.prepare(
         'UPDATE imports SET rows_read = ?, rows_stored = ?, duplicates = ?, notes = ? WHERE id = ?',
       ).run(report.rowsRead, report.rowsStored, report.duplicates, JSON.stringify(report.notes), importId);
-    })();
+    });
   } catch (e) {
     if (e instanceof ConfigRejection) return report;
     throw e;

@@ -729,6 +729,18 @@ export const counterSamples: ImportKind = {
             ];
           }
         } else volumeM3 = fromFlow!;
+        // An empty volume (or flow) cell leaves no volume: a row issue, never a NaN stored.
+        if (!(Number.isFinite(volumeM3) && volumeM3 > 0)) {
+          const col = volCol ?? flowCol;
+          return [
+            {
+              line,
+              column: col,
+              value: null,
+              rule: `the sampled volume is required: give ${col} as a number > 0`,
+            },
+          ];
+        }
 
         // Counts, raw.
         let total = 0;

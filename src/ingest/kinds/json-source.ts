@@ -8,6 +8,11 @@
  * (`stack.top.thicknessUm`, `tools[2].chambers[0].adders`), so that a zod issue found later can name
  * the line. The result is the same value `JSON.parse` returns.
  *
+ * Two limits keep a hostile file from harming the reader: nesting deeper than MAX_JSON_DEPTH is
+ * refused at the line where it goes too deep (a file nested 10,000 deep used to exhaust the stack),
+ * and the keys `__proto__`, `constructor` and `prototype` are refused wherever they appear (they could
+ * change or shadow an object's prototype in code that copies the value; no voidcast field has them).
+ *
  * Issues use `column` for the JSON path (the "column" of a configuration file) and `value` for the
  * value as written (shortened to 80 characters).
  */
@@ -31,6 +36,12 @@ export class JsonSyntaxError extends Error {
     super(`line ${line}: ${rule}`);
   }
 }
+
+/** Deepest nesting of objects and arrays accepted; voidcast's configuration files need fewer than 10. */
+export const MAX_JSON_DEPTH = 64;
+
+/** Keys refused in any object (prototype pollution). */
+export const FORBIDDEN_JSON_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
 
 /** Path text of a key under a parent path: `a.b`, `a[3]`; keys that are not identifiers are quoted. */
 export function childPath(parent: string, key: string | number): string {
@@ -101,10 +112,12 @@ export function parseJsonSource(text: string): JsonSource {
       i++;
     }
   };
-  const parseValue = (path: string): unknown => {
+  const parseValue = (path: string, depth: number): unknown => {
     ws();
     lines.set(path, line);
     const c = src[i];
+    if ((c === '{' || c === '[') && depth >= MAX_JSON_DEPTH)
+      fail(`objects and arrays are nested deeper than ${MAX_JSON_DEPTH} levels`);
     if (c === '{') {
       i++;
       const obj: Record<string, unknown> = {};
@@ -117,11 +130,13 @@ export function parseJsonSource(text: string): JsonSource {
         ws();
         if (src[i] !== '"') fail('expected a key in double quotes');
         const key = parseString();
+        if (FORBIDDEN_JSON_KEYS.has(key))
+          fail(`the key "${key}" is not allowed (it names an object's prototype; no field is called so)`);
         if (Object.hasOwn(obj, key)) fail(`key "${key}" is given twice in the same object`);
         ws();
         if (src[i] !== ':') fail(`expected ":" after the key "${key}"`);
         i++;
-        obj[key] = parseValue(childPath(path, key));
+        obj[key] = parseValue(childPath(path, key), depth + 1);
         ws();
         if (src[i] === ',') {
           i++;
@@ -143,7 +158,7 @@ export function parseJsonSource(text: string): JsonSource {
         return arr;
       }
       for (;;) {
-        arr.push(parseValue(childPath(path, arr.length)));
+        arr.push(parseValue(childPath(path, arr.length), depth + 1));
         ws();
         if (src[i] === ',') {
           i++;
@@ -187,7 +202,7 @@ export function parseJsonSource(text: string): JsonSource {
 
   ws();
   if (i >= src.length) fail('the file is empty: a JSON object is expected');
-  const value = parseValue('');
+  const value = parseValue('', 0);
   ws();
   if (i < src.length) fail('unexpected text after the end of the JSON value');
   return { value, lines, texts };

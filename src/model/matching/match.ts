@@ -18,7 +18,7 @@
  *  4. Per size band: matched, only-before, only-after and near-threshold counts; and the number of
  *     matches two unrelated scans of these counts would make by chance, n_b n_a π r_m² / A.
  */
-import { ModelInputError, requireNumber, requirePositive } from '../errors.ts';
+import { finiteResult, ModelInputError, requireNumber, requirePositive } from '../errors.ts';
 import { PointGrid } from './grid.ts';
 import { estimateStageOffset } from './offset.ts';
 
@@ -126,7 +126,7 @@ export interface ScanMatch {
  * @param positionSigmaM σ, m, > 0 (per axis, of the displacement between the two scans)
  * @param captureFraction q, 0 < q < 1 (default 0.99)
  * @returns r_m, m
- * @throws ModelInputError for σ ≤ 0 or q outside (0, 1)
+ * @throws ModelInputError for σ ≤ 0 or q outside (0, 1), or a radius that overflows
  * @example matchingRadius(1e-5, 0.99) // 3.0349e-5 (3.03 σ)
  */
 export function matchingRadius(positionSigmaM: number, captureFraction = 0.99): number {
@@ -138,7 +138,7 @@ export function matchingRadius(positionSigmaM: number, captureFraction = 0.99): 
     minExclusive: true,
     maxExclusive: true,
   });
-  return s * Math.sqrt(-2 * Math.log1p(-q));
+  return finiteResult(fn, s * Math.sqrt(-2 * Math.log1p(-q)));
 }
 
 /**
@@ -154,7 +154,7 @@ export function matchingRadius(positionSigmaM: number, captureFraction = 0.99): 
  * @param nAfter n_a, defects in the other, ≥ 0
  * @param radiusM r_m, m, ≥ 0
  * @param areaM2 A, inspected area, m², > 0
- * @throws ModelInputError for negative counts or radius, or A ≤ 0
+ * @throws ModelInputError for negative counts or radius, or A ≤ 0, or a result that overflows
  * @example expectedChanceMatches(1000, 1000, 3e-5, 0.0683) // 0.0414
  */
 export function expectedChanceMatches(
@@ -168,7 +168,7 @@ export function expectedChanceMatches(
   requireNumber(fn, 'nAfter', nAfter, '', { min: 0 });
   requireNumber(fn, 'radiusM', radiusM, 'm', { min: 0 });
   requirePositive(fn, 'areaM2', areaM2, 'm²');
-  return (nBefore * nAfter * Math.PI * radiusM * radiusM) / areaM2;
+  return finiteResult(fn, (nBefore * nAfter * Math.PI * radiusM * radiusM) / areaM2);
 }
 
 function requireScan(fn: string, name: string, s: MatchableScan): void {
@@ -190,6 +190,28 @@ function requireScan(fn: string, name: string, s: MatchableScan): void {
   }
 }
 
+/** Checks x, y Float64Arrays with `count` (integer ≤ both lengths) finite entries: O(count). */
+function requirePoints(
+  fn: string,
+  prefix: string,
+  x: unknown,
+  y: unknown,
+  count: unknown,
+  countName: string,
+): void {
+  if (!(x instanceof Float64Array)) throw new ModelInputError(fn, `${prefix}x`, 'm', 'a Float64Array', x);
+  if (!(y instanceof Float64Array)) throw new ModelInputError(fn, `${prefix}y`, 'm', 'a Float64Array', y);
+  const n = requireNumber(fn, countName, count, '', {
+    min: 0,
+    max: Math.min(x.length, y.length),
+    integer: true,
+  });
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(x[i]!)) requireNumber(fn, `${prefix}x[${i}]`, x[i], 'm');
+    if (!Number.isFinite(y[i]!)) requireNumber(fn, `${prefix}y[${i}]`, y[i], 'm');
+  }
+}
+
 /**
  * One-to-one matching of two point sets within radius r, greedy by distance: repeatedly the
  * closest remaining pair (ties: the smaller before index, then the smaller after index) is matched.
@@ -199,7 +221,13 @@ function requireScan(fn: string, name: string, s: MatchableScan): void {
  * rival, so greedy takes it too. Each round costs one grid query per active point; a point with no
  * candidate within r leaves the active set for good. Rounds stop when none matches.
  *
+ * @param bx, by positions of the before points, m (Float64Array; the first nb are used, each finite)
+ * @param nb number of before points, integer, 0 ≤ nb ≤ the lengths of bx and by
+ * @param ax, ay positions of the after points, m (the first na are used, each finite)
+ * @param na number of after points, integer, 0 ≤ na ≤ the lengths of ax and ay
+ * @param radiusM r, m, > 0
  * @returns beforeMatch[i] = after index or −1, afterMatch[j] = before index or −1
+ * @throws ModelInputError for a non-Float64Array, a count out of range, a non-finite position or r ≤ 0
  */
 export function greedyMatch(
   bx: Float64Array,
@@ -211,6 +239,8 @@ export function greedyMatch(
   radiusM: number,
 ): { beforeMatch: Int32Array; afterMatch: Int32Array } {
   const fn = 'greedyMatch';
+  requirePoints(fn, 'b', bx, by, nb, 'nb');
+  requirePoints(fn, 'a', ax, ay, na, 'na');
   requirePositive(fn, 'radiusM', radiusM, 'm');
   const beforeMatch = new Int32Array(nb).fill(-1);
   const afterMatch = new Int32Array(na).fill(-1);

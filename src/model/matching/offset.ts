@@ -4,7 +4,7 @@
  * radius (methods.md §1 of the project reference: the offset as the median displacement of
  * confident matches).
  */
-import { ModelInputError, requireNumber, requirePositive } from '../errors.ts';
+import { finiteResult, ModelInputError, requireNumber, requirePositive } from '../errors.ts';
 import { PointGrid } from './grid.ts';
 
 /** Median of the first n entries (copied and sorted). */
@@ -13,10 +13,38 @@ function median(values: Float64Array, n: number): number {
   return n % 2 === 1 ? v[(n - 1) / 2]! : 0.5 * (v[n / 2 - 1]! + v[n / 2]!);
 }
 
+/** Checks { count, xM, yM }: Float64Arrays, count an integer ≤ both lengths, the first count finite. O(count). */
+function requirePositions(
+  fn: string,
+  name: string,
+  s: unknown,
+): { count: number; xM: Float64Array; yM: Float64Array } {
+  if (typeof s !== 'object' || s === null)
+    throw new ModelInputError(fn, name, '', 'an object { count, xM, yM }', s);
+  const { count, xM, yM } = s as Record<string, unknown>;
+  if (!(xM instanceof Float64Array)) throw new ModelInputError(fn, `${name}.xM`, 'm', 'a Float64Array', xM);
+  if (!(yM instanceof Float64Array)) throw new ModelInputError(fn, `${name}.yM`, 'm', 'a Float64Array', yM);
+  const n = requireNumber(fn, `${name}.count`, count, '', {
+    min: 0,
+    max: Math.min(xM.length, yM.length),
+    integer: true,
+  });
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(xM[i]!)) requireNumber(fn, `${name}.xM[${i}]`, xM[i], 'm');
+    if (!Number.isFinite(yM[i]!)) requireNumber(fn, `${name}.yM[${i}]`, yM[i], 'm');
+  }
+  return { count: n, xM, yM };
+}
+
 /**
  * Stage offset between two scans: the median displacement (after − before, x and y separately)
  * of the confident matches within `searchRadiusM` — pairs in which each defect is the other's only
  * candidate within that radius. Returns the offset and the number of confident matches.
+ *
+ * @param before, after positions of each scan's defects, m: { count, xM, yM } (the first count entries, finite)
+ * @param searchRadiusM search radius, m, > 0
+ * @throws ModelInputError for a malformed scan (not Float64Arrays, count out of range, a non-finite
+ *   position), searchRadiusM ≤ 0, or a displacement that overflows
  */
 export function estimateStageOffset(
   before: { count: number; xM: Float64Array; yM: Float64Array },
@@ -24,6 +52,8 @@ export function estimateStageOffset(
   searchRadiusM: number,
 ): StageOffsetEstimate {
   const fn = 'estimateStageOffset';
+  requirePositions(fn, 'before', before);
+  requirePositions(fn, 'after', after);
   requirePositive(fn, 'searchRadiusM', searchRadiusM, 'm');
   const nb = before.count;
   const na = after.count;
@@ -51,8 +81,8 @@ export function estimateStageOffset(
     if (gridA.forEachWithin(x, y, searchRadiusM, keep) !== 1) continue;
     const j = only;
     if (gridB.forEachWithin(after.xM[j]!, after.yM[j]!, searchRadiusM, () => {}) !== 1) continue;
-    dx[n] = after.xM[j]! - x;
-    dy[n] = after.yM[j]! - y;
+    dx[n] = finiteResult(fn, after.xM[j]! - x, 'displacementXM');
+    dy[n] = finiteResult(fn, after.yM[j]! - y, 'displacementYM');
     n++;
   }
   if (n === 0) return none;
@@ -92,7 +122,8 @@ export interface StageOffsetEstimate {
  * @param groups per pair of scans, the displacements { displacementXM, displacementYM }, m
  * @param minForOffset smallest group whose median is removed (default 5, as matchScans' minConfidentMatches)
  * @returns σ̂ per axis, m, and the number of displacements it rests on (x and y each counted once)
- * @throws ModelInputError when there is no displacement at all or one is not finite
+ * @throws ModelInputError when groups is not an array of { displacementXM, displacementYM } Float64Arrays
+ *   of equal length, when there is no displacement at all, one is not finite, or σ̂ overflows
  * @example positionSigmaFromDisplacements([{ displacementXM: Float64Array.of(-1, 0, 1), displacementYM: Float64Array.of(2, 3, 4) }], 1)
  *          // { sigmaM: 1.4826, n: 3 } (minForOffset 1: each axis's median removed)
  */
@@ -102,8 +133,25 @@ export function positionSigmaFromDisplacements(
 ): { sigmaM: number; n: number } {
   const fn = 'positionSigmaFromDisplacements';
   requireNumber(fn, 'minForOffset', minForOffset, '', { min: 1, integer: true });
+  if (!Array.isArray(groups))
+    throw new ModelInputError(fn, 'groups', 'm', 'an array of { displacementXM, displacementYM }', groups);
   let total = 0;
-  for (const g of groups) total += g.displacementXM.length;
+  groups.forEach((g: unknown, gi) => {
+    const { displacementXM: gx, displacementYM: gy } = (
+      typeof g === 'object' && g !== null ? g : {}
+    ) as Record<string, unknown>;
+    if (!(gx instanceof Float64Array))
+      throw new ModelInputError(fn, `groups[${gi}].displacementXM`, 'm', 'a Float64Array', gx);
+    if (!(gy instanceof Float64Array) || gy.length !== gx.length)
+      throw new ModelInputError(
+        fn,
+        `groups[${gi}].displacementYM`,
+        'm',
+        `a Float64Array of ${gx.length} (as displacementXM)`,
+        gy,
+      );
+    total += gx.length;
+  });
   if (total === 0) throw new ModelInputError(fn, 'groups', 'm', 'at least one displacement', 0);
   const abs = new Float64Array(2 * total);
   let k = 0;
@@ -120,5 +168,5 @@ export function positionSigmaFromDisplacements(
       for (let i = 0; i < n; i++) abs[k++] = Math.abs(v[i]! - m);
     }
   });
-  return { sigmaM: 1.4826 * median(abs, k), n: total };
+  return { sigmaM: finiteResult(fn, 1.4826 * median(abs, k), 'sigmaM'), n: total };
 }

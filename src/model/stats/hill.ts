@@ -97,13 +97,17 @@ function hillCore(
   confidence: number,
   estimator: HillEstimatorForm,
 ): Omit<HillEstimate, 'excluded'> {
-  const alpha = (estimator === 'unbiased' ? n - 1 : n) / s;
+  // Sizes a hair above the threshold make s so small that α overflows: refused, never Infinity out.
+  const fn = 'hillEstimator';
+  // A threshold far below the sizes (x / x_m overflowing) makes S infinite: refused as well.
+  finiteResult(fn, s, 'sumLogExcess');
+  const alpha = finiteResult(fn, (estimator === 'unbiased' ? n - 1 : n) / s, 'alpha');
   const a = 1 - confidence;
   return {
     alpha,
     se: alpha / Math.sqrt(n),
-    lower: chiSquareQuantile(a / 2, 2 * n) / (2 * s),
-    upper: chiSquareQuantile(1 - a / 2, 2 * n) / (2 * s),
+    lower: finiteResult(fn, chiSquareQuantile(a / 2, 2 * n) / (2 * s), 'lower'),
+    upper: finiteResult(fn, chiSquareQuantile(1 - a / 2, 2 * n) / (2 * s), 'upper'),
     n,
     sumLogExcess: s,
     confidence,

@@ -7,7 +7,7 @@
  * Q keeps its relative precision deep in the tail (continued fraction), so P(Z > 8) ≈ 6.2·10⁻¹⁶ is
  * exact to about 14 digits instead of rounding to 0 as 1 − Φ would.
  */
-import { requireNumber } from '../errors.ts';
+import { finiteResult, requireNumber } from '../errors.ts';
 import { regularizedGammaP, regularizedGammaQ } from './gamma.ts';
 
 /** |z| beyond which the tail probability is below the smallest double (e^(−z²/2) underflows). */
@@ -54,7 +54,7 @@ export function normalCdf(z: number): number {
  *
  * @param z standard normal deviate, dimensionless, finite
  * @returns ln P(Z > z) ≤ 0
- * @throws ModelInputError for a non-finite z
+ * @throws ModelInputError for a non-finite z, or one so large that z² overflows (|z| > about 1.3·10¹⁵⁴)
  * @example logNormalSurvival(0) // −0.6931471805599453 (ln ½)
  */
 export function logNormalSurvival(z: number): number {
@@ -63,5 +63,8 @@ export function logNormalSurvival(z: number): number {
   const z2 = z * z;
   const u = 1 / z2;
   const series = 1 + u * (-1 + u * (3 + u * (-15 + u * (105 - 945 * u))));
-  return -z2 / 2 - Math.log(z) - 0.5 * Math.log(2 * Math.PI) + Math.log(series);
+  return finiteResult(
+    'logNormalSurvival',
+    -z2 / 2 - Math.log(z) - 0.5 * Math.log(2 * Math.PI) + Math.log(series),
+  );
 }

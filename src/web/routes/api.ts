@@ -3,8 +3,12 @@
  *
  *   GET  /api/lots                      lots with their product and pair count
  *   GET  /api/lots/:id/assessment       LotAssessment (pairs in summary detail; ?detail=full for all maps)
- *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum)
- *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, asOfMs, signedBy, call?, comment?}
+ *   GET  /api/pairs/:id/assessment      PairAssessment in full (void map, die grid, stacked spectrum) and
+ *                                       assessmentRef, the server's signed reference to it
+ *   POST /api/pairs/:id/signoff         sign a pair's call off: JSON {inputsHash, assessmentRef, signedBy, call?, comment?}
+ *
+ * The assessment a sign-off refers to is the server's: its time comes from `assessmentRef` as the
+ * assessment GET returned it (src/web/assessment-ref.ts), never from a time the client sends.
  *
  * `?asOf=` (UTC ms or ISO 8601 with its zone, 1970 up to 2100; src/engine/as-of.ts) fixes the
  * assessment time; default the installation clock (settings clock.as_of), else now. Errors are JSON
@@ -16,9 +20,13 @@ import { assessPairFromDb, listLotsForApi, signOffPairInDb } from '../../engine/
 import { assessLotFromDbParallel } from '../../engine/parallel.ts';
 import type { Call } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';
+import { readPair } from '../../store/pairs.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
-import { asOfValue, queryAsOf, queryChoice } from '../params.ts';
+import { queryAsOf, queryChoice } from '../params.ts';
 
 /** ?asOf=, else the installation clock (settings clock.as_of), else now; a bad value is a 400. */
 function asOfFrom(c: Context, db: Db): number {
@@ -41,7 +49,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const asOf = asOfFrom(c, ctx.db);
     const a = assessPairFromDb(ctx.db, c.req.param('id'), { asOfMs: asOf, detail: 'full' });
     if (!a) return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
-    return c.json(a);
+    return c.json({ ...a, assessmentRef: assessmentRef(ctx.db, 'pair', a.pairId, a.asOfMs) });
   });
 
   app.post('/api/pairs/:id/signoff', async (c) => {
@@ -52,19 +60,28 @@ export function register(app: Hono, ctx: AppContext): void {
       return c.json({ error: 'bad request', detail: 'The body must be JSON.' }, 400);
     }
     const b = (body !== null && typeof body === 'object' ? body : {}) as Record<string, unknown>;
-    const asOfMs = typeof b.asOfMs === 'number' ? asOfValue('asOfMs', String(b.asOfMs)) : null;
+    const account = accountOf(c);
+    if (!readPair(ctx.db, c.req.param('id')))
+      return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
+    const asOfMs = readAssessmentRef(ctx.db, 'pair', c.req.param('id'), b.assessmentRef);
     if (asOfMs === null)
       return c.json(
         {
           error: 'bad request',
-          detail: 'asOfMs: the assessment time (UTC ms) of the assessment signed is required.',
+          detail:
+            'assessmentRef: the reference this server returned with the assessment signed (GET /api/pairs/:id/assessment) is required.',
         },
         400,
       );
     const r = signOffPairInDb(ctx.db, c.req.param('id'), {
       inputsHash: String(b.inputsHash ?? ''),
       asOfMs,
-      signedBy: typeof b.signedBy === 'string' ? b.signedBy : '',
+      // With accounts the signer is the account (token or session), never a name the body gives.
+      signedBy: account
+        ? `${account.user.displayName} [${account.user.username}]`
+        : typeof b.signedBy === 'string'
+          ? b.signedBy
+          : '',
       call: b.call === undefined ? undefined : (String(b.call) as Call),
       comment: typeof b.comment === 'string' ? b.comment : null,
     });
@@ -81,6 +98,19 @@ export function register(app: Hono, ctx: AppContext): void {
         },
         r.code === 'hash-changed' ? 409 : 400,
       );
+    audit(
+      c,
+      ctx,
+      'signoff',
+      `pair ${c.req.param('id')}`,
+      {
+        dispositionId: r.id,
+        call: r.record.call,
+        proposedCall: r.record.proposedCall,
+        inputsHash: r.record.inputsHash,
+      },
+      r.record.signedBy,
+    );
     return c.json({ id: r.id, record: r.record }, 201);
   });
 }

@@ -35,6 +35,7 @@ import {
 import { getKind } from '../../ingest/kinds/index.ts';
 import { IMPORT_KIND_NAMES, type ImportKindName, type ImportReport as Report } from '../../ingest/types.ts';
 import { getStoredImport, listImportHistory } from '../../store/views-imports.ts';
+import { auditor } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { CSRF_FIELD, csrfDeferred, csrfField, csrfHeaders, forbidden, verifyCsrfToken } from '../csrf.ts';
 import { runImport } from '../import-worker.ts';
@@ -287,6 +288,8 @@ export function register(app: Hono, ctx: AppContext): void {
       });
     }
     const kind = kindText;
+    // Each file's outcome goes to the audit trail under the account that sent it.
+    const record = auditor(c, ctx);
 
     const job = jobs.start(
       {
@@ -319,6 +322,13 @@ export function register(app: Hono, ctx: AppContext): void {
               fp.rows = fp.report.rowsRead;
               fp.bytesRead = fp.bytesTotal;
               fp.state = 'done';
+              record('import', fp.name, {
+                kind,
+                status: fp.report.status,
+                importId: fp.report.importId,
+                sha256: fp.report.sha256,
+                rowsStored: fp.report.rowsStored,
+              });
             } catch (err) {
               ctx.log(
                 `ERROR import of an upload (${kind}): ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`,

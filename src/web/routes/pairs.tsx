@@ -26,9 +26,12 @@ import { loadPair, signOffPairInDb } from '../../engine/loader.ts';
 import { assessPairInSession, createSession, EngineInputError } from '../../engine/pair.ts';
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
 import { readDispositions } from '../../store/dispositions.ts';
+import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
-import { asOfValue, queryChoice, queryParetoBy } from '../params.ts';
+import { queryChoice, queryParetoBy } from '../params.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
 import { asOfFrom, memoised, notFound } from './lots.tsx';
 
@@ -123,6 +126,16 @@ function records(ctx: AppContext, pairId: string): SignoffRecordLike[] {
   }));
 }
 
+function accountName(c: Context): string | undefined {
+  const a = accountOf(c);
+  return a ? `${a.user.displayName} [${a.user.username}]` : undefined;
+}
+
+/** The server's reference to the assessment a page shows; a sign-off must return it. */
+function ref(ctx: AppContext, a: PairAssessment): string {
+  return assessmentRef(ctx.db, 'pair', a.pairId, a.asOfMs);
+}
+
 function token(c: Context): string {
   try {
     return csrfToken(c);
@@ -153,7 +166,14 @@ function page(
         edgeExclusionM: l.edgeExclusionM,
         paretoBy: queryParetoBy(c, 'pareto'),
         spectrumMode: queryChoice(c, 'spectrum', SPECTRUM_MODES) ?? 'per-bin',
-        signoff: { csrfToken: token(c), records: records(ctx, l.a.pairId), ...signoff },
+        signoff: {
+          csrfToken: token(c),
+          records: records(ctx, l.a.pairId),
+          assessmentRef: ref(ctx, l.a),
+          ...signoff,
+          // Signed in, the name is the account's (the server uses it whatever the field holds).
+          values: { name: accountName(c), ...signoff.values },
+        },
         inspection: l.inspection,
       }),
     },
@@ -213,14 +233,18 @@ export function register(app: Hono, ctx: AppContext): void {
     const id = c.req.param('id');
     const body = await c.req.parseBody();
     const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string) : '');
+    // Signed in, the signer is the account (whatever the name field says); open mode, the name typed.
+    const account = accountOf(c);
     const values: Partial<SignoffValues> = {
-      name: str('name').trim(),
+      name: account ? `${account.user.displayName} [${account.user.username}]` : str('name').trim(),
       role: str('role'),
       call: (['bond', 're-clean', 'hold'] as const).find((x) => x === str('call')),
       comment: str('comment'),
     };
     const shownHash = str('inputsHash');
-    const asOfMs = asOfValue('asOfMs', str('asOfMs'));
+    // The assessment time is the one the server put in the page's signed reference, never the
+    // client's own; a form without a valid reference is refused after the current assessment.
+    const asOfMs = readAssessmentRef(ctx.db, 'pair', id, str('assessmentRef'));
     const fragment = isFragmentRequest(c);
     const l = assess(ctx, id, asOfMs ?? asOfFrom(c, ctx));
     if (!l) return notFound(c, ctx, `There is no pair ${id}.`);
@@ -238,6 +262,7 @@ export function register(app: Hono, ctx: AppContext): void {
             asOfMs: l.a.asOfMs,
             proposedCall: l.a.call as CallName,
             csrfToken: token(c),
+            assessmentRef: ref(ctx, l.a),
             records: records(ctx, id),
             error,
             values,
@@ -249,6 +274,11 @@ export function register(app: Hono, ctx: AppContext): void {
     if (!SIGNOFF_ROLES.includes(values.role as (typeof SIGNOFF_ROLES)[number]))
       return refuse(`Role: one of ${SIGNOFF_ROLES.join(', ')}.`, 422);
     if (str('call') && !values.call) return refuse('Call: one of bond, re-clean, hold.', 422);
+    if (asOfMs === null)
+      return refuse(
+        'The form does not carry a reference to an assessment this server showed. Reload the page and sign again.',
+        422,
+      );
 
     const out = signOffPairInDb(ctx.db, id, {
       inputsHash: shownHash,
@@ -258,6 +288,21 @@ export function register(app: Hono, ctx: AppContext): void {
       comment: values.comment || null,
     });
     if (!out) return notFound(c, ctx, `There is no pair ${id}.`);
+    if (out.ok)
+      audit(
+        c,
+        ctx,
+        'signoff',
+        `pair ${id}`,
+        {
+          dispositionId: out.id,
+          call: out.record.call,
+          proposedCall: out.record.proposedCall,
+          inputsHash: out.record.inputsHash,
+          assessedAtMs: out.record.assessedAtMs,
+        },
+        values.name,
+      );
     if (!out.ok)
       return refuse(
         out.code === 'hash-changed'
@@ -276,6 +321,7 @@ export function register(app: Hono, ctx: AppContext): void {
         asOfMs: l.a.asOfMs,
         proposedCall: l.a.call as CallName,
         csrfToken: token(c),
+        assessmentRef: ref(ctx, l.a),
         records: all,
         stored,
       }),

@@ -18,6 +18,8 @@ import {
   readParameterSets,
   revertToTypedValuesInDb,
 } from '../../engine/parameter-sets.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { renderPage } from '../render.ts';
@@ -40,7 +42,10 @@ function refusedStatus(c: Context): 200 | 422 {
   return c.req.header('HX-Request') === 'true' ? 200 : 422;
 }
 
+/** Who acts: the signed-in account, else (open mode) the name typed in the form. */
 async function nameOf(c: Context): Promise<string> {
+  const account = accountOf(c);
+  if (account) return account.user.username;
   const body = await c.req.parseBody();
   return typeof body.name === 'string' ? body.name.trim().slice(0, 120) : '';
 }
@@ -131,9 +136,25 @@ export function register(app: Hono, ctx: AppContext): void {
         { error: 'Your name: the name of the person adopting the set is required.' },
         refusedStatus(c),
       );
+    // An approver does not adopt what they proposed: a second person looks at every set.
+    const proposed = readParameterSet(ctx.db, id);
+    const account = accountOf(c);
+    if (
+      account &&
+      proposed &&
+      proposed.createdBy.trim().toLowerCase() === account.user.username.toLowerCase()
+    )
+      return setPage(
+        c,
+        ctx,
+        id,
+        { error: 'You proposed this set: another approver has to adopt it.' },
+        refusedStatus(c),
+      );
     try {
       const r = adoptParameterSetInDb(ctx.db, id, name);
       if (!r) return notFound(c, ctx, `There is no parameter set ${id}.`);
+      audit(c, ctx, 'parameters.adopt', `parameter set ${id}`, { setId: id }, name);
     } catch (e) {
       if (!(e instanceof EngineInputError)) throw e;
       return setPage(c, ctx, id, { error: e.message, name }, refusedStatus(c));
@@ -151,6 +172,7 @@ export function register(app: Hono, ctx: AppContext): void {
         refusedStatus(c),
       );
     revertToTypedValuesInDb(ctx.db, name);
+    audit(c, ctx, 'parameters.revert', 'typed values', {}, name);
     return c.redirect('/parameters', 303);
   });
 }

@@ -37,7 +37,9 @@ describe('voidcast CLI', () => {
     expect(await main(['serve', '--prot', '80'], t.io)).toBe(2);
     const [first, second] = t.err().split('\n');
     expect(first).toBe('voidcast serve: unknown option --prot');
-    expect(second).toBe('usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty]');
+    expect(second).toBe(
+      'usage: voidcast serve [--port N] [--host ADDR] [--data DIR] [--empty] [--open] [--drop DIR] [--allowed-host NAME]...',
+    );
   });
 
   it('a bad port exits 2 naming the rule', async () => {

@@ -166,6 +166,19 @@ describe('cell rules in words', () => {
     const r = numberCell({ min: 0, integer: true }).schema.safeParse('-3');
     expect(r.success).toBe(false);
     expect(r.error?.issues[0]?.message).toBe('must be a whole number ≥ 0');
+    // 2^53 − 1 is the largest whole number a double holds exactly (IEEE 754 binary64); above it a
+    // count would be stored as another number, so it is refused, by the schema and the fast path alike.
+    const cell = numberCell({ min: 0, integer: true });
+    expect(cell.schema.safeParse('9007199254740991').data).toBe(9007199254740991);
+    expect(cell.fast?.('9007199254740991')).toBe(9007199254740991);
+    for (const big of ['9007199254740993', '9007199254740992', '1e300', '18446744073709551616']) {
+      const b = cell.schema.safeParse(big);
+      expect(b.success, big).toBe(false);
+      expect(b.error?.issues[0]?.message, big).toBe(
+        'must be at most 9007199254740991 (2^53 − 1, the largest whole number stored exactly)',
+      );
+      expect(cell.fast?.(big), big).toBe(CELL_FAIL);
+    }
   });
 
   it('ISO class (ISO 14644-1:2015: N from 1 to 9 in steps of 0.1)', () => {

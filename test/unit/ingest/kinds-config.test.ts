@@ -7,7 +7,7 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import type { CleanInput, ProductInput } from '../../../src/engine/types.ts';
-import { parseJsonSource } from '../../../src/ingest/kinds/json-source.ts';
+import { MAX_JSON_DEPTH, parseJsonSource } from '../../../src/ingest/kinds/json-source.ts';
 import { parseProductFile } from '../../../src/ingest/kinds/products.ts';
 import { parseToolsFile } from '../../../src/ingest/kinds/tools.ts';
 import { removalEfficiency } from '../../../src/model/clean.ts';
@@ -56,8 +56,46 @@ describe('parseJsonSource (RFC 8259 with line numbers)', () => {
     ],
     ['', 1, 'the file is empty: a JSON object is expected'],
     ['{} {}', 1, 'unexpected text after the end of the JSON value'],
+    [
+      '{"__proto__": {"polluted": true}}',
+      1,
+      'the key "__proto__" is not allowed (it names an object\'s prototype; no field is called so)',
+    ],
+    [
+      '{"a": [\n{"constructor": {"prototype": {}}}]}',
+      2,
+      'the key "constructor" is not allowed (it names an object\'s prototype; no field is called so)',
+    ],
+    [
+      '{"a": {"prototype": 1}}',
+      1,
+      'the key "prototype" is not allowed (it names an object\'s prototype; no field is called so)',
+    ],
   ])('refuses %j at line %i', (text, line, rule) => {
     expect(() => parseJsonSource(text)).toThrow(expect.objectContaining({ line, rule }));
+  });
+
+  it('refuses nesting deeper than MAX_JSON_DEPTH at the line where it goes too deep, even 10,000 deep', () => {
+    // Issue 14: a file nested 10,000 deep used to exhaust the parser's stack (RangeError).
+    const deep = `${'['.repeat(10_000)}${']'.repeat(10_000)}`;
+    expect(() => parseJsonSource(deep)).toThrow(
+      expect.objectContaining({
+        line: 1,
+        rule: `objects and arrays are nested deeper than ${MAX_JSON_DEPTH} levels`,
+      }),
+    );
+    const objects = `${'{"a":\n'.repeat(10_000)}1${'}'.repeat(10_000)}`;
+    // The first value deeper than the limit starts on line MAX_JSON_DEPTH + 1 (hand computation:
+    // one "{" per line, the root on line 1).
+    expect(() => parseJsonSource(objects)).toThrow(expect.objectContaining({ line: MAX_JSON_DEPTH + 1 }));
+    // Exactly at the limit is accepted and equals JSON.parse.
+    const atLimit = `${'['.repeat(MAX_JSON_DEPTH)}${']'.repeat(MAX_JSON_DEPTH)}`;
+    expect(parseJsonSource(atLimit).value).toEqual(JSON.parse(atLimit));
+  });
+
+  it('leaves Object.prototype untouched by a refused prototype key', () => {
+    expect(() => parseJsonSource('{"__proto__": {"vcPolluted": 1}}')).toThrow();
+    expect(({} as Record<string, unknown>).vcPolluted).toBeUndefined();
   });
 });
 

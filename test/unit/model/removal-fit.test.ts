@@ -216,3 +216,40 @@ describe('fitRemovalParticles — data that cannot determine a curve', () => {
     expect(() => fitRemovalParticles([50 * nm, -1], [1, 0])).toThrow(/diametersM\[1\] = -1 m/);
   });
 });
+
+describe('removalCurveBand — bad input', () => {
+  it('refuses a missing or malformed fit, sizes that are not an array, a bad size or level', () => {
+    // The doc example's fit (1/4 removed at 30 nm, 3/4 at 90 nm, E_max fixed at 1).
+    const fit = fitRemovalParticles(
+      [30, 30, 30, 30, 90, 90, 90, 90].map((v) => v * nm),
+      [1, 0, 0, 0, 1, 1, 1, 0],
+      { maxEfficiency: 1 },
+    );
+    const sizes = [50 * nm];
+    expect(() => removalCurveBand(null as unknown as typeof fit, sizes)).toThrow(
+      /removalCurveBand: fit = null is out of range/,
+    );
+    expect(() => removalCurveBand({ ...fit, referenceM: 0 }, sizes)).toThrow(/fit.referenceM = 0 m/);
+    expect(() => removalCurveBand({ ...fit, b: Number.NaN }, sizes)).toThrow(/fit.b = NaN/);
+    expect(() => removalCurveBand({ ...fit, covariance: [[1]] }, sizes)).toThrow(
+      /fit.covariance = \[\[1\]\] is out of range; allowed a 2 × 2 or 3 × 3 matrix/,
+    );
+    expect(() =>
+      removalCurveBand(
+        {
+          ...fit,
+          covariance: [
+            [1, 0],
+            [0, Number.POSITIVE_INFINITY],
+          ],
+        },
+        sizes,
+      ),
+    ).toThrow(/fit.covariance\[1\]\[1\] = Infinity/);
+    expect(() => removalCurveBand(fit, 5e-8 as unknown as number[])).toThrow(/diametersM = 5e-8 m/);
+    expect(() => removalCurveBand(fit, [Number.NaN])).toThrow(/diametersM\[0\] = NaN m/);
+    expect(() => removalCurveBand(fit, sizes, 1)).toThrow(/removalCurveBand: confidence = 1/);
+    // A valid call still answers (the same fit, unchanged).
+    expect(removalCurveBand(fit, sizes)[0]!.efficiency).toBeGreaterThan(0);
+  });
+});

@@ -92,6 +92,13 @@ describe('matchingRadius (Rayleigh radius, methods.md §1)', () => {
     expect(() => matchingRadius(0)).toThrow(ModelInputError);
     expect(() => matchingRadius(1e-5, 1)).toThrow(/captureFraction = 1 is out of range/);
   });
+
+  it('refuses a non-number σ and a radius that overflows a double', () => {
+    expect(() => matchingRadius(Number.NaN)).toThrow(/matchingRadius: positionSigmaM = NaN m/);
+    expect(() => matchingRadius('1' as unknown as number)).toThrow(ModelInputError);
+    // 1e308 × 3.03 overflows: refused rather than returned as Infinity.
+    expect(() => matchingRadius(1e308)).toThrow(/matchingRadius: result = Infinity/);
+  });
 });
 
 describe('frame transforms', () => {
@@ -201,6 +208,19 @@ describe('greedyMatch (one-to-one, greedy by distance)', () => {
       expect([...m.beforeMatch]).toEqual([...ref.bm]);
       expect([...m.afterMatch]).toEqual([...ref.am]);
     }
+  });
+
+  it('refuses non-Float64Array positions, a count beyond the arrays, a non-finite position, r ≤ 0', () => {
+    const p = Float64Array.of(0, 1e-5);
+    expect(() => greedyMatch([0, 1e-5] as unknown as Float64Array, p, 2, p, p, 2, 1e-5)).toThrow(
+      /greedyMatch: bx = \[0,0.00001\] m is out of range; allowed a Float64Array/,
+    );
+    expect(() => greedyMatch(p, p, 3, p, p, 2, 1e-5)).toThrow(/greedyMatch: nb = 3 is out of range/);
+    expect(() => greedyMatch(p, p, -1, p, p, 2, 1e-5)).toThrow(/greedyMatch: nb = -1/);
+    expect(() => greedyMatch(p, p, 2, Float64Array.of(0, Number.NaN), p, 2, 1e-5)).toThrow(
+      /greedyMatch: ax\[1\] = NaN m/,
+    );
+    expect(() => greedyMatch(p, p, 2, p, p, 2, 0)).toThrow(/greedyMatch: radiusM = 0 m/);
   });
 });
 
@@ -358,6 +378,31 @@ describe('matchScans', () => {
   });
 });
 
+describe('estimateStageOffset and expectedChanceMatches: bad input', () => {
+  it('estimateStageOffset refuses a missing scan, a count beyond the arrays and a non-finite position', () => {
+    const ok = { count: 1, xM: Float64Array.of(0), yM: Float64Array.of(0) };
+    expect(() => estimateStageOffset(null as unknown as typeof ok, ok, 1e-4)).toThrow(
+      /estimateStageOffset: before = null is out of range/,
+    );
+    expect(() => estimateStageOffset(ok, { ...ok, count: 2 }, 1e-4)).toThrow(
+      /estimateStageOffset: after.count = 2 is out of range/,
+    );
+    expect(() =>
+      estimateStageOffset(ok, { ...ok, yM: Float64Array.of(Number.NEGATIVE_INFINITY) }, 1e-4),
+    ).toThrow(/estimateStageOffset: after.yM\[0\] = -Infinity m/);
+    expect(() => estimateStageOffset(ok, ok, Number.NaN)).toThrow(/searchRadiusM = NaN m/);
+  });
+
+  it('expectedChanceMatches refuses NaN and a result that overflows a double', () => {
+    expect(() => expectedChanceMatches(Number.NaN, 1, 1e-5, 0.07)).toThrow(
+      /expectedChanceMatches: nBefore = NaN/,
+    );
+    expect(() => expectedChanceMatches(1e308, 1e-9, 1, 5e-324)).toThrow(
+      /expectedChanceMatches: result = Infinity/,
+    );
+  });
+});
+
 describe('positionSigmaFromDisplacements (robust σ from confident matches)', () => {
   it('hand computation: 1.4826 × the median absolute deviation, each group about its median', () => {
     const g = { displacementXM: Float64Array.of(-1, 0, 1), displacementYM: Float64Array.of(2, 3, 4) };
@@ -389,5 +434,23 @@ describe('positionSigmaFromDisplacements (robust σ from confident matches)', ()
 
   it('refuses an empty set', () => {
     expect(() => positionSigmaFromDisplacements([])).toThrow(/at least one displacement/);
+  });
+
+  it('refuses a non-array, a group without Float64Arrays, unequal lengths and a non-finite displacement', () => {
+    expect(() => positionSigmaFromDisplacements(Number.NaN as unknown as [])).toThrow(
+      /positionSigmaFromDisplacements: groups = NaN m is out of range/,
+    );
+    const x = Float64Array.of(1, 2);
+    expect(() =>
+      positionSigmaFromDisplacements([
+        { displacementXM: [1, 2] as unknown as Float64Array, displacementYM: x },
+      ]),
+    ).toThrow(/groups\[0\].displacementXM/);
+    expect(() =>
+      positionSigmaFromDisplacements([{ displacementXM: x, displacementYM: Float64Array.of(1) }]),
+    ).toThrow(/groups\[0\].displacementYM = .* allowed a Float64Array of 2/);
+    expect(() =>
+      positionSigmaFromDisplacements([{ displacementXM: x, displacementYM: Float64Array.of(1, Number.NaN) }]),
+    ).toThrow(/groups\[0\].displacementYM\[1\] = NaN m/);
   });
 });

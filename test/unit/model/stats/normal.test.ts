@@ -55,4 +55,9 @@ describe('logNormalSurvival', () => {
     // hand computation of the leading terms: −5000 − 4.605170186 − 0.918938533 − 1.0001e-4
     expect(logNormalSurvival(100)).toBeCloseTo(-5005.524208719, 6);
   });
+
+  it('refuses a non-finite z, and a z so large that z² overflows (−∞ would leave the function)', () => {
+    expect(() => logNormalSurvival(Number.NaN)).toThrow(/logNormalSurvival: z = NaN/);
+    expect(() => logNormalSurvival(1e308)).toThrow(/logNormalSurvival: result = -Infinity/);
+  });
 });

@@ -1,0 +1,78 @@
+/**
+ * Writes that wait their turn. SQLite lets one writer at a time hold a database (WAL mode: readers
+ * never wait). A second process — a CLI import while the server imports, or two CLIs — used to fail
+ * with "database is locked" once SQLite's busy timeout ran out.
+ *
+ * Every write transaction goes through `writeTransaction`: it starts with BEGIN IMMEDIATE (the write
+ * lock is taken at the start, so a transaction that has read never has to upgrade — which SQLite may
+ * refuse at once with SQLITE_BUSY whatever the timeout), lets SQLite wait its busy timeout, and when
+ * that runs out tells the user once (through the reporter the process registered with
+ * `onWriterWait`) and tries again, until `maxWaitMs` has passed. Only the BEGIN is retried: once the
+ * transaction's body has run, an error is the body's and is passed on.
+ */
+import type { Db } from './db.ts';
+
+/** How long a write waits for another writer before it gives up with a clear message (30 min). */
+export const DEFAULT_MAX_WAIT_MS = 30 * 60_000;
+const PAUSE_MS = 250;
+
+const reporters = new WeakMap<Db, (message: string) => void>();
+
+/** Where a connection says that it waits for another writer (stderr in the CLI, the log in the server). */
+export function onWriterWait(db: Db, report: (message: string) => void): void {
+  reporters.set(db, report);
+}
+
+/** Thrown when another process held the database for longer than a write may wait. */
+export class WriterWaitError extends Error {
+  constructor(waitedMs: number) {
+    super(
+      `another process has been writing to the database for ${Math.round(waitedMs / 1000)} s; ` +
+        'nothing was stored. Try again when it has finished.',
+    );
+    this.name = 'WriterWaitError';
+  }
+}
+
+/** True for SQLite's "another connection holds the lock" errors. */
+export function isBusyError(e: unknown): boolean {
+  const code = (e as { code?: unknown })?.code;
+  return typeof code === 'string' && (code.startsWith('SQLITE_BUSY') || code.startsWith('SQLITE_LOCKED'));
+}
+
+function pause(ms: number): void {
+  Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+}
+
+/**
+ * Runs `body` in one write transaction (BEGIN IMMEDIATE … COMMIT, ROLLBACK on any throw), waiting
+ * for another writer as long as it takes up to `maxWaitMs`, and saying so once.
+ */
+export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: number } = {}): T {
+  if (db.inTransaction) return body();
+  const maxWaitMs = opts.maxWaitMs ?? DEFAULT_MAX_WAIT_MS;
+  let started = false;
+  const tx = db.transaction(() => {
+    started = true;
+    return body();
+  });
+  const t0 = Date.now();
+  let told = false;
+  for (;;) {
+    try {
+      return tx.immediate();
+    } catch (e) {
+      if (started || !isBusyError(e)) throw e;
+      const waited = Date.now() - t0;
+      if (waited >= maxWaitMs) throw new WriterWaitError(waited);
+      if (!told) {
+        told = true;
+        (reporters.get(db) ?? (() => undefined))(
+          `waiting: another process is writing to ${db.name === ':memory:' ? 'the database' : db.name}; ` +
+            'this write goes ahead as soon as it has finished (nothing is lost by waiting)',
+        );
+      }
+      pause(PAUSE_MS);
+    }
+  }
+}
