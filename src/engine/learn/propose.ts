@@ -112,9 +112,8 @@ export function learnLine(
   };
 }
 
-/** The label a whole-line proposal takes when its proposer gives none. */
-export function defaultLineLabel(l: LineLearning): string {
-  const lots = l.calibration?.lots ?? [];
+/** The label a whole-line proposal takes when its proposer gives none (lots: the calibrated ones). */
+export function lineLabel(lots: readonly string[]): string {
   return lots.length
     ? `fits of the line’s scans and of the void inspections of ${lots.join(', ')}`
     : 'fits of the line’s scans';
@@ -136,7 +135,7 @@ export function proposeLineParameters(
     db,
     learning.values,
     learning.notes,
-    label?.trim() ? label.trim() : defaultLineLabel(learning),
+    label?.trim() ? label.trim() : lineLabel(learning.calibration?.lots ?? []),
     createdBy,
     opts.nowMs,
   );
