@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
 import { calibrate } from '../../src/engine/learn/calibration.ts';
 import { loadInspectedLots } from '../../src/engine/learn/loader.ts';
-import { type LineLearning, learnLine, proposeLineParameters } from '../../src/engine/learn/propose.ts';
+import { type LineLearning, proposeLineParameters } from '../../src/engine/learn/propose.ts';
 import { assessLotFromDb } from '../../src/engine/loader.ts';
 import type { ParameterSet } from '../../src/engine/parameter-set-types.ts';
 import {
