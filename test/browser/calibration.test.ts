@@ -3,7 +3,7 @@
  * without console errors, shows the fitted values, the backtest plots and a void map; a pair chosen
  * in the table swaps its map in place (htmx); proposing the fits stores a set and lands on the
  * Parameters page, where a person adopts it; the bonded pair's page then shows its inspection over
- * the prediction. Screenshots: test-results/screenshots/calibration*.png.
+ * the prediction; the Tools & cleans page proposes the same whole-line set and lands on it. Screenshots: test-results/screenshots/calibration*.png.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -79,7 +79,7 @@ describe.skipIf(!run)('the Calibration page in Chromium', () => {
     await page.click('form.vc-propose-form button[type="submit"]');
     await page.waitForURL(/\/parameters\/\d+$/);
     expect(await page.locator('body').textContent()).toContain(
-      'calibration from the void inspections of TR2641, TR2642',
+      'fits of the line’s scans and of the void inspections of TR2641, TR2642',
     );
     await page.fill('#adopt-name', 'Grace Hopper');
     await page.click('form.vc-adopt-form button[type="submit"]');
@@ -89,9 +89,36 @@ describe.skipIf(!run)('the Calibration page in Chromium', () => {
     expect(await page.locator('#pair-void-overlay svg[data-chart="void-overlay"]').count()).toBe(1);
     // the pair is now assessed with the adopted set: it names the set and counts the unexplained voids
     expect(await page.locator('.vc-params-used').textContent()).toContain(
-      'calibration from the void inspections',
+      'fits of the line’s scans and of the void inspections',
     );
     await page.locator('#pair-void-overlay').screenshot({ path: screenshotPath('calibration-pair') });
+    expect(errors).toEqual([]);
+    await page.close();
+  }, 90_000);
+
+  it('proposes every fit of the line from the Tools & cleans page and lands on the Parameters page showing it', async () => {
+    const { page, errors } = await open('tools');
+    await page.click('#vc-learned button[type="submit"]'); // "Fit from the scans" (htmx swaps the section)
+    await page.waitForSelector('form.vc-propose-line');
+    await page.fill('#propose-name', 'Ada Lovelace');
+    await page.fill('#propose-label', 'line fits from the Tools page');
+    await page.click('form.vc-propose-line button[type="submit"]');
+    await page.waitForURL(/\/parameters\/\d+$/);
+    const body = (await page.locator('body').textContent()) ?? '';
+    expect(body).toContain('line fits from the Tools page');
+    expect(await page.locator('.vc-set-state').getAttribute('data-state')).toBe('proposed');
+    const kinds = await page
+      .locator('.vc-param-entry')
+      .evaluateAll((els) => els.map((e) => `${e.getAttribute('data-kind')} ${e.getAttribute('data-key')}`));
+    expect(kinds).toEqual(
+      expect.arrayContaining([
+        'adders LACT-1/B',
+        'removal CLN-RIN2',
+        'voidSize GALE-7',
+        'unexplainedVoids GALE-7',
+      ]),
+    );
+    expect(body).toContain('Adders of LACT-1/A: too little data');
     expect(errors).toEqual([]);
     await page.close();
   }, 90_000);

@@ -103,12 +103,15 @@ describe.skipIf(!run)('the pages in Chromium', () => {
     await page.evaluate('window.__marker = 11');
     await page.locator('#vc-learned button[type="submit"]').click();
     await page.waitForSelector('#vc-learned h3');
-    // htmx swapped the section: same window, the learned tables and notes in place of the form.
+    // htmx swapped the section: same window, the learned tables and notes in place of the fit form,
+    // and the form that proposes every fit of the line as one set.
     expect(await page.evaluate('window.__marker')).toBe(11);
-    expect(await page.locator('#vc-learned form').count()).toBe(0);
+    expect(await page.locator('#vc-learned form[method="get"]').count()).toBe(0);
+    expect(await page.locator('#vc-learned form.vc-propose-line[method="post"]').count()).toBe(1);
     expect(await page.locator('#vc-learned h3').allTextContents()).toEqual([
       'Adders per wafer pass',
       'Removal by clean',
+      'Propose every fit of the line as a parameter set',
     ]);
     expect(errors).toEqual([]);
   });

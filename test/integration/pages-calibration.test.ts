@@ -1,7 +1,7 @@
 /**
  * The Calibration page (app.request) on the demo line: the fitted values with intervals and n, the
  * comparison with the tail, the backtest plots and coverage, a pair's observed voids over its
- * predicted discs (and the htmx swap of that map), proposing the fits as a parameter set (name +
+ * predicted discs (and the htmx swap of that map), proposing the line's fits as one parameter set (name +
  * CSRF, no script; 303 to the set on the Parameters page; nothing adopted); and the bonded pair's
  * page with its inspection over the prediction. Expected values: the demo's own (docs/demo.md) and
  * the engine's calibration of it (test/integration/calibration-demo.test.ts checks those against the
@@ -130,6 +130,9 @@ describe('the Calibration page', () => {
     expect(sets[0]!.createdBy).toBe('Ada');
     expect(Object.keys(sets[0]!.values.voidSize)).toEqual(['GALE-7']);
     expect(Object.keys(sets[0]!.values.unexplainedVoids)).toEqual(['GALE-7']);
+    // the whole line's fits, as one set: the scans' adders and removal curves too (learn-propose.test.ts)
+    expect(Object.keys(sets[0]!.values.adders).sort()).toEqual(['LACT-1/B', 'ZSTK-1']);
+    expect(Object.keys(sets[0]!.values.removal).sort()).toEqual(['CLN-RIN1', 'CLN-RIN2']);
     const page = await (await app.request(`/parameters/${sets[0]!.id}`)).text();
     expect(page).toContain('October voids');
   });

@@ -3,7 +3,8 @@
  * pair's void map (observed voids over the predicted discs of the scanned particles), the fitted
  * interface energy and rate of voids no scanned particle explains with their intervals and n, the
  * comparison with the undetected tail, the leave-one-lot-out backtest (plot and coverage), and the
- * form that proposes the fitted values as a parameter set (adopted on the Parameters page).
+ * form that proposes every fit of the line — these and the scans' adders and removal curves — as one
+ * parameter set (adopted on the Parameters page).
  *
  * Type-only imports of the engine's result types: the page draws what the engine returned.
  */
@@ -13,8 +14,10 @@ import type {
   Coverage,
   PairCalibration,
 } from '../../src/engine/learn/calibration-types.ts';
+import { lineLabel } from '../../src/engine/learn/propose.ts';
 import { backtestPlot } from '../charts/backtest-plot.tsx';
 import { fmtAreaM2, fmtDiameter, fmtNum, fmtPct, fmtUtc } from '../partials/format.ts';
+import { ProposeLineForm } from '../partials/propose-line-form.tsx';
 import { VoidOverlayPanel } from '../partials/void-overlay-panel.tsx';
 
 export interface CalibrationPageProps {
@@ -169,42 +172,16 @@ export function CalibrationPage(props: CalibrationPageProps) {
 function ProposeForm(props: CalibrationPageProps) {
   const v = props.calibration.values;
   const count = Object.keys(v.voidSize).length + Object.keys(v.unexplainedVoids).length;
-  const label =
-    props.label ?? `calibration from the void inspections of ${props.calibration.lots.join(', ')}`;
   return (
-    <div class="vc-panel vc-propose" id="propose">
-      <h3>Propose these values as a parameter set</h3>
-      {props.error ? (
-        <p class="vc-error" role="alert">
-          {props.error}
-        </p>
-      ) : null}
-      {count === 0 ? (
-        <p class="vc-small">Nothing to propose: every fit above rests on too little data.</p>
-      ) : (
-        <form class="vc-form vc-propose-form" method="post" action="/calibration/propose">
-          <input type="hidden" name="_csrf" value={props.csrfToken} />
-          <label for="propose-name">Your name</label>
-          <input
-            id="propose-name"
-            name="name"
-            required
-            maxlength={120}
-            autocomplete="name"
-            value={props.name ?? ''}
-          />
-          <label for="propose-label">Label</label>
-          <input id="propose-label" name="label" required maxlength={200} value={label} />
-          <span></span>
-          <button type="submit">Propose as a parameter set</button>
-          <span></span>
-          <span class="vc-small">
-            Stores {count} fitted value{count === 1 ? '' : 's'} as a proposed set; nothing changes in any
-            assessment until someone adopts it on the <a href="/parameters">Parameters</a> page.
-          </span>
-        </form>
-      )}
-    </div>
+    <ProposeLineForm
+      action="/calibration/propose"
+      idPrefix="propose"
+      csrfToken={props.csrfToken}
+      label={props.label ?? lineLabel(props.calibration.lots)}
+      holds={`Stores, as one proposed set, the adders and removal curves learned from the line’s scans (Tools & cleans) and the calibration: ${count === 0 ? 'none of the values above (each rests on too little data)' : `the ${count === 1 ? 'value' : `${count} values`} above`}, fitted again with the learned adders and removal applied — so the unexplained rate is the excess over the sources as the set itself models them.`}
+      {...(props.error ? { error: props.error } : {})}
+      {...(props.name ? { name: props.name } : {})}
+    />
   );
 }
 

@@ -2,7 +2,8 @@
  * The "learned from the line's scans" section of the Tools & cleans page: adders per pass of each
  * tool and chamber and the removal curve of each clean as fitted from matched scans, with their
  * intervals, the data they rest on, the typed values beside and the too-little-data reasons. Until
- * asked, it shows a form that asks for the fit (GET, no state changes; htmx swaps the section).
+ * asked, it shows a form that asks for the fit (GET, no state changes; htmx swaps the section); once
+ * fitted, the form that proposes every fit of the line as one parameter set (propose-line-form.tsx).
  */
 import type {
   AdderLearning,
@@ -13,6 +14,7 @@ import type {
 import { adderHistory } from '../charts/adder-history.tsx';
 import { type RemovalCurvePoint, removalCurve } from '../charts/removal-curve.tsx';
 import { fmtDiameter, fmtNum, fmtPct } from './format.ts';
+import { ProposeLineForm } from './propose-line-form.tsx';
 
 export interface LearnedCleanView {
   learning: RemovalLearning;
@@ -24,6 +26,13 @@ export interface LearnedView {
   adders: AddersReport;
   removal: RemovalReport;
   cleans: LearnedCleanView[];
+  /** The CSRF token of the propose form. */
+  csrfToken: string;
+  /** The label the propose form offers. */
+  proposeLabel: string;
+  /** The propose form's state after a refused post. */
+  proposeError?: string;
+  proposeName?: string;
 }
 
 function fmtUm(m: number): string {
@@ -140,6 +149,12 @@ function CleanFigure(props: { c: LearnedCleanView }) {
   );
 }
 
+function proposeHolds(l: LearnedView): string {
+  const a = l.adders.results.filter((r) => r.proposal).length;
+  const r = l.removal.results.filter((x) => x.proposal).length;
+  return `Stores, as one proposed set, the ${a} adder fit${a === 1 ? '' : 's'} and ${r} removal curve${r === 1 ? '' : 's'} proposed above, and the calibration from the void inspections (Calibration page) fitted with them applied.`;
+}
+
 export function LearnedSection(props: { learned: LearnedView | null }) {
   const l = props.learned;
   if (!l)
@@ -211,6 +226,15 @@ export function LearnedSection(props: { learned: LearnedView | null }) {
           ))}
         </div>
       )}
+      <ProposeLineForm
+        action="/tools/propose"
+        idPrefix="propose"
+        csrfToken={l.csrfToken}
+        label={l.proposeLabel}
+        holds={proposeHolds(l)}
+        {...(l.proposeError ? { error: l.proposeError } : {})}
+        {...(l.proposeName ? { name: l.proposeName } : {})}
+      />
       {[...l.adders.issues, ...l.removal.issues].length ? (
         <ul class="vc-small vc-learned-issues">
           {[...new Set([...l.adders.issues, ...l.removal.issues].map((i) => i.message))].map((m) => (

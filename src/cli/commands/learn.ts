@@ -11,6 +11,14 @@ import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting } from './assess.ts';
 import { backtestSubcommand, calibrationSubcommand } from './learn-calibration.ts';
+import {
+  allSubcommand,
+  PROPOSE_OPTIONS,
+  proposeAdders,
+  proposedText,
+  proposeRemoval,
+  proposeRequest,
+} from './learn-propose.ts';
 import { renderAdders, renderRemoval } from './learn-render.ts';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
@@ -37,34 +45,40 @@ function known(db: Db, id: string, kind: 'tool' | 'clean'): boolean {
 const adders: LearnSubcommand = {
   name: 'adders',
   summary: 'adders per wafer pass of each tool and chamber, from scans before and after each pass',
-  usage: '[--tool ID|ID/CHAMBER]',
-  options: { tool: { type: 'string' } },
+  usage: '[--tool ID|ID/CHAMBER] [--propose --as NAME [--label TEXT]]',
+  options: { tool: { type: 'string' }, ...PROPOSE_OPTIONS },
   run(db, values, json, io) {
+    const req = proposeRequest(values);
     const toolId = values.tool as string | undefined;
     const rep = learnAdders(db, { toolId });
     if (toolId && !known(db, toolId, 'tool') && rep.results.every((r) => r.passes.length === 0)) {
       io.err(`voidcast learn adders: no tool "${toolId}" in the tools file and no pass through it\n`);
       return EXIT.notFound;
     }
-    io.out(json ? `${JSON.stringify(rep)}\n` : renderAdders(rep));
-    return EXIT.ok;
+    const p = req ? proposeAdders(db, rep, req, toolId) : null;
+    if (json) io.out(`${JSON.stringify(p ? { ...rep, ...p } : rep)}\n`);
+    else io.out(renderAdders(rep) + (p && req ? proposedText(p, req.who) : ''));
+    return p?.refused ? EXIT.rejected : EXIT.ok;
   },
 };
 
 const removal: LearnSubcommand = {
   name: 'removal',
   summary: 'removal efficiency vs size of each clean, from matched particles before and after it',
-  usage: '[--clean ID]',
-  options: { clean: { type: 'string' } },
+  usage: '[--clean ID] [--propose --as NAME [--label TEXT]]',
+  options: { clean: { type: 'string' }, ...PROPOSE_OPTIONS },
   run(db, values, json, io) {
+    const req = proposeRequest(values);
     const cleanId = values.clean as string | undefined;
     const rep = learnRemoval(db, { cleanId });
     if (cleanId && !known(db, cleanId, 'clean') && rep.results.every((r) => r.passes.length === 0)) {
       io.err(`voidcast learn removal: no clean "${cleanId}" in the tools file and no pass through it\n`);
       return EXIT.notFound;
     }
-    io.out(json ? `${JSON.stringify(rep)}\n` : renderRemoval(rep));
-    return EXIT.ok;
+    const p = req ? proposeRemoval(db, rep, req, cleanId) : null;
+    if (json) io.out(`${JSON.stringify(p ? { ...rep, ...p } : rep)}\n`);
+    else io.out(renderRemoval(rep) + (p && req ? proposedText(p, req.who) : ''));
+    return p?.refused ? EXIT.rejected : EXIT.ok;
   },
 };
 
@@ -74,6 +88,7 @@ export const LEARN_SUBCOMMANDS: LearnSubcommand[] = [
   removal,
   calibrationSubcommand,
   backtestSubcommand,
+  allSubcommand,
 ];
 
 function learnUsage(): string {
@@ -84,14 +99,15 @@ function learnUsage(): string {
     ...LEARN_SUBCOMMANDS.map((s) => `  ${s.name.padEnd(width)}  ${s.summary}`),
     '',
     '  --lot ID     calibration, backtest: only these bonded lots (repeat for more; default every lot with inspections)',
-    '  --propose    calibration: store the fitted values as a proposed parameter set (--as NAME: who; --label TEXT)',
+    '  --propose    adders, removal, calibration, all: store the fitted values as a proposed parameter set',
+    '               (--as NAME: who; --label TEXT); all proposes every fit of the line as one set',
     '  --json       print the result as JSON (values in SI units: m, UTC ms)',
     '  --data DIR   data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)',
     '',
     'No assessment changes: a fit becomes a parameter only when a person adopts it (voidcast params adopt).',
     '',
     '  exit codes: 0 fitted (also when a fit has too little data and proposes nothing), 2 usage,',
-    '  4 no database, or a --tool, --clean or --lot that names nothing',
+    '  3 --propose with nothing to propose, 4 no database, or a --tool, --clean or --lot that names nothing',
   ].join('\n');
 }
 

@@ -1,7 +1,8 @@
 /**
  * Calibration: the page (/calibration, ?pair= picks the map), its map swap (/calibration/map?pair=)
- * and proposing the fitted values as a parameter set (POST /calibration/propose → 303 to the set on
- * the Parameters page, where a person adopts it). Thin: the engine loads, assesses, matches, fits
+ * and proposing every fit of the line as one parameter set (POST /calibration/propose: the scans'
+ * adders and removal curves and the calibration with them applied, src/engine/learn/propose.ts →
+ * 303 to the set on the Parameters page, where a person adopts it). Thin: the engine loads, assesses, matches, fits
  * and backtests (src/engine/learn/), memoised per data version (imports and parameter sets).
  */
 import type { Context, Hono } from 'hono';
@@ -14,8 +15,9 @@ import type {
   PairCalibration,
 } from '../../engine/learn/calibration-types.ts';
 import { loadInspectedLots } from '../../engine/learn/loader.ts';
+import { proposeLineParameters } from '../../engine/learn/propose.ts';
 import { EngineInputError } from '../../engine/pair.ts';
-import { proposeParameterSet } from '../../engine/parameter-sets.ts';
+import type { ProposeOutcome } from '../../engine/parameter-sets.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -147,9 +149,13 @@ export function register(app: Hono, ctx: AppContext): void {
         refused,
       );
     if (!label) return page(c, ctx, { error: 'Label: a label for the set is required.', name }, refused);
-    const r = calibrated(ctx);
-    if ('problem' in r) return page(c, ctx, { error: r.problem, name, label }, refused);
-    const out = proposeParameterSet(ctx.db, r.calibration.values, r.calibration.notes, label, name);
+    let out: ProposeOutcome;
+    try {
+      out = proposeLineParameters(ctx.db, name, label).outcome;
+    } catch (e) {
+      if (e instanceof EngineInputError) return page(c, ctx, { error: e.message, name, label }, refused);
+      throw e;
+    }
     if (!out.ok) return page(c, ctx, { error: out.message, name, label }, refused);
     return c.redirect(`/parameters/${out.set.id}`, 303);
   });
