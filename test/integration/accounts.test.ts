@@ -207,6 +207,24 @@ describe('roles', () => {
     expect(entry.detail.dispositionId).toBe(stored.at(-1)!.id);
   });
 
+  it("proposing the line's fits needs an engineer, and the proposer is the account, not a typed name", async () => {
+    const vera = await signIn(app, 'vera');
+    expect((await vera.post('/tools/propose', { name: 'Vera', label: 'x' })).status).toBe(403);
+    expect((await vera.post('/calibration/propose', { name: 'Vera', label: 'x' })).status).toBe(403);
+    const emil = await signIn(app, 'emil');
+    for (const path of ['/tools/propose', '/calibration/propose']) {
+      // The name field is left empty on purpose: signed in, the account names the proposer.
+      const res = await emil.post(path, { name: '', label: 'fits of the test line' });
+      expect([303, 422], path).toContain(res.status);
+      if (res.status === 303) {
+        const id = Number(/\/parameters\/(\d+)/.exec(res.headers.get('location') ?? '')![1]);
+        expect(
+          readAudit(db).find((e) => e.action === 'parameters.propose' && e.subject === `parameter set ${id}`),
+        ).toMatchObject({ actor: 'emil' });
+      } else expect(await res.text()).not.toContain('the name of the person proposing the set is required');
+    }
+  });
+
   it('an approver cannot adopt the set they proposed; another approver can', async () => {
     const alice = await signIn(app, 'alice');
     const own = await alice.post(`/parameters/${setByAlice}/adopt`, {});

@@ -42,6 +42,12 @@ export const RULES: { method: string; path: RegExp; role: Role; what: string }[]
   { method: 'POST', path: /^\/api\/feed\/counter-samples$/, role: 'engineer', what: 'push counter samples' },
   { method: 'POST', path: /^\/pairs\/[^/]+\/signoff$/, role: 'approver', what: 'sign a call off' },
   { method: 'POST', path: /^\/api\/pairs\/[^/]+\/signoff$/, role: 'approver', what: 'sign a call off' },
+  {
+    method: 'POST',
+    path: /^\/(calibration|tools)\/propose$/,
+    role: 'engineer',
+    what: 'propose a parameter set',
+  },
   { method: 'POST', path: /^\/parameters\/[^/]+\/adopt$/, role: 'approver', what: 'adopt a parameter set' },
   { method: 'POST', path: /^\/parameters\/revert$/, role: 'approver', what: 'go back to the typed values' },
   { method: 'POST', path: /^\/logout$/, role: 'viewer', what: 'sign out' },

@@ -18,6 +18,8 @@ import { loadInspectedLots } from '../../engine/learn/loader.ts';
 import { proposeLineParameters } from '../../engine/learn/propose.ts';
 import { EngineInputError } from '../../engine/pair.ts';
 import type { ProposeOutcome } from '../../engine/parameter-sets.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -138,7 +140,9 @@ export function register(app: Hono, ctx: AppContext): void {
   app.post('/calibration/propose', async (c) => {
     const body = await c.req.parseBody();
     const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string).trim() : '');
-    const name = str('name').slice(0, 120);
+    // Signed in, the proposer is the account (so that its holder cannot adopt it: parameters.tsx).
+    const account = accountOf(c);
+    const name = account ? account.user.username : str('name').slice(0, 120);
     const label = str('label').slice(0, 200);
     const refused = c.req.header('HX-Request') === 'true' ? 200 : 422;
     if (!name)
@@ -157,6 +161,7 @@ export function register(app: Hono, ctx: AppContext): void {
       throw e;
     }
     if (!out.ok) return page(c, ctx, { error: out.message, name, label }, refused);
+    audit(c, ctx, 'parameters.propose', `parameter set ${out.set.id}`, { setId: out.set.id, label }, name);
     return c.redirect(`/parameters/${out.set.id}`, 303);
   });
 }

@@ -26,6 +26,8 @@ import { SPECTRUM_CENTRES_M } from '../../model/spectrum.ts';
 import { listTools, readCleans, type StoredClean, toolKey } from '../../store/tools.ts';
 import { ledgerPassesByTool } from '../../store/views-tools.ts';
 import { listInspectedLots } from '../../store/voids.ts';
+import { audit } from '../auth/audit.ts';
+import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -200,7 +202,9 @@ export function register(app: Hono, ctx: AppContext): void {
   app.post('/tools/propose', async (c) => {
     const body = await c.req.parseBody();
     const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string).trim() : '');
-    const name = str('name').slice(0, 120);
+    // Signed in, the proposer is the account (so that its holder cannot adopt it: parameters.tsx).
+    const account = accountOf(c);
+    const name = account ? account.user.username : str('name').slice(0, 120);
     const label = str('label').slice(0, 200);
     const refused = c.req.header('HX-Request') === 'true' ? 200 : 422;
     const again = (error: string) =>
@@ -215,6 +219,7 @@ export function register(app: Hono, ctx: AppContext): void {
       throw e;
     }
     if (!out.ok) return again(out.message);
+    audit(c, ctx, 'parameters.propose', `parameter set ${out.set.id}`, { setId: out.set.id, label }, name);
     return c.redirect(`/parameters/${out.set.id}`, 303);
   });
 }
