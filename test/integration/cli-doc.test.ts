@@ -134,7 +134,8 @@ describe('docs/cli.md examples, run in order', () => {
         }
         const re = new RegExp(escapeRe(want).replace(/\\\{[A-Z]+\\\}/g, '(\\S+)'));
         const hit = lines.map((l) => re.exec(l)).find((m) => m !== null);
-        expect(hit, `"${want}" in the output of $ ${e.command}`).toBeTruthy();
+        // A line of the output matches the pattern (find gives undefined when none does).
+        expect(hit, `"${want}" in the output of $ ${e.command}:\n${output}`).toBeDefined();
         names.forEach((n, i) => {
           vars[n] = hit![i + 1]!;
         });
