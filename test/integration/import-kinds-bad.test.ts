@@ -239,8 +239,8 @@ const CASES: Case[] = [
       {
         line: 41,
         column: null,
-        value: null,
-        rule: 'not valid JSON: unexpected character "]" where a value is expected (JSON has no comments or trailing commas)',
+        value: ']',
+        rule: 'not valid JSON at column 3: unexpected character "]" where a value is expected (JSON has no comments or trailing commas)',
       },
     ],
   },

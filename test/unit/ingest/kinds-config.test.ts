@@ -44,35 +44,87 @@ describe('parseJsonSource (RFC 8259 with line numbers)', () => {
     expect(src.texts.get('a.b[0]')).toBe('1');
   });
 
+  // Lines and columns are hand computation: 1-based, the column counting characters from the start
+  // of the line (for a string problem, its opening quote; for a key, the key's opening quote).
+  const PROTO = "is not allowed (it names an object's prototype; no field is called so)";
   it.each([
-    ['{"a": 1, "a": 2}', 1, 'key "a" is given twice in the same object'],
-    ['{\n"a": 1,\n}', 3, 'expected a key in double quotes'],
-    ['{"a": 01}', 1, 'expected "," or "}" after a value in an object'],
-    ['{"a": "line\nbreak"}', 1, 'a string contains a control character or a line break (write it as \\n)'],
+    ['{"a": 1, "a": 2}', 1, 10, 'key "a" is given twice in the same object', 'DuplicateKey'],
     [
-      '// comment\n{}',
+      '{\n"a": 1,\n}',
+      3,
       1,
-      'unexpected character "/" where a value is expected (JSON has no comments or trailing commas)',
-    ],
-    ['', 1, 'the file is empty: a JSON object is expected'],
-    ['{} {}', 1, 'unexpected text after the end of the JSON value'],
-    [
-      '{"__proto__": {"polluted": true}}',
-      1,
-      'the key "__proto__" is not allowed (it names an object\'s prototype; no field is called so)',
+      'expected a key in double quotes, found "}" (JSON has no trailing commas)',
+      'PropertyNameExpected',
     ],
     [
-      '{"a": [\n{"constructor": {"prototype": {}}}]}',
+      '[1,\r\n ]',
       2,
-      'the key "constructor" is not allowed (it names an object\'s prototype; no field is called so)',
+      2,
+      'unexpected character "]" where a value is expected (JSON has no comments or trailing commas)',
+      'ValueExpected',
     ],
     [
-      '{"a": {"prototype": 1}}',
+      '{"a": 01}',
       1,
-      'the key "prototype" is not allowed (it names an object\'s prototype; no field is called so)',
+      8,
+      'expected "," between two values (or the end of the object or array)',
+      'CommaExpected',
     ],
-  ])('refuses %j at line %i', (text, line, rule) => {
-    expect(() => parseJsonSource(text)).toThrow(expect.objectContaining({ line, rule }));
+    ['{"a" 1}', 1, 6, 'expected ":" after the key', 'ColonExpected'],
+    [
+      '{\r\n  "a": tru}',
+      2,
+      8,
+      '"tru" is not a JSON value (a value is a number, a string in double quotes, true, false, null, an object or an array)',
+      'InvalidSymbol',
+    ],
+    ['[1.]', 1, 2, 'the number "1." is cut short (a digit must follow "." and "e")', 'UnexpectedEndOfNumber'],
+    [
+      '{"a": "line\nbreak"}',
+      1,
+      7,
+      'a string is not closed on its line (a " without its closing "; a line break inside a string is written \\n)',
+      'UnexpectedEndOfString',
+    ],
+    [
+      '["ok", "tab\there"]',
+      1,
+      8,
+      'this string contains a control character (write it as an escape: \\t, \\n, \\u0001)',
+      'InvalidCharacter',
+    ],
+    ['["\\u12G4"]', 1, 2, 'in this string, \\u is not followed by four hexadecimal digits', 'InvalidUnicode'],
+    ['// comment\n{}', 1, 1, 'JSON has no comments (// or /* */)', 'InvalidCommentToken'],
+    ['{"a": [1, 2', 1, 12, 'the file ends inside an array (a "]" is missing)', 'CloseBracketExpected'],
+    ['', 1, 1, 'the file is empty: a JSON object is expected', 'ValueExpected'],
+    ['{} {}', 1, 4, 'unexpected text after the end of the JSON value', 'EndOfFileExpected'],
+    ['{"__proto__": {"polluted": true}}', 1, 2, `the key "__proto__" ${PROTO}`, 'ForbiddenKey'],
+    ['{"a": [\n{"constructor": {"prototype": {}}}]}', 2, 2, `the key "constructor" ${PROTO}`, 'ForbiddenKey'],
+    ['{"a": {"prototype": 1}}', 1, 8, `the key "prototype" ${PROTO}`, 'ForbiddenKey'],
+  ])('refuses %j at line %i, column %i', (text, line, column, rule, code) => {
+    expect(() => parseJsonSource(text)).toThrow(expect.objectContaining({ line, column, rule, code }));
+  });
+
+  it('names the syntax error a reader meets first, even when the file also nests too deep later', () => {
+    // The missing ":" is at line 1, column 6 (hand computation); the nesting goes too deep after it.
+    const text = `{"a" 1, "b": ${'['.repeat(100)}${']'.repeat(100)}}`;
+    expect(() => parseJsonSource(text)).toThrow(
+      expect.objectContaining({ line: 1, column: 6, code: 'ColonExpected' }),
+    );
+  });
+
+  it('turns a syntax error into an import issue with its line, its column in the rule and the text found', () => {
+    const r = parseProductFile('{\n  "id": "P",\n  "stack": [1,]\n}');
+    expect(r).toEqual({
+      issues: [
+        {
+          line: 3,
+          column: null,
+          value: ']',
+          rule: 'not valid JSON at column 15: unexpected character "]" where a value is expected (JSON has no comments or trailing commas)',
+        },
+      ],
+    });
   });
 
   it('refuses nesting deeper than MAX_JSON_DEPTH at the line where it goes too deep, even 10,000 deep', () => {
