@@ -18,26 +18,19 @@ import { createReadStream, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Db } from '../store/db.ts';
 import { writeTransaction } from '../store/writer.ts';
-import { CELL_FAIL } from './cells.ts';
-import { type ByteSource, CsvReadError, CsvReader, fileSource } from './csv.ts';
-import { matchHeader } from './header.ts';
+import { type ByteSource, CsvReader, fileSource } from './csv.ts';
+import { readRows, startCsv } from './csv-rows.ts';
 import { importConfigSource } from './kinds/config-import.ts';
 import { getKind } from './kinds/index.ts';
-import { parseMetadata } from './metadata.ts';
 import { startReport } from './report.ts';
 import type {
-  Cell,
-  CellContext,
-  CsvDialect,
   FileContext,
-  HeaderColumn,
   ImportFlag,
   ImportIssue,
   ImportKind,
   ImportOptions,
   ImportReport,
   KindIssue,
-  ParsedRow,
 } from './types.ts';
 
 export const DEFAULT_MAX_ISSUES = 10_000;
@@ -193,16 +186,6 @@ function readToEnd(source: ByteSource): boolean {
   return true;
 }
 
-/** Cell plan of one header column. */
-interface Slot {
-  index: number;
-  written: string;
-  /** Canonical key in the parsed row (spec name, or the normalised header of a pattern column). */
-  key: string;
-  required: boolean;
-  cell: Cell<unknown>;
-}
-
 function runInTransaction(
   db: Db,
   kind: ImportKind,
@@ -213,53 +196,9 @@ function runInTransaction(
   acceptValidRows: boolean,
 ): void {
   // 1. Metadata and header.
-  let md: ReturnType<typeof parseMetadata> | null = null;
-  try {
-    reader.readPreamble((lines) => {
-      md = parseMetadata(lines, kind.metadata ?? [], kind.name);
-      return md.delimiter;
-    });
-  } catch (e) {
-    if (e instanceof CsvReadError) {
-      addIssue({ line: e.line, column: null, value: null, rule: e.message });
-      return;
-    }
-    throw e;
-  }
-  const meta = md as ReturnType<typeof parseMetadata> | null;
-  if (!meta) throw new Error('metadata not parsed');
-  for (const n of meta.notes) report.notes.push(n);
-  for (const i of meta.issues) addIssue(i);
-  const dialect: CsvDialect = {
-    delimiter: reader.delimiter,
-    decimal: meta.decimal ?? '.',
-    delimiterSource: reader.delimiterSource,
-    decimalSource: meta.decimal ? 'declared' : 'default',
-    bom: reader.bom,
-    lineBreak: reader.lineBreak,
-  };
-  report.dialect = dialect;
-  if (reader.bom) report.notes.push('a UTF-8 byte-order mark was found and ignored');
-  if (reader.delimiterSource === 'detected' && reader.delimiter !== ',') {
-    report.notes.push(
-      `delimiter "${reader.delimiter === '\t' ? 'tab' : reader.delimiter}" detected from the header`,
-    );
-  }
-  if (!reader.header) {
-    addIssue({
-      line: 0,
-      column: null,
-      value: null,
-      rule:
-        reader.size === 0
-          ? 'the file is empty'
-          : 'the file has no header row (only comments and blank lines)',
-    });
-    return;
-  }
-  const header = matchHeader(kind, reader.header, reader.headerLine, reader.delimiter);
-  for (const i of header.issues) addIssue(i);
-  if (report.issues.length > 0) return;
+  const start = startCsv(kind, reader, addIssue, report);
+  if (!start || report.issues.length > 0) return;
+  const { meta, dialect, header, decimal } = start;
 
   // 2. The imports row (its id is the foreign key of every stored row).
   const info = db
@@ -280,7 +219,6 @@ function runInTransaction(
   const importId = Number(info.lastInsertRowid);
   report.importId = importId;
 
-  const cellCtx: CellContext = { zone: meta.zone, units: meta.units };
   const ctx: FileContext = {
     db,
     kind: kind.name,
@@ -302,55 +240,26 @@ function runInTransaction(
   const session = Array.isArray(begun) ? null : begun;
   if (!session) return;
 
-  const slots: Slot[] = header.columns.map((c: HeaderColumn) => ({
-    index: c.index,
-    written: c.written,
-    key: c.spec ? c.spec.name : c.key,
-    required: c.spec ? c.spec.required : c.pattern!.spec.required === true,
-    cell: c.spec ? c.spec.cell(cellCtx) : c.pattern!.spec.cell(cellCtx),
-  }));
-  const width = reader.header.length;
-  const decimal = new DecimalState(dialect);
-
   // 3. Rows.
-  let fileLevelProblem = false;
-  for (;;) {
-    let batch: ReturnType<CsvReader['nextBatch']>;
-    try {
-      batch = reader.nextBatch();
-    } catch (e) {
-      if (e instanceof CsvReadError) {
-        addIssue({ line: e.line, column: null, value: null, rule: e.message });
-        fileLevelProblem = true;
-        break;
-      }
-      throw e;
+  const readOn = readRows(reader, start, addIssue, (parsed, line, cells) => {
+    report.rowsRead++;
+    if (Array.isArray(parsed)) {
+      report.rowsRejected++;
+      for (const i of parsed) addIssue(i);
+      return;
     }
-    if (!batch) break;
-    const { rows, lines } = batch;
-    for (let r = 0; r < rows.length; r++) {
-      const cells = rows[r]!;
-      const line = lines[r]!;
-      report.rowsRead++;
-      const rowIssues = parseRow(cells, line, slots, width, decimal);
-      if (Array.isArray(rowIssues)) {
-        report.rowsRejected++;
-        for (const i of rowIssues) addIssue(i);
-        continue;
-      }
-      const out = session.row(rowIssues, line, cells);
-      if (out === undefined || out === 'stored') report.rowsStored++;
-      else if (out === 'duplicate') report.duplicates++;
-      else {
-        report.rowsRejected++;
-        for (const i of out) addIssue(i);
-      }
+    const out = session.row(parsed, line, cells);
+    if (out === undefined || out === 'stored') report.rowsStored++;
+    else if (out === 'duplicate') report.duplicates++;
+    else {
+      report.rowsRejected++;
+      for (const i of out) addIssue(i);
     }
-  }
+  });
   if (decimal.note) report.notes.push(decimal.note);
   dialect.decimal = decimal.mode === ',' ? ',' : '.';
   dialect.decimalSource = decimal.source;
-  if (fileLevelProblem) return;
+  if (!readOn) return;
   if (report.rowsRead === 0 && !kind.allowNoRows) {
     addIssue({
       line: reader.headerLine,
@@ -400,126 +309,6 @@ function runInTransaction(
   );
 }
 
-/**
- * The decimal separator of numeric cells. Declared in the metadata, or — in a file delimited by
- * `;` or tab — detected from the first number written with a fraction (and reported). A number
- * written the other way later is refused, never reinterpreted.
- */
-export class DecimalState {
-  mode: '.' | ',' | 'detect';
-  source: CsvDialect['decimalSource'];
-  firstLine = 0;
-  note: string | null = null;
-  constructor(d: CsvDialect) {
-    if (d.decimalSource === 'declared') this.mode = d.decimal;
-    else this.mode = d.delimiter === ',' ? '.' : 'detect';
-    this.source = d.decimalSource;
-  }
-  /** Returns the text with a point as decimal separator, or a rule broken. */
-  normalise(text: string, line: number): string | { rule: string } {
-    const comma = text.indexOf(',');
-    if (this.mode === '.') {
-      if (comma === -1) return text;
-      return {
-        rule:
-          this.source === 'detected'
-            ? `must be a number with a decimal point, as in the rest of this file (first on line ${this.firstLine})`
-            : 'must be a number with a decimal point (for decimal commas declare "# decimal: ," and "# delimiter: ;")',
-      };
-    }
-    if (this.mode === ',') {
-      if (text.indexOf('.') !== -1) {
-        return {
-          rule:
-            this.source === 'declared'
-              ? 'must be a number with a decimal comma, as declared (# decimal: ,); no thousands separators'
-              : `must be a number with a decimal comma, as in the rest of this file (first on line ${this.firstLine}); no thousands separators`,
-        };
-      }
-      return comma === -1 ? text : text.replace(',', '.');
-    }
-    // detect
-    if (comma !== -1 && /^[+-]?\d*,\d+(?:[eE][+-]?\d+)?$/.test(text)) {
-      this.mode = ',';
-      this.source = 'detected';
-      this.firstLine = line;
-      this.note = `decimal comma detected (first on line ${line})`;
-      return text.replace(',', '.');
-    }
-    if (text.indexOf('.') !== -1 && /^[+-]?\d*\.\d+(?:[eE][+-]?\d+)?$/.test(text)) {
-      this.mode = '.';
-      this.source = 'detected';
-      this.firstLine = line;
-    }
-    return text;
-  }
-}
-
-/** Parses the cells of one row through the slots; returns the parsed row or its issues. */
-export function parseRow(
-  cells: readonly string[],
-  line: number,
-  slots: readonly Slot[],
-  width: number,
-  decimal: DecimalState,
-): ParsedRow | KindIssue[] {
-  if (cells.length !== width) {
-    let extraFilled = false;
-    for (let i = width; i < cells.length; i++) if (cells[i]!.trim() !== '') extraFilled = true;
-    if (cells.length < width || extraFilled) {
-      return [
-        {
-          line,
-          column: null,
-          value: null,
-          rule: `the row has ${cells.length} cells but the header has ${width} (check the delimiter and quotes)`,
-        },
-      ];
-    }
-  }
-  let issues: KindIssue[] | null = null;
-  const row: ParsedRow = {};
-  for (let s = 0; s < slots.length; s++) {
-    const slot = slots[s]!;
-    const text = (cells[slot.index] ?? '').trim();
-    if (text === '') {
-      if (slot.required)
-        issues = addTo(issues, { line, column: slot.written, value: '', rule: 'must not be empty' });
-      continue;
-    }
-    let t = text;
-    if (slot.cell.numeric && (decimal.mode !== '.' || text.indexOf(',') !== -1)) {
-      const n = decimal.normalise(text, line);
-      if (typeof n !== 'string') {
-        issues = addTo(issues, { line, column: slot.written, value: text, rule: n.rule });
-        continue;
-      }
-      t = n;
-    }
-    // The fast path for the common case; the schema decides (and words the rule) otherwise.
-    const fast = slot.cell.fast;
-    const v = fast ? fast(t) : CELL_FAIL;
-    if (v !== CELL_FAIL) {
-      row[slot.key] = v;
-      continue;
-    }
-    const r = slot.cell.schema.safeParse(t);
-    if (r.success) row[slot.key] = r.data;
-    else
-      issues = addTo(issues, {
-        line,
-        column: slot.written,
-        value: text,
-        rule: r.error.issues[0]?.message ?? 'is not valid',
-      });
-  }
-  return issues ?? row;
-}
-
-function addTo(list: KindIssue[] | null, i: KindIssue): KindIssue[] {
-  if (list === null) return [i];
-  list.push(i);
-  return list;
-}
-
+export type { CsvReadResult } from './csv-rows.ts';
+export { DecimalState, readCsvSource } from './csv-rows.ts';
 export type { ImportFlag, ImportIssue };

@@ -1,0 +1,306 @@
+/**
+ * The database-free half of a CSV import: the metadata block, the dialect, the header matched to the
+ * kind's columns, and every row's cells through their zod schemas (fast path first) with the decimal
+ * separator handled. src/ingest/pipeline.ts runs it inside the import's transaction and hands each
+ * parsed row to the kind; readCsvSource runs it alone (the property tests use it at volume).
+ */
+import { CELL_FAIL } from './cells.ts';
+import { type ByteSource, CsvReadError, CsvReader } from './csv.ts';
+import { matchHeader } from './header.ts';
+import { parseMetadata } from './metadata.ts';
+import type {
+  Cell,
+  CellContext,
+  CsvDialect,
+  HeaderColumn,
+  ImportKind,
+  KindIssue,
+  ParsedRow,
+} from './types.ts';
+
+/** Cell plan of one header column. */
+export interface Slot {
+  index: number;
+  written: string;
+  /** Canonical key in the parsed row (spec name, or the normalised header of a pattern column). */
+  key: string;
+  required: boolean;
+  cell: Cell<unknown>;
+}
+
+/** A CSV file read up to its rows: metadata, dialect, header and the cell plan. */
+export interface CsvStart {
+  meta: ReturnType<typeof parseMetadata>;
+  dialect: CsvDialect;
+  header: ReturnType<typeof matchHeader>;
+  slots: Slot[];
+  width: number;
+  decimal: DecimalState;
+}
+
+/**
+ * The database-free start of a CSV import: the metadata block, the dialect, the header matched to
+ * the kind's columns and the cell plan. Returns null when the file is refused before its rows (the
+ * issues were added).
+ */
+export function startCsv(
+  kind: ImportKind,
+  reader: CsvReader,
+  addIssue: (i: KindIssue) => void,
+  sink: { notes: string[]; dialect: CsvDialect | null },
+): CsvStart | null {
+  const notes = sink.notes;
+  let md: ReturnType<typeof parseMetadata> | null = null;
+  try {
+    reader.readPreamble((lines) => {
+      md = parseMetadata(lines, kind.metadata ?? [], kind.name);
+      return md.delimiter;
+    });
+  } catch (e) {
+    if (e instanceof CsvReadError) {
+      addIssue({ line: e.line, column: null, value: null, rule: e.message });
+      return null;
+    }
+    throw e;
+  }
+  const meta = md as ReturnType<typeof parseMetadata> | null;
+  if (!meta) throw new Error('metadata not parsed');
+  for (const n of meta.notes) notes.push(n);
+  let refused = meta.issues.length > 0;
+  for (const i of meta.issues) addIssue(i);
+  const dialect: CsvDialect = {
+    delimiter: reader.delimiter,
+    decimal: meta.decimal ?? '.',
+    delimiterSource: reader.delimiterSource,
+    decimalSource: meta.decimal ? 'declared' : 'default',
+    bom: reader.bom,
+    lineBreak: reader.lineBreak,
+  };
+  sink.dialect = dialect;
+  if (reader.bom) notes.push('a UTF-8 byte-order mark was found and ignored');
+  if (reader.delimiterSource === 'detected' && reader.delimiter !== ',') {
+    notes.push(
+      `delimiter "${reader.delimiter === '\t' ? 'tab' : reader.delimiter}" detected from the header`,
+    );
+  }
+  if (!reader.header) {
+    addIssue({
+      line: 0,
+      column: null,
+      value: null,
+      rule:
+        reader.size === 0
+          ? 'the file is empty'
+          : 'the file has no header row (only comments and blank lines)',
+    });
+    return null;
+  }
+  const header = matchHeader(kind, reader.header, reader.headerLine, reader.delimiter);
+  if (header.issues.length > 0) refused = true;
+  for (const i of header.issues) addIssue(i);
+  if (refused) return { meta, dialect, header, slots: [], width: 0, decimal: new DecimalState(dialect) };
+  const cellCtx: CellContext = { zone: meta.zone, units: meta.units };
+  const slots: Slot[] = header.columns.map((c: HeaderColumn) => ({
+    index: c.index,
+    written: c.written,
+    key: c.spec ? c.spec.name : c.key,
+    required: c.spec ? c.spec.required : c.pattern!.spec.required === true,
+    cell: c.spec ? c.spec.cell(cellCtx) : c.pattern!.spec.cell(cellCtx),
+  }));
+  return { meta, dialect, header, slots, width: reader.header.length, decimal: new DecimalState(dialect) };
+}
+
+/**
+ * Reads every row of a started CSV file through the cell plan, handing each to `onRow` (its parsed
+ * cells or its issues). Returns false when the file cannot be read on (a CSV problem, added as an issue).
+ */
+export function readRows(
+  reader: CsvReader,
+  start: CsvStart,
+  addIssue: (i: KindIssue) => void,
+  onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
+): boolean {
+  for (;;) {
+    let batch: ReturnType<CsvReader['nextBatch']>;
+    try {
+      batch = reader.nextBatch();
+    } catch (e) {
+      if (e instanceof CsvReadError) {
+        addIssue({ line: e.line, column: null, value: null, rule: e.message });
+        return false;
+      }
+      throw e;
+    }
+    if (!batch) return true;
+    const { rows, lines } = batch;
+    for (let r = 0; r < rows.length; r++) {
+      const cells = rows[r]!;
+      const line = lines[r]!;
+      onRow(parseRow(cells, line, start.slots, start.width, start.decimal), line, cells);
+    }
+  }
+}
+
+/** What the database-free reading of a CSV file found (readCsvSource). */
+export interface CsvReadResult {
+  issues: KindIssue[];
+  notes: string[];
+  dialect: CsvDialect | null;
+  rowsRead: number;
+  /** The rows whose every cell passed its schema (parsed values, not yet normalised by the kind). */
+  rows: ParsedRow[];
+  /** False when the file was refused before its rows (metadata, header) or could not be read on. */
+  readToEnd: boolean;
+}
+
+/**
+ * The first half of a CSV import without a database: the same metadata, header and cell checks
+ * as importSource, on any byte source, stopping before the kind stores anything (its `begin` and
+ * row normalisation need the store). The property tests run it at volume.
+ */
+export function readCsvSource(kind: ImportKind, source: ByteSource): CsvReadResult {
+  const out: CsvReadResult = {
+    issues: [],
+    notes: [],
+    dialect: null,
+    rowsRead: 0,
+    rows: [],
+    readToEnd: false,
+  };
+  const addIssue = (i: KindIssue) => out.issues.push(i);
+  const reader = new CsvReader(source);
+  try {
+    const start = startCsv(kind, reader, addIssue, out);
+    if (!start || out.issues.length > 0) return out;
+    out.readToEnd = readRows(reader, start, addIssue, (row) => {
+      out.rowsRead++;
+      if (Array.isArray(row)) for (const i of row) addIssue(i);
+      else out.rows.push(row);
+    });
+    return out;
+  } finally {
+    reader.close();
+  }
+}
+
+/**
+ * The decimal separator of numeric cells. Declared in the metadata, or — in a file delimited by
+ * `;` or tab — detected from the first number written with a fraction (and reported). A number
+ * written the other way later is refused, never reinterpreted.
+ */
+export class DecimalState {
+  mode: '.' | ',' | 'detect';
+  source: CsvDialect['decimalSource'];
+  firstLine = 0;
+  note: string | null = null;
+  constructor(d: CsvDialect) {
+    if (d.decimalSource === 'declared') this.mode = d.decimal;
+    else this.mode = d.delimiter === ',' ? '.' : 'detect';
+    this.source = d.decimalSource;
+  }
+  /** Returns the text with a point as decimal separator, or a rule broken. */
+  normalise(text: string, line: number): string | { rule: string } {
+    const comma = text.indexOf(',');
+    if (this.mode === '.') {
+      if (comma === -1) return text;
+      return {
+        rule:
+          this.source === 'detected'
+            ? `must be a number with a decimal point, as in the rest of this file (first on line ${this.firstLine})`
+            : 'must be a number with a decimal point (for decimal commas declare "# decimal: ," and "# delimiter: ;")',
+      };
+    }
+    if (this.mode === ',') {
+      if (text.indexOf('.') !== -1) {
+        return {
+          rule:
+            this.source === 'declared'
+              ? 'must be a number with a decimal comma, as declared (# decimal: ,); no thousands separators'
+              : `must be a number with a decimal comma, as in the rest of this file (first on line ${this.firstLine}); no thousands separators`,
+        };
+      }
+      return comma === -1 ? text : text.replace(',', '.');
+    }
+    // detect
+    if (comma !== -1 && /^[+-]?\d*,\d+(?:[eE][+-]?\d+)?$/.test(text)) {
+      this.mode = ',';
+      this.source = 'detected';
+      this.firstLine = line;
+      this.note = `decimal comma detected (first on line ${line})`;
+      return text.replace(',', '.');
+    }
+    if (text.indexOf('.') !== -1 && /^[+-]?\d*\.\d+(?:[eE][+-]?\d+)?$/.test(text)) {
+      this.mode = '.';
+      this.source = 'detected';
+      this.firstLine = line;
+    }
+    return text;
+  }
+}
+
+/** Parses the cells of one row through the slots; returns the parsed row or its issues. */
+export function parseRow(
+  cells: readonly string[],
+  line: number,
+  slots: readonly Slot[],
+  width: number,
+  decimal: DecimalState,
+): ParsedRow | KindIssue[] {
+  if (cells.length !== width) {
+    let extraFilled = false;
+    for (let i = width; i < cells.length; i++) if (cells[i]!.trim() !== '') extraFilled = true;
+    if (cells.length < width || extraFilled) {
+      return [
+        {
+          line,
+          column: null,
+          value: null,
+          rule: `the row has ${cells.length} cells but the header has ${width} (check the delimiter and quotes)`,
+        },
+      ];
+    }
+  }
+  let issues: KindIssue[] | null = null;
+  const row: ParsedRow = {};
+  for (let s = 0; s < slots.length; s++) {
+    const slot = slots[s]!;
+    const text = (cells[slot.index] ?? '').trim();
+    if (text === '') {
+      if (slot.required)
+        issues = addTo(issues, { line, column: slot.written, value: '', rule: 'must not be empty' });
+      continue;
+    }
+    let t = text;
+    if (slot.cell.numeric && (decimal.mode !== '.' || text.indexOf(',') !== -1)) {
+      const n = decimal.normalise(text, line);
+      if (typeof n !== 'string') {
+        issues = addTo(issues, { line, column: slot.written, value: text, rule: n.rule });
+        continue;
+      }
+      t = n;
+    }
+    // The fast path for the common case; the schema decides (and words the rule) otherwise.
+    const fast = slot.cell.fast;
+    const v = fast ? fast(t) : CELL_FAIL;
+    if (v !== CELL_FAIL) {
+      row[slot.key] = v;
+      continue;
+    }
+    const r = slot.cell.schema.safeParse(t);
+    if (r.success) row[slot.key] = r.data;
+    else
+      issues = addTo(issues, {
+        line,
+        column: slot.written,
+        value: text,
+        rule: r.error.issues[0]?.message ?? 'is not valid',
+      });
+  }
+  return issues ?? row;
+}
+
+function addTo(list: KindIssue[] | null, i: KindIssue): KindIssue[] {
+  if (list === null) return [i];
+  list.push(i);
+  return list;
+}
