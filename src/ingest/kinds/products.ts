@@ -86,10 +86,17 @@ const dieSchema = obj(
   'an object {widthMm, heightMm, pitchXMm, pitchYMm, …} or null',
 );
 
+/**
+ * Longest Q-time or scan age accepted, hours (about 11 years): anything longer is a typo, and a
+ * number near the largest double would overflow to infinity when converted to seconds (the
+ * property test of test/unit/properties/import-json.test.ts found 1e308 h crashing the import).
+ */
+export const MAX_HOURS = 100_000;
+
 const qTimeSchema = obj(
   {
     fromKind: oneOf(STEP_KINDS),
-    maxHours: num('h', { min: 0, minExclusive: true }),
+    maxHours: num('h', { min: 0, minExclusive: true, max: MAX_HOURS }),
     label: text('a label').optional(),
   },
   'an object {fromKind, maxHours, label}',
@@ -106,7 +113,7 @@ const specSchema = obj(
     smallestReportableVoidMm: num('mm', { min: 0, minExclusive: true }),
     qTimes: z.array(qTimeSchema, { error: 'must be a list of {fromKind, maxHours, label}' }),
     maxRecleans: num('', { min: 0, integer: true }),
-    maxScanAgeHours: num('h', { min: 0, minExclusive: true }).nullable(),
+    maxScanAgeHours: num('h', { min: 0, minExclusive: true, max: MAX_HOURS }).nullable(),
     scanRequired: z.boolean({
       error: (i) => (i.input === undefined ? 'is required' : 'must be true or false'),
     }),

@@ -173,6 +173,18 @@ describe('products', () => {
     expect(p.stack.plateModulusPa).toBe(155.4e9);
   });
 
+  it('refuses a Q-time or scan age of 1e308 h with an issue (it crashed the import by overflowing to infinite seconds)', () => {
+    // Found by test/unit/properties/import-json.test.ts: hToS(1e308) threw ModelInputError out of the import.
+    const r = product((p) => {
+      p.spec.qTimes[0].maxHours = 1e308;
+      p.spec.maxScanAgeHours = 1e308;
+    });
+    expect('issues' in r && r.issues.map((i) => [i.column, i.rule])).toEqual([
+      ['spec.qTimes[0].maxHours', 'must be a number > 0 h and ≤ 100000 h'],
+      ['spec.maxScanAgeHours', 'must be a number > 0 h and ≤ 100000 h'],
+    ]);
+  });
+
   it('defaults die-to-wafer to the die-on-rigid-wafer model and centres the die grid', () => {
     const r = product((p) => {
       p.bonding = 'die-to-wafer';
