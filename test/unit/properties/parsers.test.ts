@@ -49,7 +49,7 @@ const jsonish = fc.oneof(
 );
 
 describe('the JSON reader', () => {
-  it('agrees with JSON.parse, or refuses with a JsonSyntaxError naming a line — never another error', () => {
+  it('agrees with JSON.parse, or refuses with a JsonSyntaxError naming a line and column — never another error', () => {
     fc.assert(
       fc.property(jsonish, (text) => {
         let ours: unknown;
@@ -70,6 +70,12 @@ describe('the JSON reader', () => {
         if (refused) {
           expect(refused.line).toBeGreaterThanOrEqual(1);
           expect(refused.line).toBeLessThanOrEqual(text.split('\n').length);
+          // The column lies on that line (1 past its end for "the file ends here"); a byte-order
+          // mark is not counted.
+          const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+          const lineText = body.split('\n')[refused.line - 1] ?? '';
+          expect(refused.column).toBeGreaterThanOrEqual(1);
+          expect(refused.column).toBeLessThanOrEqual(lineText.length + 1);
           expect(refused.rule.length).toBeGreaterThan(0);
           return;
         }
