@@ -3,9 +3,11 @@
  * records a person's sign-off of a pair's call; refused when the inputs changed since the assessment.
  */
 import { signOffPairInDb } from '../../engine/loader.ts';
-import type { SignoffOutcome } from '../../engine/signoff.ts';
+import type { SignoffOutcome, SignoffRequest } from '../../engine/signoff.ts';
 import type { Call } from '../../engine/types.ts';
+import type { Db } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { writeTransaction } from '../../store/writer.ts';
 import { parseOptions } from '../args.ts';
 import { cliAudit } from '../audit.ts';
 import { type Command, EXIT, UsageError } from '../io.ts';
@@ -59,7 +61,7 @@ export const signoff: Command = {
           '--as-of is required: give the assessment time of the assessment signed (this installation has no clock setting)',
         );
       const asOfMs = parseAsOf(values['as-of'], clock ?? 0);
-      const r = signOffPairInDb(db, values.pair, {
+      const r = signOffAndRecord(db, values.pair, {
         inputsHash: values.hash,
         asOfMs,
         signedBy: values.by,
@@ -74,10 +76,31 @@ export const signoff: Command = {
         io.err(`voidcast signoff: refused: ${refusalText(values.pair, asOfMs, r)}\n`);
         return EXIT.rejected;
       }
+      io.out(`signed: pair ${values.pair} ${r.record.call} by ${r.record.signedBy} (record ${r.id})\n`);
+      return EXIT.ok;
+    } finally {
+      db.close();
+    }
+  },
+};
+
+/**
+ * Signs off a pair and records it in the audit trail in one write transaction: both are stored or
+ * neither. (Two transactions would leave a sign-off that nobody is recorded as making when the
+ * process dies between them; test/integration/kill-signoff.test.ts kills it there.)
+ */
+export function signOffAndRecord(
+  db: Db,
+  pairId: string,
+  req: SignoffRequest,
+): ReturnType<typeof signOffPairInDb> {
+  return writeTransaction(db, () => {
+    const r = signOffPairInDb(db, pairId, req);
+    if (r?.ok)
       cliAudit(
         db,
         'signoff',
-        `pair ${values.pair}`,
+        `pair ${pairId}`,
         {
           dispositionId: r.id,
           call: r.record.call,
@@ -86,13 +109,9 @@ export const signoff: Command = {
         },
         r.record.signedBy,
       );
-      io.out(`signed: pair ${values.pair} ${r.record.call} by ${r.record.signedBy} (record ${r.id})\n`);
-      return EXIT.ok;
-    } finally {
-      db.close();
-    }
-  },
-};
+    return r;
+  });
+}
 
 const isoTime = (ms: number) => new Date(ms).toISOString();
 

@@ -22,6 +22,7 @@ import type { Call } from '../../engine/types.ts';
 import type { Db } from '../../store/db.ts';
 import { readPair } from '../../store/pairs.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { writeTransaction } from '../../store/writer.ts';
 import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
 import { audit } from '../auth/audit.ts';
 import { accountOf } from '../auth/session.ts';
@@ -73,17 +74,35 @@ export function register(app: Hono, ctx: AppContext): void {
         },
         400,
       );
-    const r = signOffPairInDb(ctx.db, c.req.param('id'), {
-      inputsHash: String(b.inputsHash ?? ''),
-      asOfMs,
-      // With accounts the signer is the account (token or session), never a name the body gives.
-      signedBy: account
-        ? `${account.user.displayName} [${account.user.username}]`
-        : typeof b.signedBy === 'string'
-          ? b.signedBy
-          : '',
-      call: b.call === undefined ? undefined : (String(b.call) as Call),
-      comment: typeof b.comment === 'string' ? b.comment : null,
+    // The sign-off and its audit-trail entry in one write transaction: both are stored or neither.
+    const r = writeTransaction(ctx.db, () => {
+      const out = signOffPairInDb(ctx.db, c.req.param('id'), {
+        inputsHash: String(b.inputsHash ?? ''),
+        asOfMs,
+        // With accounts the signer is the account (token or session), never a name the body gives.
+        signedBy: account
+          ? `${account.user.displayName} [${account.user.username}]`
+          : typeof b.signedBy === 'string'
+            ? b.signedBy
+            : '',
+        call: b.call === undefined ? undefined : (String(b.call) as Call),
+        comment: typeof b.comment === 'string' ? b.comment : null,
+      });
+      if (out?.ok)
+        audit(
+          c,
+          ctx,
+          'signoff',
+          `pair ${c.req.param('id')}`,
+          {
+            dispositionId: out.id,
+            call: out.record.call,
+            proposedCall: out.record.proposedCall,
+            inputsHash: out.record.inputsHash,
+          },
+          out.record.signedBy,
+        );
+      return out;
     });
     if (r === null)
       return c.json({ error: 'not found', detail: `There is no pair "${c.req.param('id')}".` }, 404);
@@ -98,19 +117,6 @@ export function register(app: Hono, ctx: AppContext): void {
         },
         r.code === 'hash-changed' ? 409 : 400,
       );
-    audit(
-      c,
-      ctx,
-      'signoff',
-      `pair ${c.req.param('id')}`,
-      {
-        dispositionId: r.id,
-        call: r.record.call,
-        proposedCall: r.record.proposedCall,
-        inputsHash: r.record.inputsHash,
-      },
-      r.record.signedBy,
-    );
     return c.json({ id: r.id, record: r.record }, 201);
   });
 }

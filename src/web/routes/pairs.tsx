@@ -26,6 +26,7 @@ import { loadPair, signOffPairInDb } from '../../engine/loader.ts';
 import { assessPairInSession, createSession, EngineInputError } from '../../engine/pair.ts';
 import type { PairAssessment, PairInput, WaferInput } from '../../engine/types.ts';
 import { readDispositions } from '../../store/dispositions.ts';
+import { writeTransaction } from '../../store/writer.ts';
 import { assessmentRef, readAssessmentRef } from '../assessment-ref.ts';
 import { audit } from '../auth/audit.ts';
 import { accountOf } from '../auth/session.ts';
@@ -280,29 +281,33 @@ export function register(app: Hono, ctx: AppContext): void {
         422,
       );
 
-    const out = signOffPairInDb(ctx.db, id, {
-      inputsHash: shownHash,
-      asOfMs: l.a.asOfMs,
-      signedBy: `${values.name} (${values.role})`,
-      call: values.call,
-      comment: values.comment || null,
+    // The sign-off and its audit-trail entry in one write transaction: both are stored or neither.
+    const out = writeTransaction(ctx.db, () => {
+      const r = signOffPairInDb(ctx.db, id, {
+        inputsHash: shownHash,
+        asOfMs: l.a.asOfMs,
+        signedBy: `${values.name} (${values.role})`,
+        call: values.call,
+        comment: values.comment || null,
+      });
+      if (r?.ok)
+        audit(
+          c,
+          ctx,
+          'signoff',
+          `pair ${id}`,
+          {
+            dispositionId: r.id,
+            call: r.record.call,
+            proposedCall: r.record.proposedCall,
+            inputsHash: r.record.inputsHash,
+            assessedAtMs: r.record.assessedAtMs,
+          },
+          values.name,
+        );
+      return r;
     });
     if (!out) return notFound(c, ctx, `There is no pair ${id}.`);
-    if (out.ok)
-      audit(
-        c,
-        ctx,
-        'signoff',
-        `pair ${id}`,
-        {
-          dispositionId: out.id,
-          call: out.record.call,
-          proposedCall: out.record.proposedCall,
-          inputsHash: out.record.inputsHash,
-          assessedAtMs: out.record.assessedAtMs,
-        },
-        values.name,
-      );
     if (!out.ok)
       return refuse(
         out.code === 'hash-changed'
