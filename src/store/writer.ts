@@ -23,6 +23,22 @@ export function onWriterWait(db: Db, report: (message: string) => void): void {
   reporters.set(db, report);
 }
 
+/** A write waiting for another writer: since when (ms since the epoch), and the message told. */
+export interface WriterWait {
+  sinceMs: number;
+  message: string;
+}
+
+const watchers = new WeakMap<Db, (wait: WriterWait | null) => void>();
+
+/**
+ * Follows a connection's waits as a state (for a page that shows it, e.g. a web import's job): the
+ * wait when it is told, then null once the write has gone ahead or given up.
+ */
+export function watchWriterWait(db: Db, watch: (wait: WriterWait | null) => void): void {
+  watchers.set(db, watch);
+}
+
 /** Thrown when another process held the database for longer than a write may wait. */
 export class WriterWaitError extends Error {
   constructor(waitedMs: number) {
@@ -52,25 +68,31 @@ export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: n
   if (db.inTransaction) return body();
   const maxWaitMs = opts.maxWaitMs ?? DEFAULT_MAX_WAIT_MS;
   let started = false;
+  let told = false;
+  const watch = watchers.get(db);
   const tx = db.transaction(() => {
     started = true;
+    if (told) watch?.(null);
     return body();
   });
   const t0 = Date.now();
-  let told = false;
   for (;;) {
     try {
       return tx.immediate();
     } catch (e) {
       if (started || !isBusyError(e)) throw e;
       const waited = Date.now() - t0;
-      if (waited >= maxWaitMs) throw new WriterWaitError(waited);
+      if (waited >= maxWaitMs) {
+        if (told) watch?.(null);
+        throw new WriterWaitError(waited);
+      }
       if (!told) {
         told = true;
-        (reporters.get(db) ?? (() => undefined))(
+        const message =
           `waiting: another process is writing to ${db.name === ':memory:' ? 'the database' : db.name}; ` +
-            'this write goes ahead as soon as it has finished (nothing is lost by waiting)',
-        );
+          'this write goes ahead as soon as it has finished (nothing is lost by waiting)';
+        (reporters.get(db) ?? (() => undefined))(message);
+        watch?.({ sinceMs: t0, message });
       }
       pause(PAUSE_MS);
     }

@@ -16,6 +16,7 @@ import { importFile } from '../ingest/pipeline.ts';
 import type { ImportOptions, ImportProgress, ImportReport } from '../ingest/types.ts';
 import { type Db, openDatabase } from '../store/db.ts';
 import { databaseFile, startModuleWorker } from '../store/worker-thread.ts';
+import { type WriterWait, watchWriterWait } from '../store/writer.ts';
 
 export type ImportRequest = Omit<ImportOptions, 'onProgress' | 'now'>;
 
@@ -27,17 +28,21 @@ interface WorkerInput {
 
 type WorkerMessage =
   | { type: 'progress'; progress: ImportProgress }
+  | { type: 'wait'; wait: WriterWait | null }
   | { type: 'done'; report: ImportReport }
   | { type: 'error'; message: string; stack: string | null };
 
 /**
  * Imports one file: in a worker thread when the database is a file, else in this thread. Resolves
  * with the report; rejects when importFile throws (I/O failure, internal error) or the worker dies.
+ * `onWait` hears when the import waits for another process writing to the database (the wait, then
+ * null once it goes ahead; src/store/writer.ts).
  */
 export function runImport(
   db: Db,
   request: ImportRequest,
   onProgress?: (p: ImportProgress) => void,
+  onWait?: (wait: WriterWait | null) => void,
 ): Promise<ImportReport> {
   const file = databaseFile(db);
   if (file === null) return importFile(db, { ...request, onProgress });
@@ -47,6 +52,7 @@ export function runImport(
     let settled = false;
     worker.on('message', (m: WorkerMessage) => {
       if (m.type === 'progress') onProgress?.(m.progress);
+      else if (m.type === 'wait') onWait?.(m.wait);
       else if (m.type === 'done') {
         settled = true;
         resolve(m.report);
@@ -71,6 +77,7 @@ export function runImport(
 async function workerMain(input: WorkerInput): Promise<void> {
   const port = parentPort!;
   const db = openDatabase(input.dbFile);
+  watchWriterWait(db, (wait) => port.postMessage({ type: 'wait', wait } satisfies WorkerMessage));
   try {
     const report = await importFile(db, {
       ...input.request,

@@ -15,6 +15,8 @@ export interface JobFileView {
   rows: number;
   report: ReportView | null;
   error: string | null;
+  /** While the file waits for another process writing to the database: since when, ISO 8601 UTC. */
+  waitingSince?: string | null;
 }
 
 export interface JobView {
@@ -71,6 +73,15 @@ export function ImportJob(props: { job: JobView; page?: { file: number; page: nu
           {bytes(read)} of {bytes(total)} read
           {job.state === 'queued' ? ' — waiting for an earlier import to finish' : ''}.
         </p>
+        {job.files
+          .filter((f) => f.state === 'running' && f.waitingSince)
+          .map((f) => (
+            <p class="vc-job-wait" role="status">
+              Waiting for another writer: another process (a command-line import, another server) is writing
+              to the database since {clock(f.waitingSince!)}. <span class="vc-filename">{f.name}</span> is
+              imported as soon as it has finished; nothing is lost by waiting.
+            </p>
+          ))}
         <table class="vc-table vc-job-files">
           <thead>
             <tr>
@@ -86,7 +97,11 @@ export function ImportJob(props: { job: JobView; page?: { file: number; page: nu
               <tr>
                 <td class="vc-filename">{f.name}</td>
                 <td>{f.kind}</td>
-                <td>{stateText(f.state)}</td>
+                <td>
+                  {f.state === 'running' && f.waitingSince
+                    ? `waiting for another writer since ${clock(f.waitingSince)}`
+                    : stateText(f.state)}
+                </td>
                 <td class="num">
                   <progress
                     max={Math.max(f.bytesTotal, 1)}
@@ -134,6 +149,11 @@ export function ImportJob(props: { job: JobView; page?: { file: number; page: nu
       )}
     </div>
   );
+}
+
+/** A time, UTC, to the second: 2026-03-02T08:00:05.123Z → 2026-03-02 08:00:05 UTC. */
+function clock(iso: string): string {
+  return `${iso.slice(0, 10)} ${iso.slice(11, 19)} UTC`;
 }
 
 function stateText(s: JobFileView['state']): string {

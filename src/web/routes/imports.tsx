@@ -302,6 +302,7 @@ export function register(app: Hono, ctx: AppContext): void {
           rows: 0,
           report: null,
           error: null,
+          waitingSince: null,
         })),
       },
       async (_update, self) => {
@@ -318,7 +319,14 @@ export function register(app: Hono, ctx: AppContext): void {
                   fp.bytesTotal = p.bytesTotal;
                   fp.rows = p.rows;
                 },
+                (wait) => {
+                  // Another process holds the write lock (a CLI import, a second server): the job
+                  // page says so, and since when, until the import goes ahead.
+                  fp.waitingSince = wait ? new Date(wait.sinceMs).toISOString() : null;
+                  if (wait) ctx.log(`import of ${fp.name}: ${wait.message}`);
+                },
               );
+              fp.waitingSince = null;
               fp.rows = fp.report.rowsRead;
               fp.bytesRead = fp.bytesTotal;
               fp.state = 'done';
