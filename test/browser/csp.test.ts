@@ -65,7 +65,12 @@ describe.skipIf(!run)('the Content-Security-Policy in Chromium', () => {
       'tools',
       'parameters',
       'calculators',
+      'calculators/class-limit',
+      'calibration',
+      'tools/learned',
       'imports',
+      'imports/history',
+      'audit',
     ]) {
       const { page, errors } = await open(path);
       expect(await page.evaluate('typeof window.htmx'), path).toBe('object');

@@ -230,7 +230,16 @@ describe('roles', () => {
     const own = await alice.post(`/parameters/${setByAlice}/adopt`, {});
     expect(own.status).toBe(422);
     expect(await own.text()).toContain('You proposed this set: another approver has to adopt it.');
+    // The same through htmx (the refusal swaps into the page with 200), and with a typed name that
+    // is not hers: the account decides, and nothing is adopted or recorded as adopted.
+    const swapped = await alice.post(
+      `/parameters/${setByAlice}/adopt`,
+      { name: 'Bob Approver' },
+      { 'HX-Request': 'true' },
+    );
+    expect(await swapped.text()).toContain('You proposed this set: another approver has to adopt it.');
     expect(adoptedParameterSetId(db)).toBeNull();
+    expect(readAudit(db).some((e) => e.action === 'parameters.adopt')).toBe(false);
     const bob = await signIn(app, 'bob');
     expect((await bob.post(`/parameters/${setByAlice}/adopt`, { name: 'ignored' })).status).toBe(303);
     expect(adoptedParameterSetId(db)).toBe(setByAlice);
