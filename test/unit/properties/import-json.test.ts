@@ -1,5 +1,5 @@
 /**
- * Property-based tests of the import kinds (issue 14), the JSON configuration kinds: products, tools.
+ * Property-based tests of the import kinds (issue 14), part 4: the JSON configuration kinds, products and tools.
  * Generators and checks: test/helpers/import-fuzz.ts (fast-check; fixed seeds, so a failure
  * reproduces). No expected values: the properties are the error contract of docs/architecture.md
  * (a report or clear issues, never an exception; nothing of a rejected file stored; no NaN or
@@ -19,11 +19,11 @@ describe.each([
     // The generators make both kinds of file: some pass, some are refused.
     expect(r.refused).toBeGreaterThan(0);
     expect(r.refused).toBeLessThan(READ_RUNS);
-  }, 60_000);
+  }, 120_000);
   it(`${IMPORT_RUNS} generated files imported: a rejected file stores nothing, nothing non-finite stored`, async () => {
     const s = await p.imports();
     expect(Object.values(s).reduce((a, b) => a + b, 0)).toBe(IMPORT_RUNS);
     expect(s.rejected ?? 0).toBeGreaterThan(0);
     expect((s.imported ?? 0) + (s.partial ?? 0)).toBeGreaterThan(0);
-  }, 60_000);
+  }, 120_000);
 });
