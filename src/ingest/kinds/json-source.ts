@@ -141,7 +141,7 @@ function syntaxError(text: string, e: ParseError): JsonSyntaxError {
   const atEnd = e.offset >= text.length;
   const { line, column } = positionOf(lineStarts(text), e.offset);
   const rule =
-    e.offset === 0 && text.trim() === '' && code === 'ValueExpected'
+    code === 'ValueExpected' && /^[ \t\r\n]*$/.test(text)
       ? 'the file is empty: a JSON object is expected'
       : (RULES[code]?.(found, atEnd) ?? `not JSON here (${code})`);
   return new JsonSyntaxError(line, column, rule, code, found);

@@ -97,6 +97,7 @@ describe('parseJsonSource (RFC 8259 with line numbers)', () => {
     ['// comment\n{}', 1, 1, 'JSON has no comments (// or /* */)', 'InvalidCommentToken'],
     ['{"a": [1, 2', 1, 12, 'the file ends inside an array (a "]" is missing)', 'CloseBracketExpected'],
     ['', 1, 1, 'the file is empty: a JSON object is expected', 'ValueExpected'],
+    [' \r\n\t', 2, 2, 'the file is empty: a JSON object is expected', 'ValueExpected'],
     ['{} {}', 1, 4, 'unexpected text after the end of the JSON value', 'EndOfFileExpected'],
     ['{"__proto__": {"polluted": true}}', 1, 2, `the key "__proto__" ${PROTO}`, 'ForbiddenKey'],
     ['{"a": [\n{"constructor": {"prototype": {}}}]}', 2, 2, `the key "constructor" ${PROTO}`, 'ForbiddenKey'],
