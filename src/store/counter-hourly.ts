@@ -225,8 +225,8 @@ export interface HourlyQuery {
   locationIds: readonly string[];
   fromMs: number;
   toMs: number;
-  /** Occupancy state code (1 as-built, 2 at-rest, 3 operational); null: every state. */
-  roomState?: number | null;
+  /** Occupancy state codes to include (0 not stated, 1 as-built, 2 at-rest, 3 operational); null: every state. */
+  roomStates?: readonly number[] | null;
   /** Channels wanted, whole nm; omitted: all. */
   diametersNm?: readonly number[];
 }
@@ -254,11 +254,11 @@ export function readHourly(db: Db, q: HourlyQuery): HourlyRow[] {
       h.n_zero_run AS nZeroRun, h.n_gap AS nGap
     FROM counter_hourly h JOIN locations l ON l.id = h.location
    WHERE l.location_id IN (${locs}) AND h.hour_ms >= ? AND h.hour_ms < ?
-     ${q.roomState != null ? 'AND h.room_state = ?' : ''}
+     ${q.roomStates ? `AND h.room_state IN (${q.roomStates.map(() => '?').join(',') || 'NULL'})` : ''}
      ${sizes ? `AND h.diameter_nm IN (${sizes.map(() => '?').join(',')})` : ''}
    ORDER BY l.location_id, h.diameter_nm, h.hour_ms, h.room_state`;
   const args: unknown[] = [...q.locationIds, Math.round(q.fromMs), Math.round(q.toMs)];
-  if (q.roomState != null) args.push(q.roomState);
+  if (q.roomStates) args.push(...q.roomStates);
   if (sizes) args.push(...sizes);
   return db.prepare(sql).all(...args) as HourlyRow[];
 }
@@ -292,11 +292,11 @@ export function readHourlyTotals(db: Db, q: HourlyQuery): HourlyTotals[] {
       sum(h.n_zero_run) AS nZeroRun
     FROM counter_hourly h JOIN locations l ON l.id = h.location
    WHERE l.location_id IN (${locs}) AND h.hour_ms >= ? AND h.hour_ms < ?
-     ${q.roomState != null ? 'AND h.room_state = ?' : ''}
+     ${q.roomStates ? `AND h.room_state IN (${q.roomStates.map(() => '?').join(',') || 'NULL'})` : ''}
    GROUP BY l.location_id, h.diameter_nm
    ORDER BY l.location_id, h.diameter_nm`;
   const args: unknown[] = [...q.locationIds, Math.round(q.fromMs), Math.round(q.toMs)];
-  if (q.roomState != null) args.push(q.roomState);
+  if (q.roomStates) args.push(...q.roomStates);
   return db.prepare(sql).all(...args) as HourlyTotals[];
 }
 
@@ -310,7 +310,7 @@ export function countShortSamples(
   locationId: string,
   fromMs: number,
   toMs: number,
-  roomState: number | null,
+  roomStates: readonly number[] | null,
   minVolumeM3: number,
   minDurationMs: number,
 ): number {
@@ -318,14 +318,38 @@ export function countShortSamples(
     .prepare(
       `SELECT count(*) AS n FROM counter_samples s JOIN locations l ON l.id = s.location
         WHERE l.location_id = ? AND s.start_ms >= ? AND s.start_ms < ? AND (s.flags & 5) = 0
-          ${roomState != null ? 'AND s.room_state = ?' : ''}
+          ${roomStates ? `AND s.room_state IN (${roomStates.map(() => '?').join(',') || 'NULL'})` : ''}
           AND (s.volume_m3 < ? OR s.duration_ms < ?)`,
     )
     .get(
       ...([locationId, Math.round(fromMs), Math.round(toMs)] as unknown[]),
-      ...(roomState != null ? [roomState] : []),
+      ...(roomStates ?? []),
       minVolumeM3,
       minDurationMs,
     ) as { n: number };
   return r.n;
+}
+
+/** Location ids that hold any aggregate (any counter sample ever stored). */
+export function locationsWithSamples(db: Db): Set<string> {
+  if (!tableExists(db)) return new Set();
+  return new Set(
+    db
+      .prepare(
+        'SELECT l.location_id FROM locations l WHERE EXISTS (SELECT 1 FROM counter_hourly h WHERE h.location = l.id)',
+      )
+      .pluck()
+      .all() as string[],
+  );
+}
+
+/** First and last hour with samples of the given locations (null when none). */
+export function hourlySpan(db: Db, locationIds: readonly string[]): { firstMs: number | null; lastMs: number | null } {
+  if (!tableExists(db) || locationIds.length === 0) return { firstMs: null, lastMs: null };
+  return db
+    .prepare(
+      `SELECT min(h.hour_ms) AS firstMs, max(h.hour_ms) AS lastMs FROM counter_hourly h JOIN locations l ON l.id = h.location
+        WHERE l.location_id IN (${locationIds.map(() => '?').join(',')})`,
+    )
+    .get(...locationIds) as { firstMs: number | null; lastMs: number | null };
 }
