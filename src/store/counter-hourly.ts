@@ -344,7 +344,10 @@ export function locationsWithSamples(db: Db): Set<string> {
 }
 
 /** First and last hour with samples of the given locations (null when none). */
-export function hourlySpan(db: Db, locationIds: readonly string[]): { firstMs: number | null; lastMs: number | null } {
+export function hourlySpan(
+  db: Db,
+  locationIds: readonly string[],
+): { firstMs: number | null; lastMs: number | null } {
   if (!tableExists(db) || locationIds.length === 0) return { firstMs: null, lastMs: null };
   return db
     .prepare(

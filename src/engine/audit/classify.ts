@@ -93,7 +93,10 @@ export function classifyArea(input: ClassifyInput): AreaClassification {
   const byLoc = new Map<string, Map<number, HourlyTotals>>();
   for (const t of input.totals) {
     let m = byLoc.get(t.locationId);
-    if (!m) byLoc.set(t.locationId, (m = new Map()));
+    if (!m) {
+      m = new Map();
+      byLoc.set(t.locationId, m);
+    }
     m.set(t.diameterNm, t);
   }
   // Sizes the counters report at every location with data (Table 1 sizes only).

@@ -8,17 +8,18 @@
  * location of another type (a mini-environment or EFEM inside a room is a clean zone of its own,
  * classified by asking for it) — of which those with counter samples are the sampling locations.
  */
-import type { Db } from '../../store/db.ts';
+
 import {
+  countShortSamples,
   type HourlyQuery,
   locationsWithSamples,
   readHourly,
   readHourlyTotals,
 } from '../../store/counter-hourly.ts';
-import { countShortSamples } from '../../store/counter-hourly.ts';
-import { getLocation, listLocations, type LocationRecord } from '../../store/locations.ts';
-import { checkPeriod, roomStateCodes } from './common.ts';
+import type { Db } from '../../store/db.ts';
+import { getLocation, type LocationRecord, listLocations } from '../../store/locations.ts';
 import { type AreaInfo, classifyArea } from './classify.ts';
+import { checkPeriod, roomStateCodes } from './common.ts';
 import { AuditInputError } from './errors.ts';
 import type { AreaClassification, AuditPeriod, OccupancySelection } from './types.ts';
 
