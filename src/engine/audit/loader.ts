@@ -23,12 +23,22 @@ import {
   readHourlyTotals,
 } from '../../store/counter-hourly.ts';
 import type { Db } from '../../store/db.ts';
+import { appendAck, latestAcks } from '../../store/excursion-acks.ts';
 import { getLocation, type LocationRecord, listLocations } from '../../store/locations.ts';
 import { type AreaInfo, classifyArea } from './classify.ts';
 import { checkPeriod, mToNm, nmToM, periodWords, roomStateCodes, sizeWords } from './common.ts';
 import { AuditInputError } from './errors.ts';
+import { DEFAULT_RULES, findExcursions, seriesFromRows } from './excursions.ts';
 import { type DerivedMethod, deriveLevels } from './levels.ts';
-import type { AreaClassification, AuditPeriod, LevelRecord, OccupancySelection } from './types.ts';
+import type {
+  AreaClassification,
+  AuditPeriod,
+  Excursion,
+  ExcursionAck,
+  ExcursionRules,
+  LevelRecord,
+  OccupancySelection,
+} from './types.ts';
 
 export interface AreaMembers {
   area: LocationRecord;
@@ -269,4 +279,63 @@ export function deriveAndStoreLevels(db: Db, req: DeriveRequest): LevelRecord {
     setAtMs: req.nowMs,
   });
   return toRecord(stored);
+}
+
+// ───────────────────────────── excursions ─────────────────────────────
+
+export interface ExcursionOptions {
+  period: AuditPeriod;
+  occupancy?: OccupancySelection;
+  rules?: ExcursionRules;
+}
+
+/** The inputs of an area's excursions, charts and costs: members, levels and hourly series. */
+export function loadAreaSeries(db: Db, areaId: string, period: AuditPeriod, occupancy: OccupancySelection) {
+  const members = loadAreaMembers(db, areaId);
+  const ids = members.sampling.map((l) => l.locationId);
+  const rows = loadHourly(db, ids, period, occupancy);
+  return {
+    members,
+    levels: loadCurrentLevels(db, members.sampling),
+    series: seriesFromRows(rows),
+  };
+}
+
+/** Excursions of an area over a period, with their acknowledgements. */
+export function findExcursionsInDb(db: Db, areaId: string, opts: ExcursionOptions): Excursion[] {
+  const period = checkPeriod(opts.period);
+  const occupancy = opts.occupancy ?? 'operational';
+  const { members, levels, series } = loadAreaSeries(db, areaId, period, occupancy);
+  if (members.sampling.length === 0)
+    throw new AuditInputError(
+      `area ${areaId} has no sampling locations: no location in its air has counter samples`,
+    );
+  const found = findExcursions({ areaId, series, levels, rules: opts.rules ?? DEFAULT_RULES, period });
+  const acks = latestAcks(
+    db,
+    found.map((e) => e.id),
+  );
+  return found.map((e) => ({ ...e, acknowledgement: acks.get(e.id) ?? null }));
+}
+
+/**
+ * Acknowledges an excursion with a comment (append-only; the latest holds).
+ *
+ * @throws AuditInputError for an empty comment or one over 4000 characters, or a malformed id
+ */
+export function acknowledgeExcursion(
+  db: Db,
+  excursionId: string,
+  comment: string,
+  account: string,
+  nowMs: number,
+): ExcursionAck {
+  const text = comment.trim();
+  if (
+    !/^(action-point|alert-run|area-alert|ratio-shift|data-quality):[^:]{1,200}:\d+:-?\d+$/.test(excursionId)
+  )
+    throw new AuditInputError(`"${excursionId}" is not an excursion id (rule:location:size-nm:start-ms)`);
+  if (text.length === 0) throw new AuditInputError('an acknowledgement needs a comment');
+  if (text.length > 4000) throw new AuditInputError('the comment is longer than 4000 characters');
+  return appendAck(db, { excursionId, comment: text, account, atMs: nowMs });
 }
