@@ -14,8 +14,8 @@ import {
   acknowledgeExcursion,
   deriveAndStoreLevels,
   findExcursionsInDb,
-  loadCurrentLevels,
   loadAreaMembers,
+  loadCurrentLevels,
 } from '../../src/engine/audit/loader.ts';
 import type { Excursion } from '../../src/engine/audit/types.ts';
 import { loadPair } from '../../src/engine/loader.ts';
