@@ -10,6 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
 import { auditAreaFromDb } from '../../src/engine/audit/audit.ts';
 import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
+import { chamberHistoryFromDb, lineParetoFromDb, searchLine } from '../../src/engine/audit/line-view.ts';
 import {
   acknowledgeExcursion,
   deriveAndStoreLevels,
@@ -216,5 +217,47 @@ describe('levels and acknowledgements', () => {
     });
     expect(a.classification.status).toBe('no data');
     expect(a.excursions).toEqual([]);
+  });
+});
+
+describe('the line view', () => {
+  it('the Pareto across the assessed lots sums each category to a share of 1, largest first', () => {
+    const p = lineParetoFromDb(db, PERIOD, asOfMs);
+    expect(p.lots).toContain('TR2653');
+    for (const cat of ['tool', 'wait location', 'clean'] as const) {
+      const list = p.entries.filter((e) => e.category === cat);
+      expect(list.length).toBeGreaterThan(0);
+      // Shares of a category add up to 1 (floating-point sum of a few terms: 1e-12).
+      expect(Math.abs(list.reduce((a, e) => a + e.share, 0) - 1)).toBeLessThan(1e-12);
+      for (let i = 1; i < list.length; i++)
+        expect(list[i]!.expectedVoids).toBeLessThanOrEqual(list[i - 1]!.expectedVoids);
+    }
+    // The buffer cart bay of the night excursion leads the waits (docs/demo.md: TR2653 parked there).
+    expect(p.entries.find((e) => e.category === 'wait location')!.key).toBe('BOR-B2');
+  });
+  it('each chamber’s history lists its passes in time order with an interval around each count', () => {
+    const h = chamberHistoryFromDb(db);
+    expect(h.length).toBeGreaterThan(0);
+    for (const c of h) {
+      for (let i = 1; i < c.points.length; i++)
+        expect(c.points[i]!.atMs).toBeGreaterThanOrEqual(c.points[i - 1]!.atMs);
+      for (const p of c.points) {
+        expect(p.lower).toBeLessThanOrEqual(p.addersPerPass);
+        expect(p.upper).toBeGreaterThanOrEqual(p.addersPerPass);
+      }
+      expect(c.lots).toEqual([...new Set(c.points.map((p) => p.lotId))].sort());
+    }
+  });
+  it('search finds wafers, pairs, lots, tools and locations by id, exact match first; wildcards are literal', () => {
+    expect(searchLine(db, 'TR2653-P01')[0]).toEqual({
+      kind: 'pair',
+      id: 'TR2653-P01',
+      label: 'pair of lot TR2653',
+    });
+    expect(searchLine(db, 'tr2653')[0]).toMatchObject({ kind: 'lot', id: 'TR2653' });
+    expect(searchLine(db, 'BOR-B2').map((r) => r.kind)).toContain('location');
+    expect(searchLine(db, 'LACT-1').some((r) => r.kind === 'tool')).toBe(true);
+    expect(searchLine(db, '%')).toEqual([]);
+    expect(searchLine(db, '  ')).toEqual([]);
   });
 });
