@@ -27,7 +27,6 @@ import {
   line,
   location,
   pair,
-  product,
   scan,
   someParticles,
   step,
