@@ -122,7 +122,7 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
     unit: s.unit,
     current: s.current,
     bracket: [toX(s.lo), toX(s.hi)] as [number, number],
-    tolerance: Math.abs(toX(s.lo + s.tolerance) - toX(s.lo)),
+    tolerance: s.toX ? Math.abs(toX(s.lo + s.tolerance) - toX(s.lo)) : s.tolerance,
   };
   const tolWords = (u: number) => s.words(Math.abs(toX(u + s.tolerance) - toX(u))).replace(/^ISO class /, '');
   const [fav, unfav] = s.favourable === 'lo' ? [s.lo, s.hi] : [s.hi, s.lo];
@@ -164,7 +164,7 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
   const value = toX(okU);
   return {
     ...base,
-    tolerance: Math.abs(toX(okU + s.tolerance) - toX(okU)),
+    tolerance: s.toX ? Math.abs(toX(okU + s.tolerance) - toX(okU)) : s.tolerance,
     status: 'found',
     value,
     margin: s.current === null ? null : value - s.current,
