@@ -138,5 +138,16 @@ describe('sensitivity', () => {
     expect(call(f)).not.toBe(r.base.call);
     expect(call(f / 10 ** FLIP_TOLERANCE_DECADES)).toBe(r.base.call);
     expect(row.flip.text).toMatch(/the call becomes/);
+    // the spec verdict flips there too (the call changes because the spec breaks), checked forward
+    expect(r.base.withinSpec).toBe(true);
+    expect(row.withinSpecAtHigh).toBe(false);
+    const g = row.specFlip.value!;
+    const within = (x: number) =>
+      assessPairScenario(ctx, { levers: [{ kind: 'adders-scale', factor: x }] }, 'summary').specChecks.every(
+        (c) => c.pass,
+      );
+    expect(within(g)).toBe(false);
+    expect(within(g / 10 ** FLIP_TOLERANCE_DECADES)).toBe(true);
+    expect(row.specFlip.text).toMatch(/outside spec from ×/);
   });
 });
