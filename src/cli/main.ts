@@ -15,8 +15,12 @@ import { importCommand } from './commands/import.ts';
 import { learn } from './commands/learn.ts';
 import { levels } from './commands/levels.ts';
 import { params } from './commands/params.ts';
+import { sensitivity } from './commands/sensitivity.ts';
 import { serve } from './commands/serve.ts';
 import { signoff } from './commands/signoff.ts';
+import { solve } from './commands/solve.ts';
+import { whatif } from './commands/whatif.ts';
+import { scenarios } from './commands/whatif-saved.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
@@ -25,6 +29,10 @@ export const COMMANDS: Command[] = [
   calc,
   importCommand,
   assess,
+  whatif,
+  solve,
+  sensitivity,
+  scenarios,
   learn,
   signoff,
   params,

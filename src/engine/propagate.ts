@@ -397,8 +397,12 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         continue;
       }
       const loc = line.locations[step.locationId];
-      const got = a.exposure.dose(step.locationId, from, stepEnd);
-      const durS = (stepEnd - from) / 1000;
+      // A what-if duration (src/engine/tuning): a shorter stay ends early and sees the air of its
+      // first part; a longer one sees the recorded air over its whole time, scaled (linear in time).
+      const scen = step.scenarioDurationS;
+      const doseEnd = scen !== undefined && scen * 1000 < stepEnd - from ? from + scen * 1000 : stepEnd;
+      const got = a.exposure.dose(step.locationId, from, doseEnd);
+      const durS = (doseEnd - from) / 1000;
       if (!got) {
         dataProblems.push({
           code: 'data-missing',
@@ -407,6 +411,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         continue;
       }
       const { d, channelSizesM } = got;
+      const doseFactor = scen !== undefined && scen > durS && durS > 0 ? scen / durS : 1;
       if (d.gapS > 0) {
         const frac = d.durationS > 0 ? d.gapS / d.durationS : 1;
         const fillWords =
@@ -447,12 +452,12 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
           actionPerM3: loc.levels.actionPerM3,
           firstMs: d.firstActionMs,
         });
-      const isolation = isolationOf(step.carrier, config);
+      const isolation = step.scenarioIsolation ?? isolationOf(step.carrier, config);
       const airVelocity = loc?.airVelocityMps ?? config.defaultAirVelocityMps;
       contributions.push({
         key: `${role}:wait:${step.seq}`,
         kind: 'wait',
-        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
+        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(scen ?? durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
         wafer: role,
         waferId: wafer.waferId,
         groupKey: `location:${step.locationId}`,
@@ -465,7 +470,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         lastCleanId: null,
         base: physics.deposition({
           channelSizesM,
-          dosePerChannel: d.dosePerChannel,
+          dosePerChannel: doseFactor === 1 ? d.dosePerChannel : d.dosePerChannel.map((v) => v * doseFactor),
           airVelocityMps: airVelocity,
           orientation: step.orientation,
           isolation,
