@@ -102,7 +102,7 @@ describe('tornado', () => {
     expect(flips.map((f) => f.attrs['data-key'])).toEqual(['energy', 'energy']);
     const voidsPanel = byClass(svg, 'vc-tornado-panel')[0]!;
     const limit = byClass(voidsPanel, 'vc-tornado-limit')[0]!;
-    const flipX = Number(byClass(voidsPanel, 'vc-tornado-flip')[0]!.attrs.points.split(',')[0]);
+    const flipX = Number(byClass(voidsPanel, 'vc-tornado-flip')[0]!.attrs.points!.split(',')[0]);
     // hand computation: the voids flip is at 5, which is the spec limit's value
     expect(flipX).toBeCloseTo(Number(limit.attrs.x1), 0);
     expect(byClass(byClass(svg, 'vc-tornado-panel')[1]!, 'vc-tornado-limit')).toHaveLength(0);
