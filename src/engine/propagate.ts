@@ -407,6 +407,8 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         continue;
       }
       const { d, channelSizesM } = got;
+      // A what-if duration (src/engine/tuning): the same air over a longer or shorter stay.
+      const doseFactor = step.scenarioDurationS !== undefined && durS > 0 ? step.scenarioDurationS / durS : 1;
       if (d.gapS > 0) {
         const frac = d.durationS > 0 ? d.gapS / d.durationS : 1;
         const fillWords =
@@ -447,12 +449,12 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
           actionPerM3: loc.levels.actionPerM3,
           firstMs: d.firstActionMs,
         });
-      const isolation = isolationOf(step.carrier, config);
+      const isolation = step.scenarioIsolation ?? isolationOf(step.carrier, config);
       const airVelocity = loc?.airVelocityMps ?? config.defaultAirVelocityMps;
       contributions.push({
         key: `${role}:wait:${step.seq}`,
         kind: 'wait',
-        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
+        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(step.scenarioDurationS ?? durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
         wafer: role,
         waferId: wafer.waferId,
         groupKey: `location:${step.locationId}`,
@@ -465,7 +467,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         lastCleanId: null,
         base: physics.deposition({
           channelSizesM,
-          dosePerChannel: d.dosePerChannel,
+          dosePerChannel: doseFactor === 1 ? d.dosePerChannel : d.dosePerChannel.map((v) => v * doseFactor),
           airVelocityMps: airVelocity,
           orientation: step.orientation,
           isolation,

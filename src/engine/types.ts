@@ -90,6 +90,14 @@ export interface LedgerStepInput {
   carrier: CarrierState;
   /** Face orientation; the ledger default is face up in an open cassette. */
   orientation: FaceOrientation;
+  /**
+   * What-if only (src/engine/tuning, never stored): this wait or transfer lasts this long, s, at the
+   * air it saw — its air dose is the recorded dose × scenarioDurationS / recorded duration
+   * (deposition is linear in time at a constant concentration). Absent: as recorded.
+   */
+  scenarioDurationS?: number;
+  /** What-if only: the isolation factor during this step (≥ 1). Absent: the config's for its carrier. */
+  scenarioIsolation?: number;
 }
 
 /** One wafer with everything the chain needs. */

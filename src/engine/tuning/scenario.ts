@@ -1,0 +1,466 @@
+/**
+ * applyScenario: a scenario's levers applied to a pair's or lot's inputs, returning new inputs.
+ * Pure: nothing given is mutated (objects a lever changes are copied, the rest shared), nothing is
+ * stored. Every lever is checked first (zod for its shape and ranges, then against the inputs: a
+ * location, clean or tool the subject does not have); a bad lever throws ScenarioError naming it,
+ * and nothing is applied.
+ */
+import { z } from 'zod';
+import { fitRemovalCurve } from '../../model/clean.ts';
+import { DEFAULT_ASSESS_CONFIG } from '../config.ts';
+import type {
+  AssessConfig,
+  CleanInput,
+  CounterSeriesInput,
+  LedgerStepInput,
+  LineData,
+  PairInput,
+  ProductInput,
+  ToolInput,
+  WaferInput,
+} from '../types.ts';
+import { type Lever, type Scenario, ScenarioError } from './types.ts';
+
+/** The inputs a scenario changes: the subject's pairs, the line data and the engine config. */
+export interface ScenarioInputs {
+  pairs: PairInput[];
+  line: LineData;
+  config?: Partial<AssessConfig>;
+}
+
+export interface ApplyOptions {
+  /**
+   * Line data under other parameter sets, by set id ("typed" for the typed values), for a
+   * `parameters` lever (the loader builds them; see whatif.ts). Missing: that lever is refused.
+   */
+  parameterLines?: Record<string, LineData>;
+}
+
+/** Most extra passes a lever may ask for (the spec's re-clean limit is checked by the call). */
+export const MAX_EXTRA_PASSES = 10;
+
+const pos = z.number().finite().positive();
+const nonneg = z.number().finite().min(0);
+const id = z.string().trim().min(1);
+
+const leverSchema = z.discriminatedUnion('kind', [
+  z
+    .object({
+      kind: z.literal('clean'),
+      cleanId: id,
+      extraPasses: z.number().int().min(0).max(MAX_EXTRA_PASSES).optional(),
+      d50M: pos.optional(),
+      widthDecades: pos.optional(),
+      maxEfficiency: z.number().min(0).max(1).optional(),
+      removalAt: z
+        .object({ diameterM: pos, efficiency: z.number().min(0).max(1) })
+        .strict()
+        .optional(),
+    })
+    .strict()
+    .refine(
+      (l) =>
+        l.extraPasses !== undefined ||
+        l.d50M !== undefined ||
+        l.widthDecades !== undefined ||
+        l.maxEfficiency !== undefined ||
+        l.removalAt !== undefined,
+      'a clean lever needs passes, d50, width, maximum removal or a removal at a size',
+    ),
+  z
+    .object({
+      kind: z.literal('wait'),
+      locationId: id,
+      durationS: nonneg.optional(),
+      carrier: z.enum(['open', 'closed', 'purged', 'in-tool']).optional(),
+      isolation: z.number().finite().min(1).optional(),
+    })
+    .strict()
+    .refine(
+      (l) => l.durationS !== undefined || l.carrier !== undefined || l.isolation !== undefined,
+      'a wait lever needs a duration, a carrier or an isolation factor',
+    ),
+  z
+    .object({
+      kind: z.literal('air'),
+      locationId: id,
+      scale: nonneg.optional(),
+      isoClass: z.number().min(1).max(9).optional(),
+    })
+    .strict()
+    .refine(
+      (l) => (l.scale === undefined) !== (l.isoClass === undefined),
+      'an air lever needs a scale or a class',
+    ),
+  z
+    .object({
+      kind: z.literal('adders'),
+      toolKey: id,
+      factor: nonneg.optional(),
+      countAbove: nonneg.optional(),
+    })
+    .strict()
+    .refine(
+      (l) => (l.factor === undefined) !== (l.countAbove === undefined),
+      'an adders lever needs a factor or a count',
+    ),
+  z.object({ kind: z.literal('energy'), energyJm2: pos }).strict(),
+  z.object({ kind: z.literal('threshold'), thresholdM: pos }).strict(),
+  z
+    .object({ kind: z.literal('parameters'), parameterSetId: z.number().int().positive().nullable() })
+    .strict(),
+  z.object({ kind: z.literal('deposition'), factor: pos }).strict(),
+  z.object({ kind: z.literal('isolation'), isolation: z.number().finite().min(1) }).strict(),
+  z.object({ kind: z.literal('tail-slope'), slope: pos }).strict(),
+  z.object({ kind: z.literal('removal-scale'), d50Factor: pos }).strict(),
+  z.object({ kind: z.literal('adders-scale'), factor: nonneg }).strict(),
+]);
+
+export const scenarioSchema = z
+  .object({ name: z.string().max(200).optional(), levers: z.array(z.unknown()).max(50) })
+  .strict();
+
+/**
+ * Checks a scenario's shape and ranges (not yet against any inputs) and returns it typed. Throws
+ * ScenarioError naming the lever (its index and kind) and the rule broken.
+ */
+export function parseScenario(raw: unknown): Scenario {
+  const top = scenarioSchema.safeParse(raw);
+  if (!top.success) throw new ScenarioError(`scenario: ${top.error.issues.map(issueText).join('; ')}`);
+  const levers: Lever[] = top.data.levers.map((l, i) => {
+    const r = leverSchema.safeParse(l);
+    if (!r.success) {
+      const kind = typeof l === 'object' && l && 'kind' in l ? String((l as { kind: unknown }).kind) : '?';
+      throw new ScenarioError(`lever ${i + 1} (${kind}): ${r.error.issues.map(issueText).join('; ')}`, i);
+    }
+    return r.data as Lever;
+  });
+  return top.data.name === undefined ? { levers } : { name: top.data.name, levers };
+}
+
+function issueText(i: z.core.$ZodIssue): string {
+  const path = i.path.length ? `${i.path.join('.')}: ` : '';
+  return `${path}${i.message}`;
+}
+
+/** A lever in plain words (what the CLI and the pages list). */
+export function leverWords(l: Lever): string {
+  const nm = (m: number) => `${+(m * 1e9).toPrecision(4)} nm`;
+  const h = (s: number) => `${+(s / 3600).toPrecision(4)} h`;
+  switch (l.kind) {
+    case 'clean': {
+      const parts: string[] = [];
+      if (l.extraPasses !== undefined) parts.push(`${l.extraPasses} extra pass(es)`);
+      if (l.d50M !== undefined) parts.push(`d50 ${nm(l.d50M)}`);
+      if (l.widthDecades !== undefined) parts.push(`width ${l.widthDecades} decades`);
+      if (l.maxEfficiency !== undefined)
+        parts.push(`maximum removal ${+(l.maxEfficiency * 100).toPrecision(4)} %`);
+      if (l.removalAt)
+        parts.push(
+          `removal ${+(l.removalAt.efficiency * 100).toPrecision(4)} % at ${nm(l.removalAt.diameterM)}`,
+        );
+      return `clean ${l.cleanId}: ${parts.join(', ')}`;
+    }
+    case 'wait': {
+      const parts: string[] = [];
+      if (l.durationS !== undefined) parts.push(`each wait ${h(l.durationS)}`);
+      if (l.carrier) parts.push(`${l.carrier} carrier`);
+      if (l.isolation !== undefined) parts.push(`isolation ×${l.isolation}`);
+      return `waits at ${l.locationId}: ${parts.join(', ')}`;
+    }
+    case 'air':
+      return l.isoClass !== undefined
+        ? `air at ${l.locationId}: ISO class ${l.isoClass}`
+        : `air at ${l.locationId}: concentrations ×${l.scale}`;
+    case 'adders':
+      return l.factor !== undefined
+        ? `adders of ${l.toolKey}: ×${l.factor}`
+        : `adders of ${l.toolKey}: ${l.countAbove} per wafer pass`;
+    case 'energy':
+      return `interface energy ${l.energyJm2} J/m²`;
+    case 'threshold':
+      return `scan threshold ${nm(l.thresholdM)}`;
+    case 'parameters':
+      return l.parameterSetId === null
+        ? 'parameters: the typed values'
+        : `parameters: set ${l.parameterSetId}`;
+    case 'deposition':
+      return `deposition velocity ×${l.factor}`;
+    case 'isolation':
+      return `closed-carrier isolation ×${l.isolation}`;
+    case 'tail-slope':
+      return `tail slope α = ${l.slope}`;
+    case 'removal-scale':
+      return `every clean's d50 ×${l.d50Factor}`;
+    case 'adders-scale':
+      return `every tool's adders ×${l.factor}`;
+  }
+}
+
+/** The logistic parameters a clean uses (measured bands fitted first, as the engine does). */
+export function cleanLogistic(c: CleanInput): {
+  maxEfficiency: number;
+  halfSizeM: number;
+  widthDecades: number;
+} {
+  if (c.removalBands?.length) {
+    const p = fitRemovalCurve(
+      c.removalBands.map((b) => ({ lowerM: b.fromM, upperM: b.toM, before: b.before, after: b.after })),
+    ).params;
+    return { maxEfficiency: p.maxEfficiency, halfSizeM: p.d50M, widthDecades: 1 / (p.steepness * Math.LN10) };
+  }
+  return { maxEfficiency: c.maxEfficiency, halfSizeM: c.halfSizeM, widthDecades: c.widthDecades };
+}
+
+/** Smallest d50 a lever sets, m: a curve whose plateau reaches every size on the grid (10 nm). */
+const D50_FLOOR_M = 1e-12;
+
+/**
+ * The curve through (d, E) with width w: log10 d50 = log10 d + w·ln(E_max/E − 1); an E at or above
+ * E_max puts the plateau at every size (E_max raised to E).
+ */
+export function curveThrough(
+  base: { maxEfficiency: number; halfSizeM: number; widthDecades: number },
+  diameterM: number,
+  efficiency: number,
+): { maxEfficiency: number; halfSizeM: number; widthDecades: number } {
+  const w = base.widthDecades;
+  if (efficiency <= 0) return { maxEfficiency: 0, halfSizeM: base.halfSizeM, widthDecades: w };
+  const eMax = Math.max(base.maxEfficiency, efficiency);
+  const ratio = eMax / efficiency - 1;
+  const d50 = ratio > 0 ? 10 ** (Math.log10(diameterM) + w * Math.log(ratio)) : D50_FLOOR_M;
+  return { maxEfficiency: eMax, halfSizeM: Math.max(D50_FLOOR_M, d50), widthDecades: w };
+}
+
+function withClean(
+  c: CleanInput,
+  p: { maxEfficiency: number; halfSizeM: number; widthDecades: number },
+): CleanInput {
+  return { ...c, ...p, removalBands: null };
+}
+
+function scaleTool(t: ToolInput, f: number): ToolInput {
+  return {
+    ...t,
+    adders: t.adders ? { ...t.adders, countAbove: t.adders.countAbove * f } : null,
+    adderBands: t.adderBands ? t.adderBands.map((b) => ({ ...b, count: b.count * f })) : t.adderBands,
+  };
+}
+
+function scaleSeries(s: CounterSeriesInput, f: number): CounterSeriesInput {
+  return { ...s, cumulativePerM3: s.cumulativePerM3.map((v) => v * f) };
+}
+
+function mapWafers(pairs: PairInput[], fn: (w: WaferInput) => WaferInput): PairInput[] {
+  return pairs.map((p) => ({ ...p, top: fn(p.top), bottom: fn(p.bottom) }));
+}
+
+function subjectWords(pairs: PairInput[]): string {
+  if (pairs.length === 1) return `pair ${pairs[0]!.pairId}`;
+  const lots = [...new Set(pairs.map((p) => p.lotId))];
+  return lots.length === 1 ? `lot ${lots[0]}` : `${lots.length} lots`;
+}
+
+function isExposure(s: LedgerStepInput): boolean {
+  return s.kind === 'wait' || s.kind === 'transfer';
+}
+
+/**
+ * Applies a scenario. Returns new inputs; the given ones are left as they were. Throws ScenarioError
+ * (naming the lever) for a lever whose shape or range is wrong or whose location, clean or tool the
+ * subject does not have.
+ */
+export function applyScenario(
+  inputs: ScenarioInputs,
+  raw: Scenario,
+  opts: ApplyOptions = {},
+): ScenarioInputs {
+  const scenario = parseScenario(raw);
+  let { pairs, line } = inputs;
+  let config: Partial<AssessConfig> = { ...(inputs.config ?? {}) };
+  const who = subjectWords(pairs);
+  // A parameters lever first: the others then act on that set's values.
+  scenario.levers.forEach((l, i) => {
+    if (l.kind !== 'parameters') return;
+    const key = l.parameterSetId === null ? 'typed' : String(l.parameterSetId);
+    const other = opts.parameterLines?.[key];
+    if (!other)
+      throw new ScenarioError(
+        `lever ${i + 1} (parameters): ${l.parameterSetId === null ? 'the typed values are' : `parameter set ${l.parameterSetId} is`} not loaded (no such stored set?)`,
+        i,
+      );
+    line = other;
+  });
+  scenario.levers.forEach((l, i) => {
+    const fail = (m: string): never => {
+      throw new ScenarioError(`lever ${i + 1} (${l.kind}): ${m}`, i);
+    };
+    switch (l.kind) {
+      case 'parameters':
+        return;
+      case 'clean': {
+        const c = line.cleans[l.cleanId];
+        if (!c)
+          fail(
+            `unknown clean "${l.cleanId}" (known: ${Object.keys(line.cleans).sort().join(', ') || 'none'})`,
+          );
+        let p = cleanLogistic(c!);
+        if (l.d50M !== undefined) p = { ...p, halfSizeM: l.d50M };
+        if (l.widthDecades !== undefined) p = { ...p, widthDecades: l.widthDecades };
+        if (l.maxEfficiency !== undefined) p = { ...p, maxEfficiency: l.maxEfficiency };
+        if (l.removalAt) p = curveThrough(p, l.removalAt.diameterM, l.removalAt.efficiency);
+        const curveChanged =
+          l.d50M !== undefined ||
+          l.widthDecades !== undefined ||
+          l.maxEfficiency !== undefined ||
+          l.removalAt;
+        if (curveChanged) line = { ...line, cleans: { ...line.cleans, [l.cleanId]: withClean(c!, p) } };
+        const n = l.extraPasses ?? 0;
+        if (n > 0) {
+          let runs = 0;
+          pairs = mapWafers(pairs, (w) => {
+            const sorted = [...w.ledger].sort((a, b) => a.seq - b.seq);
+            let last = -1;
+            sorted.forEach((s, k) => {
+              if (s.kind === 'clean' && s.cleanId === l.cleanId) last = k;
+            });
+            if (last < 0) return w;
+            runs++;
+            const copies = Array.from({ length: n }, () => ({ ...sorted[last]! }));
+            const ledger = [...sorted.slice(0, last + 1), ...copies, ...sorted.slice(last + 1)].map(
+              (s, k) => ({
+                ...s,
+                seq: k,
+              }),
+            );
+            return { ...w, ledger, recleanCount: w.recleanCount + n };
+          });
+          if (runs === 0)
+            fail(`no wafer of ${who} runs clean "${l.cleanId}": extra passes have nothing to follow`);
+        }
+        return;
+      }
+      case 'wait': {
+        let steps = 0;
+        pairs = mapWafers(pairs, (w) => {
+          if (!w.ledger.some((s) => isExposure(s) && s.locationId === l.locationId)) return w;
+          return {
+            ...w,
+            ledger: w.ledger.map((s) => {
+              if (!isExposure(s) || s.locationId !== l.locationId) return s;
+              steps++;
+              const out: LedgerStepInput = { ...s };
+              if (l.durationS !== undefined) out.scenarioDurationS = l.durationS;
+              if (l.carrier !== undefined) out.carrier = l.carrier;
+              if (l.isolation !== undefined) out.scenarioIsolation = l.isolation;
+              return out;
+            }),
+          };
+        });
+        if (steps === 0) fail(`no wafer of ${who} waits at location "${l.locationId}"`);
+        return;
+      }
+      case 'air': {
+        const loc = line.locations[l.locationId];
+        const series = line.counters[l.locationId];
+        if (!loc || !series)
+          fail(
+            `location "${l.locationId}" is not on the route of ${who} (its air is not used; visited: ${Object.keys(line.counters).sort().join(', ') || 'none'})`,
+          );
+        let f = l.scale ?? 1;
+        if (l.isoClass !== undefined) {
+          if (loc!.isoClass === null)
+            fail(`location "${l.locationId}" states no ISO class to scale from; give a scale factor instead`);
+          f = 10 ** (l.isoClass - loc!.isoClass!);
+        }
+        line = {
+          ...line,
+          counters: { ...line.counters, [l.locationId]: scaleSeries(series!, f) },
+          locations:
+            l.isoClass !== undefined
+              ? { ...line.locations, [l.locationId]: { ...loc!, isoClass: l.isoClass } }
+              : line.locations,
+        };
+        return;
+      }
+      case 'adders': {
+        const t = line.tools[l.toolKey];
+        if (!t) fail(`unknown tool "${l.toolKey}" (known: ${Object.keys(line.tools).sort().join(', ')})`);
+        let nt: ToolInput;
+        if (l.factor !== undefined) nt = scaleTool(t!, l.factor);
+        else {
+          if (!t!.adders) fail(`tool "${l.toolKey}" states its adders per size band: give a factor instead`);
+          nt = { ...t!, adders: { ...t!.adders!, countAbove: l.countAbove! } };
+        }
+        line = { ...line, tools: { ...line.tools, [l.toolKey]: nt } };
+        return;
+      }
+      case 'adders-scale': {
+        const tools: Record<string, ToolInput> = {};
+        for (const [k, t] of Object.entries(line.tools)) tools[k] = scaleTool(t, l.factor);
+        line = { ...line, tools };
+        return;
+      }
+      case 'removal-scale': {
+        const cleans: Record<string, CleanInput> = {};
+        for (const [k, c] of Object.entries(line.cleans)) {
+          const p = cleanLogistic(c);
+          cleans[k] = withClean(c, { ...p, halfSizeM: p.halfSizeM * l.d50Factor });
+        }
+        line = { ...line, cleans };
+        return;
+      }
+      case 'energy':
+      case 'tail-slope': {
+        const products: Record<string, ProductInput> = { ...line.products };
+        for (const pid of new Set(pairs.map((p) => p.productId))) {
+          const p = products[pid];
+          if (!p) continue;
+          products[pid] =
+            l.kind === 'energy'
+              ? { ...p, surfacePrep: { ...p.surfacePrep, energyJm2: l.energyJm2 } }
+              : { ...p, incoming: { ...p.incoming, slope: l.slope } };
+        }
+        line = { ...line, products };
+        // Every scan's tail takes the stated slope: no scan has enough particles for its own fit.
+        if (l.kind === 'tail-slope') config = { ...config, minTailParticles: Number.MAX_SAFE_INTEGER };
+        return;
+      }
+      case 'threshold': {
+        pairs = mapWafers(pairs, (w) => {
+          const s = w.latestScan;
+          if (!s) return w;
+          if (l.thresholdM < s.thresholdM * (1 - 1e-9))
+            fail(
+              `scan ${s.scanId} of wafer ${w.waferId} was taken at ${+(s.thresholdM * 1e9).toPrecision(4)} nm: a threshold can only rise (what lies below it is unknown)`,
+            );
+          const p = s.particles;
+          const keep: number[] = [];
+          for (let k = 0; k < p.count; k++) if (p.diameterM[k]! >= l.thresholdM) keep.push(k);
+          const pick = (a: Float64Array) => Float64Array.from(keep, (k) => a[k]!);
+          return {
+            ...w,
+            latestScan: {
+              ...s,
+              thresholdM: l.thresholdM,
+              particles: { count: keep.length, xM: pick(p.xM), yM: pick(p.yM), diameterM: pick(p.diameterM) },
+            },
+          };
+        });
+        return;
+      }
+      case 'deposition': {
+        config = {
+          ...config,
+          depositionFactor: (config.depositionFactor ?? DEFAULT_ASSESS_CONFIG.depositionFactor) * l.factor,
+        };
+        return;
+      }
+      case 'isolation': {
+        config = { ...config, closedIsolation: l.isolation, purgedIsolation: l.isolation };
+        return;
+      }
+    }
+  });
+  return { pairs, line, config };
+}
