@@ -1,0 +1,480 @@
+/**
+ * What-if (/whatif/pair/:id, /whatif/lot/:id, /whatif/waiting): the levers as a GET query (so a
+ * scenario is a link), the scenario beside the as-is figures, its JSON export, and — as the page's
+ * htmx swap — the result alone. Thin: the lever fields become the engine's Scenario
+ * (whatif-query.ts), the engine applies it to the loaded inputs in memory (src/engine/tuning);
+ * nothing is written. Saved scenarios, solvers and sensitivity: whatif-saved.ts, whatif-tools.ts.
+ */
+import type { Context, Hono } from 'hono';
+import { MessagePage } from '../../../views/pages/message.tsx';
+import {
+  type SavedScenarioView,
+  SaveScenarioForm,
+  WhatIfPage,
+  type WhatIfSubject,
+  whatIfBase,
+} from '../../../views/pages/whatif.tsx';
+import { type LeverOptions, type LeverValues, leverQuery } from '../../../views/partials/whatif-levers.tsx';
+import {
+  LotWhatIfResult,
+  PARETO_GROUPINGS,
+  PairWhatIfResult,
+  type ResultLinks,
+  WaitingWhatIfResult,
+  WhatIfError,
+  type WhatIfParetoBy,
+} from '../../../views/partials/whatif-result.tsx';
+import { EngineInputError } from '../../engine/pair.ts';
+import {
+  type LotContext,
+  openLotContext,
+  openPairContext,
+  type PairContext,
+  type Scenario,
+  ScenarioError,
+  waitingLotIds,
+  whatIfLot,
+  whatIfPair,
+  whatIfWaiting,
+} from '../../engine/tuning/index.ts';
+import type { LineData, PairInput } from '../../engine/types.ts';
+import { listParameterSets } from '../../store/parameter-sets.ts';
+import { accountOf } from '../auth/session.ts';
+import type { AppContext } from '../context.ts';
+import { csrfToken } from '../csrf.ts';
+import { BadParamError, queryChoice } from '../params.ts';
+import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
+import { asOfFrom, memoised, notFound } from './lots.tsx';
+import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
+
+/** A what-if subject loaded once per data version and time (the as-is assessment inside it). */
+export function pairContext(
+  ctx: AppContext,
+  id: string,
+  asOfMs: number,
+): PairContext | { problem: string } | null {
+  return memoised(ctx, `whatif-pair|${id}|${asOfMs}`, () => {
+    try {
+      return openPairContext(ctx.db, id, { asOfMs, detail: 'full' });
+    } catch (e) {
+      if (e instanceof EngineInputError) return { problem: e.message };
+      throw e;
+    }
+  });
+}
+
+export function lotContext(
+  ctx: AppContext,
+  id: string,
+  asOfMs: number,
+): LotContext | { problem: string } | null {
+  return memoised(ctx, `whatif-lot|${id}|${asOfMs}`, () => {
+    try {
+      return openLotContext(ctx.db, id, { asOfMs, detail: 'summary' });
+    } catch (e) {
+      if (e instanceof EngineInputError) return { problem: e.message };
+      throw e;
+    }
+  });
+}
+
+/** The choices the levers offer for a subject's wafers on its line. */
+export function leverOptions(ctx: AppContext, line: LineData, pairs: PairInput[]): LeverOptions {
+  const waitLocs = new Set<string>();
+  const toolKeys = new Set<string>();
+  const cleanIds = new Set<string>();
+  let threshold: number | null = null;
+  for (const p of pairs)
+    for (const w of [p.top, p.bottom]) {
+      if (w.latestScan)
+        threshold =
+          threshold === null ? w.latestScan.thresholdM : Math.min(threshold, w.latestScan.thresholdM);
+      for (const s of w.ledger) {
+        if ((s.kind === 'wait' || s.kind === 'transfer') && s.locationId) waitLocs.add(s.locationId);
+        if (s.toolId) toolKeys.add(s.chamber ? `${s.toolId}/${s.chamber}` : s.toolId);
+        if (s.cleanId) cleanIds.add(s.cleanId);
+      }
+    }
+  const locName = (id: string) => {
+    const l = line.locations[id];
+    return l ? `${id} — ${l.name}` : id;
+  };
+  const product = line.products[pairs[0]?.productId ?? ''];
+  const sets = (() => {
+    try {
+      return listParameterSets(ctx.db);
+    } catch {
+      return [];
+    }
+  })();
+  return {
+    cleans: Object.values(line.cleans)
+      .sort(
+        (a, b) =>
+          Number(cleanIds.has(b.cleanId)) - Number(cleanIds.has(a.cleanId)) ||
+          a.cleanId.localeCompare(b.cleanId),
+      )
+      .map((c) => ({
+        value: c.cleanId,
+        label: `${c.cleanId} — ${c.name}${cleanIds.has(c.cleanId) ? '' : ' (not on this route)'}`,
+      })),
+    waitLocations: [...waitLocs].sort().map((id) => ({ value: id, label: locName(id) })),
+    airLocations: Object.keys(line.counters)
+      .sort()
+      .map((id) => ({ value: id, label: locName(id) })),
+    tools: Object.keys(line.tools)
+      .filter((k) => line.tools[k]!.adders !== null || (line.tools[k]!.adderBands?.length ?? 0) > 0)
+      .sort((a, b) => Number(toolKeys.has(b)) - Number(toolKeys.has(a)) || a.localeCompare(b))
+      .map((k) => ({ value: k, label: `${k} — ${line.tools[k]!.name}` })),
+    parameterSets: [
+      { value: 'typed', label: 'the typed values (no set)' },
+      ...sets.map((s) => ({
+        value: String(s.id),
+        label: `set ${s.id} v${s.version} — ${s.label} (${s.state})`,
+      })),
+    ],
+    energyJm2: product ? +product.surfacePrep.energyJm2.toPrecision(4) : null,
+    thresholdNm: threshold === null ? null : +(threshold * 1e9).toPrecision(4),
+  };
+}
+
+function token(c: Context): string {
+  try {
+    return csrfToken(c);
+  } catch {
+    return '';
+  }
+}
+
+/** A fragment for the htmx swap (a history restore asks for the whole page). */
+function wantsFragment(c: Context): boolean {
+  return isFragmentRequest(c) && c.req.header('HX-History-Restore-Request') !== 'true';
+}
+
+function paretoBy(c: Context): WhatIfParetoBy {
+  return (
+    queryChoice(
+      c,
+      'pareto',
+      PARETO_GROUPINGS.map((g) => g.by),
+    ) ?? 'tool'
+  );
+}
+
+/** The hidden fields the form carries along: the assessment time when the URL names one. */
+function hiddenOf(c: Context): Record<string, string> {
+  const asOf = c.req.query('asOf');
+  return asOf && asOf.trim() !== '' ? { asOf: asOf.trim() } : {};
+}
+
+function links(
+  subject: WhatIfSubject,
+  values: LeverValues,
+  hidden: Record<string, string>,
+  by: WhatIfParetoBy,
+): ResultLinks {
+  const base = whatIfBase(subject);
+  const extra = by === 'tool' ? hidden : { ...hidden, pareto: by };
+  return {
+    self: `${base}${leverQuery(values, extra)}`,
+    exportHref: `${base}/export${leverQuery(values, hidden)}`,
+    paretoHref: (b) =>
+      `${base}${leverQuery(values, b === 'tool' ? hidden : { ...hidden, pareto: b })}#whatif-result`,
+  };
+}
+
+/** The lever error (a field the scenario cannot use, or a lever the engine refuses) in words. */
+function leverError(e: unknown): string | null {
+  if (e instanceof BadParamError && e.status === 400) return `${e.message}.`;
+  if (e instanceof ScenarioError) return `${e.message}.`;
+  return null;
+}
+
+function canSave(c: Context, ctx: AppContext): boolean {
+  if (ctx.auth?.mode !== 'accounts') return true;
+  const a = accountOf(c);
+  return a !== null && a !== undefined && ['engineer', 'approver', 'admin'].includes(a.role);
+}
+
+export interface WhatIfExtras {
+  solvers?: (subject: WhatIfSubject, c: Context) => unknown;
+  sensitivity?: (subject: WhatIfSubject, c: Context) => unknown;
+  saved?: (subject: WhatIfSubject) => SavedScenarioView[];
+}
+
+/** Sections other modules add to the page (solvers, sensitivity, saved scenarios). */
+export const EXTRAS: WhatIfExtras = {};
+
+function renderWhatIf(
+  c: Context,
+  ctx: AppContext,
+  subject: WhatIfSubject,
+  asOfMs: number,
+  values: LeverValues,
+  options: LeverOptions,
+  result: unknown,
+  status: 200 | 400,
+): Response {
+  const hidden = hiddenOf(c);
+  if (wantsFragment(c)) return renderFragment(c, result as never, status);
+  return renderPage(
+    c,
+    ctx,
+    {
+      title: `What if… ${subject.kind === 'waiting' ? 'waiting lots' : subject.id}`,
+      active: '/lots',
+      body: WhatIfPage({
+        subject,
+        asOfMs,
+        values,
+        options,
+        hidden,
+        result: result as never,
+        solvers: EXTRAS.solvers?.(subject, c) as never,
+        sensitivity: EXTRAS.sensitivity?.(subject, c) as never,
+        save: SaveScenarioForm({
+          subject,
+          query: leverQuery(values).replace(/^\?/, ''),
+          csrfToken: token(c),
+          canSave: canSave(c, ctx),
+        }),
+        saved: EXTRAS.saved?.(subject) ?? [],
+      }),
+    },
+    status,
+  );
+}
+
+function cannotAssess(c: Context, ctx: AppContext, what: string, problem: string): Response {
+  return renderPage(c, ctx, {
+    title: `What if… ${what}`,
+    active: '/lots',
+    body: MessagePage({ heading: `${what} cannot be assessed`, detail: problem }),
+  });
+}
+
+/** The scenario of a request against a line, or the error in words. */
+function scenarioFor(values: LeverValues, lines: LineData[]): { scenario: Scenario } | { error: string } {
+  try {
+    return { scenario: scenarioOf(values, lineNames(...lines)) };
+  } catch (e) {
+    const m = leverError(e);
+    if (m) return { error: m };
+    throw e;
+  }
+}
+
+/** Runs a what-if, turning a refused lever into its words. */
+function attempt<T>(run: () => T): { ok: T } | { error: string } {
+  try {
+    return { ok: run() };
+  } catch (e) {
+    const m = leverError(e);
+    if (m) return { error: m };
+    throw e;
+  }
+}
+
+function download(c: Context, name: string, body: unknown): Response {
+  c.header('content-disposition', `attachment; filename="${name.replace(/[^A-Za-z0-9._-]/g, '_')}"`);
+  return c.json(body);
+}
+
+export function register(app: Hono, ctx: AppContext): void {
+  app.get('/whatif/pair/:id', (c) => {
+    const id = c.req.param('id');
+    const asOfMs = asOfFrom(c, ctx);
+    const by = paretoBy(c);
+    const pc = pairContext(ctx, id, asOfMs);
+    if (!pc) return notFound(c, ctx, `There is no pair ${id}.`);
+    if ('problem' in pc) return cannotAssess(c, ctx, `Pair ${id}`, pc.problem);
+    const subject: WhatIfSubject = { kind: 'pair', id, lotId: pc.pair.lotId };
+    const values = leverValuesOf((k) => c.req.query(k));
+    const options = leverOptions(ctx, pc.inputs.line, [pc.pair]);
+    const s = scenarioFor(values, [pc.inputs.line]);
+    const r = 'error' in s ? s : attempt(() => whatIfPair(pc, s.scenario));
+    if ('error' in r)
+      return renderWhatIf(c, ctx, subject, asOfMs, values, options, WhatIfError({ message: r.error }), 400);
+    const result = PairWhatIfResult({ w: r.ok, by, links: links(subject, values, hiddenOf(c), by) });
+    return renderWhatIf(c, ctx, subject, asOfMs, values, options, result, 200);
+  });
+
+  app.get('/whatif/lot/:id', (c) => {
+    const id = c.req.param('id');
+    const asOfMs = asOfFrom(c, ctx);
+    const by = paretoBy(c);
+    const lc = lotContext(ctx, id, asOfMs);
+    if (!lc) return notFound(c, ctx, `There is no lot ${id}.`);
+    if ('problem' in lc) return cannotAssess(c, ctx, `Lot ${id}`, lc.problem);
+    const subject: WhatIfSubject = { kind: 'lot', id };
+    const values = leverValuesOf((k) => c.req.query(k));
+    const options = leverOptions(ctx, lc.inputs.line, lc.lot.pairs);
+    const s = scenarioFor(values, [lc.inputs.line]);
+    const r = 'error' in s ? s : attempt(() => whatIfLot(lc, s.scenario));
+    if ('error' in r)
+      return renderWhatIf(c, ctx, subject, asOfMs, values, options, WhatIfError({ message: r.error }), 400);
+    const result = LotWhatIfResult({ w: r.ok, by, links: links(subject, values, hiddenOf(c), by) });
+    return renderWhatIf(c, ctx, subject, asOfMs, values, options, result, 200);
+  });
+
+  app.get('/whatif/waiting', (c) => {
+    const asOfMs = asOfFrom(c, ctx);
+    const subject: WhatIfSubject = { kind: 'waiting', id: null };
+    const values = leverValuesOf((k) => c.req.query(k));
+    const w0 = waitingOptions(ctx, asOfMs);
+    const s = scenarioFor(values, w0.lines);
+    const r = 'error' in s ? s : attempt(() => whatIfWaiting(ctx.db, s.scenario, { asOfMs }));
+    if ('error' in r)
+      return renderWhatIf(
+        c,
+        ctx,
+        subject,
+        asOfMs,
+        values,
+        w0.options,
+        WhatIfError({ message: r.error }),
+        400,
+      );
+    const result = WaitingWhatIfResult({ w: r.ok, links: links(subject, values, hiddenOf(c), 'tool') });
+    return renderWhatIf(c, ctx, subject, asOfMs, values, w0.options, result, 200);
+  });
+
+  // The scenario and its figures as JSON (a download): the levers, what they changed, both sides.
+  app.get('/whatif/pair/:id/export', (c) => {
+    const id = c.req.param('id');
+    const asOfMs = asOfFrom(c, ctx);
+    const pc = pairContext(ctx, id, asOfMs);
+    if (!pc || 'problem' in pc)
+      throw new BadParamError('pair', `names no pair that can be assessed: "${id}"`, 404);
+    const values = leverValuesOf((k) => c.req.query(k));
+    const scenario = scenarioOf(values, lineNames(pc.inputs.line), c.req.query('name') || undefined);
+    const w = exportAttempt(() => whatIfPair(pc, scenario));
+    return download(c, `whatif-${id}.json`, {
+      kind: 'voidcast what-if',
+      subject: { kind: 'pair', id },
+      asOfMs,
+      link: `/whatif/pair/${encodeURIComponent(id)}${leverQuery(values, hiddenOf(c))}`,
+      scenario: w.scenario,
+      applied: w.applied,
+      asIs: sideOf(w.asIs),
+      whatIf: sideOf(w.whatIf),
+      delta: w.delta,
+      callChanged: w.callChanged,
+    });
+  });
+
+  app.get('/whatif/lot/:id/export', (c) => {
+    const id = c.req.param('id');
+    const asOfMs = asOfFrom(c, ctx);
+    const lc = lotContext(ctx, id, asOfMs);
+    if (!lc || 'problem' in lc)
+      throw new BadParamError('lot', `names no lot that can be assessed: "${id}"`, 404);
+    const values = leverValuesOf((k) => c.req.query(k));
+    const scenario = scenarioOf(values, lineNames(lc.inputs.line), c.req.query('name') || undefined);
+    const w = exportAttempt(() => whatIfLot(lc, scenario));
+    return download(c, `whatif-${id}.json`, {
+      kind: 'voidcast what-if',
+      subject: { kind: 'lot', id },
+      asOfMs,
+      link: `/whatif/lot/${encodeURIComponent(id)}${leverQuery(values, hiddenOf(c))}`,
+      scenario: w.scenario,
+      applied: w.applied,
+      asIs: { call: w.asIs.call, totals: w.asIs.totals },
+      whatIf: { call: w.whatIf.call, totals: w.whatIf.totals },
+      pairs: w.pairs,
+      delta: w.delta,
+      callChanged: w.callChanged,
+    });
+  });
+
+  app.get('/whatif/waiting/export', (c) => {
+    const asOfMs = asOfFrom(c, ctx);
+    const values = leverValuesOf((k) => c.req.query(k));
+    const scenario = scenarioOf(values, lineNames(...waitingOptions(ctx, asOfMs).lines));
+    const w = exportAttempt(() => whatIfWaiting(ctx.db, scenario, { asOfMs }));
+    return download(c, 'whatif-waiting.json', {
+      kind: 'voidcast what-if',
+      subject: { kind: 'waiting' },
+      asOfMs,
+      link: `/whatif/waiting${leverQuery(values, hiddenOf(c))}`,
+      scenario: w.scenario,
+      lots: w.lots.map((l) => ({
+        lotId: l.lotId,
+        asIsCall: l.asIs.call,
+        whatIfCall: l.whatIf.call,
+        pairs: l.pairs,
+        delta: l.delta,
+      })),
+      skipped: w.skipped,
+    });
+  });
+}
+
+/** An export with a refused lever is a 400 naming it (JSON has no form to show it beside). */
+function exportAttempt<T>(run: () => T): T {
+  try {
+    return run();
+  } catch (e) {
+    if (e instanceof ScenarioError) throw new BadParamError('scenario', `cannot be computed: ${e.message}`);
+    throw e;
+  }
+}
+
+function sideOf(a: {
+  call: string;
+  reasons: unknown;
+  figures: unknown;
+  specChecks: unknown;
+  inputsHash: string;
+}) {
+  return {
+    call: a.call,
+    reasons: a.reasons,
+    figures: a.figures,
+    specChecks: a.specChecks,
+    inputsHash: a.inputsHash,
+  };
+}
+
+/**
+ * The levers' choices for every waiting lot: each lot's loaded line data holds what its own pairs
+ * use, so the choices (and the names a lever may use) are the union over the waiting lots.
+ */
+function waitingOptions(ctx: AppContext, asOfMs: number): { options: LeverOptions; lines: LineData[] } {
+  return memoised(ctx, `whatif-waiting-options|${asOfMs}`, () => {
+    const pairs: PairInput[] = [];
+    const lines: LineData[] = [];
+    for (const id of waitingLotIdsOf(ctx, asOfMs)) {
+      const lc = lotContext(ctx, id, asOfMs);
+      if (!lc || 'problem' in lc) continue;
+      lines.push(lc.inputs.line);
+      pairs.push(...lc.lot.pairs);
+    }
+    if (lines.length === 0)
+      return {
+        lines,
+        options: {
+          cleans: [],
+          waitLocations: [],
+          airLocations: [],
+          tools: [],
+          parameterSets: [],
+          energyJm2: null,
+          thresholdNm: null,
+        },
+      };
+    const merged: LineData = {
+      ...lines[0]!,
+      products: Object.assign({}, ...lines.map((l) => l.products)),
+      tools: Object.assign({}, ...lines.map((l) => l.tools)),
+      cleans: Object.assign({}, ...lines.map((l) => l.cleans)),
+      locations: Object.assign({}, ...lines.map((l) => l.locations)),
+      counters: Object.assign({}, ...lines.map((l) => l.counters)),
+    };
+    return { options: leverOptions(ctx, merged, pairs), lines };
+  });
+}
+
+function waitingLotIdsOf(ctx: AppContext, asOfMs: number): string[] {
+  return memoised(ctx, `whatif-waiting-ids|${asOfMs}`, () => waitingLotIds(ctx.db, asOfMs));
+}
