@@ -38,6 +38,7 @@ import {
   whatIfWaiting,
 } from '../../engine/tuning/index.ts';
 import type { LineData, PairInput } from '../../engine/types.ts';
+import { ModelInputError, plainModelError } from '../../model/errors.ts';
 import { listParameterSets } from '../../store/parameter-sets.ts';
 import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
@@ -187,6 +188,9 @@ function links(
 function leverError(e: unknown): string | null {
   if (e instanceof BadParamError && e.status === 400) return `${e.message}.`;
   if (e instanceof ScenarioError) return `${e.message}.`;
+  // A lever that takes a model outside its range (a curve pushed past what it can describe).
+  if (e instanceof ModelInputError)
+    return `with these levers a computed quantity is outside its model's range (${plainModelError(e)}).`;
   return null;
 }
 
@@ -415,7 +419,8 @@ function exportAttempt<T>(run: () => T): T {
   try {
     return run();
   } catch (e) {
-    if (e instanceof ScenarioError) throw new BadParamError('scenario', `cannot be computed: ${e.message}`);
+    const m = leverError(e);
+    if (m) throw new BadParamError('scenario', `cannot be computed: ${m}`);
     throw e;
   }
 }

@@ -1,0 +1,203 @@
+/**
+ * The what-if pages on the demo line (docs/demo.md), through app.request with accounts on: each page
+ * answers, a scenario without levers shows the stored assessment's figures exactly (compared with the
+ * JSON API's assessment of the same pair at the same time — an independent path through the
+ * engine), a refused lever is a 400 naming the field, and no what-if request changes anything stored
+ * (a content dump of every table before and after).
+ *
+ * Expected calls: docs/demo.md's story (TR2652 RE-CLEAN on LACT-1 chamber B's adders; TR2653 HOLD
+ * after its night in Boreas bay 2).
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
+import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
+import { setSetting } from '../../src/store/settings.ts';
+import { createApp } from '../../src/web/app.ts';
+import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
+import { type Browser, makeUser, signIn } from '../helpers/accounts.ts';
+import { dumpDatabase } from '../helpers/db-dump.ts';
+
+let db: Db;
+let app: ReturnType<typeof createApp>;
+let viewer: Browser;
+let engineer: Browser;
+const errors: string[] = [];
+
+beforeAll(async () => {
+  db = openDatabase(':memory:');
+  migrate(db);
+  await loadDemo(db);
+  setSetting(db, AS_OF_SETTING, readDemoManifest().asOf);
+  app = createApp({
+    db,
+    dataDir: '/nonexistent',
+    version: 'test',
+    auth: { mode: 'accounts', sessionSecret: 'w'.repeat(43) },
+    log: (l) => {
+      if (l.startsWith('ERROR')) errors.push(l);
+    },
+  });
+  await makeUser(db, 'vera', 'viewer', 'Vera Viewer');
+  await makeUser(db, 'enzo', 'engineer', 'Enzo Engineer');
+  viewer = await signIn(app, 'vera');
+  engineer = await signIn(app, 'enzo');
+}, 180_000);
+afterAll(() => db?.close());
+
+const text = (html: string) =>
+  html
+    .replace(/<svg[\s\S]*?<\/svg>/g, ' ')
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/&#39;/g, "'")
+    .replace(/&quot;/g, '"')
+    .replace(/&amp;/g, '&')
+    .replace(/\s+/g, ' ');
+
+/** The cells of one figure row of the what-if table: [as is, scenario]. */
+function figureCells(html: string, figure: string): [string, string] {
+  const row = new RegExp(`<tr data-figure="${figure}">([\\s\\S]*?)</tr>`).exec(html)?.[1] ?? '';
+  const cell = (side: string) =>
+    text(new RegExp(`data-side="${side}">([\\s\\S]*?)</td>`).exec(row)?.[1] ?? '').trim();
+  return [cell('as-is'), cell('scenario')];
+}
+
+describe('what-if pages', () => {
+  it('each page answers for a viewer: a pair, a lot, every waiting lot', async () => {
+    for (const path of ['/whatif/pair/TR2653-P01', '/whatif/lot/TR2652', '/whatif/waiting']) {
+      const res = await viewer.get(path);
+      expect(res.status, path).toBe(200);
+      const html = await res.text();
+      expect(html).toContain('id="whatif-result"');
+      expect(html).toContain('A scenario changes nothing stored');
+      // The form works without script: a GET to the page itself.
+      expect(html).toMatch(/<form class="vc-levers" id="whatif-levers" method="get" action="\/whatif\//);
+    }
+    expect(errors).toEqual([]);
+  });
+
+  it('a scenario without levers shows the stored figures and call exactly', async () => {
+    const api = (await (await viewer.get('/api/pairs/TR2652-P01/assessment?detail=summary')).json()) as {
+      call: string;
+      figures: { voids: { value: number }; dieKillsNB: { value: number } | null };
+    };
+    const exported = (await (await viewer.get('/whatif/pair/TR2652-P01/export')).json()) as {
+      scenario: { levers: unknown[] };
+      asIs: { call: string; figures: unknown; inputsHash: string };
+      whatIf: { call: string; figures: unknown; inputsHash: string };
+      callChanged: boolean;
+    };
+    expect(exported.scenario.levers).toEqual([]);
+    expect(exported.whatIf.figures).toEqual(exported.asIs.figures);
+    expect(exported.whatIf.figures).toEqual(api.figures);
+    expect(exported.whatIf.inputsHash).toBe(exported.asIs.inputsHash);
+    expect(exported.whatIf.call).toBe(api.call);
+    expect(exported.callChanged).toBe(false);
+    // On the page, both columns show the same figures, and the page says no lever changed.
+    const html = await (await viewer.get('/whatif/pair/TR2652-P01')).text();
+    for (const f of ['voids', 'unbonded', 'dies-nb', 'particles']) {
+      const [a, b] = figureCells(html, f);
+      expect(a, f).not.toBe('');
+      expect(b, f).toBe(a);
+    }
+    expect(html).toContain('data-applied="none"');
+  });
+
+  it('a lever changes the figures beside the as-is ones: LACT-1 chamber B at a tenth of its adders bonds TR2652-P01', async () => {
+    // docs/demo.md: chamber B's adders are ≈ 80 % of TR2652's risk, so a tenth of them brings the pair
+    // within spec; the call goes from re-clean to bond.
+    const res = await viewer.get('/whatif/pair/TR2652-P01?tool=LACT-1%2FB&adders=0.1');
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    expect(text(html)).toContain('As is re-clean → scenario bond the call changes');
+    const [a, b] = figureCells(html, 'voids');
+    expect(Number.parseFloat(b)).toBeLessThan(Number.parseFloat(a));
+    expect(text(html)).toContain('adders of LACT-1/B: ×0.1');
+  });
+
+  it('the htmx swap is the result alone, and the same query as the page', async () => {
+    const res = await viewer.get('/whatif/pair/TR2652-P01?tool=LACT-1%2FB&adders=0.1', {
+      'HX-Request': 'true',
+    });
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    expect(html.startsWith('<div id="whatif-result"')).toBe(true);
+    expect(html).not.toContain('<html');
+    expect(html).toContain('/whatif/pair/TR2652-P01?tool=LACT-1%2FB&amp;adders=0.1');
+  });
+
+  it('a bad lever is a 400 naming the field and the rule, on the page and in the swap, never a 500', async () => {
+    const cases: [string, string][] = [
+      ['clean=CLN-RIN1&removal=2&removalAt=50', 'removal must be a number above 0 up to 1'],
+      ['air=BOR-B2&iso=10', 'iso must be a number from 1'],
+      ['air=BOR-B2&iso=0', 'iso must be a number from 1'],
+      ['wait=BOR-B2&waitH=-2', 'waitH must be a number from 0 h'],
+      ['wait=NO-SUCH-BAY&waitH=1', 'wait names no location of this line: "NO-SUCH-BAY"'],
+      ['clean=NO-SUCH-CLEAN&passes=1', 'clean names no clean of this line: "NO-SUCH-CLEAN"'],
+      ['tool=NOPE&adders=0.5', 'tool names no tool or chamber of this line'],
+      ['passes=1', 'clean is needed for passes'],
+      ['clean=CLN-RIN1&passes=11', 'passes must be a whole number from 0 to 10'],
+      ['energy=NaN', 'energy must be a number above 0'],
+      ['threshold=1e300', 'threshold must be a number above 0'],
+      ['params=abc', 'params must be a whole number'],
+    ];
+    for (const [q, words] of cases) {
+      for (const headers of [{}, { 'HX-Request': 'true' }]) {
+        const res = await viewer.get(`/whatif/pair/TR2653-P01?${q}`, headers);
+        expect(res.status, q).toBe(400);
+        const body = text(await res.text());
+        expect(body, q).toContain(words);
+        expect(body, q).toContain('Nothing was changed');
+      }
+    }
+    const lot = await viewer.get('/whatif/lot/TR2653?wait=BOR-B2&waitH=-1');
+    expect(lot.status).toBe(400);
+    const waiting = await viewer.get('/whatif/waiting?air=BOR-B2&iso=12');
+    expect(waiting.status).toBe(400);
+    const exp = await viewer.get('/whatif/pair/TR2653-P01/export?air=BOR-B2&iso=12');
+    expect(exp.status).toBe(400);
+    expect(errors).toEqual([]);
+  });
+
+  it('an unknown pair or lot is a 404', async () => {
+    expect((await viewer.get('/whatif/pair/NO-SUCH-PAIR')).status).toBe(404);
+    expect((await viewer.get('/whatif/lot/NO-SUCH-LOT')).status).toBe(404);
+    expect((await viewer.get('/whatif/pair/NO-SUCH-PAIR/export')).status).toBe(404);
+  });
+
+  it('the export is a JSON download of the scenario, its words and both sides', async () => {
+    const res = await viewer.get('/whatif/lot/TR2653/export?wait=BOR-B2&waitH=2');
+    expect(res.status).toBe(200);
+    expect(res.headers.get('content-type')).toContain('application/json');
+    expect(res.headers.get('content-disposition')).toBe('attachment; filename="whatif-TR2653.json"');
+    const j = (await res.json()) as {
+      scenario: { levers: { kind: string; locationId: string; durationS: number }[] };
+      applied: string[];
+      link: string;
+      pairs: unknown[];
+    };
+    // 2 h in the form is 7200 s in the scenario (SI inside).
+    expect(j.scenario.levers).toEqual([{ kind: 'wait', locationId: 'BOR-B2', durationS: 7200 }]);
+    expect(j.applied).toEqual(['waits at BOR-B2: each wait 2 h']);
+    expect(j.link).toBe('/whatif/lot/TR2653?wait=BOR-B2&waitH=2');
+    expect(j.pairs).toHaveLength(12);
+  });
+
+  it('no what-if request changes anything stored', async () => {
+    const before = dumpDatabase(db);
+    for (const path of [
+      '/whatif/pair/TR2652-P01?clean=CLN-RIN1&passes=2&d50=20',
+      '/whatif/pair/TR2652-P01?tool=LACT-1%2FB&adders=0&params=typed',
+      '/whatif/lot/TR2653?wait=BOR-B2&waitH=0.5&carrier=closed&isolation=50',
+      '/whatif/lot/TR2653?air=BOR-B2&iso=3',
+      '/whatif/waiting?energy=1.5&threshold=60',
+      '/whatif/pair/TR2652-P01/export?energy=2',
+      '/whatif/waiting/export?tool=LACT-1%2FB&adders=0.5',
+    ])
+      expect((await engineer.get(path)).status, path).toBe(200);
+    const after = dumpDatabase(db);
+    // The sessions table changes with every request of a signed-in account (last seen); nothing else may.
+    const withoutSessions = (d: Record<string, unknown>) =>
+      Object.fromEntries(Object.entries(d).filter(([k]) => k !== 'sessions'));
+    expect(withoutSessions(after)).toEqual(withoutSessions(before));
+  });
+});
