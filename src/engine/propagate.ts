@@ -397,8 +397,12 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         continue;
       }
       const loc = line.locations[step.locationId];
-      const got = a.exposure.dose(step.locationId, from, stepEnd);
-      const durS = (stepEnd - from) / 1000;
+      // A what-if duration (src/engine/tuning): a shorter stay ends early and sees the air of its
+      // first part; a longer one sees the recorded air over its whole time, scaled (linear in time).
+      const scen = step.scenarioDurationS;
+      const doseEnd = scen !== undefined && scen * 1000 < stepEnd - from ? from + scen * 1000 : stepEnd;
+      const got = a.exposure.dose(step.locationId, from, doseEnd);
+      const durS = (doseEnd - from) / 1000;
       if (!got) {
         dataProblems.push({
           code: 'data-missing',
@@ -407,8 +411,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
         continue;
       }
       const { d, channelSizesM } = got;
-      // A what-if duration (src/engine/tuning): the same air over a longer or shorter stay.
-      const doseFactor = step.scenarioDurationS !== undefined && durS > 0 ? step.scenarioDurationS / durS : 1;
+      const doseFactor = scen !== undefined && scen > durS && durS > 0 ? scen / durS : 1;
       if (d.gapS > 0) {
         const frac = d.durationS > 0 ? d.gapS / d.durationS : 1;
         const fillWords =
@@ -454,7 +457,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
       contributions.push({
         key: `${role}:wait:${step.seq}`,
         kind: 'wait',
-        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(step.scenarioDurationS ?? durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
+        label: `${step.kind === 'wait' ? 'Wait' : 'Transfer'} at ${loc?.name ?? step.locationId}, ${hoursText(scen ?? durS)}, ${carrierWords(step.carrier, step.orientation)} (${roleWords})`,
         wafer: role,
         waferId: wafer.waferId,
         groupKey: `location:${step.locationId}`,

@@ -91,9 +91,10 @@ export interface LedgerStepInput {
   /** Face orientation; the ledger default is face up in an open cassette. */
   orientation: FaceOrientation;
   /**
-   * What-if only (src/engine/tuning, never stored): this wait or transfer lasts this long, s, at the
-   * air it saw — its air dose is the recorded dose × scenarioDurationS / recorded duration
-   * (deposition is linear in time at a constant concentration). Absent: as recorded.
+   * What-if only (src/engine/tuning, never stored): this wait or transfer lasts this long, s. Shorter
+   * than recorded, it ends early and its air is the counters' over its first part; longer, its air
+   * dose is the recorded dose × scenarioDurationS / recorded duration (deposition is linear in time
+   * at a constant concentration). Absent: as recorded.
    */
   scenarioDurationS?: number;
   /** What-if only: the isolation factor during this step (≥ 1). Absent: the config's for its carrier. */

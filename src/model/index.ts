@@ -12,6 +12,7 @@ export * from './iso14644.ts';
 export * from './matching/index.ts';
 export * from './removal-fit.ts';
 export * from './rng.ts';
+export * from './roots.ts';
 export * from './spectrum.ts';
 export * from './spectrum-channels.ts';
 export * from './stats/beta.ts';

@@ -29,6 +29,8 @@ export interface ScenarioInputs {
 }
 
 export interface ApplyOptions {
+  /** Assessment time, UTC ms: where an extra clean pass of a pair not yet bonded runs (just before it). */
+  asOfMs?: number;
   /**
    * Line data under other parameter sets, by set id ("typed" for the typed values), for a
    * `parameters` lever (the loader builds them; see whatif.ts). Missing: that lever is refused.
@@ -49,7 +51,7 @@ const leverSchema = z.discriminatedUnion('kind', [
       kind: z.literal('clean'),
       cleanId: id,
       extraPasses: z.number().int().min(0).max(MAX_EXTRA_PASSES).optional(),
-      d50M: pos.optional(),
+      d50M: z.number().min(1e-10).max(1e-2).optional(),
       widthDecades: pos.optional(),
       maxEfficiency: z.number().min(0).max(1).optional(),
       removalAt: z
@@ -212,8 +214,12 @@ export function cleanLogistic(c: CleanInput): {
   return { maxEfficiency: c.maxEfficiency, halfSizeM: c.halfSizeM, widthDecades: c.widthDecades };
 }
 
-/** Smallest d50 a lever sets, m: a curve whose plateau reaches every size on the grid (10 nm). */
-const D50_FLOOR_M = 1e-12;
+/**
+ * Range of d50 a lever may set, m (the removal model's own range, src/model/clean.ts): at 0.1 nm the
+ * curve is on its plateau at every size of the grid (≥ 10 nm) for any width under a decade.
+ */
+export const D50_RANGE_M = [1e-10, 1e-2] as const;
+const D50_FLOOR_M = D50_RANGE_M[0];
 
 /**
  * The curve through (d, E) with width w: log10 d50 = log10 d + w·ln(E_max/E − 1); an E at or above
@@ -229,7 +235,11 @@ export function curveThrough(
   const eMax = Math.max(base.maxEfficiency, efficiency);
   const ratio = eMax / efficiency - 1;
   const d50 = ratio > 0 ? 10 ** (Math.log10(diameterM) + w * Math.log(ratio)) : D50_FLOOR_M;
-  return { maxEfficiency: eMax, halfSizeM: Math.max(D50_FLOOR_M, d50), widthDecades: w };
+  return {
+    maxEfficiency: eMax,
+    halfSizeM: Math.min(D50_RANGE_M[1], Math.max(D50_FLOOR_M, d50)),
+    widthDecades: w,
+  };
 }
 
 function withClean(
@@ -266,6 +276,39 @@ function isExposure(s: LedgerStepInput): boolean {
 }
 
 /**
+ * n extra runs of a clean at the end of both wafers' routes: after the last step that starts before
+ * the route's end (the bond time, else the assessment time), before a bond step; the wafer's
+ * re-clean count rises by n. The runs take the clean's tool (its adders apply after the removal).
+ */
+function withExtraPasses(p: PairInput, clean: CleanInput, n: number, asOfMs: number): PairInput {
+  const endMs = p.bondTimeMs ?? asOfMs;
+  const wafer = (w: WaferInput): WaferInput => {
+    const sorted = [...w.ledger].sort((a, b) => a.seq - b.seq);
+    const bond = sorted.findIndex((s) => s.kind === 'bond');
+    const head = bond >= 0 ? sorted.slice(0, bond) : sorted.filter((s) => s.startMs < endMs);
+    const tail = bond >= 0 ? sorted.slice(bond) : sorted.filter((s) => s.startMs >= endMs);
+    // just before the route's end, and after every step already begun
+    const at = Math.max(endMs - 1, ...head.map((s) => s.startMs));
+    const runs: LedgerStepInput[] = Array.from({ length: n }, (_, k) => ({
+      seq: 0,
+      step: `${clean.name}: what-if extra pass ${k + 1}`,
+      kind: 'clean',
+      toolId: clean.toolId,
+      chamber: null,
+      cleanId: clean.cleanId,
+      startMs: at,
+      endMs: at,
+      locationId: null,
+      carrier: 'in-tool',
+      orientation: 'face-up',
+    }));
+    const ledger = [...head, ...runs, ...tail].map((s, k) => ({ ...s, seq: k }));
+    return { ...w, ledger, recleanCount: w.recleanCount + n };
+  };
+  return { ...p, top: wafer(p.top), bottom: wafer(p.bottom) };
+}
+
+/**
  * Applies a scenario. Returns new inputs; the given ones are left as they were. Throws ScenarioError
  * (naming the lever) for a lever whose shape or range is wrong or whose location, clean or tool the
  * subject does not have.
@@ -279,6 +322,11 @@ export function applyScenario(
   let { pairs, line } = inputs;
   let config: Partial<AssessConfig> = { ...(inputs.config ?? {}) };
   const who = subjectWords(pairs);
+  const asOfMs =
+    opts.asOfMs ??
+    Math.max(
+      ...pairs.flatMap((p) => [p.top, p.bottom]).flatMap((w) => w.ledger.map((s) => s.endMs ?? s.startMs)),
+    );
   // A parameters lever first: the others then act on that set's values.
   scenario.levers.forEach((l, i) => {
     if (l.kind !== 'parameters') return;
@@ -316,28 +364,7 @@ export function applyScenario(
           l.removalAt;
         if (curveChanged) line = { ...line, cleans: { ...line.cleans, [l.cleanId]: withClean(c!, p) } };
         const n = l.extraPasses ?? 0;
-        if (n > 0) {
-          let runs = 0;
-          pairs = mapWafers(pairs, (w) => {
-            const sorted = [...w.ledger].sort((a, b) => a.seq - b.seq);
-            let last = -1;
-            sorted.forEach((s, k) => {
-              if (s.kind === 'clean' && s.cleanId === l.cleanId) last = k;
-            });
-            if (last < 0) return w;
-            runs++;
-            const copies = Array.from({ length: n }, () => ({ ...sorted[last]! }));
-            const ledger = [...sorted.slice(0, last + 1), ...copies, ...sorted.slice(last + 1)].map(
-              (s, k) => ({
-                ...s,
-                seq: k,
-              }),
-            );
-            return { ...w, ledger, recleanCount: w.recleanCount + n };
-          });
-          if (runs === 0)
-            fail(`no wafer of ${who} runs clean "${l.cleanId}": extra passes have nothing to follow`);
-        }
+        if (n > 0) pairs = pairs.map((p) => withExtraPasses(p, c!, n, asOfMs));
         return;
       }
       case 'wait': {
@@ -405,7 +432,8 @@ export function applyScenario(
         const cleans: Record<string, CleanInput> = {};
         for (const [k, c] of Object.entries(line.cleans)) {
           const p = cleanLogistic(c);
-          cleans[k] = withClean(c, { ...p, halfSizeM: p.halfSizeM * l.d50Factor });
+          const d50 = Math.min(D50_RANGE_M[1], Math.max(D50_RANGE_M[0], p.halfSizeM * l.d50Factor));
+          cleans[k] = withClean(c, { ...p, halfSizeM: d50 });
         }
         line = { ...line, cleans };
         return;

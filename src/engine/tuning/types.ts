@@ -29,9 +29,9 @@ export interface CleanLever {
   /** Clean id as the tools file names it ("CLN-RIN1"). */
   cleanId: string;
   /**
-   * Extra runs of the clean right after its last run on each wafer, 0 – 10. They count as
-   * re-cleans of the wafer (its re-clean count rises by as many), so the spec's re-clean limit
-   * applies to them.
+   * Extra runs of the clean at the end of each wafer's route (after its last step before bonding,
+   * as a re-clean runs), 0 – 10, each with its tool's adders. They count as re-cleans of the wafer
+   * (its re-clean count rises by as many), so the spec's re-clean limit applies to them.
    */
   extraPasses?: number;
   /** New half-removal diameter d50, m (> 0). */
@@ -53,9 +53,10 @@ export interface WaitLever {
   kind: 'wait';
   locationId: string;
   /**
-   * Duration of each such step, s (≥ 0), at the air the wafer saw during it: the air dose is the
-   * recorded dose × durationS / recorded duration (deposition is linear in time at a constant
-   * concentration, methods.md §5). The timeline (Q-times, scan age) stays as recorded.
+   * Duration of each such step, s (≥ 0). Shorter than recorded: the wafer leaves early and saw the
+   * counters' air of the first part of its stay. Longer: the recorded air dose × durationS / recorded
+   * duration (deposition is linear in time at a constant concentration, methods.md §5). The timeline
+   * (Q-times, scan age, bond time) stays as recorded.
    */
   durationS?: number;
   /** The carrier during those steps. */

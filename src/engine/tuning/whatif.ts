@@ -8,6 +8,7 @@
  * objects; the product physics when the product and the config are) and its scratch arrays.
  * A scenario with no levers gives the as-is figures exactly (the same inputs through the same engine).
  */
+import { ModelInputError } from '../../model/errors.ts';
 import { resolveConfig } from '../config.ts';
 import { assessLotInSession } from '../lot.ts';
 import { assessPairInSession, createSession, type EngineSession } from '../pair.ts';
@@ -21,7 +22,7 @@ import type {
   PairInput,
 } from '../types.ts';
 import { applyScenario, leverWords, parseScenario, type ScenarioInputs } from './scenario.ts';
-import type { FiguresDelta, LotWhatIf, PairWhatIf, Scenario } from './types.ts';
+import { type FiguresDelta, type LotWhatIf, type PairWhatIf, type Scenario, ScenarioError } from './types.ts';
 
 export interface ContextOptions {
   asOfMs: number;
@@ -125,7 +126,7 @@ export function scenarioInputs(ctx: WhatIfContext, scenario: Scenario): Scenario
         if (line) ctx.parameterLines[key] = line;
       }
     }
-  return applyScenario(ctx.inputs, parsed, { parameterLines: ctx.parameterLines });
+  return applyScenario(ctx.inputs, parsed, { parameterLines: ctx.parameterLines, asOfMs: ctx.asOfMs });
 }
 
 function dieLoss(f: PairFigures, model: 'poisson' | 'negative-binomial' | null): number | null {
@@ -161,11 +162,20 @@ export function assessPairScenario(
 ): PairAssessment {
   const changed = scenarioInputs(ctx, scenario);
   const session = scenarioSession(ctx.session, changed);
-  return assessPairInSession(changed.pairs[0]!, session, {
-    asOfMs: ctx.asOfMs,
-    config: changed.config,
-    detail,
-  });
+  return inModelRange(() =>
+    assessPairInSession(changed.pairs[0]!, session, { asOfMs: ctx.asOfMs, config: changed.config, detail }),
+  );
+}
+
+/** A model refusing a value a scenario led to is the scenario's fault: a ScenarioError naming the rule. */
+function inModelRange<T>(run: () => T): T {
+  try {
+    return run();
+  } catch (e) {
+    if (e instanceof ModelInputError)
+      throw new ScenarioError(`the scenario takes an input outside the model's range: ${e.message}`);
+    throw e;
+  }
 }
 
 /** The lot assessed under the scenario. */
@@ -176,11 +186,13 @@ export function assessLotScenario(
 ): LotAssessment {
   const changed = scenarioInputs(ctx, scenario);
   const session = scenarioSession(ctx.session, changed);
-  return assessLotInSession({ ...ctx.lot, pairs: changed.pairs }, session, {
-    asOfMs: ctx.asOfMs,
-    config: changed.config,
-    detail,
-  });
+  return inModelRange(() =>
+    assessLotInSession({ ...ctx.lot, pairs: changed.pairs }, session, {
+      asOfMs: ctx.asOfMs,
+      config: changed.config,
+      detail,
+    }),
+  );
 }
 
 /** What-if of one pair: the scenario's assessment beside the as-is one. Throws ScenarioError for a bad lever. */
