@@ -141,7 +141,7 @@ describe('what-if pages', () => {
       ['params=abc', 'params must be a whole number'],
     ];
     for (const [q, words] of cases) {
-      for (const headers of [{}, { 'HX-Request': 'true' }]) {
+      for (const headers of [{}, { 'HX-Request': 'true' }] as Record<string, string>[]) {
         const res = await viewer.get(`/whatif/pair/TR2653-P01?${q}`, headers);
         expect(res.status, q).toBe(400);
         const body = text(await res.text());
