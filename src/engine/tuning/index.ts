@@ -4,5 +4,6 @@
  */
 export * from './load.ts';
 export * from './scenario.ts';
+export * from './solvers.ts';
 export * from './types.ts';
 export * from './whatif.ts';

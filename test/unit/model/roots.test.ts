@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { ModelInputError } from '../../../src/model/errors.ts';
-import { brentRoot } from '../../../src/model/roots.ts';
+import { bisectRoot, brentRoot } from '../../../src/model/roots.ts';
 
 describe('brentRoot', () => {
   it('finds √2 of x² − 2 on [0, 2] (hand computation: √2 = 1.4142135623730951)', () => {
@@ -51,5 +51,30 @@ describe('brentRoot', () => {
     expect(() =>
       brentRoot((x) => (x <= 0.3 ? 1 : -1), 0, 1, { maxIterations: 5, xTolerance: 1e-15 }),
     ).toThrow(/iterations/);
+  });
+});
+
+describe('bisectRoot', () => {
+  it('halves to the tolerance: ⌈log2(2 / 1e-3)⌉ = 11 halvings for √2 on [0, 2] (hand computation)', () => {
+    const r = bisectRoot((x) => x * x - 2, 0, 2, { xTolerance: 1e-3 });
+    expect(r.evaluations).toBe(13);
+    expect(Math.abs(r.root - Math.SQRT2)).toBeLessThanOrEqual(1e-3);
+    expect(Math.sign(r.fRoot)).not.toBe(Math.sign(r.fOther));
+  });
+
+  it('finds the jump of a step function, the final bracket straddling it', () => {
+    const jump = 7.3;
+    const r = bisectRoot((x) => (x < jump ? -2 : 5), 0, 100, { xTolerance: 0.01 });
+    expect(Math.min(r.root, r.other)).toBeLessThan(jump);
+    expect(Math.max(r.root, r.other)).toBeGreaterThanOrEqual(jump);
+    expect(Math.abs(r.root - r.other)).toBeLessThanOrEqual(0.01);
+  });
+
+  it('refuses as brentRoot does', () => {
+    expect(() => bisectRoot((x) => x * x + 1, -1, 1)).toThrow(/opposite sign/);
+    expect(() => bisectRoot((x) => x, 2, 2)).toThrow(ModelInputError);
+    expect(() => bisectRoot((x) => (x < 0.3 ? -1 : 1), 0, 1, { xTolerance: 1e-9, maxIterations: 3 })).toThrow(
+      /iterations/,
+    );
   });
 });
