@@ -14,6 +14,7 @@ import {
   type WhatIfSubject,
   whatIfBase,
 } from '../../../views/pages/whatif.tsx';
+import { SensitivitySlot } from '../../../views/partials/sensitivity-panel.tsx';
 import { type LeverOptions, type LeverValues, leverQuery } from '../../../views/partials/whatif-levers.tsx';
 import {
   LotWhatIfResult,
@@ -43,6 +44,7 @@ import {
   wantsFragment,
 } from './whatif-context.ts';
 import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
+import { solverAnswer, solverSection, solverValuesOf } from './whatif-tools.ts';
 
 function paretoBy(c: Context): WhatIfParetoBy {
   return (
@@ -76,14 +78,12 @@ function canSave(c: Context, ctx: AppContext): boolean {
   return a !== null && a !== undefined && ['engineer', 'approver', 'admin'].includes(a.role);
 }
 
-export interface WhatIfExtras {
-  solvers?: (subject: WhatIfSubject, c: Context) => unknown;
-  sensitivity?: (subject: WhatIfSubject, c: Context) => unknown;
-  saved?: (subject: WhatIfSubject) => SavedScenarioView[];
+/** The sections below the scenario: the solvers (with an answer) and the sensitivity slot. */
+interface Below {
+  solvers?: unknown;
+  sensitivity?: unknown;
+  saved?: SavedScenarioView[];
 }
-
-/** Sections other modules add to the page (solvers, sensitivity, saved scenarios). */
-export const EXTRAS: WhatIfExtras = {};
 
 function renderWhatIf(
   c: Context,
@@ -94,6 +94,7 @@ function renderWhatIf(
   options: LeverOptions,
   result: unknown,
   status: 200 | 400,
+  below: Below = {},
 ): Response {
   const hidden = hiddenOf(c);
   if (wantsFragment(c)) return renderFragment(c, result as never, status);
@@ -110,15 +111,15 @@ function renderWhatIf(
         options,
         hidden,
         result: result as never,
-        solvers: EXTRAS.solvers?.(subject, c) as never,
-        sensitivity: EXTRAS.sensitivity?.(subject, c) as never,
+        solvers: below.solvers as never,
+        sensitivity: below.sensitivity as never,
         save: SaveScenarioForm({
           subject,
           query: leverQuery(values).replace(/^\?/, ''),
           csrfToken: token(c),
           canSave: canSave(c, ctx),
         }),
-        saved: EXTRAS.saved?.(subject) ?? [],
+        saved: below.saved ?? [],
       }),
     },
     status,
@@ -150,41 +151,61 @@ function download(c: Context, name: string, body: unknown): Response {
 }
 
 export function register(app: Hono, ctx: AppContext): void {
-  app.get('/whatif/pair/:id', (c) => {
-    const id = c.req.param('id');
+  /**
+   * A pair's or lot's what-if page (mode 'whatif': the levers of the query), or its solver answer
+   * (mode 'solve': the solver fields of the query, beside the as-is figures; the htmx swap is the
+   * answer alone).
+   */
+  const subjectPage = (c: Context, kind: 'pair' | 'lot', mode: 'whatif' | 'solve') => {
+    const id = c.req.param('id') ?? '';
     const asOfMs = asOfFrom(c, ctx);
     const by = paretoBy(c);
-    const pc = pairContext(ctx, id, asOfMs);
-    if (!pc) return notFound(c, ctx, `There is no pair ${id}.`);
-    if ('problem' in pc) return cannotAssess(c, ctx, `Pair ${id}`, pc.problem);
-    const subject: WhatIfSubject = { kind: 'pair', id, lotId: pc.pair.lotId };
-    const values = leverValuesOf((k) => c.req.query(k));
-    const options = leverOptions(ctx, pc.inputs.line, [pc.pair]);
-    const s = scenarioFor(values, [pc.inputs.line]);
-    const r = 'error' in s ? s : attempt(() => whatIfPair(pc, s.scenario));
+    const w = kind === 'pair' ? pairContext(ctx, id, asOfMs) : lotContext(ctx, id, asOfMs);
+    const what = `${kind === 'pair' ? 'Pair' : 'Lot'} ${id}`;
+    if (!w) return notFound(c, ctx, `There is no ${kind} ${id}.`);
+    if ('problem' in w) return cannotAssess(c, ctx, what, w.problem);
+    const subject: WhatIfSubject =
+      w.kind === 'pair' ? { kind: 'pair', id, lotId: w.pair.lotId } : { kind: 'lot', id };
+    const pairs = w.kind === 'pair' ? [w.pair] : w.lot.pairs;
+    const options = leverOptions(ctx, w.inputs.line, pairs);
+    const solved = mode === 'solve' ? solverAnswer(w, solverValuesOf(c)) : null;
+    if (solved && wantsFragment(c)) return renderFragment(c, solved.answer as never, solved.status);
+    const values = mode === 'solve' ? {} : leverValuesOf((k) => c.req.query(k));
+    const s = scenarioFor(values, [w.inputs.line]);
+    const r =
+      'error' in s
+        ? s
+        : attempt(() => (w.kind === 'pair' ? whatIfPair(w, s.scenario) : whatIfLot(w, s.scenario)));
+    const below: Below = {
+      solvers: solverSection(c, subject, options, solved?.answer ?? null),
+      sensitivity: SensitivitySlot({
+        href: `/whatif/${kind}/${encodeURIComponent(id)}/sensitivity${leverQuery({}, hiddenOf(c))}`,
+        subject: what,
+      }),
+    };
     if ('error' in r)
-      return renderWhatIf(c, ctx, subject, asOfMs, values, options, WhatIfError({ message: r.error }), 400);
-    const result = PairWhatIfResult({ w: r.ok, by, links: links(subject, values, hiddenOf(c), by) });
-    return renderWhatIf(c, ctx, subject, asOfMs, values, options, result, 200);
-  });
-
-  app.get('/whatif/lot/:id', (c) => {
-    const id = c.req.param('id');
-    const asOfMs = asOfFrom(c, ctx);
-    const by = paretoBy(c);
-    const lc = lotContext(ctx, id, asOfMs);
-    if (!lc) return notFound(c, ctx, `There is no lot ${id}.`);
-    if ('problem' in lc) return cannotAssess(c, ctx, `Lot ${id}`, lc.problem);
-    const subject: WhatIfSubject = { kind: 'lot', id };
-    const values = leverValuesOf((k) => c.req.query(k));
-    const options = leverOptions(ctx, lc.inputs.line, lc.lot.pairs);
-    const s = scenarioFor(values, [lc.inputs.line]);
-    const r = 'error' in s ? s : attempt(() => whatIfLot(lc, s.scenario));
-    if ('error' in r)
-      return renderWhatIf(c, ctx, subject, asOfMs, values, options, WhatIfError({ message: r.error }), 400);
-    const result = LotWhatIfResult({ w: r.ok, by, links: links(subject, values, hiddenOf(c), by) });
-    return renderWhatIf(c, ctx, subject, asOfMs, values, options, result, 200);
-  });
+      return renderWhatIf(
+        c,
+        ctx,
+        subject,
+        asOfMs,
+        values,
+        options,
+        WhatIfError({ message: r.error }),
+        400,
+        below,
+      );
+    const l = links(subject, values, hiddenOf(c), by);
+    const result =
+      'pairId' in r.ok
+        ? PairWhatIfResult({ w: r.ok, by, links: l })
+        : LotWhatIfResult({ w: r.ok, by, links: l });
+    return renderWhatIf(c, ctx, subject, asOfMs, values, options, result, solved?.status ?? 200, below);
+  };
+  app.get('/whatif/pair/:id', (c) => subjectPage(c, 'pair', 'whatif'));
+  app.get('/whatif/lot/:id', (c) => subjectPage(c, 'lot', 'whatif'));
+  app.get('/whatif/pair/:id/solve', (c) => subjectPage(c, 'pair', 'solve'));
+  app.get('/whatif/lot/:id/solve', (c) => subjectPage(c, 'lot', 'solve'));
 
   app.get('/whatif/waiting', (c) => {
     const asOfMs = asOfFrom(c, ctx);
