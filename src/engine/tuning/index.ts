@@ -4,6 +4,7 @@
  */
 export * from './load.ts';
 export * from './scenario.ts';
+export * from './sensitivity.ts';
 export * from './solvers.ts';
 export * from './types.ts';
 export * from './whatif.ts';

@@ -5,7 +5,7 @@
  */
 import type { Db } from '../../store/db.ts';
 import { listLotsForApi, loadLot, loadPair } from '../loader.ts';
-import { readParameterSet } from '../parameter-sets.ts';
+import { readAdoptedParameterSet, readParameterSet } from '../parameter-sets.ts';
 import { applyParameterSet } from '../parameters.ts';
 import type { LineData } from '../types.ts';
 import { parseScenario } from './scenario.ts';
@@ -35,6 +35,7 @@ export function openPairContext(db: Db, pairId: string, opts: ContextOptions): P
   const loaded = loadPair(db, pairId, opts.asOfMs);
   if (!loaded) return null;
   const ctx = createPairContext(loaded.pair, loaded.line, opts);
+  ctx.parameterSet = readAdoptedParameterSet(db);
   let typed: LineData | null | undefined;
   ctx.parameterLine = parameterReader(db, () => {
     if (typed === undefined) typed = loadPair(db, pairId, opts.asOfMs, null)?.line ?? null;
@@ -48,6 +49,7 @@ export function openLotContext(db: Db, lotId: string, opts: ContextOptions): Lot
   const loaded = loadLot(db, lotId, opts.asOfMs);
   if (!loaded) return null;
   const ctx = createLotContext(loaded.lot, loaded.line, opts);
+  ctx.parameterSet = readAdoptedParameterSet(db);
   let typed: LineData | null | undefined;
   ctx.parameterLine = parameterReader(db, () => {
     if (typed === undefined) typed = loadLot(db, lotId, opts.asOfMs, undefined, null)?.line ?? null;

@@ -12,6 +12,7 @@ import { ModelInputError } from '../../model/errors.ts';
 import { resolveConfig } from '../config.ts';
 import { assessLotInSession } from '../lot.ts';
 import { assessPairInSession, createSession, type EngineSession } from '../pair.ts';
+import type { ParameterSet } from '../parameter-set-types.ts';
 import type {
   AssessConfig,
   LineData,
@@ -42,6 +43,8 @@ interface BaseContext {
    */
   parameterLine?: (key: string) => LineData | null;
   parameterLines: Record<string, LineData>;
+  /** The parameter set the line data carries (the loaders set it; sensitivity takes its intervals). */
+  parameterSet?: ParameterSet | null;
 }
 
 export interface PairContext extends BaseContext {
