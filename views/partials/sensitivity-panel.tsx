@@ -157,3 +157,30 @@ export function SensitivityBody(props: {
     </div>
   );
 }
+
+/** The sensitivity on a page of its own (followed as a link without script). */
+export function SensitivityPage(props: { kind: 'pair' | 'lot'; id: string; lotId?: string; body: unknown }) {
+  const enc = encodeURIComponent;
+  return (
+    <section class="vc-sensitivity-page">
+      <p class="vc-crumbs">
+        <a href="/lots">Lots</a> ›{' '}
+        {props.kind === 'pair' ? (
+          <>
+            <a href={`/lots/${enc(props.lotId ?? '')}`}>{props.lotId}</a> ›{' '}
+            <a href={`/pairs/${enc(props.id)}`}>{props.id}</a>
+          </>
+        ) : (
+          <a href={`/lots/${enc(props.id)}`}>{props.id}</a>
+        )}{' '}
+        › sensitivity
+      </p>
+      <h1>
+        How sensitive the call of {props.kind} {props.id} is
+      </h1>
+      <section class="vc-sensitivity" id="sensitivity">
+        {props.body as never}
+      </section>
+    </section>
+  );
+}

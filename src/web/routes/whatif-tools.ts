@@ -5,7 +5,8 @@
  */
 import type { Context } from 'hono';
 import type { WhatIfSubject } from '../../../views/pages/whatif.tsx';
-import type { LeverOptions } from '../../../views/partials/whatif-levers.tsx';
+import { type FlipFigures, SensitivityBody } from '../../../views/partials/sensitivity-panel.tsx';
+import { type LeverOptions, leverQuery } from '../../../views/partials/whatif-levers.tsx';
 import {
   SOLVERS,
   SolverAnswer,
@@ -13,7 +14,12 @@ import {
   type SolverValues,
 } from '../../../views/partials/whatif-solvers.tsx';
 import {
+  assessLotScenario,
+  assessPairScenario,
+  type SensitivityResult,
   type SolverResult,
+  sensitivity,
+  sensitivityInputs,
   solveAreaClass,
   solveCleanD50,
   solveCleanRemoval,
@@ -21,7 +27,9 @@ import {
   solveLongestWait,
   type WhatIfContext,
 } from '../../engine/tuning/index.ts';
+import type { AppContext } from '../context.ts';
 import { BadParamError, choiceValue, numberInRangeValue, wholeNumberValue } from '../params.ts';
+import { memoised } from './lots.tsx';
 import { attempt, hiddenOf } from './whatif-context.ts';
 
 export function solverValuesOf(c: Context): SolverValues {
@@ -96,5 +104,51 @@ export function solverSection(
     values: solverValuesOf(c),
     hidden: hiddenOf(c),
     answer,
+  });
+}
+
+/** The figures at each row's flip point: the chain run once more with that input at its flip value. */
+function flipFigures(w: WhatIfContext, s: SensitivityResult): FlipFigures {
+  const { inputs } = sensitivityInputs(w, w.parameterSet ?? null);
+  const out: FlipFigures = {};
+  for (const row of s.rows) {
+    const inp = inputs.find((i) => i.input === row.input);
+    if (!inp || row.flip.value === null) continue;
+    const levers = inp.lever(row.flip.value);
+    if (w.kind === 'pair') {
+      const a = assessPairScenario(w, { levers }, 'summary');
+      const ym = w.inputs.line.products[w.pair.productId]?.spec.yieldModel;
+      const k = ym === 'poisson' ? a.figures.dieKillsPoisson : a.figures.dieKillsNB;
+      out[row.input] = { voids: a.figures.voids.value, dieLoss: k ? k.value : null };
+    } else {
+      const l = assessLotScenario(w, { levers }, 'summary');
+      out[row.input] = { voids: l.totals.voids, dieLoss: l.totals.dieKillsNB };
+    }
+  }
+  return out;
+}
+
+/**
+ * The sensitivity body of a subject (the tornado, the table of flip points), computed once per data
+ * version and time: it runs the chain a few dozen times.
+ */
+export function sensitivityBody(
+  ctx: AppContext,
+  w: WhatIfContext,
+  asOfQuery: Record<string, string>,
+): unknown {
+  const id = w.kind === 'pair' ? w.pair.pairId : w.lot.lotId;
+  const { s, flips } = memoised(ctx, `whatif-sensitivity|${w.kind}|${id}|${w.asOfMs}`, () => {
+    const s = sensitivity(w);
+    return { s, flips: flipFigures(w, s) };
+  });
+  const product = w.inputs.line.products[w.inputs.pairs[0]?.productId ?? ''];
+  return SensitivityBody({
+    s,
+    flips,
+    // The spec's voids limit is per pair; a lot's tornado sums its pairs, so it has none to draw.
+    voidsLimit: w.kind === 'pair' ? (product?.spec.maxVoids ?? null) : null,
+    subject: `${w.kind === 'pair' ? 'Pair' : 'Lot'} ${id}`,
+    whatIfHref: `/whatif/${w.kind}/${encodeURIComponent(id)}${leverQuery({}, asOfQuery)}`,
   });
 }

@@ -14,7 +14,7 @@ import {
   type WhatIfSubject,
   whatIfBase,
 } from '../../../views/pages/whatif.tsx';
-import { SensitivitySlot } from '../../../views/partials/sensitivity-panel.tsx';
+import { SensitivityPage, SensitivitySlot } from '../../../views/partials/sensitivity-panel.tsx';
 import { type LeverOptions, type LeverValues, leverQuery } from '../../../views/partials/whatif-levers.tsx';
 import {
   LotWhatIfResult,
@@ -44,7 +44,7 @@ import {
   wantsFragment,
 } from './whatif-context.ts';
 import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
-import { solverAnswer, solverSection, solverValuesOf } from './whatif-tools.ts';
+import { sensitivityBody, solverAnswer, solverSection, solverValuesOf } from './whatif-tools.ts';
 
 function paretoBy(c: Context): WhatIfParetoBy {
   return (
@@ -206,6 +206,24 @@ export function register(app: Hono, ctx: AppContext): void {
   app.get('/whatif/lot/:id', (c) => subjectPage(c, 'lot', 'whatif'));
   app.get('/whatif/pair/:id/solve', (c) => subjectPage(c, 'pair', 'solve'));
   app.get('/whatif/lot/:id/solve', (c) => subjectPage(c, 'lot', 'solve'));
+
+  // The sensitivity of the call: the htmx swap into the pair, lot and what-if pages, or a page.
+  const sensitivityPage = (c: Context, kind: 'pair' | 'lot') => {
+    const id = c.req.param('id') ?? '';
+    const asOfMs = asOfFrom(c, ctx);
+    const w = kind === 'pair' ? pairContext(ctx, id, asOfMs) : lotContext(ctx, id, asOfMs);
+    if (!w) return notFound(c, ctx, `There is no ${kind} ${id}.`);
+    if ('problem' in w) return cannotAssess(c, ctx, `${kind === 'pair' ? 'Pair' : 'Lot'} ${id}`, w.problem);
+    const body = sensitivityBody(ctx, w, hiddenOf(c));
+    if (wantsFragment(c)) return renderFragment(c, body as never);
+    return renderPage(c, ctx, {
+      title: `Sensitivity of ${id}`,
+      active: '/lots',
+      body: SensitivityPage({ kind, id, lotId: w.kind === 'pair' ? w.pair.lotId : undefined, body }),
+    });
+  };
+  app.get('/whatif/pair/:id/sensitivity', (c) => sensitivityPage(c, 'pair'));
+  app.get('/whatif/lot/:id/sensitivity', (c) => sensitivityPage(c, 'lot'));
 
   app.get('/whatif/waiting', (c) => {
     const asOfMs = asOfFrom(c, ctx);
