@@ -79,7 +79,6 @@ const HIGH_STYLE = { colour: '#c98a12', pattern: 'hatch' as const };
 const FLIP_COLOUR = '#b3261e';
 const ROW_H = 38;
 const BAR_H = 14;
-const LABEL_COL = 210;
 const PANEL_GAP = 48;
 /** Room above the plot for two lines of words (the as-is figure; the spec limit). */
 const TOP = 44;
@@ -116,6 +115,8 @@ export function tornado(input: TornadoInput) {
   const panels = input.panels;
   const rows = tornadoOrder(input.rows, panels);
   const width = input.width ?? 220 + 270 * Math.max(1, panels.length);
+  // The label column: 30 % of the width, between 210 and 340 px (the rest for the panels).
+  const LABEL_COL = Math.round(Math.min(340, Math.max(210, 0.3 * width)));
   const plotTop = TOP;
   const plotH = Math.max(1, rows.length) * ROW_H;
   const plotBottom = plotTop + plotH;

@@ -71,6 +71,7 @@ export function SensitivityBody(props: {
       <figure class="vc-panel vc-tornado-figure">
         {tornado({
           id: 'tornado',
+          width: 1040,
           title: `${props.subject}: sensitivity of expected voids${dies ? ' and die loss' : ''}`,
           panels: [
             {

@@ -45,6 +45,7 @@ export function fmtSolverValue(v: number | null, unit: SolverResult['unit']): st
 function fmtTolerance(v: number, unit: SolverResult['unit']): string {
   if (unit === 'passes') return 'whole passes';
   if (unit === 'class') return `${fmtNum(v)} of a class`;
+  if (unit === 's' && v < 3600) return `${fmtNum(v / 60)} min`;
   return fmtSolverValue(v, unit);
 }
 
@@ -114,7 +115,8 @@ export function SolverAnswer(props: { r: SolverResult | null; error?: string | n
     >
       <h3>{r.question}</h3>
       <p class="vc-solver-message">
-        <strong>{r.status === 'found' ? fmtSolverValue(r.value, r.unit) : 'No answer'}</strong> — {r.message}
+        {r.status === 'found' ? null : <strong>No answer. </strong>}
+        <strong>{r.message}</strong>
       </p>
       {r.status === 'found' ? (
         <p class="vc-small">

@@ -46,29 +46,31 @@ import {
 import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
 import { sensitivityBody, solverAnswer, solverSection, solverValuesOf } from './whatif-tools.ts';
 
-function paretoBy(c: Context): WhatIfParetoBy {
+/**
+ * `?pareto=`: the grouping of the Pareto; by default the grouping of the subject's dominant source
+ * (a wait location, a tool, else by kind of source), so the chart opens on what matters most.
+ */
+function paretoBy(c: Context, dominantGroupKey?: string | null): WhatIfParetoBy {
+  const fallback: WhatIfParetoBy = dominantGroupKey?.startsWith('location:')
+    ? 'location'
+    : dominantGroupKey?.startsWith('tool:') || !dominantGroupKey
+      ? 'tool'
+      : 'kind';
   return (
     queryChoice(
       c,
       'pareto',
       PARETO_GROUPINGS.map((g) => g.by),
-    ) ?? 'tool'
+    ) ?? fallback
   );
 }
 
-function links(
-  subject: WhatIfSubject,
-  values: LeverValues,
-  hidden: Record<string, string>,
-  by: WhatIfParetoBy,
-): ResultLinks {
+function links(subject: WhatIfSubject, values: LeverValues, hidden: Record<string, string>): ResultLinks {
   const base = whatIfBase(subject);
-  const extra = by === 'tool' ? hidden : { ...hidden, pareto: by };
   return {
-    self: `${base}${leverQuery(values, extra)}`,
+    self: `${base}${leverQuery(values, hidden)}`,
     exportHref: `${base}/export${leverQuery(values, hidden)}`,
-    paretoHref: (b) =>
-      `${base}${leverQuery(values, b === 'tool' ? hidden : { ...hidden, pareto: b })}#whatif-result`,
+    paretoHref: (b) => `${base}${leverQuery(values, { ...hidden, pareto: b })}#whatif-result`,
   };
 }
 
@@ -159,11 +161,12 @@ export function register(app: Hono, ctx: AppContext): void {
   const subjectPage = (c: Context, kind: 'pair' | 'lot', mode: 'whatif' | 'solve') => {
     const id = c.req.param('id') ?? '';
     const asOfMs = asOfFrom(c, ctx);
-    const by = paretoBy(c);
     const w = kind === 'pair' ? pairContext(ctx, id, asOfMs) : lotContext(ctx, id, asOfMs);
     const what = `${kind === 'pair' ? 'Pair' : 'Lot'} ${id}`;
     if (!w) return notFound(c, ctx, `There is no ${kind} ${id}.`);
     if ('problem' in w) return cannotAssess(c, ctx, what, w.problem);
+    const dominant = w.asIs.dominant?.groupKey ?? null;
+    const by = paretoBy(c, dominant);
     const subject: WhatIfSubject =
       w.kind === 'pair' ? { kind: 'pair', id, lotId: w.pair.lotId } : { kind: 'lot', id };
     const pairs = w.kind === 'pair' ? [w.pair] : w.lot.pairs;
@@ -195,7 +198,7 @@ export function register(app: Hono, ctx: AppContext): void {
         400,
         below,
       );
-    const l = links(subject, values, hiddenOf(c), by);
+    const l = links(subject, values, hiddenOf(c));
     const result =
       'pairId' in r.ok
         ? PairWhatIfResult({ w: r.ok, by, links: l })
@@ -243,7 +246,7 @@ export function register(app: Hono, ctx: AppContext): void {
         WhatIfError({ message: r.error }),
         400,
       );
-    const result = WaitingWhatIfResult({ w: r.ok, links: links(subject, values, hiddenOf(c), 'tool') });
+    const result = WaitingWhatIfResult({ w: r.ok, links: links(subject, values, hiddenOf(c)) });
     return renderWhatIf(c, ctx, subject, asOfMs, values, w0.options, result, 200);
   });
 
