@@ -233,7 +233,7 @@ export function tornado(input: TornadoInput) {
         const x = scaleLinear().domain([lo, hi]).nice(4).range([x0, x1]);
         const [dlo, dhi] = x.domain() as [number, number];
         const zero = x(0);
-        const ticks = linearTicks(x.ticks(4), x, (v) => signed(v, format));
+        const ticks = linearTicks(x.ticks(4), x, (v) => signed(v, (t) => fmtNum(t)));
         const limitIn = limitDelta !== null && limitDelta >= dlo && limitDelta <= dhi;
         const asIsText = `as is: ${format(p.asIs)} ${p.name}`;
         const limitText = p.limit

@@ -32,6 +32,7 @@ import { ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { ReasonList, RecleanCaution } from '../partials/reasons.tsx';
 import { SignoffPanel, type SignoffProps } from '../partials/signoff.tsx';
+import { TuningSection } from '../partials/tuning-section.tsx';
 import { PairInspectionSection } from '../partials/void-overlay-panel.tsx';
 
 export interface WaferScanView {
@@ -195,6 +196,7 @@ export function PairPage(props: PairPageProps) {
       />
 
       {a.reclean && a.call === 're-clean' ? <RecleanSection a={a} /> : null}
+      <TuningSection kind="pair" id={a.pairId} asOfMs={a.asOfMs} />
 
       <div class="vc-grid2">
         <QTimes a={a} />
