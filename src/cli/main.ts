@@ -12,12 +12,30 @@ import { demo } from './commands/demo.ts';
 import { importCommand } from './commands/import.ts';
 import { learn } from './commands/learn.ts';
 import { params } from './commands/params.ts';
+import { sensitivity } from './commands/sensitivity.ts';
 import { serve } from './commands/serve.ts';
 import { signoff } from './commands/signoff.ts';
+import { solve } from './commands/solve.ts';
+import { whatif } from './commands/whatif.ts';
+import { scenarios } from './commands/whatif-saved.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve, calc, importCommand, assess, learn, signoff, params, demo, backup];
+export const COMMANDS: Command[] = [
+  serve,
+  calc,
+  importCommand,
+  assess,
+  whatif,
+  solve,
+  sensitivity,
+  scenarios,
+  learn,
+  signoff,
+  params,
+  demo,
+  backup,
+];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

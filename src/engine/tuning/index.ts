@@ -3,6 +3,7 @@
  * One entry point for the CLI and the pages.
  */
 export * from './load.ts';
+export * from './saved.ts';
 export * from './scenario.ts';
 export * from './sensitivity.ts';
 export * from './solvers.ts';

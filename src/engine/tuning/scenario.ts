@@ -41,23 +41,37 @@ export interface ApplyOptions {
 /** Most extra passes a lever may ask for (the spec's re-clean limit is checked by the call). */
 export const MAX_EXTRA_PASSES = 10;
 
-const pos = z.number().finite().positive();
-const nonneg = z.number().finite().min(0);
-const id = z.string().trim().min(1);
+const pos = z.number('must be a number').finite('must be finite').positive('must be above 0');
+const nonneg = z.number('must be a number').finite('must be finite').min(0, 'must be ≥ 0 (not negative)');
+const id = z.string('must be text').trim().min(1, 'must not be empty');
+const fraction = z
+  .number('must be a number')
+  .min(0, 'must be from 0 to 1')
+  .max(1, 'must be from 0 to 1 (a removal above 1 is not possible)');
+const isolation = z
+  .number('must be a number')
+  .finite('must be finite')
+  .min(1, 'must be ≥ 1 (a carrier cannot concentrate the air)');
 
 const leverSchema = z.discriminatedUnion('kind', [
   z
     .object({
       kind: z.literal('clean'),
       cleanId: id,
-      extraPasses: z.number().int().min(0).max(MAX_EXTRA_PASSES).optional(),
-      d50M: z.number().min(1e-10).max(1e-2).optional(),
-      widthDecades: pos.optional(),
-      maxEfficiency: z.number().min(0).max(1).optional(),
-      removalAt: z
-        .object({ diameterM: pos, efficiency: z.number().min(0).max(1) })
-        .strict()
+      extraPasses: z
+        .number('must be a number')
+        .int('must be a whole number')
+        .min(0, 'must be ≥ 0')
+        .max(MAX_EXTRA_PASSES, `must be ≤ ${MAX_EXTRA_PASSES}`)
         .optional(),
+      d50M: z
+        .number('must be a number')
+        .min(1e-10, 'must be ≥ 0.1 nm')
+        .max(1e-2, 'must be ≤ 10 mm')
+        .optional(),
+      widthDecades: pos.optional(),
+      maxEfficiency: fraction.optional(),
+      removalAt: z.object({ diameterM: pos, efficiency: fraction }).strict().optional(),
     })
     .strict()
     .refine(
@@ -75,7 +89,7 @@ const leverSchema = z.discriminatedUnion('kind', [
       locationId: id,
       durationS: nonneg.optional(),
       carrier: z.enum(['open', 'closed', 'purged', 'in-tool']).optional(),
-      isolation: z.number().finite().min(1).optional(),
+      isolation: isolation.optional(),
     })
     .strict()
     .refine(
@@ -87,7 +101,11 @@ const leverSchema = z.discriminatedUnion('kind', [
       kind: z.literal('air'),
       locationId: id,
       scale: nonneg.optional(),
-      isoClass: z.number().min(1).max(9).optional(),
+      isoClass: z
+        .number('must be a number')
+        .min(1, 'must be from 1 to 9')
+        .max(9, 'must be from 1 to 9')
+        .optional(),
     })
     .strict()
     .refine(
@@ -112,7 +130,7 @@ const leverSchema = z.discriminatedUnion('kind', [
     .object({ kind: z.literal('parameters'), parameterSetId: z.number().int().positive().nullable() })
     .strict(),
   z.object({ kind: z.literal('deposition'), factor: pos }).strict(),
-  z.object({ kind: z.literal('isolation'), isolation: z.number().finite().min(1) }).strict(),
+  z.object({ kind: z.literal('isolation'), isolation }).strict(),
   z.object({ kind: z.literal('tail-slope'), slope: pos }).strict(),
   z.object({ kind: z.literal('removal-scale'), d50Factor: pos }).strict(),
   z.object({ kind: z.literal('adders-scale'), factor: nonneg }).strict(),

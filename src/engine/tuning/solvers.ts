@@ -19,7 +19,7 @@
 
 import { removalEfficiency } from '../../model/clean.ts';
 import { bisectRoot } from '../../model/roots.ts';
-import { fmtHours, fmtPercent, fmtSize } from '../format.ts';
+import { fmtPercent, fmtSize } from '../format.ts';
 import type { Call, PairAssessment, SpecCheck } from '../types.ts';
 import { cleanLogistic, D50_RANGE_M, MAX_EXTRA_PASSES } from './scenario.ts';
 import type { ForwardCheck, Lever, SolverName, SolverResult } from './types.ts';
@@ -171,6 +171,12 @@ function wafersOf(ctx: WhatIfContext) {
   return pairs.flatMap((p) => [p.top, p.bottom].map((w) => ({ pair: p, wafer: w })));
 }
 
+/** A duration in hours and minutes ("3 h 12 min", "45 min"). */
+export function hoursMinutes(s: number): string {
+  const min = Math.round(s / 60);
+  return min < 60 ? `${min} min` : `${Math.floor(min / 60)} h ${String(min % 60).padStart(2, '0')} min`;
+}
+
 /** Default tolerance of the longest wait, s (5 min: finer than a queue is planned). */
 export const WAIT_TOLERANCE_S = 300;
 
@@ -210,7 +216,7 @@ export function solveLongestWait(
     favourable: 'lo',
     tolerance: opts.toleranceS ?? WAIT_TOLERANCE_S,
     levers: (x) => [{ kind: 'wait', locationId, durationS: x }],
-    words: (x) => fmtHours(x),
+    words: hoursMinutes,
   });
   const running = stays.filter((s) => s.running);
   if (r.value !== null && running.length > 0)
