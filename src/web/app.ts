@@ -28,6 +28,7 @@ import * as pairs from './routes/pairs.tsx';
 import * as parameters from './routes/parameters.tsx';
 import * as tools from './routes/tools.tsx';
 import * as whatif from './routes/whatif.ts';
+import * as whatifSaved from './routes/whatif-saved.ts';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
@@ -52,6 +53,7 @@ const ROUTES: RouteModule[] = [
   parameters,
   accounts,
   feed,
+  whatifSaved,
   whatif,
 ];
 

@@ -123,7 +123,7 @@ export function SavedList(props: { saved: SavedScenarioView[] }) {
               <td>{s.createdBy}</td>
               <td>{fmtUtc(s.createdAtMs)}</td>
               <td>
-                <a href={`/whatif/scenarios/${s.id}.json`} download>
+                <a href={`/whatif/scenarios/${s.id}/export`} download>
                   JSON
                 </a>
               </td>

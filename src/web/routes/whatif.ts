@@ -44,6 +44,7 @@ import {
   wantsFragment,
 } from './whatif-context.ts';
 import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
+import { savedViews } from './whatif-saved.ts';
 import { sensitivityBody, solverAnswer, solverSection, solverValuesOf } from './whatif-tools.ts';
 
 /**
@@ -181,6 +182,7 @@ export function register(app: Hono, ctx: AppContext): void {
         : attempt(() => (w.kind === 'pair' ? whatIfPair(w, s.scenario) : whatIfLot(w, s.scenario)));
     const below: Below = {
       solvers: solverSection(c, subject, options, solved?.answer ?? null),
+      saved: savedViews(ctx, { kind, id }),
       sensitivity: SensitivitySlot({
         href: `/whatif/${kind}/${encodeURIComponent(id)}/sensitivity${leverQuery({}, hiddenOf(c))}`,
         subject: what,
@@ -233,6 +235,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const subject: WhatIfSubject = { kind: 'waiting', id: null };
     const values = leverValuesOf((k) => c.req.query(k));
     const w0 = waitingOptions(ctx, asOfMs);
+    const below: Below = { saved: savedViews(ctx).filter((v) => v.target === 'every waiting lot') };
     const s = scenarioFor(values, w0.lines);
     const r = 'error' in s ? s : attempt(() => whatIfWaiting(ctx.db, s.scenario, { asOfMs }));
     if ('error' in r)
@@ -245,9 +248,10 @@ export function register(app: Hono, ctx: AppContext): void {
         w0.options,
         WhatIfError({ message: r.error }),
         400,
+        below,
       );
     const result = WaitingWhatIfResult({ w: r.ok, links: links(subject, values, hiddenOf(c)) });
-    return renderWhatIf(c, ctx, subject, asOfMs, values, w0.options, result, 200);
+    return renderWhatIf(c, ctx, subject, asOfMs, values, w0.options, result, 200, below);
   });
 
   // The scenario and its figures as JSON (a download): the levers, what they changed, both sides.
