@@ -83,6 +83,8 @@ const PANEL_GAP = 48;
 /** Room above the plot for two lines of words (the as-is figure; the spec limit). */
 const TOP = 44;
 const SIDE = 14;
+/** Room right of the last panel: half of its last tick label ("+1000") and a little air. */
+const RIGHT = 30;
 
 /** The swing of a row in a panel: the larger distance of its two ends from the as-is figure. */
 export function swing(v: TornadoValues, asIs: number): number {
@@ -151,7 +153,7 @@ export function tornado(input: TornadoInput) {
   const legendRows = Math.ceil(legendEntries.length / legendCols);
   const height = legendTop + legendRows * 16 + 8;
 
-  const panelW = (width - LABEL_COL - SIDE - PANEL_GAP * (panels.length - 1)) / Math.max(1, panels.length);
+  const panelW = (width - LABEL_COL - RIGHT - PANEL_GAP * (panels.length - 1)) / Math.max(1, panels.length);
   const rowY = (i: number) => plotTop + i * ROW_H;
 
   const desc = rows.length

@@ -103,7 +103,8 @@ export function solverSection(
     cleans: options.cleans,
     values: solverValuesOf(c),
     hidden: hiddenOf(c),
-    answer,
+    // The place the answer swaps into is there before any question is asked.
+    answer: answer ?? SolverAnswer({ r: null }),
   });
 }
 
