@@ -114,6 +114,27 @@ describe('what-if pages', () => {
     expect(text(html)).toContain('adders of LACT-1/B: ×0.1');
   });
 
+  it('an extra rinse changes TR2652-P01’s call and carries the safety words, as do the clean solvers', async () => {
+    // demo-calls test: one more LRIN-1 rinse (CLN-RIN1) brings every TR2652 pair within spec.
+    const html = text(await (await viewer.get('/whatif/pair/TR2652-P01?clean=CLN-RIN1&passes=1')).text());
+    expect(html).toContain('As is re-clean → scenario bond the call changes');
+    for (const words of [
+      'authorised recipes',
+      're-clean count limits',
+      'qualified people',
+      'safety data sheets',
+    ])
+      expect(html).toContain(words);
+    const solved = text(
+      await (
+        await viewer.get('/whatif/pair/TR2652-P01/solve?solver=extra-passes', { 'HX-Request': 'true' })
+      ).text(),
+    );
+    expect(solved).toContain('1 extra pass');
+    expect(solved).toContain('authorised recipes');
+    expect(solved).toContain('licensed practice');
+  });
+
   it('the htmx swap is the result alone, and the same query as the page', async () => {
     const res = await viewer.get('/whatif/pair/TR2652-P01?tool=LACT-1%2FB&adders=0.1', {
       'HX-Request': 'true',

@@ -69,6 +69,11 @@ export function WhatIfError(props: { message: string }) {
   );
 }
 
+/** True when the scenario runs a clean more often or changes one (the safety words go beside it). */
+function touchesCleans(levers: { kind: string }[]): boolean {
+  return levers.some((l) => l.kind === 'clean' || l.kind === 'removal-scale');
+}
+
 function CallPair(props: { asIs: Call; whatIf: Call }) {
   const changed = props.asIs !== props.whatIf;
   return (
@@ -247,7 +252,11 @@ function ParetoUpdate(props: {
       <h3>Where the risk comes from, {g.label}</h3>
       <nav class="vc-tabs" aria-label="Pareto grouping">
         {PARETO_GROUPINGS.map((x) => (
-          <a href={props.switchHref(x.by)} class={x.by === props.by ? 'active' : undefined}>
+          <a
+            href={props.switchHref(x.by)}
+            class={x.by === props.by ? 'vc-tab active' : 'vc-tab'}
+            aria-current={x.by === props.by ? 'true' : undefined}
+          >
             {x.label}
           </a>
         ))}
@@ -330,6 +339,9 @@ export function PairWhatIfResult(props: { w: PairWhatIf; by: WhatIfParetoBy; lin
         <ReasonList reasons={s.reasons} />
         {s.call === 're-clean' && s.caution ? <RecleanCaution text={s.caution} /> : null}
       </div>
+      {touchesCleans(w.scenario.levers) && s.call !== 're-clean' ? (
+        <RecleanCaution text={RECLEAN_SAFETY} />
+      ) : null}
       <FiguresTable asIs={w.asIs} whatIf={s} />
       <SpecTable asIs={w.asIs} whatIf={s} />
       <ParetoUpdate
@@ -407,7 +419,11 @@ export function LotWhatIfResult(props: { w: LotWhatIf; by: WhatIfParetoBy; links
           over the lot {signed(w.delta.voids, (x) => fmtNum(x))}
           {w.delta.dieKillsNB !== null ? `; killed dies ${signed(w.delta.dieKillsNB, fmtDies)}` : ''}.
         </p>
-        {caution ? <RecleanCaution text={caution} /> : null}
+        {caution ? (
+          <RecleanCaution text={caution} />
+        ) : touchesCleans(w.scenario.levers) ? (
+          <RecleanCaution text={RECLEAN_SAFETY} />
+        ) : null}
       </div>
       <LotPairsTable w={w} />
       <ParetoUpdate
@@ -477,7 +493,7 @@ export function WaitingWhatIfResult(props: { w: WaitingWhatIf; links: ResultLink
           ))}
         </ul>
       ) : null}
-      {anyReclean ? <RecleanCaution text={RECLEAN_SAFETY} /> : null}
+      {anyReclean || touchesCleans(w.scenario.levers) ? <RecleanCaution text={RECLEAN_SAFETY} /> : null}
       <Links links={props.links} />
     </div>
   );
