@@ -108,6 +108,18 @@ const QUERY_ROUTES: {
   { path: '/api/lots/L-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
   { path: '/api/lots/L-01/assessment?detail={}', param: 'detail', kind: 'word' },
   { path: '/api/pairs/P-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/pair/P-01?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/pair/P-01?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/pair/P-01?energy={}', param: 'energy', headers: fragment, kind: 'number' },
+  { path: '/whatif/pair/P-01?threshold={}', param: 'threshold', kind: 'number' },
+  { path: '/whatif/pair/P-01?pareto={}', param: 'pareto', kind: 'word' },
+  { path: '/whatif/pair/P-01/export?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/pair/P-01/solve?solver={}', param: 'solver', kind: 'word' },
+  { path: '/whatif/pair/P-01/solve?solver={}', param: 'solver', headers: fragment, kind: 'word' },
+  { path: '/whatif/lot/L-01?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/lot/L-01?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/waiting?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/scenarios/compare?id={}', param: 'id', kind: 'number' },
 ];
 
 describe('query parameters: a bad value is a 400 with its reason, never a 500', () => {
@@ -184,6 +196,14 @@ describe('ids in the path: unknown or impossible ids are 404, never a 500', () =
       ['/areas?location=NO-SUCH-LOCATION', 404],
       ['/api/lots/NO-SUCH-LOT/assessment', 404],
       ['/api/pairs/NO-SUCH-PAIR/assessment', 404],
+      ['/whatif/pair/NO-SUCH-PAIR', 404],
+      ['/whatif/pair/NO-SUCH-PAIR/solve?solver=extra-passes', 404],
+      ['/whatif/pair/NO-SUCH-PAIR/sensitivity', 404],
+      ['/whatif/lot/NO-SUCH-LOT', 404],
+      ['/whatif/lot/NO-SUCH-LOT/export', 404],
+      ['/whatif/scenarios/999999', 404],
+      ['/whatif/scenarios/abc', 404],
+      ['/whatif/scenarios/1e3/export', 404],
     ];
     for (const [path, status] of cases) {
       const headers = /pareto|spectrum|issues/.test(path) ? fragment : {};

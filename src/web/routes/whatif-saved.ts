@@ -159,7 +159,8 @@ export function register(app: Hono, ctx: AppContext): void {
   );
 
   app.get('/whatif/scenarios/compare', (c) => {
-    const ids = c.req.queries('id') ?? [];
+    // Empty fields count as not given (forms send them), as everywhere in src/web/params.ts.
+    const ids = (c.req.queries('id') ?? []).filter((v) => v.trim() !== '');
     const unknown: number[] = [];
     const found: SavedScenario[] = [];
     for (const raw of ids.slice(0, 12)) {
