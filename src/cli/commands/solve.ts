@@ -99,7 +99,9 @@ export const solve: Command = {
                                  within the spec's re-clean limit
   area-class --at LOC            the least clean ISO 14644-1 class the area may have
 
-  --json   the answer as JSON: {solver, subject, question, status (found | fails-everywhere |
+  --basis B  what "within spec" means: bound (default: every spec line's bound at the spec's
+             confidence, as the call uses) or expected (the expected figures against the limits)
+  --json   the answer as JSON: {solver, basis, subject, question, status (found | fails-everywhere |
            passes-everywhere), value, unit (s | fraction | m | passes | class), current, margin,
            bracket, tolerance, iterations, forward {atAnswer, pastAnswer}, message, latestBondTimeMs}
 
@@ -123,6 +125,7 @@ export const solve: Command = {
       need: { type: 'string' },
       passes: { type: 'string' },
       tolerance: { type: 'string' },
+      basis: { type: 'string' },
       json: { type: 'boolean' },
       'as-of': { type: 'string' },
       data: { type: 'string' },
@@ -138,6 +141,9 @@ export const solve: Command = {
       if (values.need === undefined && values.size === undefined)
         throw new UsageError('clean-removal needs --size SIZE (or --need d50)');
     }
+    const basis = values.basis ?? 'bound';
+    if (basis !== 'bound' && basis !== 'expected')
+      throw new UsageError(`--basis: "${values.basis}" is not "bound" or "expected"`);
     const passes = values.passes === undefined ? 0 : Number(values.passes);
     if (!Number.isInteger(passes) || passes < 0 || passes > 10)
       throw new UsageError(`--passes: "${values.passes}" is not a whole number from 0 to 10`);
@@ -164,14 +170,14 @@ export const solve: Command = {
       }
       const r =
         which === 'longest-wait'
-          ? solveLongestWait(ctx, values.at!, tolS === undefined ? {} : { toleranceS: tolS })
+          ? solveLongestWait(ctx, values.at!, { basis, ...(tolS === undefined ? {} : { toleranceS: tolS }) })
           : which === 'area-class'
-            ? solveAreaClass(ctx, values.at!)
+            ? solveAreaClass(ctx, values.at!, { basis })
             : which === 'extra-passes'
-              ? solveExtraPasses(ctx, values.clean)
+              ? solveExtraPasses(ctx, values.clean, { basis })
               : values.need === 'd50'
-                ? solveCleanD50(ctx, values.clean!, { extraPasses: passes })
-                : solveCleanRemoval(ctx, values.clean!, sizeM!, { extraPasses: passes });
+                ? solveCleanD50(ctx, values.clean!, { extraPasses: passes, basis })
+                : solveCleanRemoval(ctx, values.clean!, sizeM!, { extraPasses: passes, basis });
       io.out(values.json ? `${JSON.stringify(r)}\n` : renderSolver(r));
       return EXIT.ok;
     } catch (e) {

@@ -69,6 +69,8 @@ export function renderPairWhatIf(w: PairWhatIf): string {
     'levers:',
     ...(w.applied.length ? w.applied.map((t) => `  - ${t}`) : ['  (none: the stored inputs)']),
     '',
+    `CALL: ${CALL_WORD[a.call]} as is → ${CALL_WORD[b.call]} in the scenario${w.callChanged ? ' (CHANGED)' : ''}`,
+    '',
     table([
       ['', 'as is', 'scenario', 'change'],
       row('call', (x) => CALL_WORD[x.call], w.callChanged ? 'CHANGED' : ''),

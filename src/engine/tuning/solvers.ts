@@ -22,7 +22,7 @@ import { bisectRoot } from '../../model/roots.ts';
 import { fmtPercent, fmtSize } from '../format.ts';
 import type { Call, PairAssessment, SpecCheck } from '../types.ts';
 import { cleanLogistic, D50_RANGE_M, MAX_EXTRA_PASSES } from './scenario.ts';
-import type { ForwardCheck, Lever, SolverName, SolverResult } from './types.ts';
+import type { ForwardCheck, Lever, SolverBasis, SolverName, SolverResult } from './types.ts';
 import { ScenarioError } from './types.ts';
 import { assessLotScenario, assessPairScenario, type WhatIfContext } from './whatif.ts';
 
@@ -42,14 +42,35 @@ export function pairsUnder(ctx: WhatIfContext, levers: Lever[]): PairAssessment[
     : assessLotScenario(ctx, { levers }, 'summary').pairs;
 }
 
+/**
+ * The spec lines of a pair on a basis: 'bound' (the spec's own: the figure's bound at its confidence,
+ * as the call uses) or 'expected' (the central values against the same limits).
+ */
+export function checksOn(p: PairAssessment, basis: SolverBasis): SpecCheck[] {
+  if (basis === 'bound') return p.specChecks;
+  return p.specChecks.map((c) => {
+    const v =
+      c.metric === 'voids'
+        ? p.figures.voids.value
+        : c.metric === 'unbondedFraction'
+          ? p.figures.unbondedFraction.value
+          : (p.figures.dieYield?.value ?? c.bound);
+    return { ...c, bound: v, pass: c.metric === 'dieYield' ? v >= c.limit : v <= c.limit };
+  });
+}
+
 /** Forward check of a set of pairs at one lever value, and its margin g. */
-export function forwardOf(value: number, pairs: PairAssessment[]): ForwardCheck & { margin: number } {
+export function forwardOf(
+  value: number,
+  pairs: PairAssessment[],
+  basis: SolverBasis = 'bound',
+): ForwardCheck & { margin: number } {
   let worst: ForwardCheck['worst'] = null;
   let margin = Number.POSITIVE_INFINITY;
   let call: Call = 'bond';
   for (const p of pairs) {
     if (RANK[p.call] > RANK[call]) call = p.call;
-    for (const c of p.specChecks) {
+    for (const c of checksOn(p, basis)) {
       const m = checkMargin(c);
       if (m < margin) {
         margin = m;
@@ -63,6 +84,7 @@ export function forwardOf(value: number, pairs: PairAssessment[]): ForwardCheck 
 
 interface Search {
   solver: SolverName;
+  basis: SolverBasis;
   question: string;
   unit: SolverResult['unit'];
   current: number | null;
@@ -86,7 +108,7 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
     let hit = cache.get(u);
     if (!hit) {
       const x = toX(u);
-      hit = forwardOf(x, pairsUnder(ctx, s.levers(x)));
+      hit = forwardOf(x, pairsUnder(ctx, s.levers(x)), s.basis);
       cache.set(u, hit);
     }
     return hit;
@@ -94,12 +116,13 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
   const subject = { kind: ctx.kind, id: ctx.kind === 'pair' ? ctx.pair.pairId : ctx.lot.lotId } as const;
   const base = {
     solver: s.solver,
+    basis: s.basis,
     subject,
     question: s.question,
     unit: s.unit,
     current: s.current,
     bracket: [toX(s.lo), toX(s.hi)] as [number, number],
-    tolerance: Math.abs(toX(s.lo + s.tolerance) - toX(s.lo)),
+    tolerance: s.toX ? Math.abs(toX(s.lo + s.tolerance) - toX(s.lo)) : s.tolerance,
   };
   const tolWords = (u: number) => s.words(Math.abs(toX(u + s.tolerance) - toX(u))).replace(/^ISO class /, '');
   const [fav, unfav] = s.favourable === 'lo' ? [s.lo, s.hi] : [s.hi, s.lo];
@@ -141,7 +164,7 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
   const value = toX(okU);
   return {
     ...base,
-    tolerance: Math.abs(toX(okU + s.tolerance) - toX(okU)),
+    tolerance: s.toX ? Math.abs(toX(okU + s.tolerance) - toX(okU)) : s.tolerance,
     status: 'found',
     value,
     margin: s.current === null ? null : value - s.current,
@@ -188,7 +211,7 @@ export const WAIT_TOLERANCE_S = 300;
 export function solveLongestWait(
   ctx: WhatIfContext,
   locationId: string,
-  opts: { toleranceS?: number; maxS?: number } = {},
+  opts: { toleranceS?: number; maxS?: number; basis?: SolverBasis } = {},
 ): SolverResult {
   const stays: { startMs: number; durS: number; running: boolean; bondMs: number | null }[] = [];
   for (const { pair, wafer } of wafersOf(ctx))
@@ -208,6 +231,7 @@ export function solveLongestWait(
   const hi = opts.maxS ?? Math.max(2 * current, 24 * 3600);
   const r = solve(ctx, {
     solver: 'longest-wait',
+    basis: opts.basis ?? 'bound',
     question: `Longest wait at ${locationId} within spec`,
     unit: 's',
     current,
@@ -250,7 +274,7 @@ export function solveCleanRemoval(
   ctx: WhatIfContext,
   cleanId: string,
   diameterM: number,
-  opts: { extraPasses?: number; tolerance?: number } = {},
+  opts: { extraPasses?: number; tolerance?: number; basis?: SolverBasis } = {},
 ): SolverResult {
   const c = cleanOf(ctx, cleanId);
   if (!(diameterM > 0 && diameterM < 1e-3))
@@ -264,6 +288,7 @@ export function solveCleanRemoval(
   const passes = opts.extraPasses ?? 0;
   return solve(ctx, {
     solver: 'clean-removal',
+    basis: opts.basis ?? 'bound',
     question: `Least removal of ${cleanId} at ${fmtSize(diameterM)}${passes ? ` with ${passes} extra pass(es)` : ''} within spec`,
     unit: 'fraction',
     current,
@@ -290,12 +315,13 @@ export function solveCleanRemoval(
 export function solveCleanD50(
   ctx: WhatIfContext,
   cleanId: string,
-  opts: { extraPasses?: number; toleranceDecades?: number } = {},
+  opts: { extraPasses?: number; toleranceDecades?: number; basis?: SolverBasis } = {},
 ): SolverResult {
   const c = cleanOf(ctx, cleanId);
   const passes = opts.extraPasses ?? 0;
   return solve(ctx, {
     solver: 'clean-d50',
+    basis: opts.basis ?? 'bound',
     question: `Largest d50 of ${cleanId}${passes ? ` with ${passes} extra pass(es)` : ''} within spec`,
     unit: 'm',
     current: cleanLogistic(c).halfSizeM,
@@ -314,7 +340,12 @@ export function solveCleanD50(
  * bring the subject within spec, within the spec's re-clean limit (maxRecleans less the re-cleans the
  * wafers already had). Counted up from 0: exact (tolerance 0).
  */
-export function solveExtraPasses(ctx: WhatIfContext, cleanId?: string): SolverResult {
+export function solveExtraPasses(
+  ctx: WhatIfContext,
+  cleanId?: string,
+  opts: { basis?: SolverBasis } = {},
+): SolverResult {
+  const basis = opts.basis ?? 'bound';
   const pairs = ctx.inputs.pairs;
   const product = ctx.inputs.line.products[pairs[0]?.productId ?? ''];
   const id = cleanId ?? product?.recleanCleanId ?? null;
@@ -325,6 +356,7 @@ export function solveExtraPasses(ctx: WhatIfContext, cleanId?: string): SolverRe
   const checks: ReturnType<typeof forwardOf>[] = [];
   const base = {
     solver: 'extra-passes' as const,
+    basis,
     subject: { kind: ctx.kind, id: subjectId(ctx) },
     question: `Fewest extra passes of ${id} within spec`,
     unit: 'passes' as const,
@@ -333,7 +365,7 @@ export function solveExtraPasses(ctx: WhatIfContext, cleanId?: string): SolverRe
     tolerance: 0,
   };
   for (let n = 0; n <= limit; n++) {
-    const f = forwardOf(n, pairsUnder(ctx, n ? [{ kind: 'clean', cleanId: id, extraPasses: n }] : []));
+    const f = forwardOf(n, pairsUnder(ctx, n ? [{ kind: 'clean', cleanId: id, extraPasses: n }] : []), basis);
     checks.push(f);
     if (f.withinSpec)
       return {
@@ -368,7 +400,11 @@ export const CLASS_TOLERANCE = 0.01;
  * The highest (least clean) ISO 14644-1 class of an area that keeps the subject within spec, the air
  * scaled by 10^(class − stated class). Bracket [1, 9]. Needs the location's stated class.
  */
-export function solveAreaClass(ctx: WhatIfContext, locationId: string): SolverResult {
+export function solveAreaClass(
+  ctx: WhatIfContext,
+  locationId: string,
+  opts: { basis?: SolverBasis } = {},
+): SolverResult {
   const loc = ctx.inputs.line.locations[locationId];
   if (!loc || !ctx.inputs.line.counters[locationId])
     throw new ScenarioError(`location "${locationId}" is not on the route of ${ctx.kind} ${subjectId(ctx)}`);
@@ -376,6 +412,7 @@ export function solveAreaClass(ctx: WhatIfContext, locationId: string): SolverRe
     throw new ScenarioError(`location "${locationId}" states no ISO class to scale from`);
   return solve(ctx, {
     solver: 'area-class',
+    basis: opts.basis ?? 'bound',
     question: `Least clean ISO class of ${locationId} within spec`,
     unit: 'class',
     current: loc.isoClass,

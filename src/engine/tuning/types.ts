@@ -236,6 +236,12 @@ export interface WaitingWhatIf {
 
 export type SolverName = 'longest-wait' | 'clean-removal' | 'clean-d50' | 'extra-passes' | 'area-class';
 
+/**
+ * What "within spec" means for a solver: 'bound' (default) — every spec line's bound at the spec's
+ * confidence, as the call uses; 'expected' — the central (expected) figures against the same limits.
+ */
+export type SolverBasis = 'bound' | 'expected';
+
 /** The chain run forward at one lever value. */
 export interface ForwardCheck {
   /** The lever value, in the solver's unit. */
@@ -250,6 +256,8 @@ export interface ForwardCheck {
 
 export interface SolverResult {
   solver: SolverName;
+  /** What "within spec" meant (bounds at the spec's confidence, or expected values). */
+  basis: SolverBasis;
   subject: { kind: 'pair' | 'lot'; id: string };
   /** What was solved for, in words ("longest wait at BOR-B2"). */
   question: string;
