@@ -156,6 +156,11 @@ describe('query parameters: a bad value is a 400 with its reason, never a 500', 
       '/areas?channel=7', // a size no location reports: the default channel is shown
       '/imports/history/1?page=3',
       `/api/lots/L-01/assessment?detail=full&asOf=${AS_OF_MS}`,
+      '/whatif/pair/P-01?energy=0.5&threshold=80&params=typed',
+      '/whatif/lot/L-01?pareto=clean',
+      '/whatif/pair/P-01/sensitivity', // a clean this line cannot vary is said in words, not a 422
+      '/whatif/lot/L-01/sensitivity',
+      '/whatif/waiting',
     ]) {
       const res = await get(path);
       expect(res.status, path).toBe(200);

@@ -159,6 +159,18 @@ export function SensitivityBody(props: {
   );
 }
 
+/** In place of the tornado when the chain cannot vary an input on these data: the reason. */
+export function SensitivityUnavailable(props: { reason: string }) {
+  return (
+    <div id="sensitivity-body" class="vc-sensitivity-body" data-unavailable="yes">
+      <p class="vc-error" role="status">
+        The sensitivity of this call cannot be computed on these data: {props.reason} The figures and the call
+        above are not affected.
+      </p>
+    </div>
+  );
+}
+
 /** The sensitivity on a page of its own (followed as a link without script). */
 export function SensitivityPage(props: { kind: 'pair' | 'lot'; id: string; lotId?: string; body: unknown }) {
   const enc = encodeURIComponent;

@@ -5,7 +5,11 @@
  */
 import type { Context } from 'hono';
 import type { WhatIfSubject } from '../../../views/pages/whatif.tsx';
-import { type FlipFigures, SensitivityBody } from '../../../views/partials/sensitivity-panel.tsx';
+import {
+  type FlipFigures,
+  SensitivityBody,
+  SensitivityUnavailable,
+} from '../../../views/partials/sensitivity-panel.tsx';
 import { type LeverOptions, leverQuery } from '../../../views/partials/whatif-levers.tsx';
 import {
   SOLVERS,
@@ -139,10 +143,16 @@ export function sensitivityBody(
   asOfQuery: Record<string, string>,
 ): unknown {
   const id = w.kind === 'pair' ? w.pair.pairId : w.lot.lotId;
-  const { s, flips } = memoised(ctx, `whatif-sensitivity|${w.kind}|${id}|${w.asOfMs}`, () => {
-    const s = sensitivity(w);
-    return { s, flips: flipFigures(w, s) };
-  });
+  const got = memoised(ctx, `whatif-sensitivity|${w.kind}|${id}|${w.asOfMs}`, () =>
+    attempt(() => {
+      const s = sensitivity(w);
+      return { s, flips: flipFigures(w, s) };
+    }),
+  );
+  // Data the chain cannot vary (a model refusing an input's end of range) are said in the section,
+  // in words; the page around it stands.
+  if ('error' in got) return SensitivityUnavailable({ reason: got.error });
+  const { s, flips } = got.ok;
   const product = w.inputs.line.products[w.inputs.pairs[0]?.productId ?? ''];
   return SensitivityBody({
     s,
