@@ -45,7 +45,7 @@ export function renderSensitivity(s: SensitivityResult): string {
           ? '—'
           : `${fmtCount(r.dieLossAtLow)} → ${fmtCount(r.dieLossAtHigh)}`,
         `${r.callAtLow.toUpperCase()} / ${r.callAtHigh.toUpperCase()}`,
-        r.flip.text,
+        r.specFlip.value === null ? r.flip.text : `${r.flip.text}; ${r.specFlip.text}`,
       ]),
     ]),
     '',
@@ -64,11 +64,13 @@ export const sensitivity: Command = {
   Each uncertain input (interface energy, tail slope, deposition velocity, closed-carrier isolation,
   every tool's adders, every clean's d50) over its stated range, one at a time: expected voids and
   killed dies at both ends, the calls there, and the value where the call changes (the flip point,
-  by bisection to 0.01 decade) or "no flip within range". Largest swing in voids first.
+  by bisection to 0.01 decade) or "no flip within range" — and, found the same way, where the spec
+  verdict (within / outside spec) changes when the call does not. Largest swing in voids first.
 
-  --json   {subject, asOfMs, base {voids, dieLoss, call}, rows [{input, label, unit, nominal, low, high,
+  --json   {subject, asOfMs, base {voids, dieLoss, call, withinSpec}, rows [{input, label, unit, nominal, low, high,
            rangeSource, voidsAtLow, voidsAtHigh, dieLossAtLow, dieLossAtHigh, callAtLow, callAtHigh,
-           swingVoids, flip {value, call, text}}], notVaried [{input, reason}]}
+           withinSpecAtLow, withinSpecAtHigh, swingVoids, flip {value, call, text},
+           specFlip {value, withinSpec, text}}], notVaried [{input, reason}]}
 
   exit codes: 0 done, 2 usage, 4 no database or no such pair or lot, 1 the data cannot be assessed`,
   async run(argv, io) {

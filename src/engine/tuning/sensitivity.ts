@@ -12,7 +12,7 @@
 import { bisectRoot } from '../../model/roots.ts';
 import { resolveConfig } from '../config.ts';
 import type { ParameterSet } from '../parameter-set-types.ts';
-import type { Call } from '../types.ts';
+import type { Call, PairAssessment } from '../types.ts';
 import type { Lever, SensitivityInput, SensitivityResult, SensitivityRow } from './types.ts';
 import { assessLotScenario, assessPairScenario, type WhatIfContext } from './whatif.ts';
 
@@ -33,17 +33,21 @@ interface Outcome {
   voids: number;
   dieLoss: number | null;
   call: Call;
+  /** Every spec line of every pair met at the spec's confidence. */
+  withinSpec: boolean;
 }
+
+const met = (ps: PairAssessment[]) => ps.every((p) => p.specChecks.every((c) => c.pass));
 
 function outcome(ctx: WhatIfContext, levers: Lever[]): Outcome {
   if (ctx.kind === 'pair') {
     const a = assessPairScenario(ctx, { levers }, 'summary');
     const ym = ctx.inputs.line.products[ctx.pair.productId]?.spec.yieldModel;
     const k = ym === 'poisson' ? a.figures.dieKillsPoisson : a.figures.dieKillsNB;
-    return { voids: a.figures.voids.value, dieLoss: k ? k.value : null, call: a.call };
+    return { voids: a.figures.voids.value, dieLoss: k ? k.value : null, call: a.call, withinSpec: met([a]) };
   }
   const l = assessLotScenario(ctx, { levers }, 'summary');
-  return { voids: l.totals.voids, dieLoss: l.totals.dieKillsNB, call: l.call };
+  return { voids: l.totals.voids, dieLoss: l.totals.dieKillsNB, call: l.call, withinSpec: met(l.pairs) };
 }
 
 interface Input {
@@ -185,28 +189,39 @@ export function sensitivityInputs(
 }
 
 /** The value between nominal and `end` where the call first differs from `base` (bisection in log). */
-function flipPoint(
+/**
+ * The value between nominal and `end` where the verdict (the call, or within spec) first differs from
+ * the as-is one (bisection in log10 of the input); null when the lever at its nominal value already
+ * gives another verdict.
+ */
+function flipPoint<V>(
   ctx: WhatIfContext,
   inp: Input,
-  base: Call,
+  verdict: (o: Outcome) => V,
+  base: V,
   end: number,
-): { value: number; call: Call } | null {
-  const calls = new Map<number, Call>();
-  const callAt = (u: number) => {
-    let c = calls.get(u);
-    if (!c) {
-      c = outcome(ctx, inp.lever(10 ** u)).call;
-      calls.set(u, c);
-    }
-    return c;
+): { value: number; verdict: V } | null {
+  const seen = new Map<number, V>();
+  const at = (u: number) => {
+    if (!seen.has(u)) seen.set(u, verdict(outcome(ctx, inp.lever(10 ** u))));
+    return seen.get(u) as V;
   };
-  if (callAt(Math.log10(inp.nominal)) !== base) return null;
-  const r = bisectRoot((u) => (callAt(u) === base ? 1 : -1), Math.log10(inp.nominal), Math.log10(end), {
+  if (at(Math.log10(inp.nominal)) !== base) return null;
+  const r = bisectRoot((u) => (at(u) === base ? 1 : -1), Math.log10(inp.nominal), Math.log10(end), {
     xTolerance: FLIP_TOLERANCE_DECADES,
   });
   const u = r.fRoot < 0 ? r.root : r.other;
-  return { value: 10 ** u, call: callAt(u) };
+  return { value: 10 ** u, verdict: at(u) };
 }
+
+const NOMINAL_DIFFERS =
+  'the lever at its nominal value already gives another verdict (one value for what the assessment takes per scan): no single flip point';
+
+function valueText(inp: Input, v: number): string {
+  return `${inp.unit === '×' ? '×' : ''}${+v.toPrecision(3)}${inp.unit === '×' || inp.unit === '1' ? '' : ` ${inp.unit}`}`;
+}
+
+const WITHIN = `(to within ${Math.round((10 ** FLIP_TOLERANCE_DECADES - 1) * 1000) / 10} %)`;
 
 /** The tornado of the subject: each input's swing and flip point, largest swing first. */
 export function sensitivity(
@@ -218,9 +233,19 @@ export function sensitivity(
       ? (() => {
           const ym = ctx.inputs.line.products[ctx.pair.productId]?.spec.yieldModel;
           const k = ym === 'poisson' ? ctx.asIs.figures.dieKillsPoisson : ctx.asIs.figures.dieKillsNB;
-          return { voids: ctx.asIs.figures.voids.value, dieLoss: k ? k.value : null, call: ctx.asIs.call };
+          return {
+            voids: ctx.asIs.figures.voids.value,
+            dieLoss: k ? k.value : null,
+            call: ctx.asIs.call,
+            withinSpec: met([ctx.asIs]),
+          };
         })()
-      : { voids: ctx.asIs.totals.voids, dieLoss: ctx.asIs.totals.dieKillsNB, call: ctx.asIs.call };
+      : {
+          voids: ctx.asIs.totals.voids,
+          dieLoss: ctx.asIs.totals.dieKillsNB,
+          call: ctx.asIs.call,
+          withinSpec: met(ctx.asIs.pairs),
+        };
   const { inputs, notVaried } = sensitivityInputs(ctx, set);
   const rows: SensitivityRow[] = inputs.map((inp) => {
     const lo = outcome(ctx, inp.lever(inp.low));
@@ -228,19 +253,31 @@ export function sensitivity(
     let flip: SensitivityRow['flip'] = { value: null, call: null, text: 'no flip within range' };
     const end = hi.call !== baseOut.call ? inp.high : lo.call !== baseOut.call ? inp.low : null;
     if (end !== null) {
-      const f = flipPoint(ctx, inp, baseOut.call, end);
-      if (!f)
-        flip = {
-          value: null,
-          call: null,
-          text: 'the lever at its nominal value already gives another call (one value for what the assessment takes per scan): no single flip point',
-        };
-      else
-        flip = {
-          value: f.value,
-          call: f.call,
-          text: `the call becomes ${f.call.toUpperCase()} at ${inp.unit === '×' ? '×' : ''}${+f.value.toPrecision(3)}${inp.unit === '×' || inp.unit === '1' ? '' : ` ${inp.unit}`} (to within ${Math.round((10 ** FLIP_TOLERANCE_DECADES - 1) * 1000) / 10} %)`,
-        };
+      const f = flipPoint(ctx, inp, (o) => o.call, baseOut.call, end);
+      flip = f
+        ? {
+            value: f.value,
+            call: f.verdict,
+            text: `the call becomes ${f.verdict.toUpperCase()} at ${valueText(inp, f.value)} ${WITHIN}`,
+          }
+        : { value: null, call: null, text: NOMINAL_DIFFERS };
+    }
+    let specFlip: SensitivityRow['specFlip'] = {
+      value: null,
+      withinSpec: null,
+      text: 'no change within range',
+    };
+    const sEnd =
+      hi.withinSpec !== baseOut.withinSpec ? inp.high : lo.withinSpec !== baseOut.withinSpec ? inp.low : null;
+    if (sEnd !== null) {
+      const f = flipPoint(ctx, inp, (o) => o.withinSpec, baseOut.withinSpec, sEnd);
+      specFlip = f
+        ? {
+            value: f.value,
+            withinSpec: f.verdict,
+            text: `${f.verdict ? 'within' : 'outside'} spec from ${valueText(inp, f.value)} ${WITHIN}`,
+          }
+        : { value: null, withinSpec: null, text: NOMINAL_DIFFERS };
     }
     return {
       input: inp.input,
@@ -256,8 +293,11 @@ export function sensitivity(
       dieLossAtHigh: hi.dieLoss,
       callAtLow: lo.call,
       callAtHigh: hi.call,
+      withinSpecAtLow: lo.withinSpec,
+      withinSpecAtHigh: hi.withinSpec,
       swingVoids: Math.max(Math.abs(lo.voids - baseOut.voids), Math.abs(hi.voids - baseOut.voids)),
       flip,
+      specFlip,
     };
   });
   rows.sort((a, b) => b.swingVoids - a.swingVoids);

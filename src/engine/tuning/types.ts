@@ -312,16 +312,24 @@ export interface SensitivityRow {
   dieLossAtHigh: number | null;
   callAtLow: Call;
   callAtHigh: Call;
+  /** Every spec line of every pair met at the spec's confidence, at low and at high. */
+  withinSpecAtLow: boolean;
+  withinSpecAtHigh: boolean;
   /** max |Δ voids| over the range (the tornado's bar length and order). */
   swingVoids: number;
   /** The value where the call changes from the as-is call (null: no flip within range), and words. */
   flip: { value: number | null; call: Call | null; text: string };
+  /**
+   * The value where the spec verdict (within / outside spec) changes, found the same way — informative
+   * when the call cannot flip (a Q-time or an excursion holds the pair whatever the figures).
+   */
+  specFlip: { value: number | null; withinSpec: boolean | null; text: string };
 }
 
 export interface SensitivityResult {
   subject: { kind: 'pair' | 'lot'; id: string };
   asOfMs: number;
-  base: { voids: number; dieLoss: number | null; call: Call };
+  base: { voids: number; dieLoss: number | null; call: Call; withinSpec: boolean };
   /** Largest swing first. */
   rows: SensitivityRow[];
   /** Inputs the chain holds no range for here, with why. */
