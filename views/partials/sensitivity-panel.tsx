@@ -115,7 +115,8 @@ export function SensitivityBody(props: {
             <th class="num">Voids, low / high</th>
             {dies ? <th class="num">Killed dies, low / high</th> : null}
             <th>Call, low / high</th>
-            <th>Flip point</th>
+            <th>Flip point (call)</th>
+            <th>Spec verdict changes</th>
           </tr>
         </thead>
         <tbody>
@@ -139,6 +140,11 @@ export function SensitivityBody(props: {
                 <CallBadge call={r.callAtLow} /> / <CallBadge call={r.callAtHigh} />
               </td>
               <td data-flip={r.flip.value === null ? 'none' : String(r.flip.value)}>{r.flip.text}</td>
+              <td
+                data-spec-flip={r.specFlip?.value === null || !r.specFlip ? 'none' : String(r.specFlip.value)}
+              >
+                {r.specFlip?.text ?? '—'}
+              </td>
             </tr>
           ))}
         </tbody>
