@@ -1,14 +1,18 @@
 /**
- * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools,calibration}.png,
+ * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools,calibration}.png
+ * and the tuning pictures docs/screenshots/{whatif-pair,whatif-longest-wait,whatif-sensitivity}.png,
  * from a running voidcast server with the demo line.
  *
  *   npm run screenshots                         start a demo server in a temporary data directory
  *   npm run screenshots -- --url http://127.0.0.1:4180/   use a server that is already running
+ *   npm run screenshots -- --only whatif-pair,whatif-sensitivity   only these pictures
  *
  * The lot shown is the first lot waiting to bond whose call is re-clean (else hold, else any);
  * the pair shown is that lot's first pair with the same call, so the tour shows a call with its
- * reasons, the caution and the modelled re-clean. Needs Debian's Chromium (/usr/bin/chromium or
- * $VOIDCAST_CHROMIUM).
+ * reasons, the caution and the modelled re-clean. The tuning pictures follow the demo's story
+ * (docs/demo.md): one more rinse on TR2652-P01 (its call changes), the longest wait in Boreas bay 2
+ * that keeps lot TR2653 within spec, and the sensitivity of TR2653-P01's call. Needs Debian's
+ * Chromium (/usr/bin/chromium or $VOIDCAST_CHROMIUM).
  */
 import { type ChildProcess, spawn } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
@@ -91,8 +95,26 @@ async function shoot(page: Page, url: string, name: string, maxHeight = 2400): P
   console.log(`wrote ${file}`);
 }
 
+/** One section of a page (waiting for `ready` inside it when it loads after the page, by htmx). */
+async function shootPart(
+  page: Page,
+  url: string,
+  selector: string,
+  name: string,
+  ready?: string,
+): Promise<void> {
+  const res = await page.goto(url, { waitUntil: 'networkidle' });
+  if (res?.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
+  if (ready) await page.locator(`${selector} ${ready}`).waitFor({ timeout: 120_000 });
+  const file = join(OUT, `${name}.png`);
+  await page.locator(selector).screenshot({ path: file });
+  console.log(`wrote ${file}`);
+}
+
 async function main(): Promise<number> {
-  const { values } = parseArgs({ options: { url: { type: 'string' } } });
+  const { values } = parseArgs({ options: { url: { type: 'string' }, only: { type: 'string' } } });
+  const only = values.only ? new Set(values.only.split(',').map((n) => n.trim())) : null;
+  const want = (name: string) => only === null || only.has(name);
   mkdirSync(OUT, { recursive: true });
   const server = values.url
     ? { url: values.url.endsWith('/') ? values.url : `${values.url}/`, stop: async () => {} }
@@ -104,17 +126,40 @@ async function main(): Promise<number> {
   });
   try {
     const page = await browser.newPage({ viewport: { width: 1360, height: 900 }, deviceScaleFactor: 1 });
-    await shoot(page, server.url, 'overview');
+    if (want('overview')) await shoot(page, server.url, 'overview');
     await page.goto(new URL('lots', server.url).href);
     const lot = await pickLink(page, 'table[data-table="waiting"] tbody tr', ['re-clean', 'hold']);
     if (!lot) throw new Error('no lot on /lots: is the demo line loaded?');
-    await shoot(page, new URL(lot, server.url).href, 'lot');
+    if (want('lot')) await shoot(page, new URL(lot, server.url).href, 'lot');
+    else await page.goto(new URL(lot, server.url).href);
     const pair = await pickLink(page, 'table.vc-pair-table tbody tr', ['re-clean', 'hold']);
     if (!pair) throw new Error(`no pair on ${lot}`);
-    await shoot(page, new URL(pair, server.url).href, 'pair', 2050);
-    await shoot(page, new URL('areas', server.url).href, 'areas');
-    await shoot(page, new URL('tools', server.url).href, 'tools');
-    await shoot(page, new URL('calibration', server.url).href, 'calibration');
+    if (want('pair')) await shoot(page, new URL(pair, server.url).href, 'pair', 2050);
+    if (want('areas')) await shoot(page, new URL('areas', server.url).href, 'areas');
+    if (want('tools')) await shoot(page, new URL('tools', server.url).href, 'tools');
+    if (want('calibration')) await shoot(page, new URL('calibration', server.url).href, 'calibration');
+    // Tuning: a what-if whose call changes, a solver's answer, and the tornado of a call.
+    if (want('whatif-pair'))
+      await shoot(
+        page,
+        new URL('whatif/pair/TR2652-P01?clean=CLN-RIN1&passes=1', server.url).href,
+        'whatif-pair',
+      );
+    if (want('whatif-longest-wait'))
+      await shootPart(
+        page,
+        new URL('whatif/lot/TR2653/solve?solver=longest-wait&at=BOR-B2', server.url).href,
+        '#solvers',
+        'whatif-longest-wait',
+      );
+    if (want('whatif-sensitivity'))
+      await shootPart(
+        page,
+        new URL('pairs/TR2653-P01', server.url).href,
+        '#sensitivity',
+        'whatif-sensitivity',
+        'svg[data-chart="tornado"]',
+      );
     return 0;
   } finally {
     await browser.close();

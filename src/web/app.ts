@@ -27,6 +27,8 @@ import * as lots from './routes/lots.tsx';
 import * as pairs from './routes/pairs.tsx';
 import * as parameters from './routes/parameters.tsx';
 import * as tools from './routes/tools.tsx';
+import * as whatif from './routes/whatif.ts';
+import * as whatifSaved from './routes/whatif-saved.ts';
 
 const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
@@ -51,6 +53,8 @@ const ROUTES: RouteModule[] = [
   parameters,
   accounts,
   feed,
+  whatifSaved,
+  whatif,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {

@@ -94,6 +94,32 @@ export function positiveNumberValue(
   return n;
 }
 
+/**
+ * A decimal number in a closed range [min, max] (or above min when `aboveMin`), or null when not
+ * given; `unit` names the unit in the message ("h", "nm", "J/m²"). Used by the what-if levers, where
+ * 0 is a meaningful value (a wait of zero hours) and a value past a physical bound (a removal above
+ * 1, an ISO class outside 1–9) must be refused in the user's terms.
+ */
+export function numberInRangeValue(
+  param: string,
+  value: string | undefined | null,
+  range: { min: number; max: number; aboveMin?: boolean; unit?: string },
+): number | null {
+  if (!given(value)) return null;
+  const v = value.trim();
+  const n = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(v) ? Number(v) : Number.NaN;
+  const low = range.aboveMin ? n > range.min : n >= range.min;
+  if (!(Number.isFinite(n) && low && n <= range.max)) {
+    const u = range.unit ? ` ${range.unit}` : '';
+    const from = range.aboveMin ? `above ${range.min}${u}` : `from ${range.min}${u}`;
+    throw new BadParamError(
+      param,
+      `must be a number ${from} up to ${range.max}${u} (a point for decimals, e.g. 0.5); got "${clip(v)}"`,
+    );
+  }
+  return n;
+}
+
 /** `?page=`: a page number from 1, default 1. */
 export function queryPage(c: Context, param = 'page'): number {
   return wholeNumberValue(param, c.req.query(param), 1, MAX_PAGE) ?? 1;

@@ -57,7 +57,13 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
       const pairTabs = await hrefs(page, '#pareto-panel .vc-tabs a');
       const spectrum = await hrefs(page, '#spectrum a[href*="spectrum="]');
       for (const t of [...pairTabs, ...spectrum]) await visit(t);
+      // Its what-if page (the scenario's Pareto beside the as-is one) and its call's sensitivity (the
+      // tornado), the lot's what-if page.
+      await visit(`whatif/${pairs[0]}`.replace('whatif/pairs/', 'whatif/pair/'));
+      await visit(`whatif/${pairs[0]}/sensitivity`.replace('whatif/pairs/', 'whatif/pair/'));
+      await visit(`whatif/${lot}`.replace('whatif/lots/', 'whatif/lot/'));
     }
+    await visit('whatif/waiting');
     await visit('areas');
     // Each location's trend at each channel, swapped into the Areas page the way its own controls
     // do it (htmx), so the page's styles apply and the page is classified once, not per trend.
@@ -104,14 +110,22 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
   it('reaches every page and every kind of chart the product draws', () => {
     expect(visits.filter((v) => v.status !== 200).map((v) => `${v.path}: ${v.status}`)).toEqual([]);
     const kinds = new Set(visits.flatMap((v) => v.report.kinds));
-    for (const k of ['trend', 'stacked-spectrum', 'wafer-map', 'void-map', 'pareto', 'removal-curve'])
+    for (const k of [
+      'trend',
+      'stacked-spectrum',
+      'wafer-map',
+      'void-map',
+      'pareto',
+      'removal-curve',
+      'tornado',
+    ])
       expect(kinds.has(k), `no ${k} chart was checked`).toBe(true);
     // The demo line: 5 assessed lots with 5 groupings each, 3 waiting lots' pairs, 16 locations.
     expect(visits.length).toBeGreaterThan(60);
     expect(visits.reduce((n, v) => n + v.report.texts, 0)).toBeGreaterThan(1000);
   });
 
-  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves)', () => {
+  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves, tornado)', () => {
     expect(problems(() => true)).toEqual([]);
   });
 

@@ -108,6 +108,18 @@ const QUERY_ROUTES: {
   { path: '/api/lots/L-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
   { path: '/api/lots/L-01/assessment?detail={}', param: 'detail', kind: 'word' },
   { path: '/api/pairs/P-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/pair/P-01?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/pair/P-01?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/pair/P-01?energy={}', param: 'energy', headers: fragment, kind: 'number' },
+  { path: '/whatif/pair/P-01?threshold={}', param: 'threshold', kind: 'number' },
+  { path: '/whatif/pair/P-01?pareto={}', param: 'pareto', kind: 'word' },
+  { path: '/whatif/pair/P-01/export?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/pair/P-01/solve?solver={}', param: 'solver', kind: 'word' },
+  { path: '/whatif/pair/P-01/solve?solver={}', param: 'solver', headers: fragment, kind: 'word' },
+  { path: '/whatif/lot/L-01?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/lot/L-01?asOf={}', param: 'asOf', kind: 'time' },
+  { path: '/whatif/waiting?energy={}', param: 'energy', kind: 'number' },
+  { path: '/whatif/scenarios/compare?id={}', param: 'id', kind: 'number' },
 ];
 
 describe('query parameters: a bad value is a 400 with its reason, never a 500', () => {
@@ -144,6 +156,11 @@ describe('query parameters: a bad value is a 400 with its reason, never a 500', 
       '/areas?channel=7', // a size no location reports: the default channel is shown
       '/imports/history/1?page=3',
       `/api/lots/L-01/assessment?detail=full&asOf=${AS_OF_MS}`,
+      '/whatif/pair/P-01?energy=0.5&threshold=80&params=typed',
+      '/whatif/lot/L-01?pareto=clean',
+      '/whatif/pair/P-01/sensitivity', // a clean this line cannot vary is said in words, not a 422
+      '/whatif/lot/L-01/sensitivity',
+      '/whatif/waiting',
     ]) {
       const res = await get(path);
       expect(res.status, path).toBe(200);
@@ -184,6 +201,14 @@ describe('ids in the path: unknown or impossible ids are 404, never a 500', () =
       ['/areas?location=NO-SUCH-LOCATION', 404],
       ['/api/lots/NO-SUCH-LOT/assessment', 404],
       ['/api/pairs/NO-SUCH-PAIR/assessment', 404],
+      ['/whatif/pair/NO-SUCH-PAIR', 404],
+      ['/whatif/pair/NO-SUCH-PAIR/solve?solver=extra-passes', 404],
+      ['/whatif/pair/NO-SUCH-PAIR/sensitivity', 404],
+      ['/whatif/lot/NO-SUCH-LOT', 404],
+      ['/whatif/lot/NO-SUCH-LOT/export', 404],
+      ['/whatif/scenarios/999999', 404],
+      ['/whatif/scenarios/abc', 404],
+      ['/whatif/scenarios/1e3/export', 404],
     ];
     for (const [path, status] of cases) {
       const headers = /pareto|spectrum|issues/.test(path) ? fragment : {};

@@ -7,6 +7,15 @@ export {
   removalCurve,
 } from './removal-curve.tsx';
 export { type SpectrumSeries, type StackedSpectrumInput, stackedSpectrum } from './stacked-spectrum.tsx';
+export {
+  swing,
+  type TornadoInput,
+  type TornadoPanel,
+  type TornadoRow,
+  type TornadoValues,
+  tornado,
+  tornadoOrder,
+} from './tornado.tsx';
 export { segmentTrend, type TrendInput, type TrendPoint, trend } from './trend.tsx';
 export { type VoidDisc, type VoidMapDie, type VoidMapInput, voidMap } from './void-map.tsx';
 export { type DieRect, layoutDies, type MirrorAxis } from './wafer-frame.tsx';

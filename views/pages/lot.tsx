@@ -19,6 +19,7 @@ import {
 import { type ParameterSetRefLike, ParametersUsed } from '../partials/parameters-used.tsx';
 import { type ParetoBy, type ParetoLike, ParetoPanel } from '../partials/pareto-panel.tsx';
 import { type ReasonLike, ReasonList, RecleanCaution } from '../partials/reasons.tsx';
+import { TuningSection } from '../partials/tuning-section.tsx';
 
 interface EstimateLike {
   value: number;
@@ -151,6 +152,7 @@ export function LotPage(props: { lot: LotLike; paretoBy: ParetoBy }) {
         subject={`Lot ${lot.lotId}`}
         asOfMs={lot.asOfMs}
       />
+      <TuningSection kind="lot" id={lot.lotId} asOfMs={lot.asOfMs} />
     </section>
   );
 }

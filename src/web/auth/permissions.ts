@@ -3,7 +3,7 @@
  * ones before it:
  *
  *   viewer    reads every page and the JSON API
- *   engineer  + imports files (and, as they come, scenarios and proposals)
+ *   engineer  + imports files, saves what-if scenarios and proposes parameter sets
  *   approver  + signs calls off, adopts parameter sets and goes back to the typed values
  *   admin     + manages accounts
  *
@@ -50,6 +50,7 @@ export const RULES: { method: string; path: RegExp; role: Role; what: string }[]
   },
   { method: 'POST', path: /^\/parameters\/[^/]+\/adopt$/, role: 'approver', what: 'adopt a parameter set' },
   { method: 'POST', path: /^\/parameters\/revert$/, role: 'approver', what: 'go back to the typed values' },
+  { method: 'POST', path: /^\/whatif\/scenarios$/, role: 'engineer', what: 'save a what-if scenario' },
   { method: 'POST', path: /^\/logout$/, role: 'viewer', what: 'sign out' },
   { method: 'POST', path: /^\/account(\/|$)/, role: 'viewer', what: 'change your own account' },
   { method: '*', path: /^\/admin(\/|$)/, role: 'admin', what: 'manage accounts' },
