@@ -22,12 +22,12 @@
  *
  * The page's CSRF token belongs to the asker's browser: it is replaced by a placeholder when the
  * page is kept and by the current request's own token when it is served, so no token is ever
- * served to another browser. A body without a token is also kept gzipped, and sent so to a client
- * that accepts it (browsers, fetch, curl --compressed). Concurrent requests for a page being rendered wait for that one
+ * served to another browser. A body is also kept compressed (around its tokens, see GzipPieces) and
+ * sent gzipped to a client that accepts it (browsers, fetch, curl --compressed). Concurrent requests for a page being rendered wait for that one
  * rendering instead of each rendering it.
  */
 
-import { gzipSync } from 'node:zlib';
+import { crc32, deflateRawSync, constants as zlibConstants } from 'node:zlib';
 import type { Context, MiddlewareHandler } from 'hono';
 import { matchedRoutes } from 'hono/route';
 import { keptResultAsync } from '../engine/cache.ts';
@@ -65,8 +65,62 @@ interface Kept {
   status: number;
   contentType: string;
   body: string;
-  /** The body gzipped once (RFC 1952), for clients that accept it; null when it holds a token. */
-  gzip: ArrayBuffer | null;
+  /** The body gzipped once, in pieces around its tokens (see `gzipAround`); null when small. */
+  gzip: GzipPieces | null;
+}
+
+/**
+ * A body compressed once though it holds a per-browser token: the text between the tokens is
+ * compressed as raw DEFLATE segments, each ended with a sync flush (RFC 1951: an empty stored block
+ * leaves the stream byte-aligned and not final), so that a stream is put together per request from
+ * the kept segments and the browser's token as a stored block between them, closed by an empty
+ * final block, inside the gzip header and trailer (RFC 1952: CRC-32 and length of the whole text).
+ */
+interface GzipPieces {
+  /** Compressed text segments; a token goes between each two. */
+  segments: Buffer[];
+  /** The UTF-8 bytes of the text segments, for the CRC-32 of the whole (with the token's). */
+  plain: Buffer[];
+}
+
+const GZIP_HEADER = Buffer.from([0x1f, 0x8b, 8, 0, 0, 0, 0, 0, 0, 0xff]);
+/** An empty final block with fixed Huffman codes (BFINAL=1, BTYPE=01, end-of-block): 0x03 0x00. */
+const FINAL_BLOCK = Buffer.from([0x03, 0x00]);
+
+function gzipAround(body: string): GzipPieces {
+  const plain = body.split(TOKEN_PLACEHOLDER).map((t) => Buffer.from(t, 'utf8'));
+  const segments = plain.map((p) => deflateRawSync(p, { level: 6, finishFlush: zlibConstants.Z_SYNC_FLUSH }));
+  return { segments, plain };
+}
+
+/** The gzip stream of the kept text with `token` in each placeholder. */
+function gzipWith(g: GzipPieces, token: string): Uint8Array<ArrayBuffer> {
+  const t = Buffer.from(token, 'utf8');
+  // a non-final stored block (BFINAL=0, BTYPE=00) holding the token's bytes (at most 65,535)
+  const stored = Buffer.alloc(5 + t.length);
+  stored[0] = 0;
+  stored.writeUInt16LE(t.length, 1);
+  stored.writeUInt16LE(~t.length & 0xffff, 3);
+  t.copy(stored, 5);
+  const parts: Buffer[] = [GZIP_HEADER];
+  let crc = 0;
+  let size = 0;
+  g.segments.forEach((seg, i) => {
+    if (i > 0) {
+      parts.push(stored);
+      crc = crc32(t, crc);
+      size += t.length;
+    }
+    parts.push(seg);
+    crc = crc32(g.plain[i]!, crc);
+    size += g.plain[i]!.length;
+  });
+  const trailer = Buffer.alloc(8);
+  trailer.writeUInt32LE(crc >>> 0, 0);
+  trailer.writeUInt32LE(size >>> 0, 4);
+  parts.push(FINAL_BLOCK, trailer);
+  const out = Buffer.concat(parts);
+  return new Uint8Array(out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength) as ArrayBuffer);
 }
 
 /** Bodies below this many characters are sent as they are (compressing them saves little). */
@@ -116,27 +170,19 @@ export function keptPages(ctx: AppContext): MiddlewareHandler {
       c.res = new Response(body, c.res);
       const keptBody =
         typeof token === 'string' && token !== '' ? body.replaceAll(token, TOKEN_PLACEHOLDER) : body;
-      const gzip =
-        keptBody.length >= GZIP_MIN_CHARS && !keptBody.includes(TOKEN_PLACEHOLDER)
-          ? arrayBufferOf(gzipSync(keptBody, { level: 6 }))
-          : null;
+      const gzip = keptBody.length >= GZIP_MIN_CHARS ? gzipAround(keptBody) : null;
       return { status: 200, contentType, body: keptBody, gzip };
     });
     if (rendered) return;
     if (kept === null) return next();
     c.header('content-type', kept.contentType);
     c.header('vary', 'Accept-Encoding');
+    const token = c.get('csrfToken');
+    const own = typeof token === 'string' && token.length < 65_536 ? token : '';
     if (kept.gzip && /\bgzip\b/i.test(c.req.header('accept-encoding') ?? '')) {
       c.header('content-encoding', 'gzip');
-      return c.body(kept.gzip, 200);
+      return c.body(gzipWith(kept.gzip, own), 200);
     }
-    const token = c.get('csrfToken');
-    return c.body(kept.body.replaceAll(TOKEN_PLACEHOLDER, typeof token === 'string' ? token : ''), 200);
+    return c.body(kept.body.replaceAll(TOKEN_PLACEHOLDER, own), 200);
   };
-}
-
-function arrayBufferOf(b: Buffer): ArrayBuffer {
-  const out = new ArrayBuffer(b.byteLength);
-  new Uint8Array(out).set(b);
-  return out;
 }

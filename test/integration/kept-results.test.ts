@@ -8,6 +8,7 @@
  */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { gunzipSync } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { keptStats } from '../../src/engine/cache.ts';
 import { assessPairFromDb } from '../../src/engine/loader.ts';
@@ -122,5 +123,25 @@ describe('kept answers', () => {
     const idOf = (cookie: string) => decodeURIComponent(cookie.slice(cookie.indexOf('=') + 1));
     expect(ta[0]).toBe(tokenFor(csrfSecret(db), idOf(cookieA)));
     expect(tb[0]).toBe(tokenFor(csrfSecret(db), idOf(cookieB)));
+  });
+
+  it('sends a kept page gzipped to a client that accepts it: the same text, with the asker’s own token', async () => {
+    const first = await app.request('/pairs/P-01');
+    const cookie = (first.headers.get('set-cookie') ?? '').split(';')[0]!;
+    const plain = await (await app.request('/pairs/P-01', { headers: { cookie } })).text();
+    const res = await app.request('/pairs/P-01', {
+      headers: { cookie, 'accept-encoding': 'gzip, deflate, br' },
+    });
+    expect(res.headers.get('content-encoding')).toBe('gzip');
+    // gunzip checks the stream, its CRC-32 and its length (RFC 1952)
+    const text = gunzipSync(Buffer.from(await res.arrayBuffer())).toString('utf8');
+    expect(text).toBe(plain);
+    expect(text).toContain(
+      `value="${tokenFor(csrfSecret(db), decodeURIComponent(cookie.slice(cookie.indexOf('=') + 1)))}"`,
+    );
+    const json = await app.request('/api/pairs/P-01/assessment', { headers: { 'accept-encoding': 'gzip' } });
+    expect(JSON.parse(gunzipSync(Buffer.from(await json.arrayBuffer())).toString('utf8')).pairId).toBe(
+      'P-01',
+    );
   });
 });
