@@ -166,7 +166,7 @@ function sizes(args: string[], quick: boolean) {
   return {
     rows: opt('--rows', quick ? 100_000 : 1_000_000),
     rssRows: opt('--rss-rows', quick ? 300_000 : 5_000_000),
-    repeat: opt('--repeat', quick ? 3 : 5),
+    repeat: opt('--repeat', quick ? 2 : 5),
   };
 }
 
@@ -303,7 +303,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
         unit: 'MB',
       });
       targets.push({
-        name: `peak memory, counter import of ${(rssRows / 1e6).toFixed(0)} M rows`,
+        name: `peak memory, counter import of ${(rssRows / 1e6).toLocaleString('en-US')} M rows`,
         target: '< 250 MB' + (rssRows < 5_000_000 ? ' (quick: fewer rows than the 5 M of the target)' : ''),
         measured: `${fmt(peakMb)} MB`,
         met: peakMb < 250,

@@ -78,7 +78,7 @@ function writeScans(path: string, WAFERS: number): void {
 }
 
 export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> {
-  const WAFERS = cfg.quick ? 10 : 50;
+  const WAFERS = cfg.quick ? 5 : 50;
   const repeat = runsFrom(cfg, 5, 3);
   const dir = mkdtempSync(join(tmpdir(), 'voidcast-bench-scans-'));
   try {
