@@ -166,7 +166,7 @@ function sizes(args: string[], quick: boolean) {
   return {
     rows: opt('--rows', quick ? 100_000 : 1_000_000),
     rssRows: opt('--rss-rows', quick ? 300_000 : 5_000_000),
-    repeat: opt('--repeat', quick ? 2 : 5),
+    repeat: opt('--repeat', quick ? 2 : 3),
   };
 }
 

@@ -472,8 +472,8 @@ export function loadOptions(args: string[], quick: boolean): Opts {
   const hostIdx = args.indexOf('--host');
   return {
     connections: opt('--connections', 50),
-    requests: opt('--requests', quick ? 400 : 3000),
-    seconds: opt('--seconds', quick ? 1.5 : 10),
+    requests: opt('--requests', quick ? 400 : 2000),
+    seconds: opt('--seconds', quick ? 1.5 : 6),
     host: hostIdx === -1 ? '127.0.0.1' : args[hostIdx + 1]!,
     quick,
     only: args.flatMap((a, i) => (args[i - 1] === '--only' ? a.split(',') : [])),

@@ -25,6 +25,9 @@ export const END = '<!-- bench:end -->';
 
 type Runner = (cfg: BenchConfig) => Promise<Section>;
 
+/** The console's own log, kept before a printing benchmark's lines are captured. */
+const print = console.log.bind(console);
+
 /** Benchmarks that print their own figures: their lines are kept as the section's table. */
 function printed(name: string, load: () => Promise<{ run: () => Promise<void> }>, data: string): Runner {
   return async (cfg) => {
@@ -33,7 +36,7 @@ function printed(name: string, load: () => Promise<{ run: () => Promise<void> }>
     console.log = (...a: unknown[]) => {
       const l = a.map(String).join(' ');
       lines.push(l);
-      cfg.log(l);
+      print(`  ${l}`);
     };
     try {
       await (await load()).run();
@@ -146,7 +149,7 @@ async function main() {
   const args = process.argv.slice(2);
   const quick = args.includes('quick');
   const names = args.filter((a) => !a.startsWith('-') && a !== 'quick' && SECTIONS.some((s) => s.name === a));
-  const cfg: BenchConfig = { quick, runs: runsFrom({ quick }, 7, 3), log: (l) => console.log(`  ${l}`) };
+  const cfg: BenchConfig = { quick, runs: runsFrom({ quick }, 7, 3), log: (l) => print(`  ${l}`) };
   const t0 = performance.now();
   const sections: Report['sections'] = [];
   for (const s of SECTIONS) {

@@ -93,7 +93,7 @@ async function counterGrowth(cfg: BenchConfig): Promise<Growth> {
         return k;
       };
       read();
-      const runs = n >= 1e7 ? 3 : runsFrom(cfg, 5, 3);
+      const runs = n >= 1e7 ? 2 : runsFrom(cfg, 5, 3);
       const t: number[] = [];
       let got = 0;
       for (let i = 0; i < runs; i++) {

@@ -79,7 +79,7 @@ function writeScans(path: string, WAFERS: number): void {
 
 export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> {
   const WAFERS = cfg.quick ? 5 : 50;
-  const repeat = runsFrom(cfg, 5, 3);
+  const repeat = runsFrom(cfg, 3, 3);
   const dir = mkdtempSync(join(tmpdir(), 'voidcast-bench-scans-'));
   try {
     const file = join(dir, 'scans.csv');
