@@ -67,7 +67,18 @@ function pause(ms: number): void {
  * Runs `body` in one write transaction (BEGIN IMMEDIATE … COMMIT, ROLLBACK on any throw), waiting
  * for another writer as long as it takes up to `maxWaitMs`, and saying so once.
  */
-export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: number } = {}): T {
+export function writeTransaction<T>(
+  db: Db,
+  body: () => T,
+  opts: {
+    maxWaitMs?: number;
+    /**
+     * Bookkeeping that no assessment, page or answer depends on (an API token's last-used time):
+     * it does not start a new data generation, so kept answers stay.
+     */
+    bookkeeping?: boolean;
+  } = {},
+): T {
   if (db.inTransaction) return body();
   const maxWaitMs = opts.maxWaitMs ?? DEFAULT_MAX_WAIT_MS;
   let started = false;
@@ -80,7 +91,7 @@ export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: n
   for (;;) {
     try {
       const result = tx.immediate();
-      committed.set(db, (committed.get(db) ?? 0) + 1);
+      if (!opts.bookkeeping) committed.set(db, (committed.get(db) ?? 0) + 1);
       return result;
     } catch (e) {
       if (started || !isBusyError(e)) throw e;

@@ -14,6 +14,7 @@ import { keptStats } from '../../src/engine/cache.ts';
 import { assessPairFromDb } from '../../src/engine/loader.ts';
 import { adoptParameterSetInDb, proposeParameterSet } from '../../src/engine/parameter-sets.ts';
 import { importFile } from '../../src/ingest/pipeline.ts';
+import { touchApiToken } from '../../src/store/accounts.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 import { setSetting } from '../../src/store/settings.ts';
 import { dataGeneration } from '../../src/store/writer.ts';
@@ -143,5 +144,13 @@ describe('kept answers', () => {
     expect(JSON.parse(gunzipSync(Buffer.from(await json.arrayBuffer())).toString('utf8')).pairId).toBe(
       'P-01',
     );
+  });
+
+  it('keeps answers across bookkeeping (an API token’s last-used time) but not across a setting', () => {
+    const gen = dataGeneration(db);
+    touchApiToken(db, 1, AS_OF_MS); // no such token: the UPDATE changes nothing, the write commits
+    expect(dataGeneration(db)).toBe(gen);
+    setSetting(db, 'bench.note', 'x');
+    expect(dataGeneration(db)).not.toBe(gen);
   });
 });
