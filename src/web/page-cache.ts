@@ -81,6 +81,8 @@ interface GzipPieces {
   segments: Buffer[];
   /** The UTF-8 bytes of the text segments, for the CRC-32 of the whole (with the token's). */
   plain: Buffer[];
+  /** A body without a token: its whole gzip stream, made once. */
+  whole: Uint8Array<ArrayBuffer> | null;
 }
 
 const GZIP_HEADER = Buffer.from([0x1f, 0x8b, 8, 0, 0, 0, 0, 0, 0, 0xff]);
@@ -90,11 +92,14 @@ const FINAL_BLOCK = Buffer.from([0x03, 0x00]);
 function gzipAround(body: string): GzipPieces {
   const plain = body.split(TOKEN_PLACEHOLDER).map((t) => Buffer.from(t, 'utf8'));
   const segments = plain.map((p) => deflateRawSync(p, { level: 6, finishFlush: zlibConstants.Z_SYNC_FLUSH }));
-  return { segments, plain };
+  const g: GzipPieces = { segments, plain, whole: null };
+  if (segments.length === 1) g.whole = gzipWith(g, '');
+  return g;
 }
 
 /** The gzip stream of the kept text with `token` in each placeholder. */
 function gzipWith(g: GzipPieces, token: string): Uint8Array<ArrayBuffer> {
+  if (g.whole) return g.whole;
   const t = Buffer.from(token, 'utf8');
   // a non-final stored block (BFINAL=0, BTYPE=00) holding the token's bytes (at most 65,535)
   const stored = Buffer.alloc(5 + t.length);
