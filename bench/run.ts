@@ -30,7 +30,7 @@ const print = console.log.bind(console);
 
 /** Benchmarks that print their own figures: their lines are kept as the section's table. */
 function printed(name: string, load: () => Promise<{ run: () => Promise<void> }>, data: string): Runner {
-  return async (cfg) => {
+  return async () => {
     const lines: string[] = [];
     const log = console.log;
     console.log = (...a: unknown[]) => {
