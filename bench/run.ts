@@ -1,24 +1,190 @@
 /**
- * `npm run bench`: runs every benchmark in bench/ in turn (each prints its own figures, measured
- * against a baseline in the same run). Pass names to run only some: `npm run bench -- import`.
+ * `npm run bench`: every benchmark in bench/, each measured against its baseline in the same run,
+ * then the results as JSON (bench/results/<UTC date-time>[-quick].json, not committed) and the
+ * tables of docs/performance.md (between its generated-section markers).
+ *
+ *   npm run bench                 every workload at full size (under 15 minutes on two cores)
+ *   npm run bench -- quick        small sizes and bounds (under 2 minutes); says so beside each target
+ *   npm run bench -- load assess  only the named sections (no docs written unless every one ran)
+ *   BENCH_RUNS=n                  measured runs per figure (after the warm-up)
+ *   --no-docs                     do not rewrite docs/performance.md
+ *
+ * Sections: import, scans, assess, scaling, load, match, calibrate (the last two print their own
+ * figures; in quick mode they are left out, as their sizes are fixed).
  */
-import { run as assessBench } from './assess.ts';
-import { run as calibrateBench } from './calibrate.ts';
-import { run as importBench } from './import.ts';
-import { run as matchBench } from './match.ts';
-import { run as scansReadBench } from './scans-read.ts';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { cpus, loadavg, totalmem } from 'node:os';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { type BenchConfig, fmt, runsFrom, type Section } from './common.ts';
 
-const BENCHES: { name: string; run: () => Promise<void> }[] = [
-  { name: 'import', run: importBench },
-  { name: 'assess', run: assessBench },
-  { name: 'scans-read', run: scansReadBench },
-  { name: 'match', run: matchBench },
-  { name: 'calibrate', run: calibrateBench },
+const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..');
+const DOC = join(ROOT, 'docs', 'performance.md');
+export const BEGIN = '<!-- bench:begin (written by npm run bench; edit above or below) -->';
+export const END = '<!-- bench:end -->';
+
+type Runner = (cfg: BenchConfig) => Promise<Section>;
+
+/** The console's own log, kept before a printing benchmark's lines are captured. */
+const print = console.log.bind(console);
+
+/** Benchmarks that print their own figures: their lines are kept as the section's table. */
+function printed(name: string, load: () => Promise<{ run: () => Promise<void> }>, data: string): Runner {
+  return async () => {
+    const lines: string[] = [];
+    const log = console.log;
+    console.log = (...a: unknown[]) => {
+      const l = a.map(String).join(' ');
+      lines.push(l);
+      print(`  ${l}`);
+    };
+    try {
+      await (await load()).run();
+    } finally {
+      console.log = log;
+    }
+    return { name, data, figures: [], targets: [], table: ['```', ...lines, '```'].join('\n') };
+  };
+}
+
+const SECTIONS: { name: string; quick: boolean; run: Runner }[] = [
+  { name: 'import', quick: true, run: async (c) => (await import('./import.ts')).run(c) },
+  { name: 'scans', quick: true, run: async (c) => (await import('./scans-read.ts')).run(c) },
+  { name: 'assess', quick: true, run: async (c) => (await import('./assess.ts')).run(c) },
+  { name: 'scaling', quick: true, run: async (c) => (await import('./scaling.ts')).run(c) },
+  { name: 'load', quick: true, run: async (c) => (await import('./load.ts')).run(c) },
+  {
+    name: 'match',
+    quick: false,
+    run: printed(
+      'match',
+      () => import('./match.ts'),
+      'two scans of 100,000 defects, matched as learning matches them',
+    ),
+  },
+  {
+    name: 'calibrate',
+    quick: false,
+    run: printed(
+      'calibrate',
+      () => import('./calibrate.ts'),
+      'the demo’s bonded lots calibrated from their inspections',
+    ),
+  },
 ];
 
-const only = process.argv.slice(2).filter((a) => !a.startsWith('-'));
-for (const b of BENCHES) {
-  if (only.length > 0 && !only.includes(b.name)) continue;
-  console.log(`— bench ${b.name} —`);
-  await b.run();
+interface Report {
+  date: string;
+  mode: 'full' | 'quick';
+  machine: { cpu: string; cores: number; memoryGb: number; node: string; platform: string };
+  sections: (Section & { loadAvgBefore: number[]; loadAvgAfter: number[] })[];
+  seconds: number;
 }
+
+function machine(): Report['machine'] {
+  const c = cpus();
+  return {
+    cpu: c[0]?.model ?? 'unknown',
+    cores: c.length,
+    memoryGb: Math.round(totalmem() / 2 ** 30),
+    node: process.version,
+    platform: `${process.platform} ${process.arch}`,
+  };
+}
+
+const esc = (s: string) => s.replace(/\|/g, '\\|');
+
+/** The generated part of docs/performance.md. */
+export function markdown(r: Report): string {
+  const out: string[] = [];
+  const la = (x: number[]) => x.map((v) => v.toFixed(2)).join(' / ');
+  out.push(
+    `Run of \`npm run bench${r.mode === 'quick' ? ' -- quick' : ''}\` on ${r.date} (${fmt(r.seconds / 60, 1)} min in all).`,
+    '',
+    `Machine: ${r.machine.cpu}, ${r.machine.cores} cores, ${r.machine.memoryGb} GB, Node.js ${r.machine.node}, ${r.machine.platform}. ` +
+      'The machine is shared with other work: absolute figures are noisy; the ratios against baselines measured in the same run are what the targets use. ' +
+      'Load average (1 / 5 / 15 min) before and after each section is given with it.',
+    '',
+    '### Targets',
+    '',
+    '| section | target | goal | measured | met | why / remark |',
+    '|---|---|---|---|---|---|',
+  );
+  for (const s of r.sections)
+    for (const t of s.targets)
+      out.push(
+        `| ${s.name} | ${esc(t.name)} | ${esc(t.target)} | ${esc(t.measured)} | ${t.met ? 'met' : '**missed**'} | ${esc(t.why ?? '')} |`,
+      );
+  out.push('', '### Figures', '');
+  for (const s of r.sections) {
+    out.push(
+      `#### ${s.name}`,
+      '',
+      `Data: ${s.data}. Load average ${la(s.loadAvgBefore)} before, ${la(s.loadAvgAfter)} after; ${fmt(s.seconds ?? 0, 0)} s.`,
+      '',
+    );
+    if (s.figures.length) {
+      out.push(
+        '| measured | value | baseline (same run) | baseline value | ratio | note |',
+        '|---|---|---|---|---|---|',
+      );
+      for (const f of s.figures)
+        out.push(
+          `| ${esc(f.what)} | ${fmt(f.value)} ${f.unit} | ${esc(f.baseline?.what ?? '—')} | ${f.baseline ? `${fmt(f.baseline.value)} ${f.baseline.unit}` : '—'} | ${f.ratio !== undefined ? `${fmt(f.ratio)} ×` : '—'}${f.ratioNote ? ` (${esc(f.ratioNote)})` : ''} | ${esc(f.note ?? '')} |`,
+        );
+      out.push('');
+    }
+    for (const g of s.growth ?? []) {
+      out.push(
+        `Growth of ${g.path} with ${g.unit}: **n^${g.exponent.toFixed(2)}** (least squares in log–log over ${g.sizes.map((n) => n.toExponential(0)).join(', ')}; median CPU ms ${g.ms.map((m) => fmt(m)).join(', ')}).`,
+        '',
+      );
+    }
+    if (s.table) out.push(s.table, '');
+  }
+  return out.join('\n');
+}
+
+async function main() {
+  const args = process.argv.slice(2);
+  const quick = args.includes('quick');
+  const names = args.filter((a) => !a.startsWith('-') && a !== 'quick' && SECTIONS.some((s) => s.name === a));
+  const cfg: BenchConfig = { quick, runs: runsFrom({ quick }, 7, 3), log: (l) => print(`  ${l}`) };
+  const t0 = performance.now();
+  const sections: Report['sections'] = [];
+  for (const s of SECTIONS) {
+    if (names.length > 0 ? !names.includes(s.name) : quick && !s.quick) continue;
+    console.log(`— bench ${s.name} —`);
+    const before = loadavg();
+    const ts = performance.now();
+    const sec = await s.run(cfg);
+    sec.seconds = (performance.now() - ts) / 1000;
+    sections.push({ ...sec, loadAvgBefore: before, loadAvgAfter: loadavg() });
+    for (const t of sec.targets)
+      console.log(
+        `  ${t.met ? 'met   ' : 'MISSED'} ${t.name}: ${t.measured}${t.why && !t.met ? ` — ${t.why}` : ''}`,
+      );
+  }
+  const report: Report = {
+    date: new Date().toISOString().replace(/\.\d+Z$/, 'Z'),
+    mode: quick ? 'quick' : 'full',
+    machine: machine(),
+    sections,
+    seconds: (performance.now() - t0) / 1000,
+  };
+  const dir = join(ROOT, 'bench', 'results');
+  mkdirSync(dir, { recursive: true });
+  const file = join(dir, `${report.date.replace(/:/g, '')}${quick ? '-quick' : ''}.json`);
+  writeFileSync(file, `${JSON.stringify(report, null, 2)}\n`);
+  console.log(`results: ${file} (${fmt(report.seconds / 60, 1)} min)`);
+  if (names.length === 0 && !args.includes('--no-docs')) {
+    const doc = readFileSync(DOC, 'utf8');
+    const a = doc.indexOf(BEGIN);
+    const b = doc.indexOf(END);
+    if (a < 0 || b < a) throw new Error(`${DOC}: the generated-section markers are missing`);
+    writeFileSync(DOC, `${doc.slice(0, a + BEGIN.length)}\n\n${markdown(report)}\n${doc.slice(b)}`);
+    console.log(`tables written to ${DOC}`);
+  }
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) await main();

@@ -8,6 +8,7 @@
  * with the spec, and a modelled extra run of the product's designated pre-bond clean shows what a
  * re-clean would buy.
  */
+
 import { SPECTRUM_BIN_COUNT, SPECTRUM_CENTRES_M, SPECTRUM_EDGES_M } from '../model/spectrum.ts';
 import {
   buildPareto,
@@ -37,6 +38,7 @@ import {
   type WaferPropagation,
 } from './propagate.ts';
 import { sizeIndexOf } from './tables.ts';
+import { countIncluded, topKIndices } from './top-k.ts';
 import {
   type AssessConfig,
   type AssessOptions,
@@ -740,10 +742,11 @@ function buildVoidMap(
 ): VoidMap {
   const det = s.detected;
   const n = det.survival.length;
-  const order = Array.from({ length: n }, (_, i) => i).filter((i) => det.survival[i]! > 0);
+  // The largest expected void areas first, picked without sorting every particle (src/engine/top-k.ts).
+  const drawn = (i: number) => det.survival[i]! > 0;
   const w = (i: number) => det.survival[i]! * det.rM[i]! * det.rM[i]!;
-  order.sort((a, b) => w(b) - w(a));
-  const keep = order.slice(0, cfg.maxMapDiscs);
+  const keep = topKIndices(n, cfg.maxMapDiscs, w, drawn);
+  const candidates = countIncluded(n, drawn);
   const discs: VoidDisc[] = keep.map((i) => {
     const c = s.contributions[det.source[i]!]!;
     return {
@@ -799,7 +802,7 @@ function buildVoidMap(
     waferDiameterM: product.waferDiameterM,
     edgeExclusionM: product.edgeExclusionM,
     discs,
-    discsOmitted: order.length - keep.length,
+    discsOmitted: candidates - keep.length,
     dieGrid,
   };
 }

@@ -104,12 +104,19 @@ export function openDataDir(dataDir: string, onWait?: (message: string) => void)
 }
 
 /** A quick health probe: the schema is readable and the latest migration applied. */
+/** The newest migration shipped with this code (read once: the files do not change while it runs). */
+let shippedVersion: number | null = null;
+function expectedVersion(): number {
+  shippedVersion ??= loadMigrations().at(-1)?.version ?? 0;
+  return shippedVersion;
+}
+
 export function databaseHealth(db: Db): { ok: boolean; schemaVersion: number; expectedVersion: number } {
+  const expected = expectedVersion();
   try {
     const row = db.prepare('SELECT MAX(version) AS v FROM schema_migrations').get() as { v: number | null };
-    const expected = loadMigrations().at(-1)?.version ?? 0;
     return { ok: (row.v ?? 0) === expected, schemaVersion: row.v ?? 0, expectedVersion: expected };
   } catch {
-    return { ok: false, schemaVersion: 0, expectedVersion: loadMigrations().at(-1)?.version ?? 0 };
+    return { ok: false, schemaVersion: 0, expectedVersion: expected };
   }
 }

@@ -10,6 +10,7 @@
  * `onWriterWait`) and tries again, until `maxWaitMs` has passed. Only the BEGIN is retried: once the
  * transaction's body has run, an error is the body's and is passed on.
  */
+import type { Statement } from 'better-sqlite3';
 import type { Db } from './db.ts';
 
 /** How long a write waits for another writer before it gives up with a clear message (30 min). */
@@ -17,6 +18,24 @@ export const DEFAULT_MAX_WAIT_MS = 30 * 60_000;
 const PAUSE_MS = 250;
 
 const reporters = new WeakMap<Db, (message: string) => void>();
+/** Write transactions committed through this connection (see `dataGeneration`). */
+const committed = new WeakMap<Db, number>();
+
+/**
+ * The data's generation as this connection sees it: changes whenever a write transaction commits —
+ * one of this connection's (counted by `writeTransaction`) or another connection's, in this process
+ * (the import worker) or another (a CLI import), which SQLite's `PRAGMA data_version` reports.
+ * Results kept for a generation (src/engine/cache.ts, src/web/page-cache.ts) are reused until it changes.
+ */
+export function dataGeneration(db: Db): string {
+  let stmt = versionStatements.get(db);
+  if (!stmt) {
+    stmt = db.prepare('PRAGMA data_version').pluck();
+    versionStatements.set(db, stmt);
+  }
+  return `${committed.get(db) ?? 0}.${stmt.get() as number}`;
+}
+const versionStatements = new WeakMap<Db, Statement>();
 
 /** Where a connection says that it waits for another writer (stderr in the CLI, the log in the server). */
 export function onWriterWait(db: Db, report: (message: string) => void): void {
@@ -64,7 +83,18 @@ function pause(ms: number): void {
  * Runs `body` in one write transaction (BEGIN IMMEDIATE … COMMIT, ROLLBACK on any throw), waiting
  * for another writer as long as it takes up to `maxWaitMs`, and saying so once.
  */
-export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: number } = {}): T {
+export function writeTransaction<T>(
+  db: Db,
+  body: () => T,
+  opts: {
+    maxWaitMs?: number;
+    /**
+     * Bookkeeping that no assessment, page or answer depends on (an API token's last-used time):
+     * it does not start a new data generation, so kept answers stay.
+     */
+    bookkeeping?: boolean;
+  } = {},
+): T {
   if (db.inTransaction) return body();
   const maxWaitMs = opts.maxWaitMs ?? DEFAULT_MAX_WAIT_MS;
   let started = false;
@@ -78,7 +108,9 @@ export function writeTransaction<T>(db: Db, body: () => T, opts: { maxWaitMs?: n
   const t0 = Date.now();
   for (;;) {
     try {
-      return tx.immediate();
+      const result = tx.immediate();
+      if (!opts.bookkeeping) committed.set(db, (committed.get(db) ?? 0) + 1);
+      return result;
     } catch (e) {
       if (started || !isBusyError(e)) throw e;
       const waited = Date.now() - t0;

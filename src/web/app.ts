@@ -12,6 +12,7 @@ import { authorize, identify } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { csrfProtection, csrfSecret } from './csrf.ts';
 import { hostAllowList, securityHeaders } from './hardening.ts';
+import { keptPages } from './page-cache.ts';
 import { BadParamError } from './params.ts';
 import { isFragmentRequest, renderPage } from './render.ts';
 import * as accounts from './routes/accounts.tsx';
@@ -75,6 +76,8 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
   );
   // What the asker's role allows (src/web/auth/permissions.ts).
   app.use('*', authorize(ctx));
+  // The assessment pages and API answers, kept until the data change (src/web/page-cache.ts).
+  app.use('*', keptPages(ctx));
 
   const asset = (body: Buffer, type: string) => () =>
     new Response(new Uint8Array(body), {

@@ -158,7 +158,9 @@ describe.skipIf(!run)('the pages in Chromium', () => {
       'Seen from the bond interface: mirrored',
     );
     expect(await page.locator('svg#void-map .vc-void').count()).toBeGreaterThan(0);
-    expect(await page.locator('svg#void-map .vc-die').count()).toBeGreaterThan(100);
+    expect(Number(await page.locator('svg#void-map .vc-die-grid').getAttribute('data-dies'))).toBeGreaterThan(
+      100,
+    );
     expect(await page.locator('svg#spectrum-chart .vc-layer').count()).toBeGreaterThan(1);
     expect(await page.locator('.vc-before-after tbody tr').count()).toBe(5);
     expect(await page.locator('.vc-reclean .vc-reclean-caution').count()).toBe(1);
@@ -229,11 +231,17 @@ describe.skipIf(!run)('the demo line in Chromium', () => {
     await go(pairHref!.slice(1));
     expect(await page.locator('svg[data-chart="wafer-map"]').count()).toBe(2);
     expect(await page.locator('svg#map-top .vc-mirror-note').count()).toBe(1);
-    expect(await page.locator('svg[data-chart="void-map"] .vc-die').count()).toBeGreaterThan(0);
+    expect(
+      Number(await page.locator('svg[data-chart="void-map"] .vc-die-grid').getAttribute('data-dies')),
+    ).toBeGreaterThan(0);
     // the dies carry their kill probability from all sources: more than one colour, with its scale
     const dieFills = await page
-      .locator('svg[data-chart="void-map"] .vc-die > rect:first-child')
-      .evaluateAll((els) => new Set(els.map((e) => e.getAttribute('fill'))).size);
+      .locator(
+        'svg[data-chart="void-map"] .vc-die-fill, svg[data-chart="void-map"] .vc-die > rect:first-child',
+      )
+      .evaluateAll(
+        (els) => new Set(els.map((e) => e.getAttribute('data-colour') ?? e.getAttribute('fill'))).size,
+      );
     expect(dieFills).toBeGreaterThan(1);
     expect(
       await page.locator('svg[data-chart="void-map"] .vc-colour-scale .vc-tick').count(),

@@ -90,8 +90,15 @@ describe('GET /pairs/:id', () => {
       figures: { dieKillsNB: { value: number }; dieKillsPoisson: { value: number } };
       voidMap: { dieGrid: { yieldModel: string; dies: unknown[] } };
     };
-    const p = [...map.matchAll(/class="vc-die[^"]*"[^>]*data-p-kill="([\d.]+)"/g)].map((m) => Number(m[1]));
+    // Every die's probability is in the map: on its own element (reached or killed dies) or in the
+    // data-p-kill list of its colour class's path (the other dies, one path per class).
+    const own = [...map.matchAll(/class="vc-die[ "][^>]*data-p-kill="([\d.]+)"/g)].map((m) => Number(m[1]));
+    const pooled = [...map.matchAll(/class="vc-die-fill"[^>]*data-p-kill="([\d. ]+)"/g)].flatMap((m) =>
+      m[1]!.split(' ').map(Number),
+    );
+    const p = [...own, ...pooled];
     expect(p).toHaveLength(a.voidMap.dieGrid.dies.length);
+    expect(map).toContain(`data-dies="${a.voidMap.dieGrid.dies.length}"`);
     // written with 4 decimals: the sum is within 0.00005 per die of the figure
     const loss =
       a.voidMap.dieGrid.yieldModel === 'poisson'
@@ -100,9 +107,9 @@ describe('GET /pairs/:id', () => {
     expect(Math.abs(p.reduce((s, x) => s + x, 0) - loss)).toBeLessThan(5e-5 * p.length);
     // the dies differ (the detected particles' dies stand out), and the colour follows the probability
     expect(new Set(p).size).toBeGreaterThan(1);
-    const fillOf = (q: number) =>
-      new RegExp(`data-p-kill="${q.toFixed(4)}"><rect [^>]*fill="([^"]+)"`).exec(map)![1];
-    expect(fillOf(Math.max(...p))).not.toBe(fillOf(Math.min(...p)));
+    const fills = [...map.matchAll(/class="vc-die-fill" data-colour="([^"]+)"/g)].map((m) => m[1]);
+    const ownFills = [...map.matchAll(/class="vc-die[ "][^>]*><rect [^>]*fill="([^"]+)"/g)].map((m) => m[1]);
+    expect(new Set([...fills, ...ownFills]).size).toBeGreaterThan(1);
     expect(map).toContain('Die kill probability, all sources');
     expect(map).toContain('reached by a detected void');
     expect(map).toMatch(/Sum over the dies: [\d.,]+/);

@@ -16,6 +16,7 @@
  * colour-vision deficiencies, interpolated between its classes.
  */
 import { scaleLinear } from 'd3-scale';
+import { latticeRuns, rectsPathD } from './die-grid.tsx';
 import { ChartSvg, fmtNum, fmtPct, Legend, r, safeId } from './svg.tsx';
 import { type DieRect, dieToPx, toPx, type WaferGeometry, WaferOutline, waferFrame } from './wafer-frame.tsx';
 
@@ -148,6 +149,22 @@ export function voidMap(input: VoidMapInput) {
   const summaryY = diesY + 14 + dieEntries * 18 + 12;
   const height = Math.max(size + top + 12, summaryY + 3 * 15 + 6);
   const gradientId = `${id}-ramp`;
+  // The dies a detected void reaches or that are killed are drawn one by one, outlined, with their
+  // figures in a tooltip; every other die goes into one path per colour class (COLOUR_CLASSES
+  // steps of the square-root-stretched scale, finer than the eye tells apart), its probabilities
+  // kept in the path's data-p-kill in the order of its rectangles.
+  const marked = input.dies.filter((d) => d.killed || (d.pDetected ?? 0) > 0);
+  const byClass = new Map<string, { fill: string; dies: VoidMapDie[] }>();
+  for (const d of input.dies) {
+    if (d.killed || (d.pDetected ?? 0) > 0) continue;
+    const fill = d.pKill !== undefined ? classColour(scale, d.pKill) : '#ffffff';
+    const k = byClass.get(fill) ?? { fill, dies: [] };
+    k.dies.push(d);
+    byClass.set(fill, k);
+  }
+  const classes = [...byClass.values()];
+  // On a regular stepping grid each class is its row runs filled with a one-die pattern.
+  const lattice = latticeRuns(input.dies.map((d) => dieToPx(f, d)));
   return (
     <ChartSvg kind="void-map" id={id} width={width} height={height} title={input.title} desc={desc}>
       <defs>
@@ -166,18 +183,48 @@ export function voidMap(input: VoidMapInput) {
         </text>
       ) : null}
       <WaferOutline f={f} geometry={input} idPrefix={id} />
-      <g class="vc-die-grid" clip-path={`url(#${id}-clip)`}>
-        {input.dies.map((d) => {
+      <g class="vc-die-grid" clip-path={`url(#${id}-clip)`} data-dies={input.dies.length}>
+        {classes.map((k, i) => {
+          const rects = k.dies.map((d) => dieToPx(f, d));
+          const runs = lattice ? latticeRuns(rects, lattice.cell) : null;
+          const common = {
+            class: 'vc-die-fill',
+            'data-colour': k.fill,
+            'data-p-kill': k.dies.map((d) => d.pKill?.toFixed(4) ?? '').join(' '),
+          };
+          if (!lattice || !runs)
+            return (
+              <path {...common} fill={k.fill} stroke="#9aa3ad" stroke-width="0.4" d={rectsPathD(rects)} />
+            );
+          // a regular grid: one die cell in the class colour, repeated over the class's row runs
+          const c = lattice.cell;
+          const q = (v: number) => Math.round(v * 1000) / 1000;
+          return (
+            <>
+              <pattern
+                id={`${id}-class-${i}`}
+                patternUnits="userSpaceOnUse"
+                x={q(c.x)}
+                y={q(c.y)}
+                width={q(c.pitchX)}
+                height={q(c.pitchY)}
+              >
+                <rect
+                  x={0.2}
+                  y={0.2}
+                  width={q(Math.max(0, c.w - 0.4))}
+                  height={q(Math.max(0, c.h - 0.4))}
+                  fill={k.fill}
+                  stroke="#9aa3ad"
+                  stroke-width="0.4"
+                />
+              </pattern>
+              <path {...common} fill={`url(#${id}-class-${i})`} d={rectsPathD(runs.runs)} />
+            </>
+          );
+        })}
+        {marked.map((d) => {
           const p = dieToPx(f, d);
-          const pad =
-            drawPads && input.pad
-              ? dieToPx(f, {
-                  xMm: d.xMm + input.pad.xMm,
-                  yMm: d.yMm + input.pad.yMm,
-                  wMm: input.pad.wMm,
-                  hMm: input.pad.hMm,
-                })
-              : null;
           const hit = (d.pDetected ?? 0) > 0;
           const cls = `vc-die${d.killed ? ' vc-die-killed' : ''}${hit ? ' vc-die-detected' : ''}`;
           return (
@@ -188,8 +235,8 @@ export function voidMap(input: VoidMapInput) {
                 width={r(p.w)}
                 height={r(p.h)}
                 fill={d.pKill !== undefined ? scale.colour(d.pKill) : '#ffffff'}
-                stroke={d.killed ? KILLED_STROKE : hit ? VOID_COLOUR : '#9aa3ad'}
-                stroke-width={d.killed ? 1.6 : hit ? 1.3 : 0.4}
+                stroke={d.killed ? KILLED_STROKE : VOID_COLOUR}
+                stroke-width={d.killed ? 1.6 : 1.3}
               >
                 <title>{dieTitle(d)}</title>
               </rect>
@@ -204,7 +251,18 @@ export function voidMap(input: VoidMapInput) {
                   pointer-events="none"
                 />
               ) : null}
-              {pad ? (
+            </g>
+          );
+        })}
+        {drawPads && input.pad
+          ? input.dies.map((d) => {
+              const pad = dieToPx(f, {
+                xMm: d.xMm + input.pad!.xMm,
+                yMm: d.yMm + input.pad!.yMm,
+                wMm: input.pad!.wMm,
+                hMm: input.pad!.hMm,
+              });
+              return (
                 <rect
                   class="vc-pad"
                   x={r(pad.x)}
@@ -217,10 +275,9 @@ export function voidMap(input: VoidMapInput) {
                   stroke-dasharray="2 1.5"
                   pointer-events="none"
                 />
-              ) : null}
-            </g>
-          );
-        })}
+              );
+            })
+          : null}
       </g>
       <g class="vc-marks" clip-path={`url(#${id}-clip)`}>
         {order.map((v) => {
@@ -375,6 +432,15 @@ export function voidMap(input: VoidMapInput) {
       </g>
     </ChartSvg>
   );
+}
+
+/** Steps of the die colour scale (on its square-root stretch) that share one path. */
+export const COLOUR_CLASSES = 64;
+
+/** The colour of a probability's class: the scale's colour at the class's centre. */
+export function classColour(scale: ReturnType<typeof killColourScale>, p: number): string {
+  const level = Math.round(Math.sqrt(clamp01(p) / scale.top) * COLOUR_CLASSES) / COLOUR_CLASSES;
+  return scale.colour(Math.min(1, level) ** 2 * scale.top);
 }
 
 function dieTitle(d: VoidMapDie): string {

@@ -4,14 +4,14 @@
  * Marks are sized and shaded by size class (log-spaced LSE diameter classes, default half
  * decades from 30 nm), so the size is read by area and by grey level alike; the legend lists
  * each class with its count. The notch, the edge-exclusion ring and an optional die grid are
- * drawn; a wafer can be shown mirrored (the top wafer of a pair as seen from the interface),
+ * drawn (the die grid compactly, src: views/charts/die-grid.tsx); a wafer can be shown mirrored (the top wafer of a pair as seen from the interface),
  * and then the chart says so in words.
  */
 import { scaleThreshold } from 'd3-scale';
+import { DieGridOutline } from './die-grid.tsx';
 import { ChartSvg, fmtDiameter, Legend, r, safeId } from './svg.tsx';
 import {
   type DieRect,
-  dieToPx,
   type MirrorAxis,
   toPx,
   type WaferGeometry,
@@ -103,23 +103,7 @@ export function waferMap(input: WaferMapInput) {
       ) : null}
       <WaferOutline f={f} geometry={input} idPrefix={id} />
       {input.dies && input.dies.length > 0 ? (
-        <g class="vc-die-grid" clip-path={`url(#${id}-clip)`}>
-          {input.dies.map((d) => {
-            const p = dieToPx(f, d);
-            return (
-              <rect
-                class="vc-die"
-                x={r(p.x)}
-                y={r(p.y)}
-                width={r(p.w)}
-                height={r(p.h)}
-                fill="none"
-                stroke="#c4c9d2"
-                stroke-width="0.6"
-              />
-            );
-          })}
-        </g>
+        <DieGridOutline f={f} dies={input.dies} idPrefix={id} clipId={`${id}-clip`} />
       ) : null}
       <g class="vc-marks">
         {marks.map(({ p, c }) => {

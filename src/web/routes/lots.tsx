@@ -7,13 +7,13 @@ import { LotPage } from '../../../views/pages/lot.tsx';
 import { type LotRow, LotsPage } from '../../../views/pages/lots.tsx';
 import { MessagePage } from '../../../views/pages/message.tsx';
 import { ParetoPanel } from '../../../views/partials/pareto-panel.tsx';
+import { keptResult } from '../../engine/cache.ts';
 import { loadLot } from '../../engine/loader.ts';
 import { assessLotInSession } from '../../engine/lot.ts';
 import { createSession, EngineInputError } from '../../engine/pair.ts';
 import type { LotAssessment } from '../../engine/types.ts';
 import { latestDisposition } from '../../store/dispositions.ts';
 import { listLots } from '../../store/lots.ts';
-import { parameterSetsStamp } from '../../store/parameter-sets.ts';
 import { getSetting } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
 import { queryAsOf, queryParetoBy } from '../params.ts';
@@ -46,38 +46,13 @@ export function asOfFrom(c: Context, ctx: AppContext): number {
 }
 
 /**
- * A small memo of assessments for the pages: the engine is deterministic (seeded), so the same
- * subject at the same time on the same data gives the same figures. The data's version is the
- * imports table (every stored change of data comes through an import) and the parameter sets'
- * stamp (a set adopted or reverted changes every assessment). Bounded; oldest entries go first.
+ * Assessments for the pages, kept until the data change (src/engine/cache.ts): the engine is
+ * deterministic (seeded), so the same subject at the same time on the same data gives the same
+ * figures; any committed write (an import, a parameter set adopted or reverted, a sign-off) starts
+ * a new data generation and the next request computes afresh.
  */
-const MEMO_MAX = 64;
-const memos = new WeakMap<object, Map<string, unknown>>();
-
-function dataVersion(ctx: AppContext): string {
-  try {
-    const r = ctx.db.prepare('SELECT COUNT(*) AS n, MAX(id) AS m FROM imports').get() as {
-      n: number;
-      m: number | null;
-    };
-    return `${r.n}:${r.m ?? 0}:${parameterSetsStamp(ctx.db)}`;
-  } catch {
-    return '0:0';
-  }
-}
-
 export function memoised<T>(ctx: AppContext, key: string, compute: () => T): T {
-  let memo = memos.get(ctx.db);
-  if (!memo) {
-    memo = new Map();
-    memos.set(ctx.db, memo);
-  }
-  const k = `${dataVersion(ctx)}|${key}`;
-  if (memo.has(k)) return memo.get(k) as T;
-  const v = compute();
-  memo.set(k, v);
-  while (memo.size > MEMO_MAX) memo.delete(memo.keys().next().value as string);
-  return v;
+  return keptResult(ctx.db, `page|${key}`, compute);
 }
 
 /** Why a lot without pairs has no call: it is not (yet) to be bonded. */

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { killColourScale, voidMap } from '../../../views/charts/void-map.tsx';
+import { COLOUR_CLASSES, classColour, killColourScale, voidMap } from '../../../views/charts/void-map.tsx';
 import { byClass, byName, danglingRefs, hasClass, svgOf, textOf } from './svg-query.ts';
 
 const base = { title: 'Pair P1 voids', diameterMm: 300, edgeExclusionMm: 3 };
@@ -58,8 +58,11 @@ describe('voidMap', () => {
 
   it('marks killed dies with a hatch over their colour and a heavy outline, not by colour alone', () => {
     const svg = svgOf(voidMap({ ...base, dies, voids: [] }));
+    // the killed die is drawn on its own; the two others share the paths of their colour classes
+    expect(byClass(svg, 'vc-die-grid')[0]!.attrs['data-dies']).toBe('3');
     const cells = byClass(svg, 'vc-die');
-    expect(cells).toHaveLength(3);
+    expect(cells).toHaveLength(1);
+    expect(byClass(svg, 'vc-die-fill')).toHaveLength(2);
     const killed = cells.filter((c) => hasClass(c, 'vc-die-killed'));
     expect(killed).toHaveLength(1);
     const [fill, hatch] = byName(killed[0]!, 'rect');
@@ -82,7 +85,10 @@ describe('voidMap', () => {
         dies: ps.map((p, i) => ({ xMm: i * 10, yMm: 0, wMm: 10, hMm: 10, killed: false, pKill: p })),
       }),
     );
-    const fills = byClass(svg, 'vc-die').map((g) => byName(g, 'rect')[0]!.attrs.fill!);
+    // one path per colour class (none of these dies is reached or killed), in the order of the dies
+    const paths = byClass(svg, 'vc-die-fill');
+    expect(paths.map((x) => Number(x.attrs['data-p-kill']))).toEqual(ps);
+    const fills = paths.map((x) => x.attrs['data-colour']!);
     // lightness (sum of RGB) falls as the probability rises: a sequential scale, light = safe
     const light = fills.map((f) => {
       const [r, g, b] = /rgb\((\d+), (\d+), (\d+)\)/.exec(f)!.slice(1).map(Number);
@@ -112,8 +118,9 @@ describe('voidMap', () => {
       }),
     );
     const cells = byClass(svg, 'vc-die');
+    expect(cells).toHaveLength(1); // the reached die alone; the other is in its colour class's path
     expect(hasClass(cells[0]!, 'vc-die-detected')).toBe(true);
-    expect(hasClass(cells[1]!, 'vc-die-detected')).toBe(false);
+    expect(byClass(svg, 'vc-die-fill')[0]!.attrs['data-p-kill']).toBe('0.0600');
     expect(byName(cells[0]!, 'rect')[0]!.attrs.stroke).toBe('#b3261e');
     expect(textOf(svg)).toContain('reached by a detected void (1)');
     expect(textOf(byName(cells[0]!, 'rect')[0]!)).toContain('from detected particles 25 %');
@@ -163,5 +170,41 @@ describe('voidMap', () => {
     const svg = svgOf(out);
     expect(textOf(byClass(svg, 'vc-frame-note')[0]!)).toBe('frame <i>');
     expect(textOf(byClass(svg, 'vc-void')[0]!)).toContain('<script>x</script>');
+  });
+
+  it('puts the dies of one colour class in one path, its colour within half a class of the exact one', () => {
+    // 400 dies with probabilities spread over 0…0.3: at most COLOUR_CLASSES + 1 paths
+    const many = Array.from({ length: 400 }, (_, i) => ({
+      xMm: (i % 20) * 5 - 50,
+      yMm: Math.floor(i / 20) * 5 - 50,
+      wMm: 5,
+      hMm: 5,
+      killed: false,
+      pKill: (0.3 * i) / 399,
+    }));
+    const svg = svgOf(voidMap({ ...base, dies: many, voids: [] }));
+    const paths = byClass(svg, 'vc-die-fill');
+    expect(paths.length).toBeLessThanOrEqual(COLOUR_CLASSES + 1);
+    const listed = paths.flatMap((x) => x.attrs['data-p-kill']!.split(' ').map(Number));
+    expect(listed).toHaveLength(400);
+    // on this regular grid each class's path is its row runs, filled with a one-die pattern
+    for (const x of paths) expect(x.attrs.fill).toMatch(/^url\(#.+-class-\d+\)$/);
+    expect(danglingRefs(svg)).toEqual([]);
+    // the class colour is the scale's colour at a stretched value within 1/(2·COLOUR_CLASSES) of the die's own
+    const scale = killColourScale(0.3);
+    for (const p of [0, 0.001, 0.05, 0.2999]) {
+      const t = Math.sqrt(p / scale.top);
+      const lo = scale.colour(Math.max(0, t - 0.5 / COLOUR_CLASSES) ** 2 * scale.top);
+      const hi = scale.colour(Math.min(1, t + 0.5 / COLOUR_CLASSES) ** 2 * scale.top);
+      const sum = (c: string) =>
+        /rgb\((\d+), (\d+), (\d+)\)/
+          .exec(c)!
+          .slice(1)
+          .map(Number)
+          .reduce((a, b) => a + b, 0);
+      const c = sum(classColour(scale, p));
+      expect(c).toBeLessThanOrEqual(Math.max(sum(lo), sum(hi)) + 1);
+      expect(c).toBeGreaterThanOrEqual(Math.min(sum(lo), sum(hi)) - 1);
+    }
   });
 });

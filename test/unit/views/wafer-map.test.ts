@@ -90,10 +90,13 @@ describe('waferMap', () => {
     const dies = layoutDies({ diameterMm: 300, edgeExclusionMm: 3, dieWidthMm: 20, dieHeightMm: 20 });
     const svg = svgOf(waferMap({ ...base, particles: [], dies }));
     expect(byClass(svg, 'vc-edge-exclusion')[0]!.attrs['data-edge-exclusion-mm']).toBe('3');
-    expect(byClass(svg, 'vc-die')).toHaveLength(dies.length);
+    // the grid is one pattern of a die cell over the rows of dies, however many dies there are
+    expect(byClass(svg, 'vc-die-grid')[0]!.attrs['data-dies']).toBe(String(dies.length));
+    expect(byClass(svg, 'vc-die-cells')).toHaveLength(1);
+    expect(byName(svg, 'pattern').length).toBeGreaterThan(0);
     const none = svgOf(waferMap({ ...base, edgeExclusionMm: 0, particles: [] }));
     expect(byClass(none, 'vc-edge-exclusion')).toHaveLength(0);
-    expect(byClass(none, 'vc-die')).toHaveLength(0);
+    expect(byClass(none, 'vc-die-grid')).toHaveLength(0);
   });
 
   it('escapes a title and defect classes taken from files', () => {

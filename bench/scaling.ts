@@ -1,0 +1,141 @@
+/**
+ * Scaling benchmark (not a test): how the time of each data-heavy path grows with its data, as the
+ * exponent b of t ∝ n^b fitted by least squares in log–log over at least two decades (1 = linear).
+ *
+ *   node --import tsx bench/scaling.ts [quick]     (or: npm run bench -- scaling)
+ *
+ * 1. A pair's assessment (assessPair, pure engine, 400 Monte Carlo draws) against the number of
+ *    detected particles per wafer: 10³ … 10⁶ (quick: 10³ … 10⁵), the bench line of bench/assess.ts.
+ *    CPU time, median of the runs (CPU time is less disturbed than wall time by other work).
+ * 2. Reading counter samples (readCounterSamples, every location) against the number of rows read:
+ *    10⁵ … 10⁷ rows (quick: 3·10³ … 3·10⁵) out of one database holding the largest size, imported
+ *    through importFile from the generated file of bench/import.ts; the range read grows.
+ */
+import { mkdtempSync, rmSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { assessPair } from '../src/engine/pair.ts';
+import { importFile } from '../src/ingest/pipeline.ts';
+import { readCounterSamples } from '../src/store/counters.ts';
+import { migrate, openDatabase } from '../src/store/db.ts';
+import { build } from './assess.ts';
+import {
+  type BenchConfig,
+  defaultConfig,
+  fmt,
+  type Growth,
+  logLogSlope,
+  median,
+  runsFrom,
+  type Section,
+  type Target,
+  timed,
+} from './common.ts';
+import { writeCounterFile, writeLocations } from './import.ts';
+
+const LOCATIONS = 12;
+const START_MS = Date.UTC(2026, 1, 1);
+const H = 3_600_000;
+const LINEAR_LIMIT = 1.1;
+
+async function pairGrowth(cfg: BenchConfig): Promise<Growth> {
+  const sizes = cfg.quick ? [1e3, 1e4, 1e5] : [1e3, 1e4, 1e5, 1e6];
+  const ms: number[] = [];
+  for (const n of sizes) {
+    const { data, pairs } = build(1, n);
+    const asOfMs = pairs[0]!.bondTimeMs! - 0.1 * H;
+    const runs = n >= 1e6 ? Math.min(3, runsFrom(cfg, 3, 2)) : runsFrom(cfg, 5, 3);
+    assessPair(pairs[0]!, data, { asOfMs, detail: 'full' }); // warm-up
+    const t: number[] = [];
+    for (let r = 0; r < runs; r++)
+      t.push(timed(() => assessPair(pairs[0]!, data, { asOfMs, detail: 'full' })).cpuMs);
+    ms.push(median(t));
+    cfg.log(
+      `assessPair, ${n.toLocaleString('en-US')} detected particles per wafer: ${fmt(median(t))} ms CPU (median of ${runs})`,
+    );
+  }
+  return {
+    path: 'a pair’s assessment (assessPair, 2 wafers, full detail)',
+    unit: 'detected particles per wafer',
+    sizes,
+    ms,
+    exponent: logLogSlope(sizes, ms),
+  };
+}
+
+async function counterGrowth(cfg: BenchConfig): Promise<Growth> {
+  const total = cfg.quick ? 3e5 : 1e7;
+  const sizes = cfg.quick ? [3e3, 3e4, 3e5] : [1e5, 1e6, 1e7];
+  const dir = mkdtempSync(join(tmpdir(), 'voidcast-bench-scaling-'));
+  try {
+    const csv = join(dir, 'counters.csv');
+    const t0 = performance.now();
+    writeCounterFile(csv, total);
+    const db = openDatabase(join(dir, 'scaling.db'));
+    migrate(db);
+    const locs = join(dir, 'locations.csv');
+    writeLocations(locs);
+    await importFile(db, { kind: 'locations', path: locs });
+    const r = await importFile(db, { kind: 'counter-samples', path: csv });
+    if (r.status !== 'imported') throw new Error(`scaling import: ${r.status}`);
+    cfg.log(
+      `imported ${total.toLocaleString('en-US')} counter rows (${(statSync(csv).size / 1e6).toFixed(0)} MB) in ${((performance.now() - t0) / 1000).toFixed(0)} s`,
+    );
+    rmSync(csv, { force: true });
+    const ms: number[] = [];
+    for (const n of sizes) {
+      // rows are location-interleaved one-minute samples: n rows span n / 12 minutes
+      const to = START_MS + Math.ceil(n / LOCATIONS) * 60_000;
+      const read = () => {
+        let k = 0;
+        for (let l = 0; l < LOCATIONS; l++) k += readCounterSamples(db, `LOC-${l + 1}`, START_MS, to).n;
+        return k;
+      };
+      read();
+      const runs = n >= 1e7 ? 2 : runsFrom(cfg, 5, 3);
+      const t: number[] = [];
+      let got = 0;
+      for (let i = 0; i < runs; i++) {
+        const x = timed(read);
+        t.push(x.cpuMs);
+        got = x.value;
+      }
+      ms.push(median(t));
+      cfg.log(
+        `readCounterSamples, ${got.toLocaleString('en-US')} rows: ${fmt(median(t))} ms CPU (median of ${runs})`,
+      );
+    }
+    db.close();
+    return {
+      path: 'reading counter samples (readCounterSamples, 12 locations)',
+      unit: 'rows read',
+      sizes,
+      ms,
+      exponent: logLogSlope(sizes, ms),
+    };
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> {
+  const growth = [await pairGrowth(cfg), await counterGrowth(cfg)];
+  const targets: Target[] = growth.map((g) => ({
+    name: `growth of ${g.path}`,
+    target: `linear or better: exponent ≤ ${LINEAR_LIMIT} over ${g.sizes[0]!.toExponential(0)}–${g.sizes.at(-1)!.toExponential(0)} ${g.unit}${cfg.quick ? ' (quick: smaller sizes than the target’s)' : ''}`,
+    measured: `n^${g.exponent.toFixed(2)}`,
+    met: g.exponent <= LINEAR_LIMIT,
+    why: g.exponent <= LINEAR_LIMIT ? undefined : 'see docs/performance.md',
+  }));
+  return {
+    name: 'scaling',
+    data: `the bench line of bench/assess.ts with one pair; counter files of bench/import.ts (${cfg.quick ? '3·10⁵' : '10⁷'} rows)`,
+    figures: [],
+    targets,
+    growth,
+  };
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1])
+  console.log(JSON.stringify(await run(), null, 2));
