@@ -32,6 +32,7 @@ const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
 const SCRIPT = readFileSync(new URL('../../public/voidcast.js', import.meta.url));
 const CSS = readFileSync(new URL('../../public/voidcast.css', import.meta.url));
+const PRINT_CSS = readFileSync(new URL('../../public/print.css', import.meta.url));
 const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url));
 
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
@@ -79,6 +80,7 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
   app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.js', asset(SCRIPT, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
+  app.get('/assets/print.css', asset(PRINT_CSS, 'text/css; charset=utf-8'));
   app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
 
   for (const r of [...ROUTES, ...extraRoutes]) r.register(app, ctx);
