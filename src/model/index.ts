@@ -4,8 +4,10 @@
  */
 export * from './adders-fit.ts';
 export * from './aerosol.ts';
+export * from './audit-levels.ts';
 export * from './cc1246.ts';
 export * from './clean.ts';
+export * from './control-charts.ts';
 export * from './deposition.ts';
 export * from './errors.ts';
 export * from './iso14644.ts';

@@ -281,6 +281,8 @@ export interface ChartPoint {
   ucl: number;
   /** Rules this point triggered (empty: in control). */
   rules: ChartRuleId[];
+  /** Left out of the centre line and the rules (instrument fault or sentinel samples only). */
+  excluded: boolean;
 }
 
 export interface ControlChart {
@@ -291,13 +293,15 @@ export interface ControlChart {
   centre: number;
   /** Laney's σ_z (1 for c and u charts). */
   sigmaZ: number;
-  /** Dispersion index used for the choice of chart (variance / mean of the z-scores' scale). */
+  /** Pearson's dispersion X² / (N − 1) of the counts about the pooled rate (1 for Poisson counts). */
   dispersion: number;
   /** How the chart kind was decided, in words. */
   decidedBy: string;
   points: ChartPoint[];
-  /** Points excluded from the centre line (fault / sentinel hours). */
+  /** Points excluded from the centre line (hours whose samples are all instrument faults or sentinels). */
   excludedPoints: number;
+  /** Plain-words remarks (too few points for limits, …). */
+  notes: string[];
 }
 
 // ───────────────────────────── line view ─────────────────────────────
