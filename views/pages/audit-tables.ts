@@ -5,6 +5,7 @@
  * unit. "no data" is a word of its own and never reads as a pass.
  */
 import type {
+  AreaAudit,
   AreaClassification,
   ControlChart,
   Excursion,
@@ -429,3 +430,35 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
 }
 
 export { classWords, sizeWords };
+
+/** Every table of an area's audit, in page order. */
+export function areaAuditTables(a: AreaAudit, hrefOf?: (locationId: string) => string): AuditTable[] {
+  return [
+    classificationSummaryTable(a.classification),
+    classificationSizesTable(a.classification),
+    classificationLocationsTable(a.classification, hrefOf),
+    levelsTable(a.levels),
+    excursionsTable(a.excursions, a.costs),
+    exposedWafersTable(a.costs),
+    lotCostsTable(a.costs),
+    chartsTable(a.charts),
+  ];
+}
+
+/**
+ * What keeps the audit from a full verdict, in plain words: no location, no data in the period,
+ * locations without data, and the classification's own notes.
+ */
+export function auditProblems(a: AreaAudit): string[] {
+  const c = a.classification;
+  const out: string[] = [];
+  if (c.locations.length === 0) out.push('No sampling location is registered in this area: there is nothing to classify.');
+  else if (c.locations.every((l) => l.usableSamples === 0))
+    out.push('No usable counter sample of this area’s locations falls in this period and occupancy state.');
+  else {
+    const none = c.locations.filter((l) => l.usableSamples === 0).map((l) => l.locationId);
+    if (none.length) out.push(`No usable counter sample in this period at ${none.join(', ')}.`);
+  }
+  for (const n of c.notes) if (!out.some((o) => o.includes(n))) out.push(n);
+  return out;
+}

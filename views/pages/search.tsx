@@ -21,7 +21,7 @@ export function hitHref(h: SearchHit): string {
     case 'lot':
       return `/lots/${id}`;
     case 'tool':
-      return `/tools#tool-${id}`;
+      return '/tools';
     case 'location':
       return `/areas?location=${id}#trend-panel`;
     default:
