@@ -452,7 +452,8 @@ export function areaAuditTables(a: AreaAudit, hrefOf?: (locationId: string) => s
 export function auditProblems(a: AreaAudit): string[] {
   const c = a.classification;
   const out: string[] = [];
-  if (c.locations.length === 0) out.push('No sampling location is registered in this area: there is nothing to classify.');
+  if (c.locations.length === 0)
+    out.push('No sampling location is registered in this area: there is nothing to classify.');
   else if (c.locations.every((l) => l.usableSamples === 0))
     out.push('No usable counter sample of this area’s locations falls in this period and occupancy state.');
   else {

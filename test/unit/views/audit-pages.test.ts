@@ -18,7 +18,7 @@ const T0 = Date.UTC(2026, 9, 1);
 const period = { fromMs: T0, toMs: T0 + 18 * 24 * H };
 
 /** Two locations at ISO 5 (limit 3520 /m³ at ≥ 0.5 µm, ISO 14644-1:2015 Table 1): one measured, one without data. */
-export function handAudit(): AreaAudit {
+function handAudit(): AreaAudit {
   const volume = (samples: number) => ({
     requiredM3: 0.00568,
     requiredDurationMs: 60_000,
