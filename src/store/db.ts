@@ -9,6 +9,7 @@ import { mkdirSync, readdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import Database from 'better-sqlite3';
+import { registerCounterFunctions } from './counter-hourly.ts';
 import { onWriterWait, writeTransaction } from './writer.ts';
 
 export type Db = Database.Database;
@@ -47,6 +48,7 @@ export function openDatabase(file: string): Db {
   db.pragma('foreign_keys = ON');
   db.pragma('synchronous = NORMAL');
   db.pragma('busy_timeout = 5000');
+  registerCounterFunctions(db);
   return db;
 }
 
@@ -69,6 +71,8 @@ export function appliedVersions(db: Db): number[] {
  */
 export function migrate(db: Db, opts: { upTo?: number; migrations?: Migration[] } = {}): number[] {
   const done = new Set(appliedVersions(db));
+  // SQL functions some migrations call (0023 fills the counter aggregates from the stored samples).
+  registerCounterFunctions(db);
   const all = opts.migrations ?? loadMigrations();
   const applied: number[] = [];
   const record = db.prepare('INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)');

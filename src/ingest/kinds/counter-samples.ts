@@ -19,6 +19,7 @@
  *     and summarised in import_flags.
  */
 import { z } from 'zod';
+import { refreshCounterHourly } from '../../store/counter-hourly.ts';
 import { CELL_FAIL, enumCell, enumListCell, idCell, numberCell, timeCell } from '../cells.ts';
 import type {
   Cell,
@@ -624,6 +625,8 @@ export const counterSamples: ImportKind = {
     };
     const zeroRunDetails: string[] = [];
     let unitSuspectExample = '';
+    // Per location row id: the earliest and latest sample start stored, for the hourly aggregates.
+    const touched = new Map<number, { from: number; to: number }>();
 
     const seriesOf = (loc: number, counter: number): Series => {
       const key = loc * 1048576 + counter;
@@ -837,6 +840,12 @@ export const counterSamples: ImportKind = {
         }
 
         // Stored: update the series state and tallies.
+        const span = touched.get(loc);
+        if (!span) touched.set(loc, { from: start, to: start });
+        else {
+          if (start < span.from) span.from = start;
+          if (start > span.to) span.to = start;
+        }
         if (flags & SAMPLE_FLAGS.fault) tally.fault++;
         if (flags & SAMPLE_FLAGS.statusOverload) tally.overload++;
         if (flags & SAMPLE_FLAGS.saturation) tally.saturation++;
@@ -901,6 +910,9 @@ export const counterSamples: ImportKind = {
           longest = Math.max(longest, s.longestGapMs);
           backwards += s.backwards;
         }
+        // The hourly aggregates of every hour this file stored a sample in, after the last flag
+        // update above, in the file's transaction (a rejected file rolls them back with the samples).
+        for (const [loc, span] of touched) refreshCounterHourly(db, loc, span.from, span.to);
         const add = (code: string, count: number, detail: string) => {
           if (count > 0) flags.push({ code, count, detail });
         };
