@@ -17,6 +17,7 @@ import { isFragmentRequest, renderPage } from './render.ts';
 import * as accounts from './routes/accounts.tsx';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
+import * as auditArea from './routes/audit-area.tsx';
 import * as calculators from './routes/calculators.tsx';
 import * as calibration from './routes/calibration.tsx';
 import * as feed from './routes/feed.ts';
@@ -26,6 +27,7 @@ import * as imports from './routes/imports.tsx';
 import * as lots from './routes/lots.tsx';
 import * as pairs from './routes/pairs.tsx';
 import * as parameters from './routes/parameters.tsx';
+import * as search from './routes/search.tsx';
 import * as tools from './routes/tools.tsx';
 
 const require = createRequire(import.meta.url);
@@ -44,6 +46,7 @@ const ROUTES: RouteModule[] = [
   calculators,
   imports,
   areas,
+  auditArea,
   tools,
   api,
   lots,
@@ -52,6 +55,7 @@ const ROUTES: RouteModule[] = [
   parameters,
   accounts,
   feed,
+  search,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {

@@ -7,13 +7,13 @@
  * What cannot be judged says so ("no data", "not judged", a problem in words); nothing reads as a
  * pass where there was nothing to judge.
  */
-import type { AreaAudit, LevelMethod, OccupancySelection } from '../../src/engine/audit/types.ts';
+import type { LevelMethod, OccupancySelection } from '../../src/engine/audit/types.ts';
 import { fmtUtc } from '../partials/format.ts';
 import { ControlChartFigure } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
-import { methodWords, occupancyWords, ruleWords } from './audit-tables.ts';
+import { type AuditView, methodWords, occupancyWords, ruleWords } from './audit-tables.ts';
 
-export const OCCUPANCY_CHOICES: OccupancySelection[] = ['any', 'as-built', 'at-rest', 'operational'];
+export const OCCUPANCY_CHOICES: OccupancySelection[] = ['operational', 'at-rest', 'as-built', 'any'];
 export const LEVEL_METHODS: Exclude<LevelMethod, 'typed'>[] = [
   'percentile',
   'log-mean-k-sigma',
@@ -86,7 +86,7 @@ export interface AreaAuditProps {
   area: { id: string; name: string };
   query: AuditQuery;
   /** The audit, or null when it could not be made (the problems say why). */
-  audit: AreaAudit | null;
+  audit: AuditView | null;
   /** Problems in plain words (no data in the period, no locations, a baseline too short …). */
   problems: string[];
   tables: AuditTable[];
@@ -98,6 +98,8 @@ export interface AreaAuditProps {
   /** Locations of the area and the channels their counters report (for the levels form). */
   locations: { id: string; name: string }[];
   channelsUm: number[];
+  /** Whether this version stores derived levels and acknowledgements (else the page says so). */
+  forms: { levels: boolean; acknowledge: boolean };
 }
 
 export function AreaAuditPage(p: AreaAuditProps) {
@@ -105,6 +107,8 @@ export function AreaAuditPage(p: AreaAuditProps) {
   const t = (id: string) => p.tables.find((x) => x.id === id)!;
   const view = (id: string) => <AuditTableView table={t(id)} href={(f) => p.downloadHref(id, f)} />;
   const a = p.audit;
+  const has = (id: string) => p.tables.some((x) => x.id === id);
+  const part = (id: string, what: string) => (has(id) ? view(id) : <NotComputed what={what} />);
   return (
     <section class="vc-audit">
       <p class="vc-crumbs">
@@ -158,14 +162,18 @@ export function AreaAuditPage(p: AreaAuditProps) {
         The levels in force, newest version per location and channel. Levels from the locations file say
         “typed”; derived levels name their method, baseline window, version, who set them and when.
       </p>
-      {a ? view('levels') : null}
-      <LevelsForm
-        action={`${base}/levels`}
-        query={p.query}
-        csrf={p.csrfToken}
-        locations={p.locations}
-        channelsUm={p.channelsUm}
-      />
+      {a ? part('levels', 'Alert and action levels with their method and history') : null}
+      {p.forms.levels ? (
+        <LevelsForm
+          action={`${base}/levels`}
+          query={p.query}
+          csrf={p.csrfToken}
+          locations={p.locations}
+          channelsUm={p.channelsUm}
+        />
+      ) : (
+        <NotComputed what="Deriving levels from a baseline" />
+      )}
       {a ? (
         <>
           <h2 id="excursions">Excursions</h2>
@@ -174,31 +182,46 @@ export function AreaAuditPage(p: AreaAuditProps) {
             “Most likely” tells a rise in the air from a counter fault by the samples’ data-quality flags and
             the signature across channels.
           </p>
-          {view('excursions')}
-          <AckForms
-            base={base}
-            query={p.query}
-            csrf={p.csrfToken}
-            ids={a.excursions.filter((e) => !e.acknowledgement).map((e) => e.id)}
-          />
+          {part('excursions', 'Excursions by rule')}
+          {a.excursions && p.forms.acknowledge ? (
+            <AckForms
+              base={base}
+              query={p.query}
+              csrf={p.csrfToken}
+              ids={a.excursions.filter((e) => !e.acknowledgement).map((e) => e.id)}
+            />
+          ) : null}
           <h3>Exposed wafers</h3>
           <p class="vc-small">
             What each excursion added: the expected voids and die loss from the excess over the location's
             baseline during the excursion, for each wafer the ledger puts in that air.
           </p>
-          {view('exposed-wafers')}
-          <h3>Added risk per lot</h3>
-          {view('lot-costs')}
+          {part('exposed-wafers', 'The added voids and die loss of each excursion')}
+          {has('lot-costs') ? (
+            <>
+              <h3>Added risk per lot</h3>
+              {view('lot-costs')}
+            </>
+          ) : null}
           <h2 id="charts">Control charts</h2>
-          {view('control-charts')}
+          {part('control-charts', 'Control charts per location and channel')}
           <div class="vc-chart-grid">
-            {a.charts.map((ch) => (
-              <ControlChartFigure chart={ch} levels={a.levels} />
+            {(a.charts ?? []).map((ch) => (
+              <ControlChartFigure chart={ch} levels={a.levels ?? []} />
             ))}
           </div>
         </>
       ) : null}
     </section>
+  );
+}
+
+/** A part of the audit this version does not compute: said, never left blank or shown as a pass. */
+export function NotComputed(props: { what: string }) {
+  return (
+    <p class="vc-note" data-missing={props.what}>
+      {props.what}: not computed by this version of voidcast.
+    </p>
   );
 }
 

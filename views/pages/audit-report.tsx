@@ -4,12 +4,11 @@
  * how they were set, the excursions with the wafers in their air and what they added, the control
  * charts, and the sign-offs (acknowledgements on record, and lines to sign on paper).
  */
-import type { AreaAudit } from '../../src/engine/audit/types.ts';
 import { fmtNum, fmtUtc } from '../partials/format.ts';
-import { type AuditQuery, auditQueryString } from './audit-area.tsx';
+import { type AuditQuery, auditQueryString, NotComputed } from './audit-area.tsx';
 import { ControlChartFigure } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
-import { classWords, occupancyWords } from './audit-tables.ts';
+import { type AuditView, classWords, occupancyWords } from './audit-tables.ts';
 
 /** The report's section headings, in order (the browser test finds them in the printed PDF). */
 export const REPORT_HEADINGS = [
@@ -21,10 +20,17 @@ export const REPORT_HEADINGS = [
   '5. Sign-offs',
 ] as const;
 
+const WHAT: Record<string, string> = {
+  levels: 'Alert and action levels with their method and history',
+  excursions: 'Excursions by rule',
+  'exposed-wafers': 'The added voids and die loss of each excursion',
+  'control-charts': 'Control charts per location and channel',
+};
+
 export interface AuditReportProps {
   area: { id: string; name: string };
   query: AuditQuery;
-  audit: AreaAudit | null;
+  audit: AuditView | null;
   problems: string[];
   tables: AuditTable[];
   generatedAtMs: number;
@@ -36,11 +42,15 @@ export function AuditReportPage(p: AuditReportProps) {
   const t = (id: string) => p.tables.find((x) => x.id === id);
   const view = (id: string) => {
     const table = t(id);
-    return table ? <AuditTableView table={table} href={null} /> : null;
+    return table ? (
+      <AuditTableView table={table} href={null} />
+    ) : a ? (
+      <NotComputed what={WHAT[id] ?? id} />
+    ) : null;
   };
   const excursions = a?.excursions ?? [];
-  const addedVoids = a?.costs.reduce((s, c) => s + c.totalAddedVoids, 0) ?? 0;
-  const addedDies = a?.costs.reduce((s, c) => s + c.totalAddedDieLoss, 0) ?? 0;
+  const addedVoids = a?.costs?.reduce((s, c) => s + c.totalAddedVoids, 0) ?? null;
+  const addedDies = a?.costs?.reduce((s, c) => s + c.totalAddedDieLoss, 0) ?? null;
   const back = `/areas/${encodeURIComponent(p.area.id)}/audit?${auditQueryString(p.query)}`;
   return (
     <article class="vc-report-doc">
@@ -76,10 +86,18 @@ export function AuditReportPage(p: AuditReportProps) {
           </dd>
           <dt>Excursions</dt>
           <dd>
-            {excursions.length} in the period
-            {excursions.length
-              ? `; ${excursions.filter((e) => e.nature === 'air').length} in the air, ${excursions.filter((e) => e.nature === 'instrument').length} counter faults; ${fmtNum(addedVoids)} added voids and ${fmtNum(addedDies)} dies of added loss in all`
-              : ''}
+            {!a?.excursions
+              ? 'not computed by this version of voidcast'
+              : `${excursions.length} in the period${
+                  excursions.length
+                    ? `; ${excursions.filter((e) => e.nature === 'air').length} in the air, ${excursions.filter((e) => e.nature === 'instrument').length} counter faults` +
+                      (
+                        addedVoids === null || addedDies === null
+                          ? '; added voids not computed'
+                          : `; ${fmtNum(addedVoids)} added voids and ${fmtNum(addedDies)} dies of added loss in all`
+                      )
+                    : ''
+                }`}
           </dd>
           <dt>Drawn up</dt>
           <dd>
@@ -121,13 +139,13 @@ export function AuditReportPage(p: AuditReportProps) {
         <h3>Exposed wafers</h3>
         {view('exposed-wafers')}
         <h3>Added risk per lot</h3>
-        {view('lot-costs')}
+        {t('lot-costs') ? view('lot-costs') : null}
       </section>
       <section class="vc-report-section">
         <h2>{REPORT_HEADINGS[4]}</h2>
         {view('control-charts')}
-        {a?.charts.map((ch) => (
-          <ControlChartFigure chart={ch} levels={a.levels} width={900} />
+        {(a?.charts ?? []).map((ch) => (
+          <ControlChartFigure chart={ch} levels={a?.levels ?? []} width={900} />
         ))}
       </section>
       <section class="vc-report-section vc-signoffs">

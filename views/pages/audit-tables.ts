@@ -264,8 +264,8 @@ const NATURE_WORDS: Record<string, string> = {
 };
 
 /** Excursions: rule, where, when, peak, channels, what it most likely is, data quality, cost. */
-export function excursionsTable(exs: Excursion[], costs: ExcursionCost[]): AuditTable {
-  const costOf = new Map(costs.map((c) => [c.excursionId, c]));
+export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null): AuditTable {
+  const costOf = new Map((costs ?? []).map((c) => [c.excursionId, c]));
   return {
     id: 'excursions',
     title: 'Excursions',
@@ -431,17 +431,31 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
 
 export { classWords, sizeWords };
 
-/** Every table of an area's audit, in page order. */
-export function areaAuditTables(a: AreaAudit, hrefOf?: (locationId: string) => string): AuditTable[] {
+/**
+ * What an area's audit pages show: the classification, and each further part where the engine
+ * provides it (null: this version does not compute it, and the page says so).
+ */
+export interface AuditView {
+  areaId: string;
+  period: AreaAudit['period'];
+  occupancy: AreaAudit['occupancy'];
+  classification: AreaClassification;
+  levels: LevelRecord[] | null;
+  excursions: Excursion[] | null;
+  costs: ExcursionCost[] | null;
+  charts: ControlChart[] | null;
+}
+
+/** Every table of an area's audit that has data behind it, in page order. */
+export function areaAuditTables(a: AuditView, hrefOf?: (locationId: string) => string): AuditTable[] {
   return [
     classificationSummaryTable(a.classification),
     classificationSizesTable(a.classification),
     classificationLocationsTable(a.classification, hrefOf),
-    levelsTable(a.levels),
-    excursionsTable(a.excursions, a.costs),
-    exposedWafersTable(a.costs),
-    lotCostsTable(a.costs),
-    chartsTable(a.charts),
+    ...(a.levels ? [levelsTable(a.levels)] : []),
+    ...(a.excursions ? [excursionsTable(a.excursions, a.costs ?? [])] : []),
+    ...(a.costs ? [exposedWafersTable(a.costs), lotCostsTable(a.costs)] : []),
+    ...(a.charts ? [chartsTable(a.charts)] : []),
   ];
 }
 
@@ -449,7 +463,7 @@ export function areaAuditTables(a: AreaAudit, hrefOf?: (locationId: string) => s
  * What keeps the audit from a full verdict, in plain words: no location, no data in the period,
  * locations without data, and the classification's own notes.
  */
-export function auditProblems(a: AreaAudit): string[] {
+export function auditProblems(a: AuditView): string[] {
   const c = a.classification;
   const out: string[] = [];
   if (c.locations.length === 0)

@@ -7,8 +7,11 @@
 import type { Context } from 'hono';
 import type { AuditQuery } from '../../../views/pages/audit-area.tsx';
 import { OCCUPANCY_CHOICES } from '../../../views/pages/audit-area.tsx';
+import { AuditInputError } from '../../engine/audit/errors.ts';
+import { loadAreaMembers } from '../../engine/audit/loader.ts';
 import type { AuditPeriod, OccupancySelection } from '../../engine/audit/types.ts';
-import { type LocationView, listLocationsWithAreas, sampleSpan } from '../../store/views-areas.ts';
+import type { LocationRecord } from '../../store/locations.ts';
+import { sampleSpan } from '../../store/views-areas.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue } from '../params.ts';
 
@@ -21,24 +24,24 @@ export const DEFAULT_PERIOD_MS = 30 * DAY_MS;
 export interface AreaRef {
   id: string;
   name: string;
-  /** The sampling locations in the area (every location whose area it is, the area itself included). */
-  locations: LocationView[];
+  /** The locations in the area's air (the area and its same-environment descendants). */
+  locations: LocationRecord[];
 }
 
-/** The area named in the path; 404 when there is no location of level "area" (or a location) by that id. */
+/**
+ * The area (a room, or a zone such as a mini-environment) named in the path, with the locations in
+ * its air (src/engine/audit/loader.ts loadAreaMembers); 404 when no location has that id.
+ */
 export function pathArea(ctx: AppContext, c: Context): AreaRef {
   const id = c.req.param('id') ?? '';
-  const all = listLocationsWithAreas(ctx.db);
-  const self = all.find((l) => l.locationId === id);
-  if (!self || self.areaId !== id)
-    throw new BadParamError(
-      'area',
-      self
-        ? `"${id.slice(0, 60)}" is a location inside area ${self.areaId}, not an area`
-        : `names no area: "${id.slice(0, 60)}"`,
-      404,
-    );
-  return { id, name: self.name, locations: all.filter((l) => l.areaId === id) };
+  try {
+    const m = loadAreaMembers(ctx.db, id);
+    return { id, name: m.area.name, locations: m.inAir };
+  } catch (err) {
+    if (err instanceof AuditInputError)
+      throw new BadParamError('area', `names no location: "${id.slice(0, 60)}"`, 404);
+    throw err;
+  }
 }
 
 /** ISO 8601 UTC as the period form shows it: to the minute, with seconds and milliseconds where they are not 0. */
@@ -67,14 +70,14 @@ export function periodOf(
 /** `occupancy`, `edition` and the period of an audit request. */
 export function auditQuery(
   ctx: AppContext,
-  c: Context,
+  get: (param: string) => string | undefined,
   area: AreaRef,
 ): { query: AuditQuery; period: AuditPeriod; occupancy: OccupancySelection; edition: 2015 | 1999 } {
-  const occupancy = choiceValue('occupancy', c.req.query('occupancy'), OCCUPANCY_CHOICES) ?? 'any';
-  const edition = Number(
-    choiceValue('edition', c.req.query('edition'), ['2015', '1999'] as const) ?? '2015',
-  ) as 2015 | 1999;
-  const period = periodOf(c.req.query('from'), c.req.query('to'), () => {
+  const occupancy = choiceValue('occupancy', get('occupancy'), OCCUPANCY_CHOICES) ?? 'operational';
+  const edition = Number(choiceValue('edition', get('edition'), ['2015', '1999'] as const) ?? '2015') as
+    | 2015
+    | 1999;
+  const period = periodOf(get('from'), get('to'), () => {
     let last: number | null = null;
     for (const l of area.locations) {
       const s = sampleSpan(ctx.db, l.locationId);

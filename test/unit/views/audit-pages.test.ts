@@ -179,6 +179,7 @@ function handAudit(): AreaAudit {
         dispersion: 4.4,
         decidedBy: 'overdispersed (p < 0.01)',
         excludedPoints: 0,
+        notes: [],
         points: [0, 1, 2, 3].map((i) => ({
           startMs: T0 + i * H,
           count: [11, 12, 10, 250][i]!,
@@ -187,6 +188,7 @@ function handAudit(): AreaAudit {
           lcl: 0,
           ucl: 900,
           rules: i === 3 ? ['beyond-limit' as const] : [],
+          excluded: false,
         })),
       },
     ],
@@ -263,6 +265,7 @@ describe('area audit page and report', () => {
         csrfToken: 'tok',
         locations: [{ id: 'BOR-B1', name: 'Bay 1' }],
         channelsUm: [0.5],
+        forms: { levels: true, acknowledge: true },
       }),
     );
     const ex = htmlTables(html).find((t) => t.id === 'excursions')!;
