@@ -120,10 +120,6 @@ export function AreaAuditPage(p: AreaAuditProps) {
       <AuditPeriodForm action={base} query={p.query} />
       <p class="vc-small">
         <a href={`${base}/report?${auditQueryString(p.query)}`}>Printable audit report for this period</a>
-        {' · '}
-        <a href={`/line?${new URLSearchParams({ from: p.query.from, to: p.query.to })}`}>
-          Line view over this period
-        </a>
       </p>
       {p.flash ? (
         <p
@@ -220,7 +216,7 @@ export function AreaAuditPage(p: AreaAuditProps) {
 export function NotComputed(props: { what: string }) {
   return (
     <p class="vc-note" data-missing={props.what}>
-      {props.what}: not computed by this version of voidcast.
+      {props.what}: not available in this version of voidcast.
     </p>
   );
 }

@@ -87,13 +87,13 @@ export function AuditReportPage(p: AuditReportProps) {
           <dt>Excursions</dt>
           <dd>
             {!a?.excursions
-              ? 'not computed by this version of voidcast'
+              ? 'not available in this version of voidcast'
               : `${excursions.length} in the period${
                   excursions.length
                     ? `; ${excursions.filter((e) => e.nature === 'air').length} in the air, ${excursions.filter((e) => e.nature === 'instrument').length} counter faults` +
                       (
                         addedVoids === null || addedDies === null
-                          ? '; added voids not computed'
+                          ? '; added voids not available in this version'
                           : `; ${fmtNum(addedVoids)} added voids and ${fmtNum(addedDies)} dies of added loss in all`
                       )
                     : ''
