@@ -128,7 +128,8 @@ describe('an area’s audit page', () => {
 
   it('tells which parts this version does not compute instead of leaving them blank', async () => {
     const html = await page(`/areas/fab-1/audit?${PERIOD}`);
-    for (const m of html.matchAll(/data-missing="([^"]+)"/g)) expect(html).toContain(`${m[1]}: not available in this version`);
+    for (const m of html.matchAll(/data-missing="([^"]+)"/g))
+      expect(html).toContain(`${m[1]}: not available in this version`);
   });
 });
 
