@@ -148,7 +148,13 @@ export interface LevelRecord {
 
 // ───────────────────────────── excursions ─────────────────────────────
 
-export type ExcursionRuleId = 'action-point' | 'alert-run' | 'area-alert' | 'ratio-shift';
+/**
+ * action-point: an hourly mean above action; alert-run: m of n hourly means above alert;
+ * area-alert: several locations of the area above alert within a window; ratio-shift: the ratio
+ * between two size channels away from its usual value; data-quality: hours whose samples are mostly
+ * flagged (instrument fault, sentinel, long all-zero run) — an instrument finding, not the air.
+ */
+export type ExcursionRuleId = 'action-point' | 'alert-run' | 'area-alert' | 'ratio-shift' | 'data-quality';
 
 /** Settings of the excursion rules. */
 export interface ExcursionRules {
@@ -162,9 +168,9 @@ export interface ExcursionRules {
    * A shift of the ratio C(≥ large) / C(≥ small) from its baseline: |log ratio − baseline| > k·σ
    * over `points` consecutive points.
    */
-  ratioShift: { smallM: number; largeM: number; k: number; points: number } | null;
-  /** Length of one point, ms (3 600 000: the hourly aggregates). */
-  pointMs: number;
+  ratioShift: { smallM: number; largeM: number; k: number; points: number; minCount: number } | null;
+  /** Hours in which at least this fraction of samples is flagged (fault, sentinel, zero run); null: off. */
+  dataQuality: { fraction: number } | null;
 }
 
 /** Data-quality flags of the samples behind an excursion. */
@@ -184,7 +190,7 @@ export interface DataQualityBeside {
 export type ExcursionNature = 'air' | 'instrument' | 'unclear';
 
 export interface Excursion {
-  /** Stable id: `${rule}:${locationId}:${startMs}`. */
+  /** Stable id: `${rule}:${locationId}:${diameterNm}:${startMs}` (area-alert: the area's id). */
   id: string;
   rule: ExcursionRuleId;
   areaId: string;

@@ -1,0 +1,173 @@
+/**
+ * The added cost of an excursion from the database: the wafers the ledger puts in the excursion's
+ * air, and for each pair they are in, the difference of two assessments (src/engine/audit/cost.ts).
+ * With loader.ts, the audit's database access.
+ */
+
+import { exposedSteps } from '../../store/audit-exposure.ts';
+import type { Db } from '../../store/db.ts';
+import { installationClockMs } from '../../store/settings.ts';
+import { loadPair } from '../loader.ts';
+import { assessPair } from '../pair.ts';
+import { readAdoptedParameterSet } from '../parameter-sets.ts';
+import type { AssessOptions } from '../types.ts';
+import { mToNm } from './common.ts';
+import { pairDelta, withoutExcess } from './cost.ts';
+import { loadHourly } from './loader.ts';
+import type { AuditPeriod, Excursion, ExcursionCost, ExposedWaferCost, LotCost } from './types.ts';
+
+/** Length of the baseline before an excursion, ms (Choice: a week). */
+export const BASELINE_MS = 7 * 86_400_000;
+/** Monte Carlo draws of the two assessments (only their expected values are used). */
+const COST_DRAWS = 20;
+
+function median(xs: number[]): number {
+  const a = [...xs].sort((p, q) => p - q);
+  const m = a.length >> 1;
+  return a.length % 2 ? a[m]! : (a[m - 1]! + a[m]!) / 2;
+}
+
+/** Per channel (whole nm): the median hourly mean of the location over the week before the excursion (else after). */
+export function baselineByChannel(db: Db, locationId: string, exc: AuditPeriod): Map<number, number> {
+  const windows: AuditPeriod[] = [
+    { fromMs: exc.fromMs - BASELINE_MS, toMs: exc.fromMs },
+    { fromMs: exc.toMs, toMs: exc.toMs + BASELINE_MS },
+  ];
+  for (const w of windows) {
+    const rows = loadHourly(db, [locationId], w, 'any');
+    const byNm = new Map<number, Map<number, { c: number; v: number }>>();
+    for (const r of rows) {
+      const m = byNm.get(r.diameterNm) ?? new Map<number, { c: number; v: number }>();
+      const h = m.get(r.hourMs) ?? { c: 0, v: 0 };
+      h.c += r.countSum;
+      h.v += r.volumeM3;
+      m.set(r.hourMs, h);
+      byNm.set(r.diameterNm, m);
+    }
+    const out = new Map<number, number>();
+    for (const [nm, m] of byNm) {
+      const means = [...m.values()].filter((h) => h.v > 0).map((h) => h.c / h.v);
+      if (means.length > 0) out.set(nm, median(means));
+    }
+    if (out.size > 0) return out;
+  }
+  return new Map();
+}
+
+export interface CostOptions {
+  /** Assessment time (default: the installation clock, else now). */
+  asOfMs?: number;
+}
+
+/**
+ * Costs computed in this process, by database, excursion, assessment time, the latest import and the
+ * adopted parameter set: a cost is two assessments of every exposed pair (about 50 ms each), so a
+ * warm page or report reads it from here; any new import or adoption changes the key.
+ */
+const cache = new WeakMap<Db, Map<string, ExcursionCost>>();
+const CACHE_LIMIT = 500;
+
+/** The wafers in an excursion's air and the voids and die loss its excess added, per wafer and lot. */
+export function excursionCostInDb(db: Db, exc: Excursion, opts: CostOptions = {}): ExcursionCost {
+  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Date.now();
+  const lastImport = (db.prepare('SELECT max(id) AS m FROM imports').get() as { m: number | null }).m;
+  const set = readAdoptedParameterSet(db);
+  const key = `${exc.id}|${exc.endMs}|${exc.locationIds.join(',')}|${exc.nature}|${asOfMs}|${lastImport}|${set ? `${set.id}` : 'typed'}`;
+  let m = cache.get(db);
+  if (!m) {
+    m = new Map();
+    cache.set(db, m);
+  }
+  const hit = m.get(key);
+  if (hit) return hit;
+  const cost = computeCost(db, exc, asOfMs);
+  if (m.size >= CACHE_LIMIT) m.delete(m.keys().next().value as string);
+  m.set(key, cost);
+  return cost;
+}
+
+function computeCost(db: Db, exc: Excursion, asOfMs: number): ExcursionCost {
+  const period = { fromMs: exc.startMs, toMs: exc.endMs };
+  const notes: string[] = [];
+  const method =
+    'as measured minus with the excursion’s excess over the baseline removed (two assessments of each pair; the chain is linear in the deposited particles)';
+  const steps = exc.locationIds.flatMap((loc) => exposedSteps(db, loc, period.fromMs, period.toMs));
+  const empty = (note: string): ExcursionCost => ({
+    excursionId: exc.id,
+    locationId: exc.locationId,
+    period,
+    wafers: steps.map((s) => ({ ...s, addedParticles: 0, addedVoids: null, addedDieLoss: null })),
+    lots: [],
+    totalAddedVoids: 0,
+    totalAddedDieLoss: 0,
+    method,
+    notes: [note],
+  });
+  if (exc.nature === 'instrument')
+    return empty('an instrument finding: the counter, not the air — no added particles to cost');
+  if (steps.length === 0) return empty('no wafer was in this air during the excursion (ledger)');
+  const baselines = new Map(exc.locationIds.map((loc) => [loc, baselineByChannel(db, loc, period)]));
+  const assessOpts: AssessOptions = { asOfMs, detail: 'summary', config: { draws: COST_DRAWS } };
+  const deltas = new Map<string, ReturnType<typeof pairDelta>>();
+  for (const pairId of new Set(steps.map((s) => s.pairId).filter((p): p is string => p !== null))) {
+    const loaded = loadPair(db, pairId, asOfMs);
+    if (!loaded) continue;
+    const asMeasured = assessPair(loaded.pair, loaded.line, assessOpts);
+    const counters = { ...loaded.line.counters };
+    for (const loc of exc.locationIds) {
+      const s = counters[loc];
+      const b = baselines.get(loc);
+      if (!s || !b || b.size === 0) {
+        notes.push(
+          `${loc}: no baseline hours in the week before or after the excursion; its excess is not removed`,
+        );
+        continue;
+      }
+      const perChannel = Array.from(s.channelSizesM, (d) => b.get(mToNm(d)) ?? Number.NaN);
+      counters[loc] = withoutExcess(s, period.fromMs, period.toMs, perChannel);
+    }
+    const without = assessPair(loaded.pair, { ...loaded.line, counters }, assessOpts);
+    deltas.set(pairId, pairDelta(asMeasured, without, exc.locationIds));
+  }
+  const wafers: ExposedWaferCost[] = steps.map((s) => {
+    const d = s.pairId ? deltas.get(s.pairId) : undefined;
+    return {
+      ...s,
+      addedParticles: d?.addedParticles.get(s.waferId) ?? 0,
+      addedVoids: d ? d.addedVoids : null,
+      addedDieLoss: d ? d.addedDieLoss : null,
+    };
+  });
+  const unpaired = new Set(steps.filter((s) => s.pairId === null).map((s) => s.waferId));
+  if (unpaired.size > 0)
+    notes.push(
+      `${unpaired.size} exposed wafer${unpaired.size === 1 ? ' is' : 's are'} in no pair yet: their added voids wait for the pair`,
+    );
+  const lots = new Map<string, LotCost>();
+  const waferCount = new Map<string, Set<string>>();
+  for (const s of steps) {
+    const set = waferCount.get(s.lotId) ?? new Set<string>();
+    set.add(s.waferId);
+    waferCount.set(s.lotId, set);
+  }
+  for (const [lotId, set] of waferCount)
+    lots.set(lotId, { lotId, wafers: set.size, addedVoids: 0, addedDieLoss: 0 });
+  for (const d of deltas.values()) {
+    const l = lots.get(d.lotId);
+    if (!l) continue;
+    l.addedVoids += d.addedVoids;
+    l.addedDieLoss += d.addedDieLoss;
+  }
+  const lotList = [...lots.values()].sort((a, b) => a.lotId.localeCompare(b.lotId));
+  return {
+    excursionId: exc.id,
+    locationId: exc.locationId,
+    period,
+    wafers,
+    lots: lotList,
+    totalAddedVoids: lotList.reduce((a, l) => a + l.addedVoids, 0),
+    totalAddedDieLoss: lotList.reduce((a, l) => a + l.addedDieLoss, 0),
+    method,
+    notes,
+  };
+}
