@@ -174,9 +174,12 @@ export function AreaAuditPage(p: AreaAuditProps) {
         <>
           <h2 id="excursions">Excursions</h2>
           <p class="vc-small">
-            Rules: {['action-point', 'alert-run', 'area-alert', 'ratio-shift'].map(ruleWords).join('; ')}.
-            “Most likely” tells a rise in the air from a counter fault by the samples’ data-quality flags and
-            the signature across channels.
+            Rules:{' '}
+            {['action-point', 'alert-run', 'area-alert', 'ratio-shift', 'data-quality']
+              .map(ruleWords)
+              .join('; ')}
+            . “Most likely” tells a rise in the air from a counter fault by the samples’ data-quality flags
+            and the signature across channels.
           </p>
           {part('excursions', 'Excursions by rule')}
           {a.excursions && p.forms.acknowledge ? (
@@ -222,14 +225,14 @@ export function NotComputed(props: { what: string }) {
 }
 
 const METHOD_PARAMETERS: Record<string, string> = {
-  percentile: 'alert and action percentiles, e.g. 95 and 99',
-  'log-mean-k-sigma': 'k for alert and action, e.g. 2 and 3',
-  'poisson-quantile': 'alert and action quantiles in %, e.g. 95 and 99.7',
-  'negbin-quantile': 'alert and action quantiles in %, e.g. 95 and 99.7',
-  'class-fraction': 'alert and action fractions of the class limit in %, e.g. 50 and 80',
+  percentile: 'alert and action percentiles as fractions (default 0.95 and 0.99)',
+  'log-mean-k-sigma': 'k for alert and action (default 2 and 3)',
+  'poisson-quantile': 'alert and action quantiles as fractions (default 0.95 and 0.99)',
+  'negbin-quantile': 'alert and action quantiles as fractions (default 0.95 and 0.99)',
+  'class-fraction': 'alert and action fractions of the class limit (default 0.5 and 1); no baseline',
 };
 
-/** Derive levels from a baseline window by a stated method (approvers; recorded with who and when). */
+/** Derive levels for one location and channel from a baseline window by a stated method (approvers). */
 function LevelsForm(props: {
   action: string;
   query: AuditQuery;
@@ -242,20 +245,21 @@ function LevelsForm(props: {
       <h3 class="vc-form-wide">Derive levels from a baseline</h3>
       <input type="hidden" name="_csrf" value={props.csrf} />
       <input type="hidden" name="return" value={auditQueryString(props.query)} />
+      <input type="hidden" name="occupancy" value={props.query.occupancy} />
       <label for="lv-location">Location</label>
-      <select id="lv-location" name="location">
-        <option value="">every location of the area</option>
+      <select id="lv-location" name="location" required>
         {props.locations.map((l) => (
           <option value={l.id}>
             {l.id} {l.name === l.id ? '' : l.name}
           </option>
         ))}
       </select>
-      <label for="lv-channel">Channel (≥ µm)</label>
-      <select id="lv-channel" name="channel">
-        <option value="">every channel</option>
+      <label for="lv-channel">Channel</label>
+      <select id="lv-channel" name="channel" required>
         {props.channelsUm.map((c) => (
-          <option value={String(c)}>≥ {c} µm</option>
+          <option value={String(c)} selected={c === 0.5}>
+            ≥ {c} µm
+          </option>
         ))}
       </select>
       <label for="lv-method">Method</label>
@@ -267,18 +271,19 @@ function LevelsForm(props: {
         ))}
       </select>
       <label for="lv-from">Baseline from (UTC)</label>
-      <input id="lv-from" name="baselineFrom" required placeholder="2026-10-01T00:00Z" />
+      <input id="lv-from" name="baselineFrom" value={props.query.from} />
       <label for="lv-to">Baseline to (UTC)</label>
-      <input id="lv-to" name="baselineTo" required placeholder="2026-10-15T00:00Z" />
+      <input id="lv-to" name="baselineTo" value={props.query.to} />
       <label for="lv-alert">Alert parameter</label>
-      <input id="lv-alert" name="alertParameter" required inputmode="decimal" />
+      <input id="lv-alert" name="alertParameter" inputmode="decimal" placeholder="the method's default" />
       <label for="lv-action">Action parameter</label>
-      <input id="lv-action" name="actionParameter" required inputmode="decimal" />
+      <input id="lv-action" name="actionParameter" inputmode="decimal" placeholder="the method's default" />
       <label for="lv-name">Name of this setting</label>
       <input id="lv-name" name="name" required maxlength={80} placeholder="October baseline" />
       <p class="vc-small vc-form-wide">
-        Approvers only. The new levels are stored as a new version with the method, window, parameters, your
-        name and the time; the earlier versions stay on record.
+        Approvers only. The levels are stored as a new version with the method, window, parameters, your name
+        and the time; earlier versions stay on record. A baseline shorter than the method needs is refused
+        with the reason.
       </p>
       <button type="submit">Derive and store levels</button>
     </form>
@@ -305,7 +310,7 @@ function AckForms(props: { base: string; query: AuditQuery; csrf: string; ids: s
         ))}
       </select>
       <label for="ack-comment">Comment</label>
-      <textarea id="ack-comment" name="comment" required rows={2} maxlength={2000} />
+      <textarea id="ack-comment" name="comment" required rows={2} maxlength={4000} />
       <p class="vc-small vc-form-wide">
         Engineers and up. Say what was found and done; the comment is stored with your name and the time.
       </p>

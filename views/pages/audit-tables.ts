@@ -251,6 +251,7 @@ const RULE_WORDS: Record<string, string> = {
   'alert-run': 'run above alert',
   'area-alert': 'several locations above alert',
   'ratio-shift': 'size-channel ratio shift',
+  'data-quality': 'data-quality flags',
 };
 
 export function ruleWords(r: string): string {
@@ -313,7 +314,7 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
         cell(e.channelsM.map((d) => fmtDiameter(d)).join(', '), {
           value: e.channelsM.map((d) => sizeUm(d)).join(' '),
         }),
-        cell(`${NATURE_WORDS[e.nature] ?? e.nature}: ${e.natureWords}`, {
+        cell(`${NATURE_WORDS[e.nature] ?? e.nature} — ${e.natureWords}`, {
           value: e.nature,
           cls: `vc-nature-${e.nature}`,
         }),

@@ -11,11 +11,18 @@ import { AuditReportPage } from '../../../views/pages/audit-report.tsx';
 import type { AuditTable } from '../../../views/pages/audit-table.tsx';
 import { type AuditView, areaAuditTables, auditProblems } from '../../../views/pages/audit-tables.ts';
 import type { AuditPeriod } from '../../engine/audit/types.ts';
+import { audit } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { renderPage } from '../render.ts';
 import { fileDate, pickTable, queryFormat, sendTable } from './audit-export.ts';
 import { type AreaRef, auditQuery, pathArea } from './audit-params.ts';
-import { AUDIT_FORMS, runAreaAudit } from './audit-run.ts';
+import {
+  AUDIT_FORMS,
+  acknowledgeFromForm,
+  deriveLevelsFromForm,
+  FormRefusal,
+  runAreaAudit,
+} from './audit-run.ts';
 
 interface Made {
   area: AreaRef;
@@ -89,6 +96,18 @@ function page(
   );
 }
 
+/** The audit query of a form post (its hidden `return` field holds the page's query string). */
+function returnQuery(body: Record<string, unknown>): string {
+  const r = typeof body.return === 'string' ? body.return : '';
+  const p = new URLSearchParams(r);
+  const keep = new URLSearchParams();
+  for (const k of ['from', 'to', 'occupancy', 'edition']) {
+    const v = p.get(k);
+    if (v) keep.set(k, v);
+  }
+  return keep.toString();
+}
+
 export function register(app: Hono, ctx: AppContext): void {
   app.get('/areas/:id/audit', (c) => {
     const m = make(ctx, c);
@@ -126,5 +145,68 @@ export function register(app: Hono, ctx: AppContext): void {
     const t = pickTable(m.tables, c.req.param('table') ?? '');
     const stem = `audit-${m.area.id}-${t.id}-${fileDate(m.period.fromMs)}-${fileDate(m.period.toMs)}`;
     return sendTable(t, format, stem);
+  });
+
+  app.post('/areas/:id/audit/levels', async (c) => {
+    const area = pathArea(ctx, c);
+    const body = await c.req.parseBody();
+    const qs = returnQuery(body);
+    try {
+      const stored = deriveLevelsFromForm(ctx, c, area, body);
+      audit(
+        c,
+        ctx,
+        'derive levels',
+        `${stored.locationId} ≥ ${Number((stored.diameterM * 1e6).toPrecision(3))} µm`,
+        {
+          method: stored.method,
+          name: stored.name,
+          version: stored.version,
+          window: stored.window,
+          alertPerM3: stored.alertPerM3,
+          actionPerM3: stored.actionPerM3,
+        },
+        typeof body.openName === 'string' ? body.openName : undefined,
+      );
+      return c.redirect(`${base(area.id)}?${qs}${qs ? '&' : ''}stored=levels#levels`, 303);
+    } catch (err) {
+      if (!(err instanceof FormRefusal)) throw err;
+      const p = new URLSearchParams(qs);
+      return page(
+        ctx,
+        c,
+        make(ctx, c, (k) => p.get(k) ?? undefined),
+        { kind: 'error', text: err.message },
+        err.status,
+      );
+    }
+  });
+
+  app.post('/areas/:id/audit/acknowledge', async (c) => {
+    const area = pathArea(ctx, c);
+    const body = await c.req.parseBody();
+    const qs = returnQuery(body);
+    try {
+      const ack = acknowledgeFromForm(ctx, c, body);
+      audit(
+        c,
+        ctx,
+        'acknowledge excursion',
+        ack.excursionId,
+        { area: area.id, comment: ack.comment },
+        typeof body.openName === 'string' ? body.openName : undefined,
+      );
+      return c.redirect(`${base(area.id)}?${qs}${qs ? '&' : ''}stored=acknowledgement#excursions`, 303);
+    } catch (err) {
+      if (!(err instanceof FormRefusal)) throw err;
+      const p = new URLSearchParams(qs);
+      return page(
+        ctx,
+        c,
+        make(ctx, c, (k) => p.get(k) ?? undefined),
+        { kind: 'error', text: err.message },
+        err.status,
+      );
+    }
   });
 }
