@@ -6,18 +6,34 @@ import { findCalculator } from '../engine/calculators.ts';
 import { ModelInputError, plainModelError } from '../model/errors.ts';
 import { VERSION } from '../web/version.ts';
 import { assess } from './commands/assess.ts';
+import { audit } from './commands/audit.ts';
 import { backup } from './commands/backup.ts';
 import { calc, calcUsage } from './commands/calc.ts';
 import { demo } from './commands/demo.ts';
+import { excursions } from './commands/excursions.ts';
 import { importCommand } from './commands/import.ts';
 import { learn } from './commands/learn.ts';
+import { levels } from './commands/levels.ts';
 import { params } from './commands/params.ts';
 import { serve } from './commands/serve.ts';
 import { signoff } from './commands/signoff.ts';
 import { type CliIo, type Command, EXIT, UsageError } from './io.ts';
 
 /** Every command, in the order `--help` lists them. Later capabilities add theirs here. */
-export const COMMANDS: Command[] = [serve, calc, importCommand, assess, learn, signoff, params, demo, backup];
+export const COMMANDS: Command[] = [
+  serve,
+  calc,
+  importCommand,
+  assess,
+  learn,
+  signoff,
+  params,
+  audit,
+  levels,
+  excursions,
+  demo,
+  backup,
+];
 
 export function usage(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -1,0 +1,82 @@
+/**
+ * An area's whole audit over a period — classification, levels in force, excursions with their
+ * costs, control charts — from the database (through loader.ts and cost-loader.ts). The CLI's
+ * `voidcast audit` and the report page read this one object.
+ */
+import type { Db } from '../../store/db.ts';
+import { latestAcks } from '../../store/excursion-acks.ts';
+import { controlChart } from './charts.ts';
+import { checkPeriod } from './common.ts';
+import { excursionCostInDb } from './cost-loader.ts';
+import { type ChannelSeries, DEFAULT_RULES, findExcursions } from './excursions.ts';
+import { classifyAreaFromDb, loadAreaSeries } from './loader.ts';
+import type { AreaAudit, AuditPeriod, ControlChart, ExcursionRules, OccupancySelection } from './types.ts';
+
+export interface AuditOptions {
+  period: AuditPeriod;
+  occupancy?: OccupancySelection;
+  edition?: 2015 | 1999;
+  classN?: number | null;
+  sizesNm?: readonly number[] | null;
+  rules?: ExcursionRules;
+  /** Compute each excursion's cost (two assessments per exposed pair; cached). Default true. */
+  costs?: boolean;
+  /** Channels to chart, whole nm (default: every channel). */
+  chartSizesNm?: readonly number[];
+  /** Assessment time of the costs (default: the installation clock, else now). */
+  asOfMs?: number;
+}
+
+/** Control charts of every location and channel of the series (hours without usable samples excluded). */
+export function chartsOf(series: readonly ChannelSeries[], sizesNm?: readonly number[]): ControlChart[] {
+  return series
+    .filter((s) => !sizesNm || sizesNm.includes(s.diameterNm))
+    .map((s) =>
+      controlChart(
+        s.locationId,
+        s.diameterNm / 1e9,
+        s.hours.map((h) => ({
+          startMs: h.hourMs,
+          count: h.countSum,
+          volumeM3: h.volumeM3,
+          excluded: h.nUsable === 0,
+        })),
+      ),
+    )
+    .sort((a, b) => a.locationId.localeCompare(b.locationId) || a.diameterM - b.diameterM);
+}
+
+/** The area's audit over the period. */
+export function auditAreaFromDb(db: Db, areaId: string, opts: AuditOptions): AreaAudit {
+  const t0 = performance.now();
+  const period = checkPeriod(opts.period);
+  const occupancy = opts.occupancy ?? 'operational';
+  const classification = classifyAreaFromDb(db, areaId, {
+    period,
+    occupancy,
+    edition: opts.edition,
+    classN: opts.classN,
+    sizesNm: opts.sizesNm,
+  });
+  const { levels, series } = loadAreaSeries(db, areaId, period, occupancy);
+  const found = findExcursions({ areaId, series, levels, rules: opts.rules ?? DEFAULT_RULES, period });
+  const acks = latestAcks(
+    db,
+    found.map((e) => e.id),
+  );
+  const excursions = found.map((e) => ({ ...e, acknowledgement: acks.get(e.id) ?? null }));
+  const costs =
+    opts.costs === false ? [] : excursions.map((e) => excursionCostInDb(db, e, { asOfMs: opts.asOfMs }));
+  const charts = chartsOf(series, opts.chartSizesNm);
+  return {
+    areaId,
+    period,
+    occupancy,
+    classification,
+    levels,
+    excursions,
+    costs,
+    charts,
+    elapsedMs: performance.now() - t0,
+  };
+}
