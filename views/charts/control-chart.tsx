@@ -333,8 +333,9 @@ export function controlChart(input: ControlChartInput) {
     pen = true;
   }
   // A step line through each subgroup's limit: the limit holds from halfway before to halfway after.
+  // Runs of subgroups with the same limit (equal volumes) are drawn as one segment.
   const stepPath = (pick: (p: ControlChartPoint) => number | null): string => {
-    const out: string[] = [];
+    const segs: { left: number; right: number; y: number }[] = [];
     let on = false;
     pts.forEach((p, i) => {
       const v = pick(p);
@@ -344,10 +345,13 @@ export function controlChart(input: ControlChartInput) {
       }
       const left = i > 0 ? (x(pts[i - 1]!.tMs) + x(p.tMs)) / 2 : x(p.tMs);
       const right = i < pts.length - 1 ? (x(p.tMs) + x(pts[i + 1]!.tMs)) / 2 : x(p.tMs);
-      out.push(`${on ? 'L' : 'M'}${r(left)},${yc(v)} L${r(right)},${yc(v)}`);
+      const y = yc(v);
+      const last = segs[segs.length - 1];
+      if (on && last && last.y === y) last.right = right;
+      else segs.push({ left, right, y, ...(on ? {} : { move: true }) });
       on = true;
     });
-    return out.join(' ');
+    return segs.map((g) => `${'move' in g ? 'M' : 'L'}${r(g.left)},${g.y} L${r(g.right)},${g.y}`).join(' ');
   };
   const uclPath = stepPath((p) => p.ucl);
   const lclPath = stepPath((p) => (finite(p.lcl) && p.lcl > 0 ? p.lcl : null));

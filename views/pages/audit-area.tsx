@@ -9,7 +9,7 @@
  */
 import type { LevelMethod, OccupancySelection } from '../../src/engine/audit/types.ts';
 import { fmtUtc } from '../partials/format.ts';
-import { ControlChartFigure } from './audit-charts.tsx';
+import { ControlChartFigure, chartsShown } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
 import { type AuditView, methodWords, occupancyWords, ruleWords } from './audit-tables.ts';
 
@@ -98,6 +98,8 @@ export interface AreaAuditProps {
   /** Locations of the area and the channels their counters report (for the levels form). */
   locations: { id: string; name: string }[];
   channelsUm: number[];
+  /** Draw every control chart (else those with levels or excursions; the table lists all). */
+  allCharts?: boolean;
   /** Whether this version stores derived levels and acknowledgements (else the page says so). */
   forms: { levels: boolean; acknowledge: boolean };
 }
@@ -204,14 +206,40 @@ export function AreaAuditPage(p: AreaAuditProps) {
           ) : null}
           <h2 id="charts">Control charts</h2>
           {part('control-charts', 'Control charts per location and channel')}
-          <div class="vc-chart-grid">
-            {(a.charts ?? []).map((ch) => (
-              <ControlChartFigure chart={ch} levels={a.levels ?? []} />
-            ))}
-          </div>
+          {a.charts && a.charts.length > 0 ? (
+            <ChartsBlock
+              audit={a}
+              all={p.allCharts === true}
+              toggleHref={`${base}?${auditQueryString(p.query, p.allCharts ? {} : { charts: 'all' })}#charts`}
+            />
+          ) : null}
         </>
       ) : null}
     </section>
+  );
+}
+
+/** The control charts drawn, and the link that shows every one or the chosen ones again. */
+function ChartsBlock(props: { audit: AuditView; all: boolean; toggleHref: string }) {
+  const a = props.audit;
+  const charts = a.charts ?? [];
+  const shown = chartsShown(charts, a.levels ?? [], a.excursions ?? [], props.all);
+  return (
+    <>
+      <p class="vc-small">
+        {shown.length === charts.length
+          ? `All ${charts.length} charts.`
+          : `${shown.length} of ${charts.length} charts: the locations and channels with alert or action levels or an excursion in the period.`}{' '}
+        {shown.length < charts.length || props.all ? (
+          <a href={props.toggleHref}>{props.all ? 'Show the chosen ones only' : 'Show every chart'}</a>
+        ) : null}
+      </p>
+      <div class="vc-chart-grid">
+        {shown.map((ch) => (
+          <ControlChartFigure chart={ch} levels={a.levels ?? []} />
+        ))}
+      </div>
+    </>
   );
 }
 

@@ -66,3 +66,30 @@ export function ControlChartFigure(props: { chart: ControlChart; levels: LevelRe
     </figure>
   );
 }
+
+/**
+ * The charts a page draws: every one with `all`, else those of a location and channel that has
+ * alert or action levels or an excursion in the period (the ones an auditor reads first), or the
+ * first chart when none has either. The table of charts always lists every one.
+ */
+export function chartsShown(
+  charts: ControlChart[],
+  levels: LevelRecord[],
+  excursions: { locationIds: string[]; channelsM: number[] }[],
+  all: boolean,
+): ControlChart[] {
+  if (all) return charts;
+  const wanted = charts.filter(
+    (ch) =>
+      levels.some(
+        (l) =>
+          l.locationId === ch.locationId &&
+          sameSize(l.diameterM, ch.diameterM) &&
+          (l.alertPerM3 !== null || l.actionPerM3 !== null),
+      ) ||
+      excursions.some(
+        (e) => e.locationIds.includes(ch.locationId) && e.channelsM.some((d) => sameSize(d, ch.diameterM)),
+      ),
+  );
+  return wanted.length ? wanted : charts.slice(0, 1);
+}

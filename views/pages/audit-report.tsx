@@ -6,7 +6,7 @@
  */
 import { fmtNum, fmtUtc } from '../partials/format.ts';
 import { type AuditQuery, auditQueryString, NotComputed } from './audit-area.tsx';
-import { ControlChartFigure } from './audit-charts.tsx';
+import { ControlChartFigure, chartsShown } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
 import { type AuditView, classWords, occupancyWords } from './audit-tables.ts';
 
@@ -144,7 +144,13 @@ export function AuditReportPage(p: AuditReportProps) {
       <section class="vc-report-section">
         <h2>{REPORT_HEADINGS[4]}</h2>
         {view('control-charts')}
-        {(a?.charts ?? []).map((ch) => (
+        {a?.charts ? (
+          <p class="vc-small">
+            Drawn: the locations and channels with alert or action levels or an excursion in the period (the
+            table lists every chart).
+          </p>
+        ) : null}
+        {chartsShown(a?.charts ?? [], a?.levels ?? [], a?.excursions ?? [], false).map((ch) => (
           <ControlChartFigure chart={ch} levels={a?.levels ?? []} width={900} />
         ))}
       </section>

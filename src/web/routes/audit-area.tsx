@@ -90,6 +90,7 @@ function page(
         locations: m.area.locations.map((l) => ({ id: l.locationId, name: l.name })),
         channelsUm: channels,
         forms: AUDIT_FORMS,
+        allCharts: c.req.query('charts') === 'all',
       }),
     },
     status,

@@ -5,28 +5,18 @@
  */
 import type { Context } from 'hono';
 import type { AuditView } from '../../../views/pages/audit-tables.ts';
+import { auditAreaFromDb } from '../../engine/audit/audit.ts';
 import { OCCUPANCY_STATES } from '../../engine/audit/common.ts';
-import { excursionCostInDb } from '../../engine/audit/cost-loader.ts';
 import { AuditInputError } from '../../engine/audit/errors.ts';
 import { LEVEL_METHODS } from '../../engine/audit/levels.ts';
-import {
-  acknowledgeExcursion,
-  classifyAreaFromDb,
-  deriveAndStoreLevels,
-  findExcursionsInDb,
-  loadAreaMembers,
-  loadCurrentLevels,
-} from '../../engine/audit/loader.ts';
+import { acknowledgeExcursion, deriveAndStoreLevels } from '../../engine/audit/loader.ts';
 import type { AuditPeriod, ExcursionAck, LevelRecord, OccupancySelection } from '../../engine/audit/types.ts';
 import { actorName } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue, positiveNumberValue } from '../params.ts';
 import type { AreaRef } from './audit-params.ts';
 
-/**
- * The audit of an area, or null with the engine's reason when the area cannot be audited. Parts the
- * engine does not compute yet are null, and the pages say so.
- */
+/** The audit of an area (src/engine/audit/audit.ts), or null with the engine's reason when it cannot be made. */
 export function runAreaAudit(
   ctx: AppContext,
   area: AreaRef,
@@ -35,13 +25,9 @@ export function runAreaAudit(
   edition: 2015 | 1999,
 ): { audit: AuditView | null; refusal: string | null } {
   try {
-    const classification = classifyAreaFromDb(ctx.db, area.id, { period, occupancy, edition });
-    const members = loadAreaMembers(ctx.db, area.id);
-    const levels = loadCurrentLevels(ctx.db, members.sampling);
-    const excursions = findExcursionsInDb(ctx.db, area.id, { period, occupancy });
-    const costs = excursions.map((e) => excursionCostInDb(ctx.db, e));
+    const audit = auditAreaFromDb(ctx.db, area.id, { period, occupancy, edition });
     return {
-      audit: { areaId: area.id, period, occupancy, classification, levels, excursions, costs, charts: null },
+      audit,
       refusal: null,
     };
   } catch (err) {
