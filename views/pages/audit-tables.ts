@@ -348,8 +348,8 @@ export function exposedWafersTable(costs: ExcursionCost[]): AuditTable {
       { key: 'from', label: 'In the air from (UTC)' },
       { key: 'to', label: 'To (UTC)' },
       { key: 'added_particles', label: 'Added particles', numeric: true },
-      { key: 'added_voids', label: 'Added voids', numeric: true },
-      { key: 'added_die_loss', label: 'Added die loss (dies)', numeric: true },
+      { key: 'pair_added_voids', label: 'Added voids of its pair', numeric: true },
+      { key: 'pair_added_die_loss', label: 'Added die loss of its pair (dies)', numeric: true },
     ],
     rows: costs.flatMap((c) =>
       c.wafers.map((w) => [
