@@ -189,7 +189,13 @@ export function AreaAuditPage(p: AreaAuditProps) {
               base={base}
               query={p.query}
               csrf={p.csrfToken}
-              ids={a.excursions.filter((e) => !e.acknowledgement).map((e) => e.id)}
+              choices={a.excursions
+                .map((e, i) => ({
+                  id: e.id,
+                  words: `E${i + 1}: ${ruleWords(e.rule)} at ${e.locationIds.join(', ')} from ${fmtUtc(e.startMs)}`,
+                  open: !e.acknowledgement,
+                }))
+                .filter((e) => e.open)}
             />
           ) : null}
           <h3>Exposed wafers</h3>
@@ -319,8 +325,13 @@ function LevelsForm(props: {
 }
 
 /** Acknowledge an excursion with a comment (engineers and up; recorded with who and when). */
-function AckForms(props: { base: string; query: AuditQuery; csrf: string; ids: string[] }) {
-  if (props.ids.length === 0) return null;
+function AckForms(props: {
+  base: string;
+  query: AuditQuery;
+  csrf: string;
+  choices: { id: string; words: string }[];
+}) {
+  if (props.choices.length === 0) return null;
   return (
     <form
       class="vc-audit-form vc-form"
@@ -333,8 +344,8 @@ function AckForms(props: { base: string; query: AuditQuery; csrf: string; ids: s
       <input type="hidden" name="return" value={auditQueryString(props.query)} />
       <label for="ack-id">Excursion</label>
       <select id="ack-id" name="excursion">
-        {props.ids.map((id) => (
-          <option value={id}>{id}</option>
+        {props.choices.map((x) => (
+          <option value={x.id}>{x.words}</option>
         ))}
       </select>
       <label for="ack-comment">Comment</label>

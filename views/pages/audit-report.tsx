@@ -8,7 +8,7 @@ import { fmtNum, fmtUtc } from '../partials/format.ts';
 import { type AuditQuery, auditQueryString, NotComputed } from './audit-area.tsx';
 import { ControlChartFigure, chartsShown } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
-import { type AuditView, classWords, occupancyWords } from './audit-tables.ts';
+import { type AuditView, classWords, excursionLabels, occupancyWords } from './audit-tables.ts';
 
 /** The report's section headings, in order (the browser test finds them in the printed PDF). */
 export const REPORT_HEADINGS = [
@@ -49,8 +49,12 @@ export function AuditReportPage(p: AuditReportProps) {
     ) : null;
   };
   const excursions = a?.excursions ?? [];
-  const addedVoids = a?.costs?.reduce((s, c) => s + c.totalAddedVoids, 0) ?? null;
-  const addedDies = a?.costs?.reduce((s, c) => s + c.totalAddedDieLoss, 0) ?? null;
+  // Excursions of one event overlap (the rules see it each in their way): the largest is said, never a sum.
+  const costs = a?.costs ?? null;
+  const largest = costs?.length
+    ? costs.reduce((m, c) => (c.totalAddedVoids > m.totalAddedVoids ? c : m))
+    : null;
+  const labels = excursionLabels(excursions);
   const back = `/areas/${encodeURIComponent(p.area.id)}/audit?${auditQueryString(p.query)}`;
   return (
     <article class="vc-report-doc">
@@ -92,9 +96,11 @@ export function AuditReportPage(p: AuditReportProps) {
                   excursions.length
                     ? `; ${excursions.filter((e) => e.nature === 'air').length} in the air, ${excursions.filter((e) => e.nature === 'instrument').length} counter faults` +
                       (
-                        addedVoids === null || addedDies === null
+                        costs === null
                           ? '; added voids not available in this version'
-                          : `; ${fmtNum(addedVoids)} added voids and ${fmtNum(addedDies)} dies of added loss in all`
+                          : largest
+                            ? `; the largest, ${labels.get(largest.excursionId) ?? largest.excursionId}, added ${fmtNum(largest.totalAddedVoids)} voids and ${fmtNum(largest.totalAddedDieLoss)} dies of loss (excursions of one event overlap and are not summed)`
+                            : ''
                       )
                     : ''
                 }`}
@@ -172,7 +178,7 @@ export function AuditReportPage(p: AuditReportProps) {
                 .filter((e) => e.acknowledgement)
                 .map((e) => (
                   <tr>
-                    <td>{e.id}</td>
+                    <td>{labels.get(e.id)}</td>
                     <td>{e.acknowledgement!.account}</td>
                     <td>{fmtUtc(e.acknowledgement!.atMs)}</td>
                     <td>{e.acknowledgement!.comment}</td>

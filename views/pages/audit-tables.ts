@@ -22,7 +22,12 @@ export function isoUtc(ms: number | null | undefined): string | null {
   return new Date(ms).toISOString().replace('.000Z', 'Z');
 }
 
-const timeCell = (ms: number | null | undefined): AuditCell => cell(fmtUtc(ms), { value: isoUtc(ms) });
+/**
+ * A time in a table whose column says UTC: "2026‑10‑18 01:00", its date joined by non-breaking
+ * hyphens (U+2011) so that a narrow column breaks between date and time only; the file ISO 8601.
+ */
+const timeCell = (ms: number | null | undefined): AuditCell =>
+  cell(fmtUtc(ms).replace(/ UTC$/, '').replaceAll('-', '\u2011'), { value: isoUtc(ms) });
 const concCell = (v: number | null | undefined): AuditCell =>
   v === null || v === undefined || !Number.isFinite(v)
     ? cell('—', { value: null })
@@ -33,7 +38,9 @@ const numCell = (v: number | null | undefined, digits = 3): AuditCell =>
     : cell(fmtNum(v, digits), { value: Number(v.toPrecision(6)) });
 const wholeCell = (n: number): AuditCell => cell(String(n), { value: n });
 const sizeUm = (dM: number) => Number((dM * 1e6).toPrecision(4));
-const sizeWords = (dM: number) => `≥ ${fmtDiameter(dM)}`;
+const sizeWords = (dM: number) => `≥ ${sizeUm(dM)} µm`;
+/** A size cell in a column headed "(≥ µm)": the µm figure. */
+const sizeCell = (dM: number): AuditCell => cell(String(sizeUm(dM)));
 const classWords = (n: number | null) => (n === null ? '—' : `ISO ${Number.isInteger(n) ? n : n.toFixed(1)}`);
 
 /** A verdict as a word with its class: pass, fail, no data, not judged. */
@@ -146,10 +153,7 @@ export function classificationLocationsTable(
       { key: 'verdict', label: 'Verdict' },
     ],
     rows: c.locations.map((l) => [
-      cell(l.name === l.locationId ? l.locationId : `${l.locationId} ${l.name}`, {
-        value: l.locationId,
-        href: hrefOf?.(l.locationId),
-      }),
+      cell(l.locationId, { href: hrefOf?.(l.locationId) }),
       cell(classWords(l.targetClass), { value: l.targetClass }),
       wholeCell(l.samples),
       wholeCell(l.usableSamples),
@@ -186,7 +190,7 @@ export function classificationSizesTable(c: AreaClassification): AuditTable {
       { key: 'verdict', label: 'Verdict' },
     ],
     rows: c.sizes.map((s) => [
-      cell(fmtDiameter(s.diameterM), { value: sizeUm(s.diameterM) }),
+      sizeCell(s.diameterM),
       concCell(s.limitPerM3),
       s.meanOfMeansPerM3 === null
         ? cell('no data', { value: null, cls: 'vc-nodata-word' })
@@ -231,7 +235,7 @@ export function levelsTable(levels: LevelRecord[]): AuditTable {
     ],
     rows: levels.map((l) => [
       cell(l.locationId),
-      cell(fmtDiameter(l.diameterM), { value: sizeUm(l.diameterM) }),
+      sizeCell(l.diameterM),
       concCell(l.alertPerM3),
       concCell(l.actionPerM3),
       cell(l.method === 'typed' ? 'typed' : `${methodWords(l.method)} (“${l.name}”)`, { value: l.method }),
@@ -264,9 +268,18 @@ const NATURE_WORDS: Record<string, string> = {
   unclear: 'unclear',
 };
 
+/** Short names of the excursions for the page ("E1", "E2" … in the order listed); files carry the full id. */
+export function excursionLabels(exs: { id: string }[]): Map<string, string> {
+  return new Map(exs.map((e, i) => [e.id, `E${i + 1}`]));
+}
+
+const excursionCell = (id: string, labels: Map<string, string>): AuditCell =>
+  cell(labels.get(id) ?? id, { value: id, cls: 'vc-nowrap' });
+
 /** Excursions: rule, where, when, peak, channels, what it most likely is, data quality, cost. */
 export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null): AuditTable {
   const costOf = new Map((costs ?? []).map((c) => [c.excursionId, c]));
+  const labels = excursionLabels(exs);
   return {
     id: 'excursions',
     title: 'Excursions',
@@ -282,6 +295,7 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
       { key: 'baseline_per_m3', label: 'Baseline (/m³)', numeric: true },
       { key: 'channels_um', label: 'Channels (≥ µm)' },
       { key: 'nature', label: 'Most likely' },
+      { key: 'why', label: 'Why' },
       { key: 'data_quality', label: 'Data quality' },
       { key: 'exposed_wafers', label: 'Exposed wafers', numeric: true },
       { key: 'added_voids', label: 'Added voids', numeric: true },
@@ -302,7 +316,7 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
         .filter(Boolean)
         .join(', ');
       return [
-        cell(e.id),
+        excursionCell(e.id, labels),
         cell(ruleWords(e.rule), { value: e.rule }),
         cell(e.locationIds.join(', ')),
         timeCell(e.startMs),
@@ -311,13 +325,9 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
         concCell(e.peakPerM3),
         concCell(e.levelPerM3),
         concCell(e.baselinePerM3),
-        cell(e.channelsM.map((d) => fmtDiameter(d)).join(', '), {
-          value: e.channelsM.map((d) => sizeUm(d)).join(' '),
-        }),
-        cell(`${NATURE_WORDS[e.nature] ?? e.nature} — ${e.natureWords}`, {
-          value: e.nature,
-          cls: `vc-nature-${e.nature}`,
-        }),
+        cell(e.channelsM.map((d) => sizeUm(d)).join(', ')),
+        cell(NATURE_WORDS[e.nature] ?? e.nature, { value: e.nature, cls: `vc-nature-${e.nature}` }),
+        cell(e.natureWords, { cls: 'vc-wide' }),
         cell(quality),
         cost ? wholeCell(cost.wafers.length) : cell('not costed', { value: null }),
         cost ? numCell(cost.totalAddedVoids) : cell('not costed', { value: null }),
@@ -334,7 +344,7 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
 }
 
 /** Every wafer the ledger puts in an excursion's air, with what the excursion added to it. */
-export function exposedWafersTable(costs: ExcursionCost[]): AuditTable {
+export function exposedWafersTable(costs: ExcursionCost[], labels: Map<string, string>): AuditTable {
   return {
     id: 'exposed-wafers',
     title: 'Exposed wafers and what each excursion added',
@@ -353,11 +363,11 @@ export function exposedWafersTable(costs: ExcursionCost[]): AuditTable {
     ],
     rows: costs.flatMap((c) =>
       c.wafers.map((w) => [
-        cell(c.excursionId),
-        cell(w.waferId),
-        cell(w.lotId, { href: `/lots/${encodeURIComponent(w.lotId)}` }),
+        excursionCell(c.excursionId, labels),
+        cell(w.waferId, { cls: 'vc-nowrap' }),
+        cell(w.lotId, { href: `/lots/${encodeURIComponent(w.lotId)}`, cls: 'vc-nowrap' }),
         w.pairId
-          ? cell(w.pairId, { href: `/pairs/${encodeURIComponent(w.pairId)}` })
+          ? cell(w.pairId, { href: `/pairs/${encodeURIComponent(w.pairId)}`, cls: 'vc-nowrap' })
           : cell('not paired', { value: null }),
         cell(w.step),
         cell(w.carrier),
@@ -373,7 +383,7 @@ export function exposedWafersTable(costs: ExcursionCost[]): AuditTable {
 }
 
 /** What each excursion added per lot. */
-export function lotCostsTable(costs: ExcursionCost[]): AuditTable {
+export function lotCostsTable(costs: ExcursionCost[], labels: Map<string, string>): AuditTable {
   return {
     id: 'lot-costs',
     title: 'Added risk per lot',
@@ -386,7 +396,7 @@ export function lotCostsTable(costs: ExcursionCost[]): AuditTable {
     ],
     rows: costs.flatMap((c) =>
       c.lots.map((l) => [
-        cell(c.excursionId),
+        excursionCell(c.excursionId, labels),
         cell(l.lotId, { href: `/lots/${encodeURIComponent(l.lotId)}` }),
         wholeCell(l.wafers),
         numCell(l.addedVoids),
@@ -417,7 +427,7 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
     ],
     rows: charts.map((ch) => [
       cell(ch.locationId),
-      cell(fmtDiameter(ch.diameterM), { value: sizeUm(ch.diameterM) }),
+      sizeCell(ch.diameterM),
       cell(KIND_WORDS[ch.kind] ?? ch.kind, { value: ch.kind }),
       numCell(ch.centre),
       numCell(ch.sigmaZ),
@@ -455,7 +465,12 @@ export function areaAuditTables(a: AuditView, hrefOf?: (locationId: string) => s
     classificationLocationsTable(a.classification, hrefOf),
     ...(a.levels ? [levelsTable(a.levels)] : []),
     ...(a.excursions ? [excursionsTable(a.excursions, a.costs ?? [])] : []),
-    ...(a.costs ? [exposedWafersTable(a.costs), lotCostsTable(a.costs)] : []),
+    ...(a.costs
+      ? [
+          exposedWafersTable(a.costs, excursionLabels(a.excursions ?? [])),
+          lotCostsTable(a.costs, excursionLabels(a.excursions ?? [])),
+        ]
+      : []),
     ...(a.charts ? [chartsTable(a.charts)] : []),
   ];
 }

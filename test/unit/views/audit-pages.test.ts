@@ -207,7 +207,7 @@ describe('audit tables', () => {
   it('say "no data" where a location has none and never count it as a pass', () => {
     const tables = areaAuditTables(handAudit());
     const locs = tables.find((t) => t.id === 'classification-locations')!;
-    const b2 = locs.rows.find((r) => r[0]!.value === 'BOR-B2')!;
+    const b2 = locs.rows.find((r) => r[0]!.text === 'BOR-B2')!;
     expect(b2.map((c) => c.text)).toContain('no data');
     expect(b2.map((c) => c.text)).not.toContain('pass');
     expect(b2[b2.length - 1]!.text).toBe('no data');
