@@ -57,6 +57,7 @@ interface Acc {
   nUsable: number;
   countSum: number;
   volumeM3: number;
+  concSum: number;
   maxPerM3: number | null;
   minVolumeM3: number | null;
   minDurationMs: number | null;
@@ -136,6 +137,7 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
           nUsable: 0,
           countSum: 0,
           volumeM3: 0,
+          concSum: 0,
           maxPerM3: null,
           minVolumeM3: null,
           minDurationMs: null,
@@ -161,6 +163,7 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
         a.countSum += c;
         a.volumeM3 += vol;
         const conc = c / vol;
+        a.concSum += conc;
         if (a.maxPerM3 === null || conc > a.maxPerM3) a.maxPerM3 = conc;
         if (a.minVolumeM3 === null || vol < a.minVolumeM3) a.minVolumeM3 = vol;
         if (a.minDurationMs === null || dur < a.minDurationMs) a.minDurationMs = dur;
@@ -174,8 +177,9 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
   );
   const insert = db.prepare(
     `INSERT INTO counter_hourly (location, diameter_nm, room_state, hour_ms, n, n_usable, count_sum, volume_m3,
-       max_per_m3, min_volume_m3, min_duration_ms, flags, n_fault, n_lower_bound, n_sentinel, n_zero_run, n_gap)
-     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+       conc_sum, max_per_m3, min_volume_m3, min_duration_ms, flags, n_fault, n_lower_bound, n_sentinel, n_zero_run,
+       n_gap)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   for (const a of accs.values())
     insert.run(
@@ -187,6 +191,7 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
       a.nUsable,
       a.countSum,
       a.volumeM3,
+      a.concSum,
       a.maxPerM3,
       a.minVolumeM3,
       a.minDurationMs,
@@ -210,6 +215,7 @@ export interface HourlyRow {
   nUsable: number;
   countSum: number;
   volumeM3: number;
+  concSum: number;
   maxPerM3: number | null;
   minVolumeM3: number | null;
   minDurationMs: number | null;
@@ -248,7 +254,7 @@ export function readHourly(db: Db, q: HourlyQuery): HourlyRow[] {
   const locs = q.locationIds.map(() => '?').join(',');
   const sizes = q.diametersNm && q.diametersNm.length > 0 ? q.diametersNm : null;
   const sql = `SELECT l.location_id AS locationId, h.diameter_nm AS diameterNm, h.room_state AS roomState,
-      h.hour_ms AS hourMs, h.n, h.n_usable AS nUsable, h.count_sum AS countSum, h.volume_m3 AS volumeM3,
+      h.hour_ms AS hourMs, h.n, h.n_usable AS nUsable, h.count_sum AS countSum, h.volume_m3 AS volumeM3, h.conc_sum AS concSum,
       h.max_per_m3 AS maxPerM3, h.min_volume_m3 AS minVolumeM3, h.min_duration_ms AS minDurationMs,
       h.flags, h.n_fault AS nFault, h.n_lower_bound AS nLowerBound, h.n_sentinel AS nSentinel,
       h.n_zero_run AS nZeroRun, h.n_gap AS nGap
@@ -272,6 +278,7 @@ export interface HourlyTotals {
   nUsable: number;
   countSum: number;
   volumeM3: number;
+  concSum: number;
   maxPerM3: number | null;
   minVolumeM3: number | null;
   minDurationMs: number | null;
@@ -287,6 +294,7 @@ export function readHourlyTotals(db: Db, q: HourlyQuery): HourlyTotals[] {
   const locs = q.locationIds.map(() => '?').join(',');
   const sql = `SELECT l.location_id AS locationId, h.diameter_nm AS diameterNm, count(DISTINCT h.hour_ms) AS hours,
       sum(h.n) AS n, sum(h.n_usable) AS nUsable, sum(h.count_sum) AS countSum, sum(h.volume_m3) AS volumeM3,
+      sum(h.conc_sum) AS concSum,
       max(h.max_per_m3) AS maxPerM3, min(h.min_volume_m3) AS minVolumeM3, min(h.min_duration_ms) AS minDurationMs,
       sum(h.n_fault) AS nFault, sum(h.n_lower_bound) AS nLowerBound, sum(h.n_sentinel) AS nSentinel,
       sum(h.n_zero_run) AS nZeroRun

@@ -1,9 +1,13 @@
 /**
  * Read helpers for the Areas page (owned by the pages), on top of the store's own readers
- * (src/store/locations.ts, src/store/counters.ts): locations with the area they belong to, counter
- * samples as cumulative concentrations per sample, the sample span of a location, and the wafers
- * whose ledger puts them in a location's air at a given time (migration 0014 ledger).
+ * (src/store/locations.ts, src/store/counters.ts, src/store/counter-hourly.ts): locations with the
+ * area they belong to, a location's means over a window and the hours whose peak passes a value —
+ * both from the hourly aggregates, so that the page does not read a month of raw samples —, counter
+ * samples as cumulative concentrations per sample (for the trend and an excursion's exact
+ * samples), the sample span of a location, and the wafers whose ledger puts them in a location's air
+ * at a given time (migration 0014 ledger).
  */
+import { readHourlyTotals } from './counter-hourly.ts';
 import { readCounterSeries } from './counters.ts';
 import type { Db } from './db.ts';
 import { type LocationRecord, listLocations } from './locations.ts';
@@ -83,19 +87,114 @@ function clampMs(v: number): number {
   return Math.round(v);
 }
 
-/** First and last sample start of a location (null when it has none) and the sample count. */
+/**
+ * First and last sample start of a location (null when it has none) and the sample count. The first
+ * and last starts are two seeks of the samples' key; the count comes from the hourly aggregates (the
+ * samples of the channel that holds the most, per hour and occupancy state).
+ */
 export function sampleSpan(
   db: Db,
   locationId: string,
 ): { firstMs: number | null; lastMs: number | null; count: number } {
   if (!tableExists(db, 'counter_samples')) return { firstMs: null, lastMs: null, count: 0 };
-  const r = db
+  const loc = db.prepare('SELECT id FROM locations WHERE location_id = ?').pluck().get(locationId) as
+    | number
+    | undefined;
+  if (loc === undefined) return { firstMs: null, lastMs: null, count: 0 };
+  const first = db
+    .prepare('SELECT start_ms FROM counter_samples WHERE location = ? ORDER BY start_ms LIMIT 1')
+    .pluck()
+    .get(loc) as number | undefined;
+  if (first === undefined) return { firstMs: null, lastMs: null, count: 0 };
+  const last = db
+    .prepare('SELECT start_ms FROM counter_samples WHERE location = ? ORDER BY start_ms DESC LIMIT 1')
+    .pluck()
+    .get(loc) as number;
+  const count = tableExists(db, 'counter_hourly')
+    ? ((
+        db
+          .prepare(
+            `SELECT coalesce(sum(m), 0) AS c FROM (SELECT max(n) AS m FROM counter_hourly WHERE location = ?
+               GROUP BY room_state, hour_ms)`,
+          )
+          .get(loc) as { c: number }
+      ).c ?? 0)
+    : 0;
+  return { firstMs: first, lastMs: last, count };
+}
+
+/** A location's usable-sample means per channel over whole hours, from the hourly aggregates. */
+export interface WindowMeans {
+  /** Channels, ascending, m. */
+  sizesM: number[];
+  /** Per channel: usable samples. */
+  usable: number[];
+  /** Per channel: the plain mean of the usable samples' concentrations ≥ size, per m³ (null: none). */
+  meanPerM3: (number | null)[];
+}
+
+/** Means of the usable samples of the hours starting in [fromMs, toMs), per channel. */
+export function windowMeans(db: Db, locationId: string, fromMs: number, toMs: number): WindowMeans {
+  const rows = readHourlyTotals(db, {
+    locationIds: [locationId],
+    fromMs: clampMs(fromMs),
+    toMs: clampMs(toMs),
+  });
+  return {
+    sizesM: rows.map((r) => r.diameterNm / 1e9),
+    usable: rows.map((r) => r.nUsable),
+    meanPerM3: rows.map((r) => (r.nUsable > 0 ? r.concSum / r.nUsable : null)),
+  };
+}
+
+/**
+ * Blocks of consecutive hours of a location, starting in [fromMs, toMs), in which some usable sample
+ * of the channel (whole nm) exceeded `valuePerM3` — with any neighbouring hours that hold only
+ * unusable samples, which do not break a run — as [fromMs, toMs) intervals: the only places where a
+ * run of samples above the value can be, so that the raw samples are read there alone.
+ */
+export function hoursAbove(
+  db: Db,
+  locationId: string,
+  diameterNm: number,
+  fromMs: number,
+  toMs: number,
+  valuePerM3: number,
+): { fromMs: number; toMs: number }[] {
+  if (!tableExists(db, 'counter_hourly')) return [];
+  const rows = db
     .prepare(
-      `SELECT MIN(s.start_ms) AS firstMs, MAX(s.start_ms) AS lastMs, COUNT(*) AS count
-         FROM counter_samples s JOIN locations l ON l.id = s.location WHERE l.location_id = ?`,
+      `SELECT h.hour_ms AS hourMs, max(h.max_per_m3) AS peak, sum(h.n_usable) AS usable
+         FROM counter_hourly h JOIN locations l ON l.id = h.location
+        WHERE l.location_id = ? AND h.diameter_nm = ? AND h.hour_ms >= ? AND h.hour_ms < ?
+        GROUP BY h.hour_ms ORDER BY h.hour_ms`,
     )
-    .get(locationId) as { firstMs: number | null; lastMs: number | null; count: number };
-  return r;
+    .all(locationId, diameterNm, clampMs(fromMs), clampMs(toMs)) as {
+    hourMs: number;
+    peak: number | null;
+    usable: number;
+  }[];
+  const H = 3_600_000;
+  const out: { fromMs: number; toMs: number }[] = [];
+  let cur: { fromMs: number; toMs: number; hot: boolean } | null = null;
+  for (const r of rows) {
+    const hot = r.peak !== null && r.peak > valuePerM3;
+    const neutral = r.usable === 0;
+    if (hot || (neutral && cur)) {
+      if (cur && cur.toMs === r.hourMs) {
+        cur.toMs = r.hourMs + H;
+        cur.hot ||= hot;
+      } else {
+        if (cur?.hot) out.push({ fromMs: cur.fromMs, toMs: cur.toMs });
+        cur = { fromMs: r.hourMs, toMs: r.hourMs + H, hot };
+      }
+    } else {
+      if (cur?.hot) out.push({ fromMs: cur.fromMs, toMs: cur.toMs });
+      cur = null;
+    }
+  }
+  if (cur?.hot) out.push({ fromMs: cur.fromMs, toMs: cur.toMs });
+  return out;
 }
 
 export interface ExposedWafer {
@@ -140,4 +239,44 @@ export function wafersExposedAt(db: Db, locationId: string, fromMs: number, toMs
     }
   }
   return out;
+}
+
+/** Hourly means of one location and channel (whole nm) over the hours starting in [fromMs, toMs). */
+export function hourlyMeans(
+  db: Db,
+  locationId: string,
+  diameterNm: number,
+  fromMs: number,
+  toMs: number,
+): { tMs: number; samples: number; meanPerM3: number | null }[] {
+  if (!tableExists(db, 'counter_hourly')) return [];
+  return (
+    db
+      .prepare(
+        `SELECT h.hour_ms AS tMs, sum(h.n) AS samples, sum(h.conc_sum) AS s, sum(h.n_usable) AS u
+           FROM counter_hourly h JOIN locations l ON l.id = h.location
+          WHERE l.location_id = ? AND h.diameter_nm = ? AND h.hour_ms >= ? AND h.hour_ms < ?
+          GROUP BY h.hour_ms ORDER BY h.hour_ms`,
+      )
+      .all(locationId, diameterNm, clampMs(fromMs), clampMs(toMs)) as {
+      tMs: number;
+      samples: number;
+      s: number;
+      u: number;
+    }[]
+  ).map((r) => ({ tMs: r.tMs, samples: r.samples, meanPerM3: r.u > 0 ? r.s / r.u : null }));
+}
+
+/** Channels (m, ascending) a location's aggregates hold. */
+export function locationChannels(db: Db, locationId: string): number[] {
+  if (!tableExists(db, 'counter_hourly')) return [];
+  return (
+    db
+      .prepare(
+        `SELECT DISTINCT h.diameter_nm FROM counter_hourly h JOIN locations l ON l.id = h.location
+          WHERE l.location_id = ? ORDER BY h.diameter_nm`,
+      )
+      .pluck()
+      .all(locationId) as number[]
+  ).map((nm) => nm / 1e9);
 }

@@ -52,6 +52,7 @@ function recompute(locations: string[]): Row[] {
           n_usable: 0,
           count_sum: 0,
           volume_m3: 0,
+          conc_sum: 0,
           max_per_m3: null,
           min_volume_m3: null,
           min_duration_ms: null,
@@ -73,6 +74,7 @@ function recompute(locations: string[]): Row[] {
           a.n_usable! += 1;
           a.count_sum! += ge[j]!;
           a.volume_m3! += vol;
+          a.conc_sum! += ge[j]! / vol;
           a.max_per_m3 = Math.max(a.max_per_m3 ?? -1, ge[j]! / vol);
           a.min_volume_m3 = Math.min(a.min_volume_m3 ?? Number.POSITIVE_INFINITY, vol);
           a.min_duration_ms = Math.min(a.min_duration_ms ?? Number.POSITIVE_INFINITY, dur);

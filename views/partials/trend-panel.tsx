@@ -27,6 +27,8 @@ export interface TrendPanelProps {
   fromMs: number;
   toMs: number;
   points: TrendPoint[];
+  /** What the points are: each sample, or hourly means of the samples (long windows). Default samples. */
+  pointsAre?: 'samples' | 'hourly means';
   alertPerM3: number | null;
   actionPerM3: number | null;
   /** The levels' own size when it differs from the channel (then they are not drawn). */
@@ -108,7 +110,8 @@ export function TrendPanel(props: TrendPanelProps) {
             height: 300,
           })}
           <p class="vc-small">
-            {props.points.length} samples from {fmtUtc(props.fromMs)} to {fmtUtc(props.toMs)}
+            {props.points.length} {props.pointsAre ?? 'samples'} from {fmtUtc(props.fromMs)} to{' '}
+            {fmtUtc(props.toMs)}
             {levelsApply
               ? `; alert ${fmtConc(props.alertPerM3 ?? Number.NaN)}, action ${fmtConc(props.actionPerM3 ?? Number.NaN)} per m³; ${above} above action`
               : props.levelsAtM !== null

@@ -111,7 +111,7 @@ export const audit: Command = {
         } else io.out(render(a));
         if (a.classification.status === 'no data') {
           io.err(
-            `voidcast audit: no data: ${a.classification.notes[0] ?? 'nothing to judge in the period'}\n`,
+            `voidcast audit: ${a.classification.notes[0] ?? 'no data: nothing to judge in the period'}\n`,
           );
           return EXIT.rejected;
         }

@@ -141,7 +141,7 @@ voidcast excursions ack --id <excursion id> --comment <text> [--by NAME] [--data
           const c = costs.find((k) => k.excursionId === e.id);
           if (c) {
             io.out(
-              `  added voids ${fmt(c.totalAddedVoids)}, added die loss ${fmt(c.totalAddedDieLoss)} dies over ${c.lots.length} lots${c.notes.length ? ` (${c.notes.join('; ')})` : ''}\n`,
+              `  added voids ${fmt(c.totalAddedVoids)}, added die loss ${fmt(c.totalAddedDieLoss)} dies over ${c.lots.length} lot${c.lots.length === 1 ? '' : 's'}${c.notes.length ? ` (${c.notes.join('; ')})` : ''}\n`,
             );
             for (const l of c.lots)
               io.out(

@@ -120,7 +120,7 @@ export function deriveLevels(input: DeriveInput): DerivedLevels {
   const need = minimumHours(method, p);
   if (pts.length < need)
     throw new AuditInputError(
-      `the baseline ${input.windowWords} holds ${pts.length} hour${pts.length === 1 ? '' : 's'} with usable samples; ${method} needs at least ${need}${method === 'percentile' ? ` for the ${p.action! * 100}th percentile` : ''} — choose a longer window`,
+      `the ${input.windowWords} holds ${pts.length} hour${pts.length === 1 ? '' : 's'} with usable samples; ${method} needs at least ${need}${method === 'percentile' ? ` for the ${p.action! * 100}th percentile` : ''} — choose a longer window`,
     );
   const size = sizeWords(diameterM);
   switch (method) {

@@ -21,6 +21,8 @@ CREATE TABLE counter_hourly (
   -- Σ counts ≥ size and Σ sampled volume (m³) of the usable samples.
   count_sum REAL NOT NULL,
   volume_m3 REAL NOT NULL,
+  -- Σ of the usable samples' own concentrations ≥ size, per m³ (÷ n_usable: the plain mean of samples).
+  conc_sum REAL NOT NULL,
   -- Largest single usable sample concentration ≥ size, per m³ (NULL: no usable sample).
   max_per_m3 REAL,
   -- Smallest single usable sample volume (m³) and duration (ms) (sample-volume adequacy; NULL: none usable).
@@ -45,6 +47,7 @@ SELECT s.location,
        sum((s.flags & 5) = 0),
        coalesce(sum(CASE WHEN (s.flags & 5) = 0 THEN counter_ge(s.counts, cs.mode, ch.key) END), 0),
        coalesce(sum(CASE WHEN (s.flags & 5) = 0 THEN s.volume_m3 END), 0),
+       coalesce(sum(CASE WHEN (s.flags & 5) = 0 THEN counter_ge(s.counts, cs.mode, ch.key) / s.volume_m3 END), 0),
        max(CASE WHEN (s.flags & 5) = 0 THEN counter_ge(s.counts, cs.mode, ch.key) / s.volume_m3 END),
        min(CASE WHEN (s.flags & 5) = 0 THEN s.volume_m3 END),
        min(CASE WHEN (s.flags & 5) = 0 THEN s.duration_ms END),

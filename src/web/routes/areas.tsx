@@ -1,6 +1,8 @@
 /**
  * Areas: ISO 14644-1 status per location, the trend panel (htmx swap at /areas/trend), and the
  * excursion log. Thin: read (src/store/views-areas.ts), classify (src/model/iso14644.ts), render.
+ * The status and the log read the hourly counter aggregates (migration 0023); raw samples are read
+ * only for the trend and inside the hours whose peak passed an action level.
  */
 import type { Context, Hono } from 'hono';
 import {
@@ -19,11 +21,16 @@ import {
 import { bestClassAchieved, isoClassLimit, isoTable1Value, roundIsoLimit } from '../../model/iso14644.ts';
 import {
   type CumulativeSample,
+  hourlyMeans,
+  hoursAbove,
   type LocationView,
   listLocationsWithAreas,
+  locationChannels,
   readCumulativeSamples,
   sampleSpan,
+  type WindowMeans,
   wafersExposedAt,
+  windowMeans,
 } from '../../store/views-areas.ts';
 import type { AppContext } from '../context.ts';
 import { BadParamError, positiveNumberValue, queryTrendWindow } from '../params.ts';
@@ -34,6 +41,8 @@ const UNUSABLE_FLAGS = 1 | 4;
 /** The classification uses the last 30 days of each location's data. */
 const CLASS_WINDOW_MS = 30 * 86_400_000;
 const MAX_EXCURSIONS = 50;
+/** Most samples the trend draws one by one (Choice); a longer window draws hourly means. */
+const TREND_MAX_SAMPLES = 2000;
 const ISO_MIN_M = 0.1e-6;
 const ISO_MAX_M = 5e-6;
 
@@ -44,15 +53,14 @@ export function register(app: Hono, ctx: AppContext): void {
     const excursions: ExcursionRow[] = [];
     for (const loc of locations) {
       const span = sampleSpan(ctx.db, loc.locationId);
-      const samples =
-        span.lastMs === null
-          ? []
-          : readCumulativeSamples(ctx.db, loc.locationId, span.lastMs - CLASS_WINDOW_MS, span.lastMs + 1);
-      const status = classifyLocation(loc, samples, span.count, span.lastMs);
+      const window =
+        span.lastMs === null ? null : { fromMs: span.lastMs - CLASS_WINDOW_MS, toMs: span.lastMs + 1 };
+      const means = window ? windowMeans(ctx.db, loc.locationId, window.fromMs, window.toMs) : null;
+      const status = classifyLocation(loc, means, span.count, span.lastMs);
       const g = groups.get(loc.areaId) ?? { area: loc.areaName, locations: [] };
       g.locations.push(status);
       groups.set(loc.areaId, g);
-      excursions.push(...findExcursions(ctx, loc, samples));
+      if (window) excursions.push(...findExcursions(ctx, loc, window));
     }
     excursions.sort((a, b) => b.startMs - a.startMs);
     // Without a choice, the trend opens on the location of the newest excursion.
@@ -85,11 +93,10 @@ function usable(s: CumulativeSample): boolean {
   return (s.flags & UNUSABLE_FLAGS) === 0;
 }
 
-/** Sizes every usable sample reports, ascending (m). */
-function commonSizes(samples: CumulativeSample[]): number[] {
-  const u = samples.filter(usable);
-  if (u.length === 0) return [];
-  return u[0]!.sizesM.filter((d) => u.every((s) => s.sizesM.some((x) => sameSize(x, d))));
+/** Sizes every usable sample reports, ascending (m): the channels with as many usable samples as any. */
+function commonSizes(m: WindowMeans): number[] {
+  const most = Math.max(0, ...m.usable);
+  return most === 0 ? [] : m.sizesM.filter((_, j) => m.usable[j] === most);
 }
 
 function valueAt(s: CumulativeSample, d: number): number | null {
@@ -105,10 +112,11 @@ function valueAt(s: CumulativeSample, d: number): number | null {
  */
 export function classifyLocation(
   loc: LocationView,
-  samples: CumulativeSample[],
+  windowed: WindowMeans | null,
   count: number,
   lastMs: number | null,
 ): LocationStatus {
+  const m: WindowMeans = windowed ?? { sizesM: [], usable: [], meanPerM3: [] };
   const base = {
     locationId: loc.locationId,
     parentId: loc.parentId,
@@ -119,8 +127,8 @@ export function classifyLocation(
     samples: count,
     lastSampleMs: lastMs,
   };
-  const u = samples.filter(usable);
-  let sizes = commonSizes(samples).filter((d) => d >= ISO_MIN_M * (1 - 1e-9) && d <= ISO_MAX_M * (1 + 1e-9));
+  const nUsable = Math.max(0, ...m.usable);
+  let sizes = commonSizes(m).filter((d) => d >= ISO_MIN_M * (1 - 1e-9) && d <= ISO_MAX_M * (1 + 1e-9));
   if (loc.isoClass !== null) {
     const n = Math.round(loc.isoClass);
     sizes = sizes.filter((d) => {
@@ -131,21 +139,21 @@ export function classifyLocation(
       }
     });
   }
-  if (u.length === 0 || sizes.length === 0)
+  if (nUsable === 0 || sizes.length === 0)
     return {
       ...base,
       achievedClass: null,
       pass: null,
-      state: u.length === 0 ? 'no data' : 'not classified',
+      state: nUsable === 0 ? 'no data' : 'not classified',
       sizesM: sizes,
       note:
         count === 0
           ? 'no counter samples'
-          : u.length === 0
+          : nUsable === 0
             ? 'no usable samples'
             : 'no channel in 0.1–5 µm applicable to the class',
     };
-  const means = sizes.map((d) => u.reduce((a, s) => a + (valueAt(s, d) ?? 0), 0) / u.length);
+  const means = sizes.map((d) => m.meanPerM3[m.sizesM.findIndex((x) => sameSize(x, d))] ?? 0);
   const achieved = bestClassAchieved({ sizesM: sizes, locationMeansPerM3: [means] });
   return {
     ...base,
@@ -165,13 +173,26 @@ export function classifyLocation(
 /**
  * Excursions: runs of consecutive usable samples above a level's action value at one location
  * (one event from the first such sample's start to the last one's end, with its peak), and the
- * wafers whose ledger puts them in that air during the event.
+ * wafers whose ledger puts them in that air during the event. The samples are read only in the
+ * blocks of hours whose peak passed the action value (hoursAbove): no run can be elsewhere.
  */
-function findExcursions(ctx: AppContext, loc: LocationView, samples: CumulativeSample[]): ExcursionRow[] {
+function findExcursions(
+  ctx: AppContext,
+  loc: LocationView,
+  window: { fromMs: number; toMs: number },
+): ExcursionRow[] {
   const out: ExcursionRow[] = [];
   for (const lv of loc.levels) {
     if (lv.actionPerM3 === null) continue;
     const action = lv.actionPerM3;
+    const blocks = hoursAbove(
+      ctx.db,
+      loc.locationId,
+      Math.round(lv.diameterM * 1e9),
+      window.fromMs,
+      window.toMs,
+      action,
+    );
     let run: { startMs: number; endMs: number; peak: number; n: number } | null = null;
     const close = () => {
       if (!run) return;
@@ -188,20 +209,24 @@ function findExcursions(ctx: AppContext, loc: LocationView, samples: CumulativeS
       });
       run = null;
     };
-    for (const s of samples) {
-      if (!usable(s)) continue;
-      const v = valueAt(s, lv.diameterM);
-      if (v === null || v <= action) {
-        close();
-        continue;
+    for (const b of blocks) {
+      const samples = readCumulativeSamples(ctx.db, loc.locationId, b.fromMs, b.toMs);
+      for (const s of samples) {
+        if (s.startMs < b.fromMs || !usable(s)) continue;
+        const v = valueAt(s, lv.diameterM);
+        if (v === null || v <= action) {
+          close();
+          continue;
+        }
+        if (run) {
+          run.endMs = s.startMs + s.durationMs;
+          run.peak = Math.max(run.peak, v);
+          run.n++;
+        } else run = { startMs: s.startMs, endMs: s.startMs + s.durationMs, peak: v, n: 1 };
       }
-      if (run) {
-        run.endMs = s.startMs + s.durationMs;
-        run.peak = Math.max(run.peak, v);
-        run.n++;
-      } else run = { startMs: s.startMs, endMs: s.startMs + s.durationMs, peak: v, n: 1 };
+      // The hour after a block holds no sample above the value: a run ends with its block.
+      close();
     }
-    close();
   }
   return out;
 }
@@ -247,8 +272,7 @@ function trendProps(
   const w = TREND_WINDOWS.find((x) => x.key === window)!;
   const toMs = span.lastMs + 1;
   const fromMs = Number.isFinite(w.ms) ? Math.max(span.firstMs, toMs - w.ms) : span.firstMs;
-  const samples = readCumulativeSamples(ctx.db, chosen.locationId, fromMs, toMs);
-  const channels = [...new Set(samples.flatMap((s) => s.sizesM))].sort((a, b) => a - b);
+  const channels = locationChannels(ctx.db, chosen.locationId);
   const uniq = channels.filter((d, i) => i === 0 || !sameSize(d, channels[i - 1]!));
   const askedUm = positiveNumberValue('channel', q.channel, 1000) ?? Number.NaN;
   const level = chosen.levels.find((l) => l.actionPerM3 !== null) ?? chosen.levels[0] ?? null;
@@ -260,7 +284,17 @@ function trendProps(
     null;
   if (channelM === null)
     return { ...empty, channels: uniq, problem: `No channels in ${chosen.name}'s samples.` };
-  const points = samples.map((s) => ({ tMs: s.startMs, value: usable(s) ? valueAt(s, channelM) : null }));
+  // Each sample while the window holds at most TREND_MAX_SAMPLES of them; beyond, the hourly means of the
+  // aggregates (a month of one-minute samples is more points than the chart has pixels).
+  const hourly = hourlyMeans(ctx.db, chosen.locationId, Math.round(channelM * 1e9), fromMs - 3_599_999, toMs);
+  const inWindow = hourly.reduce((a, h) => a + h.samples, 0);
+  const byHour = inWindow > TREND_MAX_SAMPLES;
+  const points = byHour
+    ? hourly.map((h) => ({ tMs: h.tMs, value: h.meanPerM3 }))
+    : readCumulativeSamples(ctx.db, chosen.locationId, fromMs, toMs).map((s) => ({
+        tMs: s.startMs,
+        value: usable(s) ? valueAt(s, channelM) : null,
+      }));
   const lv = chosen.levels.find((l) => sameSize(l.diameterM, channelM)) ?? level;
   return {
     ...empty,
@@ -270,6 +304,7 @@ function trendProps(
     fromMs,
     toMs,
     points,
+    pointsAre: byHour ? 'hourly means' : 'samples',
     alertPerM3: lv?.alertPerM3 ?? null,
     actionPerM3: lv?.actionPerM3 ?? null,
     levelsAtM: lv?.diameterM ?? null,

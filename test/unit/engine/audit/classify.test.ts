@@ -22,6 +22,7 @@ function totals(locationId: string, mean05: number, mean1: number, minVolumeM3 =
     n: 60,
     nUsable: 60,
     countSum: mean * vol,
+    concSum: mean * 60,
     volumeM3: vol,
     maxPerM3: mean,
     minVolumeM3,

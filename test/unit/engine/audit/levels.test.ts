@@ -28,7 +28,7 @@ describe('deriveLevels', () => {
     expect(() =>
       deriveLevels({ method: 'percentile', points: pts, diameterM: 5e-7, classN: 5, windowWords: W }),
     ).toThrow(
-      'the baseline baseline test window holds 99 hours with usable samples; percentile needs at least 100 for the 99th percentile — choose a longer window',
+      'the baseline test window holds 99 hours with usable samples; percentile needs at least 100 for the 99th percentile — choose a longer window',
     );
   });
   it('every window method refuses fewer than 24 hours', () => {
