@@ -11,6 +11,7 @@ export const NAV: NavItem[] = [
   { href: '/', label: 'Overview' },
   { href: '/lots', label: 'Lots' },
   { href: '/areas', label: 'Areas' },
+  { href: '/line', label: 'Line' },
   { href: '/tools', label: 'Tools & cleans' },
   { href: '/calibration', label: 'Calibration' },
   { href: '/parameters', label: 'Parameters' },

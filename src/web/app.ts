@@ -24,6 +24,7 @@ import * as feed from './routes/feed.ts';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
+import * as line from './routes/line.tsx';
 import * as lots from './routes/lots.tsx';
 import * as pairs from './routes/pairs.tsx';
 import * as parameters from './routes/parameters.tsx';
@@ -55,6 +56,7 @@ const ROUTES: RouteModule[] = [
   parameters,
   accounts,
   feed,
+  line,
   search,
 ];
 

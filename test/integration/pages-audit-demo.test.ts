@@ -203,3 +203,40 @@ describe('levels and acknowledgements on the audit page', () => {
     expect(report).toContain('FFU restarted 04:50; buffer cart moved');
   });
 });
+
+describe('the line view over the demo period', () => {
+  it('ranks the sources of expected voids across lots, shows each chamber’s passes, and every table downloads with its rows', async () => {
+    const b = await signIn(app, 'vera');
+    const res = await b.get('/line?from=2026-09-18T19:00Z&to=2026-10-18T19:00Z');
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    const tables = htmlTables(html);
+    const tool = tables.find((t) => t.id === 'pareto-tool')!;
+    // docs/demo.md: TR2652's risk is LACT-1 chamber B's flakes (≈ 80 % of that lot), the largest tool source.
+    expect(tool.rows[0]![0]).toBe('LACT-1/B');
+    const wait = tables.find((t) => t.id === 'pareto-wait-location')!;
+    // TR2653 parked in Boreas bay 2 through the excursion: the largest wait source.
+    expect(wait.rows[0]![0]).toBe('BOR-B2');
+    // Shares are of the category's total and add up to it (hand computation on the rows shown;
+    // 6 significant figures per cell).
+    for (const t of [tool, wait]) {
+      const shares = t.rows.map((r) => Number(r[col(t, 'Share')]));
+      expect(Math.abs(shares.reduce((a, v) => a + v, 0) - 1)).toBeLessThan(1e-4);
+      expect(Number(t.rows.at(-1)![col(t, 'Cumulative share')])).toBeCloseTo(1, 4);
+    }
+    expect(html).toContain('data-missing="size band"');
+    const passes = tables.find((t) => t.id === 'chamber-passes')!;
+    expect(passes.rows.some((r) => r[0] === 'LACT-1/B')).toBe(true);
+    const links = downloadLinks(html);
+    for (const t of tables) {
+      const csv = await b.get(links.get(t.id)!.csv!);
+      expect(csv.headers.get('content-type')).toMatch(/^text\/csv; charset=utf-8/);
+      expect(csv.headers.get('content-disposition')).toBe(
+        `attachment; filename="line-${t.id}-20260918-20261018.csv"`,
+      );
+      const rows = Papa.parse<string[]>(await csv.text(), { skipEmptyLines: true }).data;
+      expect(rows[0]).toEqual(t.header);
+      expect(rows.slice(1)).toEqual(t.rows);
+    }
+  });
+});

@@ -111,6 +111,9 @@ const QUERY_ROUTES: {
   { path: '/areas/fab-1/audit/report?occupancy={}', param: 'occupancy', kind: 'word' },
   { path: '/areas/fab-1/audit/tables/classification-summary?format={}', param: 'format', kind: 'word' },
   { path: '/areas/fab-1/audit/tables/classification-summary?to={}', param: 'to', kind: 'time' },
+  { path: '/line?from={}', param: 'from', kind: 'time' },
+  { path: '/line?to={}', param: 'to', kind: 'time' },
+  { path: '/line/tables/pareto-tool?format={}', param: 'format', kind: 'word' },
   { path: '/imports/history/1?page={}', param: 'page', kind: 'page' },
   { path: '/imports/history/1/issues?page={}', param: 'page', headers: fragment, kind: 'page' },
   { path: '/api/lots/L-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
@@ -196,6 +199,7 @@ describe('ids in the path: unknown or impossible ids are 404, never a 500', () =
       ['/areas/NO-SUCH-AREA/audit', 404],
       ['/areas/NO-SUCH-AREA/audit/report', 404],
       ['/areas/fab-1/audit/tables/no-such-table', 404],
+      ['/line/tables/no-such-table', 404],
       ['/api/lots/NO-SUCH-LOT/assessment', 404],
       ['/api/pairs/NO-SUCH-PAIR/assessment', 404],
     ];

@@ -125,6 +125,16 @@ export function LinePage(p: LinePageProps) {
           const items = p.pareto
             .filter((e) => e.category === c.category)
             .map((e) => ({ label: e.label, value: e.expectedVoids }));
+          if (items.length === 0 && c.category === 'size band' && p.pareto.length > 0)
+            return (
+              <div class="vc-chart-block" data-pareto={c.category}>
+                <h3>{c.title}</h3>
+                <p class="vc-note" data-missing="size band">
+                  By size band: not available in this version of voidcast (the line view sums each lot's
+                  assessment summary, which does not keep the sources' size spectra).
+                </p>
+              </div>
+            );
           return (
             <div class="vc-chart-block" data-pareto={c.category}>
               <h3>{c.title}</h3>
@@ -154,16 +164,14 @@ export function LinePage(p: LinePageProps) {
               passes: h.points.map((x) => ({ timeMs: x.atMs, adders: x.addersPerPass, waferId: x.waferId })),
             })}
             <figcaption>
-              Lots it touched:{' '}
-              {h.lots.length
-                ? h.lots.map((l, i) => (
-                    <>
-                      {i ? ', ' : ''}
-                      <a href={`/lots/${encodeURIComponent(l)}`}>{l}</a>
-                    </>
-                  ))
-                : 'none'}
-              .
+              {chamberName(h)}: {h.points.length} pass{h.points.length === 1 ? '' : 'es'} in the period; lots
+              it touched:{' '}
+              {h.lots.map((l, k) => (
+                <>
+                  {k ? ', ' : ''}
+                  <a href={`/lots/${encodeURIComponent(l)}`}>{l}</a>
+                </>
+              ))}
             </figcaption>
           </figure>
         ))}

@@ -9,8 +9,16 @@ import { auditAreaFromDb } from '../../engine/audit/audit.ts';
 import { OCCUPANCY_STATES } from '../../engine/audit/common.ts';
 import { AuditInputError } from '../../engine/audit/errors.ts';
 import { LEVEL_METHODS } from '../../engine/audit/levels.ts';
+import { chamberHistoryFromDb, lineParetoFromDb } from '../../engine/audit/line-view.ts';
 import { acknowledgeExcursion, deriveAndStoreLevels } from '../../engine/audit/loader.ts';
-import type { AuditPeriod, ExcursionAck, LevelRecord, OccupancySelection } from '../../engine/audit/types.ts';
+import type {
+  AuditPeriod,
+  ChamberHistory,
+  ExcursionAck,
+  LevelRecord,
+  LineParetoEntry,
+  OccupancySelection,
+} from '../../engine/audit/types.ts';
 import { actorName } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue, positiveNumberValue } from '../params.ts';
@@ -134,5 +142,26 @@ export function acknowledgeFromForm(
   } catch (err) {
     if (err instanceof AuditInputError) throw new FormRefusal(`Not acknowledged: ${err.message}.`, 400);
     throw err;
+  }
+}
+
+/**
+ * The line view over a period: the Pareto of expected voids across the lots assessed in it, each
+ * tool chamber's passes in it (chambers without a pass left out), and the engine's notes.
+ */
+export function runLineView(
+  ctx: AppContext,
+  period: AuditPeriod,
+): { pareto: LineParetoEntry[]; histories: ChamberHistory[]; lots: string[]; problems: string[] } {
+  try {
+    const p = lineParetoFromDb(ctx.db, period);
+    const histories = chamberHistoryFromDb(ctx.db, undefined, period).filter((h) => h.points.length > 0);
+    const problems = [...p.notes];
+    if (p.lots.length === 0)
+      problems.push('No lot with pairs has a ledger step in this period: nothing to assess.');
+    return { pareto: p.entries, histories, lots: p.lots, problems };
+  } catch (err) {
+    if (!(err instanceof AuditInputError)) throw err;
+    return { pareto: [], histories: [], lots: [], problems: [err.message] };
   }
 }
