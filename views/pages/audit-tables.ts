@@ -13,7 +13,7 @@ import type {
   LevelRecord,
   VerdictStatus,
 } from '../../src/engine/audit/types.ts';
-import { fmtConc, fmtDiameter, fmtNum, fmtUtc } from '../partials/format.ts';
+import { fmtConc, fmtNum, fmtUtc } from '../partials/format.ts';
 import { type AuditCell, type AuditTable, cell } from './audit-table.tsx';
 
 /** ISO 8601 UTC for a file ("2026-10-18T00:40:00Z"), null for none. */
