@@ -6,7 +6,9 @@
  * Pages: the overview, the lots queue, every lot with each Pareto grouping, the first pair of each
  * waiting lot with each Pareto grouping and the cumulative spectrum, the areas page and the trend
  * of every location at every counter channel it offers (swapped in by htmx, as the page's own
- * controls do), the tools, the calculators and the imports.
+ * controls do), the tools, the calculators and the imports, and the contamination audit: each
+ * area's audit page, every control chart of the bays of the planted excursion and counter fault,
+ * the audit report and the line view.
  * The pages are found by following the product's own links, so a new lot, location, channel or
  * grouping is checked without changing this test.
  */
@@ -86,6 +88,15 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
     await visit('tools');
     await visit('calculators');
     await visit('imports');
+    // The contamination audit: each area's audit page (found from the Areas page's links), every
+    // control chart of the bays around the planted excursion and counter fault, the report, the line view.
+    seen.delete('areas');
+    await visit('areas');
+    for (const a of await hrefs(page, '.vc-area h2 a[href$="/audit"]')) await visit(a);
+    await visit('areas/BOR-B2/audit?from=2026-10-17T00:00Z&to=2026-10-19T00:00Z&charts=all');
+    await visit('areas/LEV-B1/audit?from=2026-10-13T00:00Z&to=2026-10-14T00:00Z&charts=all');
+    await visit('areas/BOR-B2/audit/report?from=2026-10-17T00:00Z&to=2026-10-19T00:00Z');
+    await visit('line');
     await page.close();
   }, 300_000);
 
@@ -104,14 +115,23 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
   it('reaches every page and every kind of chart the product draws', () => {
     expect(visits.filter((v) => v.status !== 200).map((v) => `${v.path}: ${v.status}`)).toEqual([]);
     const kinds = new Set(visits.flatMap((v) => v.report.kinds));
-    for (const k of ['trend', 'stacked-spectrum', 'wafer-map', 'void-map', 'pareto', 'removal-curve'])
+    for (const k of [
+      'trend',
+      'stacked-spectrum',
+      'wafer-map',
+      'void-map',
+      'pareto',
+      'removal-curve',
+      'control-chart',
+      'adder-history',
+    ])
       expect(kinds.has(k), `no ${k} chart was checked`).toBe(true);
     // The demo line: 5 assessed lots with 5 groupings each, 3 waiting lots' pairs, 16 locations.
     expect(visits.length).toBeGreaterThan(60);
     expect(visits.reduce((n, v) => n + v.report.texts, 0)).toBeGreaterThan(1000);
   });
 
-  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves)', () => {
+  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves, control charts, adder histories)', () => {
     expect(problems(() => true)).toEqual([]);
   });
 

@@ -312,7 +312,16 @@ export function controlChart(input: ControlChartInput) {
     .domain([new Date(t0 - pad), new Date(t1 + pad)])
     .range([box.x0, box.x1]);
   const span = t1 - t0 + 2 * pad;
-  const xTicks = x.ticks(6).map((d) => ({ at: r(x(d)), label: fmtUtcTick(d.getTime(), span) }));
+  // As many time ticks as their labels leave room for (a gap of 8 px between neighbours).
+  let xTicks: { at: number; label: string }[] = [];
+  for (const n of [6, 5, 4, 3, 2]) {
+    xTicks = x.ticks(n).map((d) => ({ at: r(x(d)), label: fmtUtcTick(d.getTime(), span) }));
+    const fits = xTicks.every(
+      (t, i) =>
+        i === 0 || t.at - xTicks[i - 1]!.at >= (textWidth(t.label) + textWidth(xTicks[i - 1]!.label)) / 2 + 8,
+    );
+    if (fits) break;
+  }
   const yTicks = linearTicks(
     yTickValues,
     (v) => y(v),
