@@ -259,11 +259,11 @@ export function NotComputed(props: { what: string }) {
 }
 
 const METHOD_PARAMETERS: Record<string, string> = {
-  percentile: 'alert and action percentiles as fractions (default 0.95 and 0.99)',
-  'log-mean-k-sigma': 'k for alert and action (default 2 and 3)',
-  'poisson-quantile': 'alert and action quantiles as fractions (default 0.95 and 0.99)',
-  'negbin-quantile': 'alert and action quantiles as fractions (default 0.95 and 0.99)',
-  'class-fraction': 'alert and action fractions of the class limit (default 0.5 and 1); no baseline',
+  percentile: 'default 0.95 / 0.99',
+  'log-mean-k-sigma': 'k, default 2 / 3',
+  'poisson-quantile': 'default 0.95 / 0.99',
+  'negbin-quantile': 'default 0.95 / 0.99',
+  'class-fraction': 'default 0.5 / 1, no baseline',
 };
 
 /** Derive levels for one location and channel from a baseline window by a stated method (approvers). */
@@ -300,7 +300,7 @@ function LevelsForm(props: {
       <select id="lv-method" name="method">
         {LEVEL_METHODS.map((m) => (
           <option value={m}>
-            {methodWords(m)} — {METHOD_PARAMETERS[m]}
+            {methodWords(m)} ({METHOD_PARAMETERS[m]})
           </option>
         ))}
       </select>
@@ -315,9 +315,10 @@ function LevelsForm(props: {
       <label for="lv-name">Name of this setting</label>
       <input id="lv-name" name="name" required maxlength={80} placeholder="October baseline" />
       <p class="vc-small vc-form-wide">
-        Approvers only. The levels are stored as a new version with the method, window, parameters, your name
-        and the time; earlier versions stay on record. A baseline shorter than the method needs is refused
-        with the reason.
+        Parameters: percentiles and quantiles as fractions (0.95), k as a number of σ, class fractions as
+        fractions of the limit; empty fields take the method's defaults. Approvers only. The levels are stored
+        as a new version with the method, window, parameters, your name and the time; earlier versions stay on
+        record. A baseline shorter than the method needs is refused with the reason.
       </p>
       <button type="submit">Derive and store levels</button>
     </form>

@@ -20,6 +20,9 @@ export const REPORT_HEADINGS = [
   '5. Sign-offs',
 ] as const;
 
+/** The most columns a table of the printed report has (A4 landscape at 8 pt); wider ones are cut into parts. */
+export const REPORT_MAX_COLUMNS = 12;
+
 const WHAT: Record<string, string> = {
   levels: 'Alert and action levels with their method and history',
   excursions: 'Excursions by rule',
@@ -43,7 +46,7 @@ export function AuditReportPage(p: AuditReportProps) {
   const view = (id: string) => {
     const table = t(id);
     return table ? (
-      <AuditTableView table={table} href={null} />
+      <AuditTableView table={table} href={null} maxColumns={REPORT_MAX_COLUMNS} />
     ) : a ? (
       <NotComputed what={WHAT[id] ?? id} />
     ) : null;

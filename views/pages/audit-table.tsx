@@ -83,12 +83,46 @@ export function DownloadLinks(props: {
   );
 }
 
-/** A table as HTML, with its download links (omitted in the printed report when `links` is null). */
+/**
+ * A wide table cut into tables of at most `max` columns for a printed page, each part repeating the
+ * first column (the row's name) so that every part reads on its own. Each part keeps the table's id.
+ */
+export function splitColumns(t: AuditTable, max: number): AuditTable[] {
+  if (t.columns.length <= max || max < 2) return [t];
+  // As few parts as fit, of nearly equal width (no part left with one column beside the name).
+  const rest = t.columns.length - 1;
+  const size = Math.ceil(rest / Math.ceil(rest / (max - 1)));
+  const out: AuditTable[] = [];
+  for (let start = 1; start < t.columns.length; start += size) {
+    const idx = [0, ...Array.from({ length: Math.min(size, t.columns.length - start) }, (_, k) => start + k)];
+    out.push({
+      ...t,
+      columns: idx.map((i) => t.columns[i]!),
+      rows: t.rows.map((r) => idx.map((i) => r[i]!)),
+    });
+  }
+  return out;
+}
+
+/**
+ * A table as HTML, with its download links (omitted in the printed report, where `href` is null);
+ * with `maxColumns`, a wider table is shown as parts that fit a printed page (splitColumns).
+ */
 export function AuditTableView(props: {
   table: AuditTable;
   href: ((format: 'csv' | 'xls-csv' | 'json') => string) | null;
   caption?: Child;
+  maxColumns?: number;
 }) {
+  if (props.maxColumns && props.table.columns.length > props.maxColumns && props.table.rows.length > 0)
+    return (
+      <>
+        {splitColumns(props.table, props.maxColumns).map((part) => (
+          <AuditTableView table={part} href={null} caption={props.caption} />
+        ))}
+        {props.href ? <DownloadLinks href={props.href} table={props.table.id} /> : null}
+      </>
+    );
   const t = props.table;
   return (
     <div class="vc-audit-table" id={`table-${t.id}`}>

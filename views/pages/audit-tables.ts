@@ -109,7 +109,7 @@ export function classificationSummaryTable(c: AreaClassification): AuditTable {
     ],
     [
       cell('Class achieved'),
-      cell(classWords(c.classAchieved), { value: c.classAchieved }),
+      cell(classWords(c.classAchieved), { value: c.classAchieved, cls: 'vc-nowrap' }),
       cell(`tested against ${classWords(c.classN)}; ${c.edition} edition`),
     ],
     [cell('Area verdict'), verdictCell(c.status), cell(c.notes.join('; ') || '—')],

@@ -37,8 +37,8 @@ export function paretoTable(entries: LineParetoEntry[], category: ParetoCategory
     rows: rows.map((e) => [
       cell(e.label === e.key ? e.key : `${e.label} (${e.key})`, { value: e.key }),
       cell(fmtNum(e.expectedVoids), { value: Number(e.expectedVoids.toPrecision(6)) }),
-      cell(fmtPct(e.share), { value: Number(e.share.toPrecision(6)) }),
-      cell(fmtPct(e.cumulativeShare), { value: Number(e.cumulativeShare.toPrecision(6)) }),
+      cell(fmtPct(e.share), { value: Number(e.share.toPrecision(6)), cls: 'vc-nowrap' }),
+      cell(fmtPct(e.cumulativeShare), { value: Number(e.cumulativeShare.toPrecision(6)), cls: 'vc-nowrap' }),
       cell(String(e.lots), { value: e.lots }),
     ]),
     empty: 'No assessed lot in this period.',
@@ -124,7 +124,7 @@ export function LinePage(p: LinePageProps) {
         {PARETO_CATEGORIES.map((c) => {
           const items = p.pareto
             .filter((e) => e.category === c.category)
-            .map((e) => ({ label: e.label, value: e.expectedVoids }));
+            .map((e) => ({ label: e.key, value: e.expectedVoids }));
           if (items.length === 0 && c.category === 'size band' && p.pareto.length > 0)
             return (
               <div class="vc-chart-block" data-pareto={c.category}>

@@ -9,7 +9,12 @@ import type { AreaAudit } from '../../../src/engine/audit/types.ts';
 import { toCsv, UTF8_BOM } from '../../../src/engine/export/csv.ts';
 import { AreaAuditPage } from '../../../views/pages/audit-area.tsx';
 import { AuditReportPage, REPORT_HEADINGS } from '../../../views/pages/audit-report.tsx';
-import { AuditTableView, tableForCsv, tableForJson } from '../../../views/pages/audit-table.tsx';
+import {
+  AuditTableView,
+  splitColumns,
+  tableForCsv,
+  tableForJson,
+} from '../../../views/pages/audit-table.tsx';
 import { areaAuditTables, auditProblems } from '../../../views/pages/audit-tables.ts';
 import { htmlTables } from '../../helpers/html-tables.ts';
 
@@ -297,5 +302,23 @@ describe('area audit page and report', () => {
     expect([...at].sort((a, b) => a - b)).toEqual(at);
     expect(html).not.toContain('vc-downloads');
     expect(html).toContain('inlet, &quot;blocked&quot;');
+  });
+});
+
+describe('splitColumns', () => {
+  it('cuts a wide table into balanced parts that each repeat the first column and together hold every cell once', () => {
+    const t = areaAuditTables(handAudit()).find((x) => x.id === 'excursions')!;
+    const parts = splitColumns(t, 10);
+    // 17 columns: the name and 16 more, in ⌈16 / 9⌉ = 2 parts of 8 (hand computation).
+    expect(t.columns).toHaveLength(17);
+    expect(parts.map((p) => p.columns.length)).toEqual([9, 9]);
+    for (const p of parts) expect(p.columns[0]).toEqual(t.columns[0]);
+    expect(parts.flatMap((p) => p.columns.slice(1))).toEqual(t.columns.slice(1));
+    parts.forEach((p) => {
+      p.rows.forEach((r, i) => {
+        expect(r[0]).toEqual(t.rows[i]![0]);
+      });
+    });
+    expect(splitColumns(t, 20)).toEqual([t]);
   });
 });
