@@ -1,0 +1,33 @@
+/**
+ * The contamination audit's public API, for the web pages, the report and the CLI:
+ *
+ *   auditAreaFromDb(db, areaId, opts)             → AreaAudit (classification, levels, excursions, costs, charts)
+ *   classifyAreaFromDb(db, areaId, opts)          → AreaClassification
+ *   findExcursionsInDb(db, areaId, opts)          → Excursion[] (with acknowledgements)
+ *   excursionCostInDb(db, excursion, opts)        → ExcursionCost (cached)
+ *   acknowledgeExcursion(db, id, comment, account, nowMs) → ExcursionAck
+ *   loadCurrentLevels / loadLevelHistory / deriveAndStoreLevels (levels in force, history, derive)
+ *   loadAreaMembers(db, areaId)                   → the area and its sampling locations
+ *   lineParetoFromDb / chamberHistoryFromDb / searchLine (the line view)
+ *   auditTables(audit) (../export/audit-tables.ts) and toCsv (../export/csv.ts) for the downloads
+ *
+ * Errors: AuditInputError (kind 'not-found' → 404, 'bad-input' → 400). Types: ./types.ts.
+ */
+export { type AuditOptions, auditAreaFromDb, chartsOf } from './audit.ts';
+export { controlChart } from './charts.ts';
+export { OCCUPANCY_STATES, roomStateCodes } from './common.ts';
+export { excursionCostInDb } from './cost-loader.ts';
+export { AuditInputError } from './errors.ts';
+export { checkRules, DEFAULT_RULES, findExcursions } from './excursions.ts';
+export { type DerivedMethod, deriveLevels, LEVEL_DEFAULTS, LEVEL_METHODS } from './levels.ts';
+export { chamberHistoryFromDb, type LinePareto, lineParetoFromDb, searchLine } from './line-view.ts';
+export {
+  acknowledgeExcursion,
+  classifyAreaFromDb,
+  deriveAndStoreLevels,
+  findExcursionsInDb,
+  loadAreaMembers,
+  loadCurrentLevels,
+  loadLevelHistory,
+} from './loader.ts';
+export type * from './types.ts';
