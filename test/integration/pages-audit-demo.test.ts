@@ -161,7 +161,7 @@ describe('levels and acknowledgements on the audit page', () => {
       baselineFrom: '2026-10-01T00:00Z',
       baselineTo: '2026-10-01T06:00Z',
     });
-    expect(res.status).toBe(422);
+    expect(res.status).toBe(400);
     const html = await res.text();
     expect(html).toContain('Levels not stored');
     expect(html).toMatch(/needs at least \d+/);

@@ -7,8 +7,7 @@
 import type { Context } from 'hono';
 import type { AuditQuery } from '../../../views/pages/audit-area.tsx';
 import { OCCUPANCY_CHOICES } from '../../../views/pages/audit-area.tsx';
-import { AuditInputError } from '../../engine/audit/errors.ts';
-import { loadAreaMembers } from '../../engine/audit/loader.ts';
+import { AuditInputError, loadAreaMembers } from '../../engine/audit/index.ts';
 import type { AuditPeriod, OccupancySelection } from '../../engine/audit/types.ts';
 import type { LocationRecord } from '../../store/locations.ts';
 import { sampleSpan } from '../../store/views-areas.ts';

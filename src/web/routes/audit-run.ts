@@ -5,12 +5,16 @@
  */
 import type { Context } from 'hono';
 import type { AuditView } from '../../../views/pages/audit-tables.ts';
-import { auditAreaFromDb } from '../../engine/audit/audit.ts';
-import { OCCUPANCY_STATES } from '../../engine/audit/common.ts';
-import { AuditInputError } from '../../engine/audit/errors.ts';
-import { LEVEL_METHODS } from '../../engine/audit/levels.ts';
-import { chamberHistoryFromDb, lineParetoFromDb } from '../../engine/audit/line-view.ts';
-import { acknowledgeExcursion, deriveAndStoreLevels } from '../../engine/audit/loader.ts';
+import {
+  AuditInputError,
+  acknowledgeExcursion,
+  auditAreaFromDb,
+  chamberHistoryFromDb,
+  deriveAndStoreLevels,
+  LEVEL_METHODS,
+  lineParetoFromDb,
+  OCCUPANCY_STATES,
+} from '../../engine/audit/index.ts';
 import type {
   AuditPeriod,
   ChamberHistory,
@@ -48,7 +52,10 @@ export function runAreaAudit(
 /** What this version stores from the audit page's forms. */
 export const AUDIT_FORMS = { levels: true, acknowledge: true } as const;
 
-/** A form the engine refused for the data's sake (a baseline too short …): the message says what to change. */
+/**
+ * A form the engine refused (a baseline shorter than the method needs, parameters out of range, an
+ * empty comment): a 400 with the page and the message that says what to change.
+ */
 export class FormRefusal extends Error {
   constructor(
     message: string,
@@ -111,7 +118,7 @@ export function deriveLevelsFromForm(
       nowMs: Date.now(),
     });
   } catch (err) {
-    if (err instanceof AuditInputError) throw new FormRefusal(`Levels not stored: ${err.message}.`);
+    if (err instanceof AuditInputError) throw new FormRefusal(`Levels not stored: ${err.message}.`, 400);
     throw err;
   }
 }

@@ -5,7 +5,7 @@
  */
 import type { Hono } from 'hono';
 import { SearchPage } from '../../../views/pages/search.tsx';
-import { searchLine } from '../../engine/audit/line-view.ts';
+import { searchLine } from '../../engine/audit/index.ts';
 import type { SearchHit } from '../../engine/audit/types.ts';
 import type { Db } from '../../store/db.ts';
 import { pairOfWafer } from '../../store/pairs.ts';
