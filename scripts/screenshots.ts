@@ -1,7 +1,8 @@
 /**
- * Regenerates the README's tour pictures, docs/screenshots/{overview,lot,pair,areas,tools,calibration}.png
- * and the tuning pictures docs/screenshots/{whatif-pair,whatif-longest-wait,whatif-sensitivity}.png,
- * from a running voidcast server with the demo line.
+ * Regenerates the README's tour pictures,
+ * docs/screenshots/{overview,lot,pair,areas,audit,audit-report,line,tools,calibration}.png, and the
+ * tuning pictures docs/screenshots/{whatif-pair,whatif-longest-wait,whatif-sensitivity}.png, from a
+ * running voidcast server with the demo line.
  *
  *   npm run screenshots                         start a demo server in a temporary data directory
  *   npm run screenshots -- --url http://127.0.0.1:4180/   use a server that is already running
@@ -9,7 +10,9 @@
  *
  * The lot shown is the first lot waiting to bond whose call is re-clean (else hold, else any);
  * the pair shown is that lot's first pair with the same call, so the tour shows a call with its
- * reasons, the caution and the modelled re-clean. The tuning pictures follow the demo's story
+ * reasons, the caution and the modelled re-clean. The audit shows Boreas bay 2 over the two days of
+ * the planted excursion (docs/demo.md), its report as printed (print stylesheet, A4 landscape width).
+ * The tuning pictures follow the demo's story
  * (docs/demo.md): one more rinse on TR2652-P01 (its call changes), the longest wait in Boreas bay 2
  * that keeps lot TR2653 within spec, and the sensitivity of TR2653-P01's call. Needs Debian's
  * Chromium (/usr/bin/chromium or $VOIDCAST_CHROMIUM).
@@ -82,7 +85,7 @@ async function pickLink(page: Page, rowSelector: string, calls: string[]): Promi
 }
 
 /** Full-page shots, except that a very long page is cut at `maxHeight` px (the README shows its top). */
-async function shoot(page: Page, url: string, name: string, maxHeight = 2400): Promise<void> {
+async function shoot(page: Page, url: string, name: string, maxHeight = 2400, width = 1360): Promise<void> {
   const res = await page.goto(url, { waitUntil: 'networkidle' });
   if (res?.status() !== 200) throw new Error(`${url} answered ${res?.status()}`);
   const file = join(OUT, `${name}.png`);
@@ -90,7 +93,7 @@ async function shoot(page: Page, url: string, name: string, maxHeight = 2400): P
   await page.screenshot({
     path: file,
     fullPage: true,
-    clip: { x: 0, y: 0, width: 1360, height: Math.min(height, maxHeight) },
+    clip: { x: 0, y: 0, width, height: Math.min(height, maxHeight) },
   });
   console.log(`wrote ${file}`);
 }
@@ -136,6 +139,24 @@ async function main(): Promise<number> {
     if (!pair) throw new Error(`no pair on ${lot}`);
     if (want('pair')) await shoot(page, new URL(pair, server.url).href, 'pair', 2050);
     if (want('areas')) await shoot(page, new URL('areas', server.url).href, 'areas');
+    const planted = 'from=2026-10-17T00:00Z&to=2026-10-19T00:00Z';
+    if (want('audit'))
+      await shoot(page, new URL(`areas/BOR-B2/audit?${planted}`, server.url).href, 'audit', 3000);
+    if (want('audit-report')) {
+      // The report as it prints: the print stylesheet at the width of an A4 landscape page's text (273 mm).
+      await page.setViewportSize({ width: 1032, height: 900 });
+      await page.emulateMedia({ media: 'print' });
+      await shoot(
+        page,
+        new URL(`areas/BOR-B2/audit/report?${planted}`, server.url).href,
+        'audit-report',
+        2600,
+        1032,
+      );
+      await page.emulateMedia({ media: 'screen' });
+      await page.setViewportSize({ width: 1360, height: 900 });
+    }
+    if (want('line')) await shoot(page, new URL('line', server.url).href, 'line');
     if (want('tools')) await shoot(page, new URL('tools', server.url).href, 'tools');
     if (want('calibration')) await shoot(page, new URL('calibration', server.url).href, 'calibration');
     // Tuning: a what-if whose call changes, a solver's answer, and the tornado of a call.

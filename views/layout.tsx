@@ -11,6 +11,7 @@ export const NAV: NavItem[] = [
   { href: '/', label: 'Overview' },
   { href: '/lots', label: 'Lots' },
   { href: '/areas', label: 'Areas' },
+  { href: '/line', label: 'Line' },
   { href: '/tools', label: 'Tools & cleans' },
   { href: '/calibration', label: 'Calibration' },
   { href: '/parameters', label: 'Parameters' },
@@ -43,6 +44,7 @@ export function Layout(props: {
         <meta name="viewport" content="width=device-width, initial-scale=1" />
         <title>{`${props.title} · voidcast`}</title>
         <link rel="stylesheet" href="/assets/voidcast.css" />
+        <link rel="stylesheet" href="/assets/print.css" media="print" />
         <link rel="icon" href="/assets/favicon.svg" type="image/svg+xml" />
         {/* No inline script or style anywhere (Content-Security-Policy, src/web/hardening.ts): htmx
             injects no indicator style, evaluates no string, and settles no style attribute. */}
@@ -82,6 +84,7 @@ export function Layout(props: {
               </a>
             ))}
           </nav>
+          <SearchBox />
           <AccountBox {...props} active={active} />
         </header>
         {props.openMode ? (
@@ -102,6 +105,31 @@ export function Layout(props: {
         </footer>
       </body>
     </html>
+  );
+}
+
+/**
+ * The search box on every page: a plain GET form to /search (works without script), finding a
+ * wafer, pair, lot, tool or location by its id.
+ */
+function SearchBox() {
+  return (
+    <search class="vc-search-wrap">
+      <form class="vc-search" method="get" action="/search" aria-label="Find by id">
+        <label for="vc-search-q" class="vc-visually-hidden">
+          Find a wafer, pair, lot, tool or location by its id
+        </label>
+        <input
+          id="vc-search-q"
+          type="search"
+          name="q"
+          placeholder="wafer, pair, lot, tool, location id"
+          maxlength={120}
+          autocomplete="off"
+        />
+        <button type="submit">Find</button>
+      </form>
+    </search>
   );
 }
 

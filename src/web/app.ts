@@ -18,15 +18,18 @@ import { isFragmentRequest, renderPage } from './render.ts';
 import * as accounts from './routes/accounts.tsx';
 import * as api from './routes/api.ts';
 import * as areas from './routes/areas.tsx';
+import * as auditArea from './routes/audit-area.tsx';
 import * as calculators from './routes/calculators.tsx';
 import * as calibration from './routes/calibration.tsx';
 import * as feed from './routes/feed.ts';
 import * as health from './routes/health.ts';
 import * as home from './routes/home.tsx';
 import * as imports from './routes/imports.tsx';
+import * as line from './routes/line.tsx';
 import * as lots from './routes/lots.tsx';
 import * as pairs from './routes/pairs.tsx';
 import * as parameters from './routes/parameters.tsx';
+import * as search from './routes/search.tsx';
 import * as tools from './routes/tools.tsx';
 import * as whatif from './routes/whatif.ts';
 import * as whatifSaved from './routes/whatif-saved.ts';
@@ -35,6 +38,7 @@ const require = createRequire(import.meta.url);
 const HTMX_JS = readFileSync(require.resolve('htmx.org/dist/htmx.min.js'));
 const SCRIPT = readFileSync(new URL('../../public/voidcast.js', import.meta.url));
 const CSS = readFileSync(new URL('../../public/voidcast.css', import.meta.url));
+const PRINT_CSS = readFileSync(new URL('../../public/print.css', import.meta.url));
 const FAVICON = readFileSync(new URL('../../public/favicon.svg', import.meta.url));
 
 export type RouteModule = { register: (app: Hono, ctx: AppContext) => void };
@@ -46,6 +50,7 @@ const ROUTES: RouteModule[] = [
   calculators,
   imports,
   areas,
+  auditArea,
   tools,
   api,
   lots,
@@ -56,6 +61,8 @@ const ROUTES: RouteModule[] = [
   feed,
   whatifSaved,
   whatif,
+  line,
+  search,
 ];
 
 export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hono {
@@ -86,6 +93,7 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
   app.get('/assets/htmx.min.js', asset(HTMX_JS, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.js', asset(SCRIPT, 'text/javascript; charset=utf-8'));
   app.get('/assets/voidcast.css', asset(CSS, 'text/css; charset=utf-8'));
+  app.get('/assets/print.css', asset(PRINT_CSS, 'text/css; charset=utf-8'));
   app.get('/assets/favicon.svg', asset(FAVICON, 'image/svg+xml'));
 
   for (const r of [...ROUTES, ...extraRoutes]) r.register(app, ctx);

@@ -6,7 +6,9 @@
  * Pages: the overview, the lots queue, every lot with each Pareto grouping, the first pair of each
  * waiting lot with each Pareto grouping and the cumulative spectrum, the areas page and the trend
  * of every location at every counter channel it offers (swapped in by htmx, as the page's own
- * controls do), the tools, the calculators and the imports.
+ * controls do), the tools, the calculators and the imports, and the contamination audit: each
+ * area's audit page, every control chart of the bays of the planted excursion and counter fault,
+ * the audit report and the line view.
  * The pages are found by following the product's own links, so a new lot, location, channel or
  * grouping is checked without changing this test.
  */
@@ -92,6 +94,15 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
     await visit('tools');
     await visit('calculators');
     await visit('imports');
+    // The contamination audit: each area's audit page (found from the Areas page's links), every
+    // control chart of the bays around the planted excursion and counter fault, the report, the line view.
+    seen.delete('areas');
+    await visit('areas');
+    for (const a of await hrefs(page, '.vc-area h2 a[href$="/audit"]')) await visit(a);
+    await visit('areas/BOR-B2/audit?from=2026-10-17T00:00Z&to=2026-10-19T00:00Z&charts=all');
+    await visit('areas/LEV-B1/audit?from=2026-10-13T00:00Z&to=2026-10-14T00:00Z&charts=all');
+    await visit('areas/BOR-B2/audit/report?from=2026-10-17T00:00Z&to=2026-10-19T00:00Z');
+    await visit('line');
     await page.close();
   }, 300_000);
 
@@ -118,6 +129,8 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
       'pareto',
       'removal-curve',
       'tornado',
+      'control-chart',
+      'adder-history',
     ])
       expect(kinds.has(k), `no ${k} chart was checked`).toBe(true);
     // The demo line: 5 assessed lots with 5 groupings each, 3 waiting lots' pairs, 16 locations.
@@ -125,7 +138,7 @@ describe.skipIf(!run)('words and controls inside their boxes on the demo line’
     expect(visits.reduce((n, v) => n + v.report.texts, 0)).toBeGreaterThan(1000);
   });
 
-  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves, tornado)', () => {
+  it('no label is clipped by its chart or overlaps another (every chart: trend, spectrum, wafer maps, void map, Pareto, removal curves, tornado, control charts, adder histories)', () => {
     expect(problems(() => true)).toEqual([]);
   });
 

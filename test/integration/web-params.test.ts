@@ -103,6 +103,17 @@ const QUERY_ROUTES: {
   { path: '/areas?channel={}', param: 'channel', kind: 'number' },
   { path: '/areas/trend?window={}', param: 'window', headers: fragment, kind: 'word' },
   { path: '/areas/trend?channel={}', param: 'channel', headers: fragment, kind: 'number' },
+  { path: '/areas/fab-1/audit?from={}', param: 'from', kind: 'time' },
+  { path: '/areas/fab-1/audit?to={}', param: 'to', kind: 'time' },
+  { path: '/areas/fab-1/audit?occupancy={}', param: 'occupancy', kind: 'word' },
+  { path: '/areas/fab-1/audit?edition={}', param: 'edition', kind: 'word' },
+  { path: '/areas/fab-1/audit/report?from={}', param: 'from', kind: 'time' },
+  { path: '/areas/fab-1/audit/report?occupancy={}', param: 'occupancy', kind: 'word' },
+  { path: '/areas/fab-1/audit/tables/classification-summary?format={}', param: 'format', kind: 'word' },
+  { path: '/areas/fab-1/audit/tables/classification-summary?to={}', param: 'to', kind: 'time' },
+  { path: '/line?from={}', param: 'from', kind: 'time' },
+  { path: '/line?to={}', param: 'to', kind: 'time' },
+  { path: '/line/tables/pareto-tool?format={}', param: 'format', kind: 'word' },
   { path: '/imports/history/1?page={}', param: 'page', kind: 'page' },
   { path: '/imports/history/1/issues?page={}', param: 'page', headers: fragment, kind: 'page' },
   { path: '/api/lots/L-01/assessment?asOf={}', param: 'asOf', kind: 'time' },
@@ -155,6 +166,9 @@ describe('query parameters: a bad value is a 400 with its reason, never a 500', 
       '/areas?window=all&channel=0.5',
       '/areas?channel=7', // a size no location reports: the default channel is shown
       '/imports/history/1?page=3',
+      '/areas/fab-1/audit?from=2025-03-03T00:00Z&to=2025-03-04T00:00Z&occupancy=any&edition=1999',
+      '/areas/me-1/audit/tables/classification-sizes?format=xls-csv&from=2025-03-01T00:00Z',
+      '/search?q=bay',
       `/api/lots/L-01/assessment?detail=full&asOf=${AS_OF_MS}`,
       '/whatif/pair/P-01?energy=0.5&threshold=80&params=typed',
       '/whatif/lot/L-01?pareto=clean',
@@ -170,7 +184,7 @@ describe('query parameters: a bad value is a 400 with its reason, never a 500', 
 
 describe('routes that read no parameter of these names', () => {
   it('answer without a server error whatever the query holds', async () => {
-    for (const path of ['/', '/tools', '/calculators', '/imports', '/healthz', '/api/lots'])
+    for (const path of ['/', '/tools', '/calculators', '/imports', '/healthz', '/api/lots', '/search'])
       for (const [value] of BAD_VALUES) {
         const res = await get(`${path}?asOf=${enc(value)}&page=${enc(value)}&zz=${enc(value)}`);
         expect(res.status, `${path} with ${value.slice(0, 30)}`).toBeLessThan(500);
@@ -199,6 +213,10 @@ describe('ids in the path: unknown or impossible ids are 404, never a 500', () =
       ['/calculators/nope', 404],
       ['/calculators/nope/result', 404],
       ['/areas?location=NO-SUCH-LOCATION', 404],
+      ['/areas/NO-SUCH-AREA/audit', 404],
+      ['/areas/NO-SUCH-AREA/audit/report', 404],
+      ['/areas/fab-1/audit/tables/no-such-table', 404],
+      ['/line/tables/no-such-table', 404],
       ['/api/lots/NO-SUCH-LOT/assessment', 404],
       ['/api/pairs/NO-SUCH-PAIR/assessment', 404],
       ['/whatif/pair/NO-SUCH-PAIR', 404],

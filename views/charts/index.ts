@@ -1,4 +1,10 @@
 /** voidcast's charts: pure functions of data that return SVG (hono/jsx). */
+export {
+  type ControlChartInput,
+  type ControlChartPoint,
+  type ControlChartRule,
+  controlChart,
+} from './control-chart.tsx';
 export { type ParetoBar, type ParetoInput, type ParetoItem, pareto, paretoBars } from './pareto.tsx';
 export {
   type MeasuredBand,

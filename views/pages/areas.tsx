@@ -189,7 +189,17 @@ export function AreasPage(props: {
       ) : (
         props.groups.map((g) => (
           <div class="vc-area" data-area={g.area}>
-            <h2>{g.area}</h2>
+            <h2>
+              {g.area}{' '}
+              {g.locations.find((l) => l.level === 'area') ? (
+                <a
+                  class="vc-small"
+                  href={`/areas/${encodeURIComponent(g.locations.find((l) => l.level === 'area')!.locationId)}/audit`}
+                >
+                  contamination audit
+                </a>
+              ) : null}
+            </h2>
             <table class="vc-table vc-table-compact vc-iso-table">
               <thead>
                 <tr>

@@ -3,8 +3,10 @@
  * ones before it:
  *
  *   viewer    reads every page and the JSON API
- *   engineer  + imports files, saves what-if scenarios and proposes parameter sets
- *   approver  + signs calls off, adopts parameter sets and goes back to the typed values
+ *   engineer  + imports files, saves what-if scenarios, proposes parameter sets and acknowledges
+ *               excursions
+ *   approver  + signs calls off, adopts parameter sets and goes back to the typed values, derives
+ *               an area's alert and action levels
  *   admin     + manages accounts
  *
  * An API token acts for its account with at most the role of its scope (read → viewer,
@@ -51,6 +53,18 @@ export const RULES: { method: string; path: RegExp; role: Role; what: string }[]
   { method: 'POST', path: /^\/parameters\/[^/]+\/adopt$/, role: 'approver', what: 'adopt a parameter set' },
   { method: 'POST', path: /^\/parameters\/revert$/, role: 'approver', what: 'go back to the typed values' },
   { method: 'POST', path: /^\/whatif\/scenarios$/, role: 'engineer', what: 'save a what-if scenario' },
+  {
+    method: 'POST',
+    path: /^\/areas\/[^/]+\/audit\/levels$/,
+    role: 'approver',
+    what: 'derive and store alert and action levels',
+  },
+  {
+    method: 'POST',
+    path: /^\/areas\/[^/]+\/audit\/acknowledge$/,
+    role: 'engineer',
+    what: 'acknowledge an excursion',
+  },
   { method: 'POST', path: /^\/logout$/, role: 'viewer', what: 'sign out' },
   { method: 'POST', path: /^\/account(\/|$)/, role: 'viewer', what: 'change your own account' },
   { method: '*', path: /^\/admin(\/|$)/, role: 'admin', what: 'manage accounts' },
