@@ -133,21 +133,37 @@ export function adderHistory(input: AdderHistoryInput) {
         columnWidth={(box.x1 - box.x0) / 3}
         entries={[
           { label: 'one pass', swatch: <circle cx={7} cy={6} r="3.5" fill="#c98a12" stroke="#18202e" /> },
-          {
-            label: 'fitted mean, 95 %',
-            swatch: (
-              <g>
-                <rect x={0} y={1} width="14" height="10" fill="#1f6f8b" fill-opacity="0.15" />
-                <line x1={0} x2={14} y1={6} y2={6} stroke="#1f6f8b" stroke-width="2" />
-              </g>
-            ),
-          },
-          {
-            label: 'typed',
-            swatch: (
-              <line x1={0} x2={14} y1={6} y2={6} stroke="#5d6472" stroke-width="1.4" stroke-dasharray="6 4" />
-            ),
-          },
+          ...(input.mean
+            ? [
+                {
+                  label: 'fitted mean, 95 %',
+                  swatch: (
+                    <g>
+                      <rect x={0} y={1} width="14" height="10" fill="#1f6f8b" fill-opacity="0.15" />
+                      <line x1={0} x2={14} y1={6} y2={6} stroke="#1f6f8b" stroke-width="2" />
+                    </g>
+                  ),
+                },
+              ]
+            : []),
+          ...(input.typed != null
+            ? [
+                {
+                  label: 'typed',
+                  swatch: (
+                    <line
+                      x1={0}
+                      x2={14}
+                      y1={6}
+                      y2={6}
+                      stroke="#5d6472"
+                      stroke-width="1.4"
+                      stroke-dasharray="6 4"
+                    />
+                  ),
+                },
+              ]
+            : []),
         ]}
       />
     </ChartSvg>

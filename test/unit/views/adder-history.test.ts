@@ -37,4 +37,16 @@ describe('adderHistory', () => {
     expect(out).not.toContain('<tool');
     expect(textOf(byClass(svgOf(out), 'vc-nodata')[0]!)).toBe('no pass');
   });
+
+  it('lists in its legend only what it draws (no fitted mean or typed entry without them)', () => {
+    const bare = String(adderHistory({ title: 'LRIN-1', passes }));
+    expect(bare).toContain('one pass');
+    expect(bare).not.toContain('fitted mean');
+    expect(bare).not.toContain('>typed<');
+    const full = String(
+      adderHistory({ title: 'LRIN-1', passes, mean: { value: 4, low: 3, high: 5 }, typed: 5 }),
+    );
+    expect(full).toContain('fitted mean, 95 %');
+    expect(full).toContain('>typed<');
+  });
 });
