@@ -246,7 +246,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
           why:
             best <= 5 * pf && p80 <= 5
               ? undefined
-              : 'the Monte Carlo (400 draws per scenario) and the per-die evaluation dominate; see docs/performance.md',
+              : 'per-particle work (size index, clean survivals, die rows, evaluation, the inputs’ hash of the particle bytes) and the Monte Carlo (two scenarios × 400 draws per pair) are about 7 × the read on one thread; two threads gain only when two cores are free; see docs/performance.md',
         },
       ],
     };

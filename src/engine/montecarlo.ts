@@ -607,6 +607,7 @@ export function simulate(args: {
   const factor = new Float64Array(nSources);
   const muExact = new Float64Array(Math.max(nExactAll, 1));
   const exactAreas: (Float64Array | undefined)[] = new Array(gridN); // per grid point, disc areas of the exact bins
+  const binAreas: (Float64Array | undefined)[] = new Array(gridN); // per grid point, π r_k² of every bin (tails)
   const alpha = args.clusterAlpha;
 
   // The per-draw normals of the group factors and the small-gap constant, drawn in one block.
@@ -666,6 +667,12 @@ export function simulate(args: {
     if (tails.length > 0) {
       const frac = grid.frac[gi]!;
       const acrit = grid.acrit[gi]!;
+      let areas = binAreas[gi];
+      if (!areas) {
+        areas = new Float64Array(B);
+        for (let k = 0; k < B; k++) areas[k] = Math.PI * radii[k]! * radii[k]!;
+        binAreas[gi] = areas;
+      }
       for (const tl of tails) {
         const a = tl.v.fixedAlpha ?? rng.gamma(tl.v.n, 1 / tl.v.sumLog);
         tailBinsOf(tl.shape, tl.v.n, a, tailTmp);
@@ -677,7 +684,7 @@ export function simulate(args: {
           const c = binClass[k]!;
           if (c === 'exact') muExact[exactIndex[k]!]! += x * ab;
           else {
-            const ar = Math.PI * radii[k]! * radii[k]!;
+            const ar = areas[k]!;
             bigMean += x * ab * ar;
             if (c === 'normal') bigVar += x * ab * ar * ar;
           }

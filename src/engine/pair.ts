@@ -101,6 +101,7 @@ export class Scratch {
     name: string,
     n: number,
     make: (n: number) => T,
+    zero: boolean,
   ): T {
     let a = this.arrays.get(name) as T | undefined;
     if (!a || a.length < n) {
@@ -108,21 +109,25 @@ export class Scratch {
       this.arrays.set(name, a);
     }
     const v = a.subarray(0, n) as T;
-    v.fill(0);
+    if (zero) v.fill(0);
     return v;
   }
 
-  f64(name: string, n: number): Float64Array {
-    return this.take(name, n, (k) => new Float64Array(k));
+  /**
+   * A zeroed array of n values; with `overwritten` the caller writes every one of the n values
+   * before reading any, and the zeroing (a pass over megabytes per pair) is left out.
+   */
+  f64(name: string, n: number, overwritten = false): Float64Array {
+    return this.take(name, n, (k) => new Float64Array(k), !overwritten);
   }
-  i32(name: string, n: number): Int32Array {
-    return this.take(name, n, (k) => new Int32Array(k));
+  i32(name: string, n: number, overwritten = false): Int32Array {
+    return this.take(name, n, (k) => new Int32Array(k), !overwritten);
   }
-  u16(name: string, n: number): Uint16Array {
-    return this.take(name, n, (k) => new Uint16Array(k));
+  u16(name: string, n: number, overwritten = false): Uint16Array {
+    return this.take(name, n, (k) => new Uint16Array(k), !overwritten);
   }
-  u8(name: string, n: number): Uint8Array {
-    return this.take(name, n, (k) => new Uint8Array(k));
+  u8(name: string, n: number, overwritten = false): Uint8Array {
+    return this.take(name, n, (k) => new Uint8Array(k), !overwritten);
   }
   /** The whole kept Int32Array of that name (at least n long, not zeroed), to be filled and grown. */
   i32Buffer(name: string, n: number): Int32Array {
@@ -242,7 +247,9 @@ function flattenDetected(
   let n = 0;
   for (const c of contributions) if (c.detected) n += c.detected.survival.length;
   // the as-is and the re-clean scenario each keep their survivals while both are alive
-  const survival = scratch.f64(geometry ? 'survival-reclean' : 'survival', n);
+  // Every array taken below is written in full (each contribution's n_c values at its offset, the
+  // die hits for every particle) before it is read, so none needs zeroing first.
+  const survival = scratch.f64(geometry ? 'survival-reclean' : 'survival', n, true);
   let o = 0;
   for (const c of contributions)
     if (c.detected) {
@@ -251,13 +258,13 @@ function flattenDetected(
     }
   if (geometry) return { ...geometry, survival };
   const flat: DetectedFlat = {
-    xM: scratch.f64('x', n),
-    yM: scratch.f64('y', n),
-    rM: scratch.f64('r', n),
+    xM: scratch.f64('x', n, true),
+    yM: scratch.f64('y', n, true),
+    rM: scratch.f64('r', n, true),
     survival,
-    source: scratch.u16('source', n),
+    source: scratch.u16('source', n, true),
     sourceStart: new Int32Array(contributions.length).fill(-1),
-    bin: scratch.u8('bin', n),
+    bin: scratch.u8('bin', n, true),
     hitStart: null,
     hitDie: null,
   };
@@ -279,7 +286,7 @@ function flattenDetected(
   });
   if (physics.dieGrid) {
     const h = buildDieHits(physics.dieGrid, flat.xM, flat.yM, flat.rM, {
-      hitStart: scratch.i32('hit-start', n + 1),
+      hitStart: scratch.i32('hit-start', n + 1, true),
       hitDie: scratch.i32Buffer('hit-die', 2 * n),
     });
     scratch.keep('hit-die', h.hitDie);
