@@ -55,18 +55,20 @@ describe('rectsPathD', () => {
             expect(Math.abs(b[k] - rects[i]![k])).toBeLessThan(0.05 + 1e-6);
         });
       }),
-      { numRuns: 300 },
+      { seed: 17_201, numRuns: 300 },
     );
   });
 });
 
 describe('latticeRuns', () => {
   /** The cells covered by the runs, stepped by the pitch: the dies the pattern draws. */
+  /** A coordinate to 0.001 px, −0 read as 0 (a corner computed two ways may land either side of 0). */
+  const key = (v: number) => (Math.round(v * 1000) / 1000 + 0).toFixed(3);
   function cellsOf(l: NonNullable<ReturnType<typeof latticeRuns>>): string[] {
     const out: string[] = [];
     for (const r of l.runs) {
       const n = Math.round((r.w - l.cell.w) / l.cell.pitchX) + 1;
-      for (let i = 0; i < n; i++) out.push(`${(r.x + i * l.cell.pitchX).toFixed(3)},${r.y.toFixed(3)}`);
+      for (let i = 0; i < n; i++) out.push(`${key(r.x + i * l.cell.pitchX)},${key(r.y)}`);
     }
     return out.sort();
   }
@@ -92,11 +94,11 @@ describe('latticeRuns', () => {
           // a subset may not show the smallest pitch (e.g. only every other column): then the
           // lattice found is coarser, still exact, or none; never a die more or less
           if (l === null) return;
-          expect(cellsOf(l)).toEqual(rects.map((r) => `${r.x.toFixed(3)},${r.y.toFixed(3)}`).sort());
+          expect(cellsOf(l)).toEqual(rects.map((r) => `${key(r.x)},${key(r.y)}`).sort());
           for (const r of l.runs) expect(r.h).toBe(h);
         },
       ),
-      { numRuns: 300 },
+      { seed: 17_202, numRuns: 300 },
     );
   });
 
