@@ -85,7 +85,7 @@ describe('round trip through papaparse (an independent reader)', () => {
           expect(back).toEqual([header, ...body]);
         },
       ),
-      { numRuns: 300 },
+      { seed: 16_401, numRuns: 300 },
     );
   });
   it('any text cells read back with only the apostrophe added (spreadsheet variant)', () => {
@@ -97,7 +97,7 @@ describe('round trip through papaparse (an independent reader)', () => {
         );
         expect(back).toEqual([['a', 'b', 'c'], ...expected]);
       }),
-      { numRuns: 300 },
+      { seed: 16_402, numRuns: 300 },
     );
   });
   it('numbers read back to the same value (shortest round-trip form)', () => {
@@ -109,7 +109,7 @@ describe('round trip through papaparse (an independent reader)', () => {
           expect(back[1]!.map(Number)).toEqual(xs.map((x) => (Object.is(x, -0) ? 0 : x)));
         },
       ),
-      { numRuns: 200 },
+      { seed: 16_403, numRuns: 200 },
     );
   });
 });
