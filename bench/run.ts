@@ -8,8 +8,11 @@
  *   npm run bench -- load assess  only the named sections (no docs written unless every one ran)
  *   BENCH_RUNS=n                  measured runs per figure (after the warm-up)
  *   --no-docs                     do not rewrite docs/performance.md
+ *   --merge=<report.json>         with named sections: put them into that earlier report (a full run's
+ *                                 bench/results/*.json), each marked with its own run, and write the
+ *                                 tables of the merged report (the other sections' figures kept)
  *
- * Sections: import, scans, assess, scaling, load, match, calibrate (the last two print their own
+ * Sections: import, scans, assess, scaling, load, tuning, audit, match, calibrate (the last two print their own
  * figures; in quick mode they are left out, as their sizes are fixed).
  */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
@@ -53,6 +56,8 @@ const SECTIONS: { name: string; quick: boolean; run: Runner }[] = [
   { name: 'assess', quick: true, run: async (c) => (await import('./assess.ts')).run(c) },
   { name: 'scaling', quick: true, run: async (c) => (await import('./scaling.ts')).run(c) },
   { name: 'load', quick: true, run: async (c) => (await import('./load.ts')).run(c) },
+  { name: 'tuning', quick: true, run: async (c) => (await import('./tuning.ts')).run(c) },
+  { name: 'audit', quick: true, run: async (c) => (await import('./audit.ts')).run(c) },
   {
     name: 'match',
     quick: false,
@@ -77,7 +82,12 @@ interface Report {
   date: string;
   mode: 'full' | 'quick';
   machine: { cpu: string; cores: number; memoryGb: number; node: string; platform: string };
-  sections: (Section & { loadAvgBefore: number[]; loadAvgAfter: number[] })[];
+  sections: (Section & {
+    loadAvgBefore: number[];
+    loadAvgAfter: number[];
+    /** Set when the section was measured in a later run merged into this report (--merge). */
+    separateRun?: { date: string; mode: 'full' | 'quick'; command: string };
+  })[];
   seconds: number;
 }
 
@@ -120,7 +130,10 @@ export function markdown(r: Report): string {
     out.push(
       `#### ${s.name}`,
       '',
-      `Data: ${s.data}. Load average ${la(s.loadAvgBefore)} before, ${la(s.loadAvgAfter)} after; ${fmt(s.seconds ?? 0, 0)} s.`,
+      `Data: ${s.data}. Load average ${la(s.loadAvgBefore)} before, ${la(s.loadAvgAfter)} after; ${fmt(s.seconds ?? 0, 0)} s.` +
+        (s.separateRun
+          ? ` Measured in a separate run, \`${s.separateRun.command}\` on ${s.separateRun.date}${s.separateRun.mode === 'quick' ? ' (quick sizes)' : ''}, on the same machine.`
+          : ''),
       '',
     );
     if (s.figures.length) {
@@ -177,14 +190,36 @@ async function main() {
   const file = join(dir, `${report.date.replace(/:/g, '')}${quick ? '-quick' : ''}.json`);
   writeFileSync(file, `${JSON.stringify(report, null, 2)}\n`);
   console.log(`results: ${file} (${fmt(report.seconds / 60, 1)} min)`);
-  if (names.length === 0 && !args.includes('--no-docs')) {
-    const doc = readFileSync(DOC, 'utf8');
-    const a = doc.indexOf(BEGIN);
-    const b = doc.indexOf(END);
-    if (a < 0 || b < a) throw new Error(`${DOC}: the generated-section markers are missing`);
-    writeFileSync(DOC, `${doc.slice(0, a + BEGIN.length)}\n\n${markdown(report)}\n${doc.slice(b)}`);
-    console.log(`tables written to ${DOC}`);
-  }
+  const mergeFrom = args.find((a) => a.startsWith('--merge='))?.slice('--merge='.length);
+  if (mergeFrom && names.length > 0 && !args.includes('--no-docs')) {
+    writeDoc(merged(JSON.parse(readFileSync(mergeFrom, 'utf8')) as Report, report, names, quick));
+    console.log(`sections ${names.join(', ')} merged into ${mergeFrom}; tables written to ${DOC}`);
+  } else if (names.length === 0 && !args.includes('--no-docs')) writeDoc(report);
+}
+
+/** An earlier report with the named sections of a later run put in (replaced or added in runner order). */
+export function merged(base: Report, later: Report, names: string[], quick: boolean): Report {
+  const command = `npm run bench -- ${quick ? 'quick ' : ''}${names.join(' ')}`;
+  const mark = (s: Report['sections'][number]) => ({
+    ...s,
+    separateRun: { date: later.date, mode: later.mode, command },
+  });
+  const sections = SECTIONS.flatMap((def) => {
+    const fresh = later.sections.find((s) => s.name === def.name);
+    if (fresh) return [mark(fresh)];
+    const old = base.sections.find((s) => s.name === def.name);
+    return old ? [old] : [];
+  });
+  return { ...base, sections };
+}
+
+function writeDoc(report: Report): void {
+  const doc = readFileSync(DOC, 'utf8');
+  const a = doc.indexOf(BEGIN);
+  const b = doc.indexOf(END);
+  if (a < 0 || b < a) throw new Error(`${DOC}: the generated-section markers are missing`);
+  writeFileSync(DOC, `${doc.slice(0, a + BEGIN.length)}\n\n${markdown(report)}\n${doc.slice(b)}`);
+  console.log(`tables written to ${DOC}`);
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) await main();

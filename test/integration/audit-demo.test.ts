@@ -6,7 +6,7 @@
  * over the excess alone gives the same voids (the chain is linear in the deposited particles); levels and
  * acknowledgements are append-only.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
 import { auditAreaFromDb } from '../../src/engine/audit/audit.ts';
 import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
@@ -150,6 +150,23 @@ describe('the cost of the FFU excursion', () => {
     const c = excursionCostInDb(db, lev[0]!, { asOfMs });
     expect(c.totalAddedVoids).toBe(0);
     expect(c.notes[0]).toContain('an instrument finding');
+  });
+  it('without a time or a clock, the costs are kept for the minute (the pages’ rule), not recomputed per request', () => {
+    // No installation clock in this database (loadDemo alone does not set one): the default time is
+    // now, floored to the minute as the pages floor it (src/web/routes/lots.tsx asOfFrom).
+    const e = boreas.find((x) => x.rule === 'action-point')!;
+    vi.useFakeTimers({ toFake: ['Date'] });
+    try {
+      vi.setSystemTime(asOfMs + 7_000);
+      const first = excursionCostInDb(db, e);
+      vi.setSystemTime(asOfMs + 52_000); // a later request within the same minute
+      expect(excursionCostInDb(db, e)).toBe(first);
+      // the same figures as the cost asked for at that minute (hand computation: floor(t / 60 s) · 60 s)
+      expect(excursionCostInDb(db, e, { asOfMs })).toEqual(first);
+      expect(first.lots.map((l) => [l.lotId, l.wafers])).toEqual([['TR2653', 24]]);
+    } finally {
+      vi.useRealTimers();
+    }
   });
 });
 

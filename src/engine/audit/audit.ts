@@ -23,7 +23,7 @@ export interface AuditOptions {
   costs?: boolean;
   /** Channels to chart, whole nm (default: every channel). */
   chartSizesNm?: readonly number[];
-  /** Assessment time of the costs (default: the installation clock, else now). */
+  /** Assessment time of the costs (default: the installation clock, else now floored to the minute). */
   asOfMs?: number;
 }
 

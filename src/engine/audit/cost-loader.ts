@@ -55,21 +55,23 @@ export function baselineByChannel(db: Db, locationId: string, exc: AuditPeriod):
 }
 
 export interface CostOptions {
-  /** Assessment time (default: the installation clock, else now). */
+  /** Assessment time (default: the installation clock, else now floored to the minute). */
   asOfMs?: number;
 }
 
 /**
  * Costs computed in this process, by database, excursion, assessment time, the latest import and the
  * adopted parameter set: a cost is two assessments of every exposed pair (about 50 ms each), so a
- * warm page or report reads it from here; any new import or adoption changes the key.
+ * warm page or report reads it from here; any new import or adoption changes the key. Without a
+ * given time or an installation clock the costs are assessed at now floored to the minute (the
+ * pages' rule, src/web/routes/lots.tsx asOfFrom), so that requests within a minute share them.
  */
 const cache = new WeakMap<Db, Map<string, ExcursionCost>>();
 const CACHE_LIMIT = 500;
 
 /** The wafers in an excursion's air and the voids and die loss its excess added, per wafer and lot. */
 export function excursionCostInDb(db: Db, exc: Excursion, opts: CostOptions = {}): ExcursionCost {
-  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Date.now();
+  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
   const lastImport = (db.prepare('SELECT max(id) AS m FROM imports').get() as { m: number | null }).m;
   const set = readAdoptedParameterSet(db);
   const key = `${exc.id}|${exc.endMs}|${exc.locationIds.join(',')}|${exc.nature}|${asOfMs}|${lastImport}|${set ? `${set.id}` : 'typed'}`;
