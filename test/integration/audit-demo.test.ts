@@ -8,7 +8,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
-import { auditAreaFromDb } from '../../src/engine/audit/audit.ts';
+import { auditAreaFromDb, keptAreaAudit } from '../../src/engine/audit/audit.ts';
 import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
 import { chamberHistoryFromDb, lineParetoFromDb, searchLine } from '../../src/engine/audit/line-view.ts';
 import {
@@ -276,5 +276,23 @@ describe('the line view', () => {
     expect(searchLine(db, 'LACT-1').some((r) => r.kind === 'tool')).toBe(true);
     expect(searchLine(db, '%')).toEqual([]);
     expect(searchLine(db, '  ')).toEqual([]);
+  });
+});
+
+describe('the kept audit of the pages', () => {
+  it('is the audit itself, served again within one data generation and made afresh after a write', () => {
+    // The oracle is auditAreaFromDb, the uncached computation the CLI uses (a plain twin).
+    const opts = { period: { fromMs: H('2026-10-17T00:00Z'), toMs: H('2026-10-19T00:00Z') }, asOfMs };
+    const first = keptAreaAudit(db, 'BOR-B2', opts);
+    const { elapsedMs: _a, ...plain } = auditAreaFromDb(db, 'BOR-B2', opts);
+    const { elapsedMs: _b, ...kept } = first;
+    expect(kept).toEqual(plain);
+    expect(keptAreaAudit(db, 'BOR-B2', opts)).toBe(first);
+    // An acknowledgement is a committed write: the next page sees it.
+    const e = first.excursions[0]!;
+    acknowledgeExcursion(db, e.id, 'kept audit check', 'eng3', 3000);
+    const after = keptAreaAudit(db, 'BOR-B2', opts);
+    expect(after).not.toBe(first);
+    expect(after.excursions.find((x) => x.id === e.id)?.acknowledgement?.comment).toBe('kept audit check');
   });
 });

@@ -5,6 +5,8 @@
  */
 import type { Db } from '../../store/db.ts';
 import { latestAcks } from '../../store/excursion-acks.ts';
+import { installationClockMs } from '../../store/settings.ts';
+import { keptResult } from '../cache.ts';
 import { controlChart } from './charts.ts';
 import { checkPeriod } from './common.ts';
 import { excursionCostInDb } from './cost-loader.ts';
@@ -79,4 +81,19 @@ export function auditAreaFromDb(db: Db, areaId: string, opts: AuditOptions): Are
     charts,
     elapsedMs: performance.now() - t0,
   };
+}
+
+/**
+ * The area's audit as `auditAreaFromDb` gives it, kept until the data change (src/engine/cache.ts:
+ * any committed write — an import, a level derived, an acknowledgement — starts a new data
+ * generation and the next caller computes afresh). Keyed by every option and by the costs'
+ * assessment time resolved as auditAreaFromDb resolves it (the installation clock, else now floored
+ * to the minute), so that the pages of one minute share one computation. The result must not be
+ * mutated by its callers.
+ */
+export function keptAreaAudit(db: Db, areaId: string, opts: AuditOptions): AreaAudit {
+  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
+  const resolved: AuditOptions = { ...opts, asOfMs };
+  const key = `area-audit|${areaId}|${JSON.stringify(resolved)}`;
+  return keptResult(db, key, () => auditAreaFromDb(db, areaId, resolved));
 }

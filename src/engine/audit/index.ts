@@ -2,6 +2,7 @@
  * The contamination audit's public API, for the web pages, the report and the CLI:
  *
  *   auditAreaFromDb(db, areaId, opts)             → AreaAudit (classification, levels, excursions, costs, charts)
+ *   keptAreaAudit(db, areaId, opts)               → the same, kept until the data change (the pages)
  *   classifyAreaFromDb(db, areaId, opts)          → AreaClassification
  *   findExcursionsInDb(db, areaId, opts)          → Excursion[] (with acknowledgements)
  *   excursionCostInDb(db, excursion, opts)        → ExcursionCost (cached)
@@ -13,7 +14,7 @@
  *
  * Errors: AuditInputError (kind 'not-found' → 404, 'bad-input' → 400). Types: ./types.ts.
  */
-export { type AuditOptions, auditAreaFromDb, chartsOf } from './audit.ts';
+export { type AuditOptions, auditAreaFromDb, chartsOf, keptAreaAudit } from './audit.ts';
 export { controlChart } from './charts.ts';
 export { OCCUPANCY_STATES, roomStateCodes } from './common.ts';
 export { excursionCostInDb } from './cost-loader.ts';

@@ -8,9 +8,9 @@ import type { AuditView } from '../../../views/pages/audit-tables.ts';
 import {
   AuditInputError,
   acknowledgeExcursion,
-  auditAreaFromDb,
   chamberHistoryFromDb,
   deriveAndStoreLevels,
+  keptAreaAudit,
   LEVEL_METHODS,
   lineParetoFromDb,
   OCCUPANCY_STATES,
@@ -37,7 +37,7 @@ export function runAreaAudit(
   edition: 2015 | 1999,
 ): { audit: AuditView | null; refusal: string | null } {
   try {
-    const audit = auditAreaFromDb(ctx.db, area.id, { period, occupancy, edition });
+    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition });
     return {
       audit,
       refusal: null,
