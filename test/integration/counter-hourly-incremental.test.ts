@@ -12,7 +12,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { HOURLY_MODE } from '../../src/ingest/kinds/counter-samples.ts';
+import { BATCH_MODE, HOURLY_MODE } from '../../src/ingest/kinds/counter-samples.ts';
 import { importFile } from '../../src/ingest/pipeline.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 
@@ -58,9 +58,10 @@ function file(seed: number, differential: boolean, offsetMin: number): string[] 
       if (m >= 200 && m < 260) [a, b, d] = [0, 0, 0];
       if (m >= 270 && m < 276) [a, b, d] = [400, 100, 30];
       const status = rand() < 0.02 ? 'flow' : rand() < 0.02 ? 'overload' : 'ok';
-      lines.push(
-        `${c},${loc},${new Date(t).toISOString()},60,28.3,${a},${b},${d},${status},${states[m % 3]}`,
-      );
+      const line = `${c},${loc},${new Date(t).toISOString()},60,28.3,${a},${b},${d},${status},${states[m % 3]}`;
+      lines.push(line);
+      // a row repeated within the file now and then (a duplicate: the first copy is kept)
+      if (m % 97 === 5) lines.push(line);
     }
   }
   return lines;
@@ -72,29 +73,58 @@ function table(db: Db): Record<string, number | null>[] {
     .all() as Record<string, number | null>[];
 }
 
-async function importAll(mode: 'incremental' | 'refresh', files: string[][]): Promise<Db> {
+function samples(db: Db): Record<string, unknown>[] {
+  return db
+    .prepare(
+      'SELECT location, start_ms, counter, duration_ms, volume_m3, channel_set, hex(counts) AS counts, flags, room_state, line FROM counter_samples ORDER BY location, start_ms, counter, duration_ms',
+    )
+    .all() as Record<string, unknown>[];
+}
+
+interface Outcome {
+  stored: number;
+  duplicates: number;
+  flags: unknown;
+}
+
+async function importAll(
+  mode: 'incremental' | 'refresh',
+  files: string[][],
+  batchRows = 64,
+): Promise<Db & { reports: Outcome[] }> {
   const db = openDatabase(':memory:');
   migrate(db);
   await importFile(db, { kind: 'locations', path: join(GOOD, 'locations-line.csv') });
   HOURLY_MODE.current = mode;
+  BATCH_MODE.rows = batchRows;
+  const reports: Outcome[] = [];
   try {
     for (const [i, lines] of files.entries()) {
       const path = join(dir, `${mode}-${i}.csv`);
       writeFileSync(path, `${lines.join('\n')}\n`);
       const r = await importFile(db, { kind: 'counter-samples', path });
       expect(r.status).toBe('imported');
+      reports.push({ stored: r.rowsStored, duplicates: r.duplicates, flags: r.flags });
     }
   } finally {
     HOURLY_MODE.current = 'incremental';
+    BATCH_MODE.rows = 64;
   }
-  return db;
+  return Object.assign(db, { reports });
 }
 
 describe('counter_hourly: incremental path and plain twin', () => {
   it('give the same table after several overlapping imports of seeded files', async () => {
-    const files = [file(1, false, 0), file(2, true, 90), file(3, false, 200)];
+    // the fourth file repeats the first (plus one row): its rows are duplicates of stored ones
+    const files = [file(1, false, 0), file(2, true, 90), file(3, false, 200), [...file(1, false, 0)]];
+    files[3]!.push(`PC-9,BAY-BOND,${new Date(T0 - 3_600_000).toISOString()},60,28.3,5,4,3,ok,at-rest`);
     const inc = await importAll('incremental', files);
-    const plain = await importAll('refresh', files);
+    const plain = await importAll('refresh', files, 1);
+    // the same samples stored, the same counts in the reports, whether rows are batched or not
+    expect(samples(inc)).toEqual(samples(plain));
+    expect(inc.reports).toEqual(plain.reports);
+    expect(plain.reports[3]!.duplicates).toBe(plain.reports[0]!.stored + plain.reports[0]!.duplicates);
+    expect(plain.reports[0]!.duplicates).toBeGreaterThan(0);
     const a = table(inc);
     const b = table(plain);
     expect(b.length).toBeGreaterThan(100);
