@@ -204,6 +204,174 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
     );
 }
 
+/** SQL of the merge: this import's sums added to the stored row of the same key, if any. */
+const UPSERT = `INSERT INTO counter_hourly (location, diameter_nm, room_state, hour_ms, n, n_usable, count_sum, volume_m3,
+    conc_sum, max_per_m3, min_volume_m3, min_duration_ms, flags, n_fault, n_lower_bound, n_sentinel, n_zero_run, n_gap)
+  VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
+  ON CONFLICT (location, diameter_nm, room_state, hour_ms) DO UPDATE SET
+    n = n + excluded.n, n_usable = n_usable + excluded.n_usable, count_sum = count_sum + excluded.count_sum,
+    volume_m3 = volume_m3 + excluded.volume_m3, conc_sum = conc_sum + excluded.conc_sum,
+    max_per_m3 = max(coalesce(max_per_m3, excluded.max_per_m3), coalesce(excluded.max_per_m3, max_per_m3)),
+    min_volume_m3 = min(coalesce(min_volume_m3, excluded.min_volume_m3), coalesce(excluded.min_volume_m3, min_volume_m3)),
+    min_duration_ms = min(coalesce(min_duration_ms, excluded.min_duration_ms),
+      coalesce(excluded.min_duration_ms, min_duration_ms)),
+    flags = flags | excluded.flags, n_fault = n_fault + excluded.n_fault,
+    n_lower_bound = n_lower_bound + excluded.n_lower_bound, n_sentinel = n_sentinel + excluded.n_sentinel,
+    n_zero_run = n_zero_run + excluded.n_zero_run, n_gap = n_gap + excluded.n_gap`;
+
+/** Accumulators kept in memory before they are merged into the table (bounds the import's memory). */
+const FLUSH_AT = 20_000;
+
+/**
+ * The hourly aggregates kept current during an import, sample by sample, instead of re-reading the
+ * stored samples afterwards (`refreshCounterHourly`, the plain twin: test/integration checks both
+ * against a recomputation). Each stored sample is added with the flags it was stored with; the sums
+ * are merged into the table (added to what earlier imports stored for the same hour). Samples whose
+ * flags the import changes afterwards (a zero run, repeated rows or a gap flagged back in time) are
+ * declared with `changed`: those hours are recomputed from the stored samples by `finish`, after the
+ * last merge. Use inside the import's transaction; call `finish` once, after the last flag update.
+ */
+export class HourlyAccumulator {
+  private readonly accs = new Map<string, Acc>();
+  /** Per location: the accumulators of the sample last added (file order is mostly by time). */
+  private readonly last = new Map<number, { hour: number; room: number; setKey: object; list: Acc[] }>();
+  private readonly changedSpans = new Map<number, [number, number][]>();
+  private readonly upsert;
+  constructor(private readonly db: Db) {
+    this.upsert = db.prepare(UPSERT);
+  }
+
+  /**
+   * One stored sample: `ge` holds the counts ≥ each channel's lower size (`sizesNm`, whole nm; the
+   * same array object for every sample of a channel set).
+   */
+  add(
+    loc: number,
+    sizesNm: readonly number[],
+    start: number,
+    dur: number,
+    vol: number,
+    ge: ArrayLike<number>,
+    flags: number,
+    room: number,
+  ): void {
+    const hour = floorHour(start);
+    let cur = this.last.get(loc);
+    if (!cur || cur.hour !== hour || cur.room !== room || cur.setKey !== sizesNm) {
+      const list: Acc[] = [];
+      for (let i = 0; i < sizesNm.length; i++) {
+        const d = sizesNm[i]!;
+        const key = `${loc}|${hour}|${room}|${d}`;
+        let a = this.accs.get(key);
+        if (!a) {
+          a = newAcc(d, room, hour);
+          this.accs.set(key, a);
+        }
+        list.push(a);
+      }
+      cur = { hour, room, setKey: sizesNm, list };
+      this.last.set(loc, cur);
+    }
+    const usable = (flags & UNUSABLE_FLAGS) === 0;
+    const list = cur.list;
+    for (let i = 0; i < list.length; i++) {
+      const a = list[i]!;
+      a.n++;
+      a.flags |= flags;
+      if (flags & 1) a.nFault++;
+      if (flags & 2) a.nLowerBound++;
+      if (flags & 4) a.nSentinel++;
+      if (flags & 8) a.nZeroRun++;
+      if (flags & 16) a.nGap++;
+      if (usable) {
+        const c = ge[i]!;
+        a.nUsable++;
+        a.countSum += c;
+        a.volumeM3 += vol;
+        const conc = c / vol;
+        a.concSum += conc;
+        if (a.maxPerM3 === null || conc > a.maxPerM3) a.maxPerM3 = conc;
+        if (a.minVolumeM3 === null || vol < a.minVolumeM3) a.minVolumeM3 = vol;
+        if (a.minDurationMs === null || dur < a.minDurationMs) a.minDurationMs = dur;
+      }
+    }
+    if (this.accs.size >= FLUSH_AT) this.flush();
+  }
+
+  /** Samples of `loc` starting in [fromMs, toMs] changed flags after they were added. */
+  changed(loc: number, fromMs: number, toMs: number): void {
+    let l = this.changedSpans.get(loc);
+    if (!l) {
+      l = [];
+      this.changedSpans.set(loc, l);
+    }
+    const prev = l.at(-1);
+    if (prev && fromMs <= prev[1] + HOUR_MS && toMs >= prev[0] - HOUR_MS) {
+      prev[0] = Math.min(prev[0], fromMs);
+      prev[1] = Math.max(prev[1], toMs);
+    } else l.push([fromMs, toMs]);
+  }
+
+  /** Merges the accumulators into the table and forgets them. */
+  private flush(): void {
+    for (const [key, a] of this.accs) {
+      const loc = Number(key.slice(0, key.indexOf('|')));
+      this.upsert.run(
+        loc,
+        a.diameterNm,
+        a.roomState,
+        a.hourMs,
+        a.n,
+        a.nUsable,
+        a.countSum,
+        a.volumeM3,
+        a.concSum,
+        a.maxPerM3,
+        a.minVolumeM3,
+        a.minDurationMs,
+        a.flags,
+        a.nFault,
+        a.nLowerBound,
+        a.nSentinel,
+        a.nZeroRun,
+        a.nGap,
+      );
+    }
+    this.accs.clear();
+    this.last.clear();
+  }
+
+  /** The last merge, then the hours of changed samples recomputed from the stored samples. */
+  finish(): void {
+    this.flush();
+    for (const [loc, spans] of this.changedSpans)
+      for (const [from, to] of spans) refreshCounterHourly(this.db, loc, from, to);
+    this.changedSpans.clear();
+  }
+}
+
+function newAcc(diameterNm: number, roomState: number, hourMs: number): Acc {
+  return {
+    diameterNm,
+    roomState,
+    hourMs,
+    n: 0,
+    nUsable: 0,
+    countSum: 0,
+    volumeM3: 0,
+    concSum: 0,
+    maxPerM3: null,
+    minVolumeM3: null,
+    minDurationMs: null,
+    flags: 0,
+    nFault: 0,
+    nLowerBound: 0,
+    nSentinel: 0,
+    nZeroRun: 0,
+    nGap: 0,
+  };
+}
+
 /** One stored aggregate row. */
 export interface HourlyRow {
   locationId: string;

@@ -19,7 +19,7 @@
  *     and summarised in import_flags.
  */
 import { z } from 'zod';
-import { refreshCounterHourly } from '../../store/counter-hourly.ts';
+import { HourlyAccumulator, refreshCounterHourly } from '../../store/counter-hourly.ts';
 import { CELL_FAIL, enumCell, enumListCell, idCell, numberCell, timeCell } from '../cells.ts';
 import type {
   Cell,
@@ -113,6 +113,21 @@ export const QUALITY = {
   /** Longest sample accepted, ms (a day). */
   maxDurationMs: 86_400_000,
 } as const;
+
+/**
+ * How the import keeps the hourly aggregates (src/store/counter-hourly.ts): 'incremental' adds each
+ * stored sample as it is stored (the default); 'refresh' recomputes the touched hours from the stored
+ * samples at the end — the plain twin, kept for the tests that compare the two.
+ */
+export const HOURLY_MODE: { current: 'incremental' | 'refresh' } = { current: 'incremental' };
+
+/**
+ * Rows written per INSERT statement when their key is known to be new (later in time than every
+ * sample of their counter in this file and every sample stored before at their location); other rows
+ * go one by one, so that a duplicate is found and counted. `BATCH_MODE.rows = 1` is the plain
+ * row-by-row twin the tests compare against.
+ */
+export const BATCH_MODE = { rows: 64 };
 
 // ——— channels ———
 
@@ -597,6 +612,33 @@ export const counterSamples: ImportKind = {
          flags, room_state, import_id, line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
        ON CONFLICT (location, start_ms, counter, duration_ms) DO NOTHING`,
     );
+    const batchRows = Math.max(1, Math.floor(BATCH_MODE.rows));
+    const rowSql = '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)';
+    // No ON CONFLICT: a batched key is new by construction, so a conflict is a fault and fails loudly.
+    const insertMany =
+      batchRows > 1
+        ? db.prepare(
+            `INSERT INTO counter_samples (location, start_ms, counter, duration_ms, volume_m3, channel_set, counts,
+               flags, room_state, import_id, line) VALUES ${Array(batchRows).fill(rowSql).join(', ')}`,
+          )
+        : null;
+    const insertOne = db.prepare(
+      `INSERT INTO counter_samples (location, start_ms, counter, duration_ms, volume_m3, channel_set, counts,
+         flags, room_state, import_id, line) VALUES ${rowSql}`,
+    );
+    const pending: unknown[] = [];
+    let pendingRows = 0;
+    /** Writes the rows waiting for a full batch (before any statement that must see them). */
+    const flushPending = () => {
+      if (pendingRows === 0) return;
+      if (pendingRows === batchRows && insertMany) insertMany.run(pending);
+      else for (let i = 0; i < pendingRows; i++) insertOne.run(pending.slice(i * 11, i * 11 + 11));
+      pending.length = 0;
+      pendingRows = 0;
+    };
+    // Per location row id: the latest sample start stored before this file (−∞ when none).
+    const storedMax = db.prepare('SELECT max(start_ms) FROM counter_samples WHERE location = ?').pluck();
+    const latestBefore = new Map<number, number>();
     const existing = db.prepare(
       'SELECT import_id, counts, channel_set FROM counter_samples WHERE location = ? AND start_ms = ? AND counter = ? AND duration_ms = ?',
     );
@@ -627,6 +669,9 @@ export const counterSamples: ImportKind = {
     let unitSuspectExample = '';
     // Per location row id: the earliest and latest sample start stored, for the hourly aggregates.
     const touched = new Map<number, { from: number; to: number }>();
+    const hourly = HOURLY_MODE.current === 'incremental' ? new HourlyAccumulator(db) : null;
+    const sizesNm = sorted.map((x) => Math.round(x.c.lowM * 1e9));
+    const ge = new Float64Array(k);
 
     const seriesOf = (loc: number, counter: number): Series => {
       const key = loc * 1048576 + counter;
@@ -677,7 +722,9 @@ export const counterSamples: ImportKind = {
         if (w.dt > QUALITY.gapFactor * s.typical) {
           s.gaps++;
           s.longestGapMs = Math.max(s.longestGapMs, w.dt);
+          flushPending();
           orFlagsAt.run(SAMPLE_FLAGS.gapBefore, loc, counter, w.start, importId);
+          hourly?.changed(loc, w.start, w.start);
         }
       }
       s.warm = [];
@@ -815,36 +862,71 @@ export const counterSamples: ImportKind = {
         const roomCode = row.room_state
           ? ROOM_STATE_CODE[row.room_state as (typeof ROOM_STATES)[number]]
           : defaultRoom;
-        const res = insert.run(
-          loc,
-          start,
-          counter,
-          durationMs,
-          volumeM3,
-          setId,
-          countsBuf,
-          flags,
-          roomCode,
-          importId,
-          line,
-        );
-        if (res.changes === 0) {
-          const prior = existing.get(loc, start, counter, durationMs) as
-            | { import_id: number; counts: Buffer; channel_set: number }
-            | undefined;
-          if (prior && prior.import_id === importId) tally.dupWithinFile++;
-          if (prior && prior.channel_set === setId && Buffer.compare(prior.counts, countsBuf) === 0)
-            tally.dupSame++;
-          else tally.dupConflict++;
-          return 'duplicate';
+        let before = latestBefore.get(loc);
+        if (before === undefined) {
+          before = (storedMax.get(loc) as number | null) ?? Number.NEGATIVE_INFINITY;
+          latestBefore.set(loc, before);
+        }
+        if (insertMany && start > s.lastStart && start > before) {
+          // A new key: (location, counter) later than any row of this file or stored before.
+          pending.push(
+            loc,
+            start,
+            counter,
+            durationMs,
+            volumeM3,
+            setId,
+            Buffer.from(countsBuf),
+            flags,
+            roomCode,
+            importId,
+            line,
+          );
+          if (++pendingRows === batchRows) flushPending();
+        } else {
+          flushPending();
+          const res = insert.run(
+            loc,
+            start,
+            counter,
+            durationMs,
+            volumeM3,
+            setId,
+            countsBuf,
+            flags,
+            roomCode,
+            importId,
+            line,
+          );
+          if (res.changes === 0) {
+            const prior = existing.get(loc, start, counter, durationMs) as
+              | { import_id: number; counts: Buffer; channel_set: number }
+              | undefined;
+            if (prior && prior.import_id === importId) tally.dupWithinFile++;
+            if (prior && prior.channel_set === setId && Buffer.compare(prior.counts, countsBuf) === 0)
+              tally.dupSame++;
+            else tally.dupConflict++;
+            return 'duplicate';
+          }
         }
 
-        // Stored: update the series state and tallies.
-        const span = touched.get(loc);
-        if (!span) touched.set(loc, { from: start, to: start });
-        else {
-          if (start < span.from) span.from = start;
-          if (start > span.to) span.to = start;
+        // Stored: the hourly aggregates, the series state and tallies.
+        if (hourly) {
+          if (differential) {
+            let acc = 0;
+            for (let i = k - 1; i >= 0; i--) {
+              acc += counts[i]!;
+              ge[i] = acc;
+            }
+            hourly.add(loc, sizesNm, start, durationMs, volumeM3, ge, flags, roomCode);
+          } else hourly.add(loc, sizesNm, start, durationMs, volumeM3, counts, flags, roomCode);
+        } else {
+          const span = touched.get(loc);
+          if (!span) touched.set(loc, { from: start, to: start });
+          else {
+            if (start < span.from) span.from = start;
+            if (start > span.to) span.to = start;
+          }
         }
         if (flags & SAMPLE_FLAGS.fault) tally.fault++;
         if (flags & SAMPLE_FLAGS.statusOverload) tally.overload++;
@@ -873,7 +955,9 @@ export const counterSamples: ImportKind = {
           s.zero.n++;
           if (!s.zero.flagged && s.zero.volume >= QUALITY.zeroRunMinVolumeM3) {
             s.zero.flagged = true;
+            flushPending();
             orFlags.run(SAMPLE_FLAGS.zeroRun, loc, counter, s.zero.from, start, importId);
+            hourly?.changed(loc, s.zero.from, start);
           }
         } else if (s.zero) closeZeroRun(s);
         // Repeated identical rows.
@@ -883,7 +967,9 @@ export const counterSamples: ImportKind = {
           r.n++;
           r.to = start;
           if (r.n === QUALITY.repeatRun) {
+            flushPending();
             orFlags.run(SAMPLE_FLAGS.sentinel, loc, counter, r.from, start, importId);
+            hourly?.changed(loc, r.from, start);
             tally.sentinel += r.n;
           } else if (r.n > QUALITY.repeatRun) tally.sentinel++;
         } else {
@@ -898,6 +984,7 @@ export const counterSamples: ImportKind = {
         return 'stored';
       },
       finish() {
+        flushPending();
         const flags: ImportFlag[] = [];
         let gaps = 0;
         let longest = 0;
@@ -912,7 +999,8 @@ export const counterSamples: ImportKind = {
         }
         // The hourly aggregates of every hour this file stored a sample in, after the last flag
         // update above, in the file's transaction (a rejected file rolls them back with the samples).
-        for (const [loc, span] of touched) refreshCounterHourly(db, loc, span.from, span.to);
+        if (hourly) hourly.finish();
+        else for (const [loc, span] of touched) refreshCounterHourly(db, loc, span.from, span.to);
         const add = (code: string, count: number, detail: string) => {
           if (count > 0) flags.push({ code, count, detail });
         };
