@@ -37,7 +37,7 @@ export function fmtSolverValue(v: number | null, unit: SolverResult['unit']): st
     case 'passes':
       return `${v} extra pass${v === 1 ? '' : 'es'}`;
     case 'class':
-      return `ISO class ${v.toFixed(2)}`;
+      return `ISO class ${v.toFixed(1)}`;
   }
 }
 

@@ -41,14 +41,14 @@ function valueWords(r: SolverResult, x: number): string {
     case 'passes':
       return `${x} pass(es)`;
     case 'class':
-      return `ISO class ${x.toFixed(2)}`;
+      return `ISO class ${x.toFixed(1)}`;
   }
 }
 
 /** A difference in the solver's unit (the margin). */
 function marginWords(r: SolverResult, d: number): string {
   const sign = d >= 0 ? '+' : '−';
-  if (r.unit === 'class') return `${sign}${Math.abs(d).toFixed(2)} class`;
+  if (r.unit === 'class') return `${sign}${Math.abs(d).toFixed(1)} class`;
   if (r.unit === 'passes') return `${sign}${Math.abs(d)} pass(es)`;
   if (r.unit === 'fraction') return `${sign}${(Math.abs(d) * 100).toFixed(1)} percentage points`;
   return `${sign}${valueWords(r, Math.abs(d))}`;

@@ -42,6 +42,11 @@ interface Search {
   favourable: 'lo' | 'hi';
   /** Tolerance on u. */
   tolerance: number;
+  /**
+   * When set, u is searched on the multiples of this step only (bisection over whole steps, the
+   * tolerance being the step): for a quantity with permitted increments, such as an ISO class.
+   */
+  grid?: number;
   levers: (x: number) => Lever[];
   toX?: (u: number) => number;
   /** Words for a value in the unit. */
@@ -104,7 +109,9 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
     const f = run(u);
     return f.withinSpec ? Math.max(f.margin, 1e-12) : Math.min(f.margin, -1e-12);
   };
-  const r = bisectRoot(g, s.lo, s.hi, { xTolerance: s.tolerance, maxIterations: 200 });
+  const r = s.grid
+    ? gridBisect(g, s.lo, s.hi, s.grid)
+    : bisectRoot(g, s.lo, s.hi, { xTolerance: s.tolerance, maxIterations: 200 });
   const a = run(r.root);
   const b = run(r.other);
   const [okU, okF, pastF] = a.withinSpec ? [r.root, a, b.withinSpec ? null : b] : [r.other, b, a];
@@ -119,6 +126,29 @@ function solve(ctx: WhatIfContext, s: Search): SolverResult {
     forward: { atAnswer: strip(okF), pastAnswer: pastF ? strip(pastF) : null },
     message: `${s.question}: ${s.words(value)}${s.current === null ? '' : ` (as is: ${s.words(s.current)})`}, to within ${tolWords(okU)}.`,
   };
+}
+
+/**
+ * Bisection over the multiples of `step` between lo and hi (both multiples, g of opposite signs at
+ * them): ends at two neighbouring multiples with g of opposite signs, after ⌈log2((hi − lo)/step)⌉
+ * evaluations. `root` is the end on lo's side of the sign change, `other` the one on hi's.
+ */
+function gridBisect(
+  g: (u: number) => number,
+  lo: number,
+  hi: number,
+  step: number,
+): { root: number; other: number } {
+  const at = (k: number) => Number((k * step).toFixed(12));
+  let a = Math.round(lo / step);
+  let b = Math.round(hi / step);
+  const loSign = g(at(a)) > 0;
+  while (b - a > 1) {
+    const m = Math.floor((a + b) / 2);
+    if (g(at(m)) > 0 === loSign) a = m;
+    else b = m;
+  }
+  return { root: at(a), other: at(b) };
 }
 
 function strip(f: ReturnType<typeof forwardOf>): ForwardCheck {
@@ -340,8 +370,12 @@ export function solveExtraPasses(
   };
 }
 
-/** Tolerance of an ISO class (0.01 class: finer than the 0.1 steps ISO 14644-1 allows). */
-export const CLASS_TOLERANCE = 0.01;
+/**
+ * Step of an ISO class: 0.1, the smallest increment of N that ISO 14644-1:2015 permits for an
+ * intermediate class (from memory of the standard's clause on intermediate classes) — a finer
+ * answer could not be specified; the search runs on these steps only.
+ */
+export const CLASS_TOLERANCE = 0.1;
 
 /**
  * The highest (least clean) ISO 14644-1 class of an area that keeps the subject within spec, the air
@@ -367,7 +401,8 @@ export function solveAreaClass(
     hi: 9,
     favourable: 'lo',
     tolerance: CLASS_TOLERANCE,
+    grid: CLASS_TOLERANCE,
     levers: (x) => [{ kind: 'air', locationId, isoClass: x }],
-    words: (x) => `ISO class ${x.toFixed(2)}`,
+    words: (x) => `ISO class ${x.toFixed(1)}`,
   });
 }
