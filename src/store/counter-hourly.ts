@@ -49,25 +49,8 @@ function floorHour(ms: number): number {
   return ms - (((ms % HOUR_MS) + HOUR_MS) % HOUR_MS);
 }
 
-interface Acc {
-  diameterNm: number;
-  roomState: number;
-  hourMs: number;
-  n: number;
-  nUsable: number;
-  countSum: number;
-  volumeM3: number;
-  concSum: number;
-  maxPerM3: number | null;
-  minVolumeM3: number | null;
-  minDurationMs: number | null;
-  flags: number;
-  nFault: number;
-  nLowerBound: number;
-  nSentinel: number;
-  nZeroRun: number;
-  nGap: number;
-}
+/** One hour's running sums for one channel and room state: a stored row without its location. */
+type Acc = Omit<HourlyRow, 'locationId'>;
 
 /**
  * Recomputes the aggregates of one location (its row id in `locations`) for every hour that holds

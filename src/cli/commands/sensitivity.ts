@@ -5,17 +5,15 @@
 import { fmtCount } from '../../engine/format.ts';
 import { EngineInputError } from '../../engine/pair.ts';
 import {
-  openLotContext,
-  openPairContext,
   ScenarioError,
   type SensitivityResult,
   sensitivity as sensitivityOf,
-  type WhatIfContext,
 } from '../../engine/tuning/index.ts';
 import { parseOptions } from '../args.ts';
 import { type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting, parseAsOf } from './assess.ts';
 import { commandAsOf } from './whatif.ts';
+import { openSubjectContext } from './whatif-levers.ts';
 
 function table(rows: string[][]): string {
   const widths = rows[0]!.map((_, i) => Math.max(...rows.map((r) => (r[i] ?? '').length)));
@@ -91,16 +89,8 @@ export const sensitivity: Command = {
     }
     try {
       const asOfMs = commandAsOf(db, values['as-of'], 'sensitivity', io);
-      const ctx: WhatIfContext | null =
-        values.pair !== undefined
-          ? openPairContext(db, values.pair, { asOfMs, detail: 'summary' })
-          : openLotContext(db, values.lot!, { asOfMs });
-      if (!ctx) {
-        io.err(
-          `voidcast sensitivity: no ${values.pair !== undefined ? `pair "${values.pair}"` : `lot "${values.lot}"`}\n`,
-        );
-        return EXIT.notFound;
-      }
+      const ctx = openSubjectContext(db, values, asOfMs, 'sensitivity', io);
+      if (!ctx) return EXIT.notFound;
       const s = sensitivityOf(ctx);
       io.out(values.json ? `${JSON.stringify(s)}\n` : renderSensitivity(s));
       return EXIT.ok;

@@ -10,8 +10,6 @@ import { EngineInputError } from '../../engine/pair.ts';
 import {
   type ForwardCheck,
   hoursMinutes,
-  openLotContext,
-  openPairContext,
   ScenarioError,
   type SolverResult,
   solveAreaClass,
@@ -19,14 +17,13 @@ import {
   solveCleanRemoval,
   solveExtraPasses,
   solveLongestWait,
-  type WhatIfContext,
 } from '../../engine/tuning/index.ts';
 import { RECLEAN_CAUTION } from '../../engine/types.ts';
 import { parseOptions } from '../args.ts';
 import { type CliIo, type Command, EXIT, UsageError } from '../io.ts';
 import { openExisting, parseAsOf } from './assess.ts';
 import { commandAsOf } from './whatif.ts';
-import { parseDurationS, parseSizeM } from './whatif-levers.ts';
+import { openSubjectContext, parseDurationS, parseSizeM } from './whatif-levers.ts';
 
 const SOLVERS = ['longest-wait', 'clean-removal', 'extra-passes', 'area-class'] as const;
 
@@ -158,16 +155,8 @@ export const solve: Command = {
     }
     try {
       const asOfMs = commandAsOf(db, values['as-of'], 'solve', io);
-      const ctx: WhatIfContext | null =
-        values.pair !== undefined
-          ? openPairContext(db, values.pair, { asOfMs, detail: 'summary' })
-          : openLotContext(db, values.lot!, { asOfMs });
-      if (!ctx) {
-        io.err(
-          `voidcast solve: no ${values.pair !== undefined ? `pair "${values.pair}"` : `lot "${values.lot}"`}\n`,
-        );
-        return EXIT.notFound;
-      }
+      const ctx = openSubjectContext(db, values, asOfMs, 'solve', io);
+      if (!ctx) return EXIT.notFound;
       const r =
         which === 'longest-wait'
           ? solveLongestWait(ctx, values.at!, { basis, ...(tolS === undefined ? {} : { toleranceS: tolS }) })

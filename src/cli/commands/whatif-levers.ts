@@ -4,8 +4,10 @@
  * fraction or a percentage (0.9, 90%). Each option text becomes one lever (src/engine/tuning/types.ts);
  * a text that cannot be read is a UsageError naming the option and what it expected.
  */
+import { openLotContext, openPairContext, type WhatIfContext } from '../../engine/tuning/index.ts';
 import type { Lever } from '../../engine/tuning/types.ts';
-import { UsageError } from '../io.ts';
+import type { Db } from '../../store/db.ts';
+import { type CliIo, UsageError } from '../io.ts';
 
 function num(text: string, what: string): number {
   const t = text.trim();
@@ -189,3 +191,25 @@ export const LEVER_USAGE = `levers (repeat --clean, --wait, --air, --adders for 
   --threshold SIZE       the pre-bond scans' threshold (only a rise), nm unless a unit is given
   --params ID|typed      assess with stored parameter set ID, or with the typed values
   sizes: 60 or 60nm, 0.06um; durations need a unit (h, min, s); fractions 0.9 or 90%`;
+
+/**
+ * The what-if context of `--pair` or `--lot` (one of them given) at the assessment time, or null
+ * after telling that there is no such subject (the command then exits with "not found").
+ */
+export function openSubjectContext(
+  db: Db,
+  subject: { pair?: string; lot?: string },
+  asOfMs: number,
+  command: string,
+  io: CliIo,
+): WhatIfContext | null {
+  const ctx =
+    subject.pair !== undefined
+      ? openPairContext(db, subject.pair, { asOfMs, detail: 'summary' })
+      : openLotContext(db, subject.lot!, { asOfMs });
+  if (!ctx)
+    io.err(
+      `voidcast ${command}: no ${subject.pair !== undefined ? `pair "${subject.pair}"` : `lot "${subject.lot}"`}\n`,
+    );
+  return ctx;
+}
