@@ -192,7 +192,10 @@ async function main() {
   console.log(`results: ${file} (${fmt(report.seconds / 60, 1)} min)`);
   const mergeFrom = args.find((a) => a.startsWith('--merge='))?.slice('--merge='.length);
   if (mergeFrom && names.length > 0 && !args.includes('--no-docs')) {
-    writeDoc(merged(JSON.parse(readFileSync(mergeFrom, 'utf8')) as Report, report, names, quick));
+    // The merged report replaces the earlier one, so that later merges add to it.
+    const all = merged(JSON.parse(readFileSync(mergeFrom, 'utf8')) as Report, report, names, quick);
+    writeFileSync(mergeFrom, `${JSON.stringify(all, null, 2)}\n`);
+    writeDoc(all);
     console.log(`sections ${names.join(', ')} merged into ${mergeFrom}; tables written to ${DOC}`);
   } else if (names.length === 0 && !args.includes('--no-docs')) writeDoc(report);
 }
@@ -213,7 +216,7 @@ export function merged(base: Report, later: Report, names: string[], quick: bool
   return { ...base, sections };
 }
 
-function writeDoc(report: Report): void {
+export function writeDoc(report: Report): void {
   const doc = readFileSync(DOC, 'utf8');
   const a = doc.indexOf(BEGIN);
   const b = doc.indexOf(END);
