@@ -143,6 +143,9 @@ function askerKey(c: Context): string | null {
 export function keptPages(ctx: AppContext): MiddlewareHandler {
   return async function keptPages(c, next) {
     if (c.req.method !== 'GET') return next();
+    // Only the kept routes enter the store (routing is done before the middleware runs), so that
+    // other pages — a what-if with its levers in the query, say — take no room in it.
+    if (!matchedRoutes(c).some((r) => r.method === 'GET' && KEPT_ROUTES.has(r.path))) return next();
     const asker = askerKey(c);
     if (asker === null) return next();
     const api = c.req.path.startsWith('/api/');
@@ -163,11 +166,7 @@ export function keptPages(ctx: AppContext): MiddlewareHandler {
     const kept = await keptResultAsync<Kept | null>(ctx.db, key, async () => {
       rendered = true;
       await next();
-      if (
-        !matchedRoutes(c).some((r) => r.method === 'GET' && KEPT_ROUTES.has(r.path)) ||
-        c.res.status !== 200
-      )
-        return null;
+      if (c.res.status !== 200) return null;
       const contentType = c.res.headers.get('content-type') ?? '';
       if (!/^(text\/html|application\/json)/.test(contentType)) return null;
       const body = await c.res.text();

@@ -55,6 +55,16 @@ describe('kept answers', () => {
     expect(after.misses).toBe(before.misses);
   });
 
+  it('keeps nothing for a route that is not kept (a page of another kind takes no room in the store)', async () => {
+    const before = keptStats(db);
+    for (const q of ['a', 'b', 'c']) expect((await app.request(`/calculators?x=${q}`)).status).toBe(200);
+    expect((await app.request('/healthz')).status).toBe(200);
+    const after = keptStats(db);
+    // /calculators is kept, /healthz is not: three entries for the three URLs and none for /healthz
+    expect(after.entries - before.entries).toBe(3);
+    expect(after.misses - before.misses).toBe(3);
+  });
+
   it('computes afresh after an import changes the inputs (a later scan of a wafer of P-01)', async () => {
     const old = await pairJson();
     const gen = dataGeneration(db);
