@@ -39,6 +39,47 @@ function value(f: (x: number) => number, x: number): number {
   return y;
 }
 
+/** The arguments both root finders share, checked: the tolerance and iteration bound they resolve to. */
+function checkedBracket(
+  fn: string,
+  f: unknown,
+  a: number,
+  b: number,
+  options: BrentOptions,
+): { xTol: number; maxIt: number } {
+  if (typeof f !== 'function') throw new ModelInputError(fn, 'f', '', 'a function of one number', f);
+  requireNumber(fn, 'a', a, '');
+  requireNumber(fn, 'b', b, '');
+  if (a === b) throw new ModelInputError(fn, 'b', '', 'a bracket end different from a', b);
+  if (options === null || typeof options !== 'object')
+    throw new ModelInputError(fn, 'options', '', 'an object (or nothing)', options);
+  const xTol = requireNumber(
+    fn,
+    'options.xTolerance',
+    options.xTolerance ?? 1e-12 * Math.max(1, Math.abs(a), Math.abs(b)),
+    '',
+    { min: 0, minExclusive: true },
+  );
+  const maxIt = requireNumber(fn, 'options.maxIterations', options.maxIterations ?? 200, '', {
+    min: 1,
+    max: 10_000,
+    integer: true,
+  });
+  return { xTol, maxIt };
+}
+
+/** Refuses a bracket whose ends do not have values of opposite sign. */
+function requireOppositeSigns(fn: string, a: number, b: number, fa: number, fb: number): void {
+  if (fa > 0 === fb > 0)
+    throw new ModelInputError(
+      fn,
+      'f(a), f(b)',
+      '',
+      `values of opposite sign at the bracket ends (f(${a}) = ${fa}, f(${b}) = ${fb})`,
+      [fa, fb],
+    );
+}
+
 /**
  * Brent's root of f on the bracket [a, b].
  *
@@ -71,24 +112,7 @@ export function brentRoot(
   b: number,
   options: BrentOptions = {},
 ): BrentResult {
-  if (typeof f !== 'function') throw new ModelInputError(FN, 'f', '', 'a function of one number', f);
-  requireNumber(FN, 'a', a, '');
-  requireNumber(FN, 'b', b, '');
-  if (a === b) throw new ModelInputError(FN, 'b', '', 'a bracket end different from a', b);
-  if (options === null || typeof options !== 'object')
-    throw new ModelInputError(FN, 'options', '', 'an object (or nothing)', options);
-  const xTol = requireNumber(
-    FN,
-    'options.xTolerance',
-    options.xTolerance ?? 1e-12 * Math.max(1, Math.abs(a), Math.abs(b)),
-    '',
-    { min: 0, minExclusive: true },
-  );
-  const maxIt = requireNumber(FN, 'options.maxIterations', options.maxIterations ?? 200, '', {
-    min: 1,
-    max: 10_000,
-    integer: true,
-  });
+  const { xTol, maxIt } = checkedBracket(FN, f, a, b, options);
   let fa = value(f, a);
   let fb = value(f, b);
   let evaluations = 2;
@@ -102,14 +126,7 @@ export function brentRoot(
   });
   if (fa === 0) return done(a, a, 0, 0);
   if (fb === 0) return done(b, b, 0, 0);
-  if (fa > 0 === fb > 0)
-    throw new ModelInputError(
-      FN,
-      'f(a), f(b)',
-      '',
-      `values of opposite sign at the bracket ends (f(${a}) = ${fa}, f(${b}) = ${fb})`,
-      [fa, fb],
-    );
+  requireOppositeSigns(FN, a, b, fa, fb);
   let c = a;
   let fc = fa;
   let d = b - a;
@@ -207,24 +224,7 @@ export function bisectRoot(
   options: BrentOptions = {},
 ): BrentResult {
   const fn = 'bisectRoot';
-  if (typeof f !== 'function') throw new ModelInputError(fn, 'f', '', 'a function of one number', f);
-  requireNumber(fn, 'a', a, '');
-  requireNumber(fn, 'b', b, '');
-  if (a === b) throw new ModelInputError(fn, 'b', '', 'a bracket end different from a', b);
-  if (options === null || typeof options !== 'object')
-    throw new ModelInputError(fn, 'options', '', 'an object (or nothing)', options);
-  const xTol = requireNumber(
-    fn,
-    'options.xTolerance',
-    options.xTolerance ?? 1e-12 * Math.max(1, Math.abs(a), Math.abs(b)),
-    '',
-    { min: 0, minExclusive: true },
-  );
-  const maxIt = requireNumber(fn, 'options.maxIterations', options.maxIterations ?? 200, '', {
-    min: 1,
-    max: 10_000,
-    integer: true,
-  });
+  const { xTol, maxIt } = checkedBracket(fn, f, a, b, options);
   let fa = value(f, a);
   let fb = value(f, b);
   let evaluations = 2;
@@ -238,14 +238,7 @@ export function bisectRoot(
   });
   if (fa === 0) return done(a, a, 0, 0);
   if (fb === 0) return done(b, b, 0, 0);
-  if (fa > 0 === fb > 0)
-    throw new ModelInputError(
-      fn,
-      'f(a), f(b)',
-      '',
-      `values of opposite sign at the bracket ends (f(${a}) = ${fa}, f(${b}) = ${fb})`,
-      [fa, fb],
-    );
+  requireOppositeSigns(fn, a, b, fa, fb);
   for (let it = 0; it < maxIt; it++) {
     if (Math.abs(b - a) <= xTol) break;
     const m = a + (b - a) / 2;
