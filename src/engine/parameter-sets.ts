@@ -129,11 +129,17 @@ export function adoptParameterSetInDb(
   id: number,
   by: string,
   nowMs: number = Date.now(),
+  alsoKnownAs: readonly string[] = [],
 ): { changed: boolean; set: ParameterSet; previous: ParameterSet | null } | null {
   const name = typeof by === 'string' ? by.trim() : '';
   if (!name) throw new EngineInputError('by: the name of the person adopting the set is required.');
   const set = readParameterSet(db, id); // checks the values are usable before anyone depends on them
   if (!set) return null;
+  // A second person looks at every set: its proposer does not adopt it, under any of their names.
+  if (set.state === 'proposed' && isSamePerson(set.createdBy, [name, ...alsoKnownAs]))
+    throw new EngineInputError(
+      `parameter set ${id} was proposed by ${set.createdBy}: another person has to adopt it.`,
+    );
   const out = adoptParameterSet(db, id, name, nowMs);
   if (!out.ok) return null;
   return {
@@ -141,6 +147,13 @@ export function adoptParameterSetInDb(
     set: readParameterSet(db, id)!,
     previous: out.changed && out.previousId !== null ? readParameterSet(db, out.previousId) : null,
   };
+}
+
+/** Whether a recorded name is one of a person's names (trimmed, case and inner spaces ignored). */
+export function isSamePerson(recorded: string, names: readonly string[]): boolean {
+  const norm = (t: string) => t.trim().replace(/\s+/g, ' ').toLowerCase();
+  const r = norm(recorded);
+  return r !== '' && names.some((n) => norm(n) === r);
 }
 
 /** Goes back to the typed values (no set adopted) in one action; says which set it retired. */

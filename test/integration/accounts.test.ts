@@ -229,7 +229,9 @@ describe('roles', () => {
     const alice = await signIn(app, 'alice');
     const own = await alice.post(`/parameters/${setByAlice}/adopt`, {});
     expect(own.status).toBe(422);
-    expect(await own.text()).toContain('You proposed this set: another approver has to adopt it.');
+    expect(await own.text()).toContain(
+      `parameter set ${setByAlice} was proposed by alice: another person has to adopt it.`,
+    );
     // The same through htmx (the refusal swaps into the page with 200), and with a typed name that
     // is not hers: the account decides, and nothing is adopted or recorded as adopted.
     const swapped = await alice.post(
@@ -237,7 +239,9 @@ describe('roles', () => {
       { name: 'Bob Approver' },
       { 'HX-Request': 'true' },
     );
-    expect(await swapped.text()).toContain('You proposed this set: another approver has to adopt it.');
+    expect(await swapped.text()).toContain(
+      `parameter set ${setByAlice} was proposed by alice: another person has to adopt it.`,
+    );
     expect(adoptedParameterSetId(db)).toBeNull();
     expect(readAudit(db).some((e) => e.action === 'parameters.adopt')).toBe(false);
     const bob = await signIn(app, 'bob');
@@ -249,6 +253,30 @@ describe('roles', () => {
     });
     expect((await bob.post('/parameters/revert', {})).status).toBe(303);
     expect(adoptedParameterSetId(db)).toBeNull();
+  });
+
+  it('a set proposed under an approver’s display name (as the CLI records `--as NAME`) is hers too', async () => {
+    const r = proposeParameterSet(
+      db,
+      {
+        adders: {
+          'BOND-1/ALN': fittedAdders('BOND-1', 'ALN', { countAbove: 1, countLow: 0.7, countHigh: 1.4 }),
+        },
+      },
+      [],
+      'proposed from the command line',
+      '  alice  approver ',
+      Date.UTC(2025, 2, 4, 12, 0),
+    );
+    if (!r.ok) throw new Error(r.message);
+    const alice = await signIn(app, 'alice');
+    const own = await alice.post(`/parameters/${r.set.id}/adopt`, {});
+    expect(own.status).toBe(422);
+    expect(await own.text()).toContain(`parameter set ${r.set.id} was proposed by`);
+    expect(adoptedParameterSetId(db)).toBeNull();
+    const bob = await signIn(app, 'bob');
+    expect((await bob.post(`/parameters/${r.set.id}/adopt`, {})).status).toBe(303);
+    expect((await bob.post('/parameters/revert', {})).status).toBe(303);
   });
 
   it('an admin makes an account with a one-time password that must be changed at the first sign-in', async () => {

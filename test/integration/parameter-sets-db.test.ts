@@ -200,4 +200,18 @@ describe('parameter sets in the database', () => {
     expect(adoptParameterSetInDb(db, 999, 'E')).toBeNull();
     expect(() => adoptParameterSetInDb(db, a.set.id, ' ')).toThrow(/name of the person/);
   });
+
+  it('refuses a proposed set to its proposer, under any of their names, ignoring case and spacing', () => {
+    const p = proposeParameterSet(db, { adders: PARTS.adders }, [], 'p', 'R. Okafor');
+    if (!p.ok) throw new Error('not stored');
+    expect(() => adoptParameterSetInDb(db, p.set.id, ' r.  OKAFOR ')).toThrow(
+      `parameter set ${p.set.id} was proposed by R. Okafor: another person has to adopt it.`,
+    );
+    expect(() => adoptParameterSetInDb(db, p.set.id, 'rokafor', 1, ['R. Okafor'])).toThrow(/another person/);
+    expect(readParameterSets(db)[0]!.state).toBe('proposed');
+    expect(adoptParameterSetInDb(db, p.set.id, 'K. Ito')!.changed).toBe(true);
+    // Adopted once by another person, a retired set may come back by anyone's hand.
+    revertToTypedValuesInDb(db, 'K. Ito');
+    expect(adoptParameterSetInDb(db, p.set.id, 'R. Okafor')!.changed).toBe(true);
+  });
 });

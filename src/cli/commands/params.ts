@@ -5,6 +5,7 @@
  */
 import { fmtMean, fmtMm2, fmtPercent, fmtSize } from '../../engine/format.ts';
 import { typedCounterparts } from '../../engine/loader.ts';
+import { EngineInputError } from '../../engine/pair.ts';
 import { type ParameterEntry, parameterEntries, type QuantityUnit } from '../../engine/parameter-entries.ts';
 import type { ParameterSet } from '../../engine/parameter-set-types.ts';
 import {
@@ -31,7 +32,8 @@ const USAGE = `voidcast params list | show ID | adopt ID --as NAME | revert --as
   --data DIR    data directory holding voidcast.db (default $VOIDCAST_DATA, else ./data)
 
   exit codes: 0 done (also when nothing had to change), 2 usage (a missing id or --as, an unknown
-  action), 4 no database or no such set`;
+  action), 3 refused (the set's proposer cannot adopt it: another person does), 4 no database or
+  no such set`;
 
 function when(ms: number | null): string {
   return ms === null ? '—' : `${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
@@ -174,7 +176,15 @@ export const params: Command = {
         const id = parseId(arg);
         if (!values.as?.trim()) throw new UsageError('--as NAME is required: who adopts the set');
         return withDb(values.data, io, (db) => {
-          const r = adoptParameterSetInDb(db, id, values.as!);
+          let r: ReturnType<typeof adoptParameterSetInDb>;
+          try {
+            r = adoptParameterSetInDb(db, id, values.as!);
+          } catch (e) {
+            // The proposer adopting their own set, or values no longer usable: nothing changed.
+            if (!(e instanceof EngineInputError)) throw e;
+            io.err(`voidcast params: ${e.message}\n`);
+            return EXIT.rejected;
+          }
           if (!r) {
             io.err(`voidcast params: no parameter set ${id}\n`);
             return EXIT.notFound;

@@ -136,23 +136,12 @@ export function register(app: Hono, ctx: AppContext): void {
         { error: 'Your name: the name of the person adopting the set is required.' },
         refusedStatus(c),
       );
-    // An approver does not adopt what they proposed: a second person looks at every set.
-    const proposed = readParameterSet(ctx.db, id);
+    // An approver does not adopt what they proposed (under their username or display name): a
+    // second person looks at every set; adoptParameterSetInDb refuses it.
     const account = accountOf(c);
-    if (
-      account &&
-      proposed &&
-      proposed.createdBy.trim().toLowerCase() === account.user.username.toLowerCase()
-    )
-      return setPage(
-        c,
-        ctx,
-        id,
-        { error: 'You proposed this set: another approver has to adopt it.' },
-        refusedStatus(c),
-      );
+    const names = account ? [account.user.username, account.user.displayName] : [];
     try {
-      const r = adoptParameterSetInDb(ctx.db, id, name);
+      const r = adoptParameterSetInDb(ctx.db, id, name, Date.now(), names);
       if (!r) return notFound(c, ctx, `There is no parameter set ${id}.`);
       audit(c, ctx, 'parameters.adopt', `parameter set ${id}`, { setId: id }, name);
     } catch (e) {
