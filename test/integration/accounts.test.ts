@@ -213,15 +213,14 @@ describe('roles', () => {
     expect((await vera.post('/calibration/propose', { name: 'Vera', label: 'x' })).status).toBe(403);
     const emil = await signIn(app, 'emil');
     for (const path of ['/tools/propose', '/calibration/propose']) {
-      // The name field is left empty on purpose: signed in, the account names the proposer.
+      // The name field is left empty on purpose: signed in, the account names the proposer, so the
+      // refusal is not for a missing name. This small line has no fit to propose (422 with the reason);
+      // the demo line's proposal by an account is in learn-propose.test.ts.
       const res = await emil.post(path, { name: '', label: 'fits of the test line' });
-      expect([303, 422], path).toContain(res.status);
-      if (res.status === 303) {
-        const id = Number(/\/parameters\/(\d+)/.exec(res.headers.get('location') ?? '')![1]);
-        expect(
-          readAudit(db).find((e) => e.action === 'parameters.propose' && e.subject === `parameter set ${id}`),
-        ).toMatchObject({ actor: 'emil' });
-      } else expect(await res.text()).not.toContain('the name of the person proposing the set is required');
+      expect(res.status, path).toBe(422);
+      const text = await res.text();
+      expect(text).not.toContain('the name of the person proposing the set is required');
+      expect(text, path).toMatch(/nothing to propose|no value/i);
     }
   });
 

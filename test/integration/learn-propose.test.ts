@@ -26,8 +26,10 @@ import {
   revertToTypedValuesInDb,
 } from '../../src/engine/parameter-sets.ts';
 import { applyParameterValues, emptyParameterValues } from '../../src/engine/parameters.ts';
+import { readAudit } from '../../src/store/audit.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 import { createApp } from '../../src/web/app.ts';
+import { makeUser, signIn } from '../helpers/accounts.ts';
 
 const sorted = (o: object) => Object.keys(o).sort();
 
@@ -234,5 +236,31 @@ describe('the propose forms (Tools & cleans, Calibration): no script, CSRF field
     const strip = (v: object) => JSON.parse(JSON.stringify(v).replace(/"fittedAtMs":\d+/g, '"fittedAtMs":0'));
     expect(strip(set.values)).toEqual(strip(first.values));
     expect(set.notes).toEqual(first.notes);
+  });
+
+  it('signed in, the proposer is the account, whatever name is typed, and that account cannot adopt it', async () => {
+    const withAccounts = createApp({
+      db,
+      dataDir: '/tmp',
+      version: 'test',
+      log: () => {},
+      auth: { mode: 'accounts', sessionSecret: 'p'.repeat(43) },
+    });
+    await makeUser(db, 'emil', 'approver', 'Emil Engineer');
+    const emil = await signIn(withAccounts, 'emil');
+    const ok = await emil.post('/tools/propose', { name: 'Somebody Else', label: 'signed-in line fits' });
+    expect(ok.status).toBe(303);
+    const set = readParameterSets(db).find((x) => x.label === 'signed-in line fits')!;
+    expect(ok.headers.get('location')).toBe(`/parameters/${set.id}`);
+    expect(set.createdBy).toBe('emil');
+    expect(
+      readAudit(db).find((e) => e.action === 'parameters.propose' && e.subject === `parameter set ${set.id}`),
+    ).toMatchObject({ actor: 'emil', via: 'session' });
+    const own = await emil.post(`/parameters/${set.id}/adopt`, {});
+    expect(own.status).toBe(422);
+    expect(await own.text()).toContain(
+      `parameter set ${set.id} was proposed by emil: another person has to adopt it.`,
+    );
+    expect(readAdoptedParameterSet(db)).toBeNull();
   });
 });
