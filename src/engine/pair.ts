@@ -444,6 +444,9 @@ export function assessPairWithInputs(
   const physics = physicsOf(session, product, minVoidM);
 
   const windows = new Map<string, [number, number][]>();
+  // Doses already worked out for this pair, by location and interval: wafers that wait together
+  // (the two wafers of a pair, often) get the same dose object, and physics.deposition its spectrum.
+  const doses = new Map<string, ReturnType<ExposureLookup['dose']>>();
   const exposure: ExposureLookup = {
     dose(locationId, fromMs, toMs) {
       const ix = exposureIndexOf(session, locationId);
@@ -451,9 +454,14 @@ export function assessPairWithInputs(
       ws.push([fromMs, toMs]);
       windows.set(locationId, ws);
       if (!ix) return null;
+      const key = `${locationId}|${fromMs}|${toMs}`;
+      const hit = doses.get(key);
+      if (hit) return hit;
       const loc = line.locations[locationId];
       const limits = physics.classLimits(loc?.isoClass ?? null, ix.channelSizesM);
-      return { d: intervalDose(ix, fromMs, toMs, limits), channelSizesM: ix.channelSizesM };
+      const got = { d: intervalDose(ix, fromMs, toMs, limits), channelSizesM: ix.channelSizesM };
+      doses.set(key, got);
+      return got;
     },
   };
   const common = {
