@@ -474,9 +474,21 @@ export function assessPairWithInputs(
     bonderToolId: pair.bonderToolId,
     confidence: spec.confidence,
   };
+  // The detected particles' survivals live in the session's working arrays (see Scratch).
+  const scratch = session.scratch;
   const props: WaferPropagation[] = [
-    propagateWafer({ ...common, wafer: pair.top, role: 'top' }),
-    propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
+    propagateWafer({
+      ...common,
+      wafer: pair.top,
+      role: 'top',
+      survivalArray: (n) => scratch.f64('det-top', n, true),
+    }),
+    propagateWafer({
+      ...common,
+      wafer: pair.bottom,
+      role: 'bottom',
+      survivalArray: (n) => scratch.f64('det-bottom', n, true),
+    }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
   const unexplained = unexplainedContribution(pair, line, physics);
@@ -488,7 +500,11 @@ export function assessPairWithInputs(
   let after: Scenario | null = null;
   const rc = product.recleanCleanId ? line.cleans[product.recleanCleanId] : undefined;
   if (rc && (detail === 'full' || !asIs.pass)) {
-    const cs = cloneContributions(contributions);
+    const cs = cloneContributions(contributions, (x, c) => {
+      const out = scratch.f64(`det-${c.wafer}-reclean`, x.length, true);
+      out.set(x);
+      return out;
+    });
     applyClean(cs, rc, physics);
     const tool = findTool(line, rc.toolId, null);
     if (tool && physics.adderSpectrum(tool).some((v) => v > 0))
