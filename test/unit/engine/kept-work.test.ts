@@ -22,13 +22,13 @@ import {
   location,
   pair,
   product,
+  scan,
   someParticles,
   standardWafer,
   step,
   T0,
   tool,
   wafer,
-  scan,
 } from '../../helpers/engine-inputs.ts';
 
 const CH = [0.1e-6, 0.2e-6, 0.3e-6, 0.5e-6, 1e-6, 5e-6];
