@@ -14,7 +14,7 @@ import { insertDisposition, readDispositions } from '../store/dispositions.ts';
 import { getLocation } from '../store/locations.ts';
 import { listLots, readLot } from '../store/lots.ts';
 import { readProduct } from '../store/products.ts';
-import { latestScanBefore, scanInputOf } from '../store/scans.ts';
+import { latestScanBefore, listScansOfLot, type ScanHeader, scanInputOf } from '../store/scans.ts';
 import { installationClockMs } from '../store/settings.ts';
 import { findCleanFor, readCleans, readTools, type StoredClean, type StoredTool } from '../store/tools.ts';
 import { type AssessedInputs, describeInputsDiff } from './inputs-diff.ts';
@@ -181,6 +181,29 @@ function loadPairs(
   const products: Record<string, ProductInput> = {};
   const ledgerByLot = new Map<string, LedgerRow[]>();
   const windows = new Map<string, [number, number]>();
+  // The scan headers of each lot's wafers, read once per lot (by wafer, oldest first).
+  const scansByLot = new Map<string, Map<string, ScanHeader[]>>();
+  /**
+   * The latest scan of a wafer before endMs (the last imported of two at the same instant), as
+   * latestScanBefore finds it; a wafer of another lot than its pair's is looked up on its own.
+   */
+  const latestScan = (waferId: string, lotId: string, endMs: number): ScanHeader | null => {
+    let byWafer = scansByLot.get(lotId);
+    if (!byWafer) {
+      byWafer = new Map();
+      for (const h of listScansOfLot(db, lotId)) {
+        const list = byWafer.get(h.waferId);
+        if (list) list.push(h);
+        else byWafer.set(h.waferId, [h]);
+      }
+      scansByLot.set(lotId, byWafer);
+    }
+    const list = byWafer.get(waferId);
+    if (!list) return latestScanBefore(db, waferId, endMs);
+    let best: ScanHeader | null = null;
+    for (const h of list) if (h.timeMs < endMs) best = h; // oldest first: the last one before endMs
+    return best;
+  };
 
   const wafer = (waferId: string, lotId: string, endMs: number, withScan = true): WaferInput => {
     let rows = ledgerByLot.get(lotId);
@@ -214,7 +237,7 @@ function loadPairs(
         orientation: r.orientation,
       };
     });
-    const head = withScan ? latestScanBefore(db, waferId, endMs) : null;
+    const head = withScan ? latestScan(waferId, lotId, endMs) : null;
     const scan = head ? scanInputOf(db, head) : null;
     return { waferId, lotId, latestScan: scan, ledger, recleanCount };
   };

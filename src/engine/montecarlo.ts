@@ -547,10 +547,20 @@ export function simulate(args: {
   // An exact unexplained entry is the last one, after the bins' (index nExact).
   const nExactAll = nExact + (uxClass === 'exact' ? 1 : 0);
   const uxAcrit = ux && ev.dieCount > 0 ? physics.criticalArea(ux.radiusM) : 0;
-  // Per source, its density in the exact bins (× A_b: expected discs per pair).
-  const exactDens = new Float64Array(nSources * nExact); // row e: every source's density in exact bin e
+  // Per source, its density in the exact bins (× A_b: expected discs per pair): row s holds source
+  // s's density in every exact bin. Only the sources with a density in some exact bin are kept
+  // (`exactSources`): a draw sums f_s·D_se over s in ascending order, and a source whose D_se are
+  // all zero would add +0 to a sum of non-negative terms, which changes no bit of it.
+  const exactDens = new Float64Array(nSources * nExact);
+  const exactSources: number[] = [];
   sourceDens.forEach((d, si) => {
-    for (let e = 0; e < nExact; e++) exactDens[e * nSources + si] = d[exactBins[e]!]! * ab;
+    let any = false;
+    for (let e = 0; e < nExact; e++) {
+      const x = d[exactBins[e]!]! * ab;
+      exactDens[si * nExact + e] = x;
+      if (x !== 0) any = true;
+    }
+    if (any) exactSources.push(si);
   });
   const exponent = new ExponentSampler(
     ev.detectedCountBins,
@@ -638,10 +648,12 @@ export function simulate(args: {
       bigVar += f * sv[4 * s + 3]!;
     }
     const radii = grid.radii[gi]!;
-    for (let e = 0, row = 0; e < nExact; e++, row += nSources) {
-      let u = 0;
-      for (let s = 0; s < nSources; s++) u += factor[s]! * exactDens[row + s]!;
-      muExact[e] = u;
+    // μ_e = Σ_s f_s·D_se, accumulated source by source (the same additions, in the same order, for
+    // every bin as a per-bin loop over the sources)
+    muExact.fill(0, 0, nExact);
+    for (const s of exactSources) {
+      const f = factor[s]!;
+      for (let e = 0, o = s * nExact; e < nExact; e++, o++) muExact[e]! += f * exactDens[o]!;
     }
     let areaExact = exactAreas[gi];
     if (!areaExact) {

@@ -444,6 +444,9 @@ export function assessPairWithInputs(
   const physics = physicsOf(session, product, minVoidM);
 
   const windows = new Map<string, [number, number][]>();
+  // Doses already worked out for this pair, by location and interval: wafers that wait together
+  // (the two wafers of a pair, often) get the same dose object, and physics.deposition its spectrum.
+  const doses = new Map<string, ReturnType<ExposureLookup['dose']>>();
   const exposure: ExposureLookup = {
     dose(locationId, fromMs, toMs) {
       const ix = exposureIndexOf(session, locationId);
@@ -451,9 +454,14 @@ export function assessPairWithInputs(
       ws.push([fromMs, toMs]);
       windows.set(locationId, ws);
       if (!ix) return null;
+      const key = `${locationId}|${fromMs}|${toMs}`;
+      const hit = doses.get(key);
+      if (hit) return hit;
       const loc = line.locations[locationId];
       const limits = physics.classLimits(loc?.isoClass ?? null, ix.channelSizesM);
-      return { d: intervalDose(ix, fromMs, toMs, limits), channelSizesM: ix.channelSizesM };
+      const got = { d: intervalDose(ix, fromMs, toMs, limits), channelSizesM: ix.channelSizesM };
+      doses.set(key, got);
+      return got;
     },
   };
   const common = {
@@ -466,9 +474,21 @@ export function assessPairWithInputs(
     bonderToolId: pair.bonderToolId,
     confidence: spec.confidence,
   };
+  // The detected particles' survivals live in the session's working arrays (see Scratch).
+  const scratch = session.scratch;
   const props: WaferPropagation[] = [
-    propagateWafer({ ...common, wafer: pair.top, role: 'top' }),
-    propagateWafer({ ...common, wafer: pair.bottom, role: 'bottom' }),
+    propagateWafer({
+      ...common,
+      wafer: pair.top,
+      role: 'top',
+      survivalArray: (n) => scratch.f64('det-top', n, true),
+    }),
+    propagateWafer({
+      ...common,
+      wafer: pair.bottom,
+      role: 'bottom',
+      survivalArray: (n) => scratch.f64('det-bottom', n, true),
+    }),
   ];
   const contributions = [...props[0]!.contributions, ...props[1]!.contributions];
   const unexplained = unexplainedContribution(pair, line, physics);
@@ -480,7 +500,11 @@ export function assessPairWithInputs(
   let after: Scenario | null = null;
   const rc = product.recleanCleanId ? line.cleans[product.recleanCleanId] : undefined;
   if (rc && (detail === 'full' || !asIs.pass)) {
-    const cs = cloneContributions(contributions);
+    const cs = cloneContributions(contributions, (x, c) => {
+      const out = scratch.f64(`det-${c.wafer}-reclean`, x.length, true);
+      out.set(x);
+      return out;
+    });
     applyClean(cs, rc, physics);
     const tool = findTool(line, rc.toolId, null);
     if (tool && physics.adderSpectrum(tool).some((v) => v > 0))

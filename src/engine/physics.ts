@@ -198,6 +198,66 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     return out;
   };
 
+  const classLimitCache = new WeakMap<Float64Array, Map<number, Float64Array>>();
+  const depositionCache = new WeakMap<
+    Float64Array,
+    { key: string; channels: Float64Array; spectrum: Spectrum }[]
+  >();
+  const depositionOf = ({
+    channelSizesM,
+    dosePerChannel,
+    airVelocityMps,
+    orientation,
+    isolation,
+  }: Parameters<PropagationPhysics['deposition']>[0]): Spectrum => {
+    const n = channelSizesM.length;
+    if (n === 0) return zeroSpectrum();
+    const values: number[] = [];
+    for (let c = 0; c < n; c++)
+      values.push(Math.min(dosePerChannel[c]!, c > 0 ? values[c - 1]! : Number.POSITIVE_INFINITY));
+    if (!(values[0]! > 0)) return zeroSpectrum();
+    // Below the smallest channel: the first channel pair's slope, else ISO 14644-1's nominal 2.08.
+    const belowSlope =
+      n >= 2 && values[1]! > 0
+        ? Math.min(
+            Math.max(Math.log(values[0]! / values[1]!) / Math.log(channelSizesM[1]! / channelSizesM[0]!), 0),
+            10,
+          )
+        : ISO_NOMINAL_SLOPE;
+    const d0 = channelSizesM[0]!;
+    const dose = spectrumFromChannels({
+      channelsM: Array.from(channelSizesM),
+      values,
+      mode: 'cumulative',
+      ...(floor < d0 ? { belowSlope, floorM: floor } : {}),
+    }).spectrum;
+    const vkey = `${airVelocityMps}|${orientation}`;
+    let v = velocityCache.get(vkey);
+    if (!v) {
+      v = new Float64Array(SPECTRUM_BIN_COUNT);
+      const fixed = cfg.fixedDepositionVelocityMps;
+      for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)
+        v[k] =
+          fixed !== null
+            ? fixed
+            : depositionVelocity(SPECTRUM_CENTRES_M[k]!, {
+                orientation: ORIENTATION[orientation],
+                downflowMps: airVelocityMps,
+                waferDiameterM: product.waferDiameterM,
+                densityKgM3: cfg.particleDensityKgM3,
+                electrostaticFactor: cfg.depositionFactor,
+              });
+      velocityCache.set(vkey, v);
+    }
+    const vel = v;
+    return depositDuringExposure({
+      airborneDoseM3s: dose,
+      areaM2: waferAreaM2,
+      isolationFactor: Math.max(isolation, 1),
+      velocity: (d) => vel[binOf(d)]!,
+    });
+  };
+
   const physics: Omit<ProductPhysics, 'radiiNominal' | 'reportableNominalM' | 'gridPhysics'> = {
     waferAreaM2,
     bondedAreaM2,
@@ -271,56 +331,21 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
       }),
     incomingSpectrum: (p) => level(p.incoming),
     binCounts: (d) => Float64Array.from(sizeIndexOf(d).counts),
-    deposition({ channelSizesM, dosePerChannel, airVelocityMps, orientation, isolation }) {
-      const n = channelSizesM.length;
-      if (n === 0) return zeroSpectrum();
-      const values: number[] = [];
-      for (let c = 0; c < n; c++)
-        values.push(Math.min(dosePerChannel[c]!, c > 0 ? values[c - 1]! : Number.POSITIVE_INFINITY));
-      if (!(values[0]! > 0)) return zeroSpectrum();
-      // Below the smallest channel: the first channel pair's slope, else ISO 14644-1's nominal 2.08.
-      const belowSlope =
-        n >= 2 && values[1]! > 0
-          ? Math.min(
-              Math.max(
-                Math.log(values[0]! / values[1]!) / Math.log(channelSizesM[1]! / channelSizesM[0]!),
-                0,
-              ),
-              10,
-            )
-          : ISO_NOMINAL_SLOPE;
-      const d0 = channelSizesM[0]!;
-      const dose = spectrumFromChannels({
-        channelsM: Array.from(channelSizesM),
-        values,
-        mode: 'cumulative',
-        ...(floor < d0 ? { belowSlope, floorM: floor } : {}),
-      }).spectrum;
-      const vkey = `${airVelocityMps}|${orientation}`;
-      let v = velocityCache.get(vkey);
-      if (!v) {
-        v = new Float64Array(SPECTRUM_BIN_COUNT);
-        const fixed = cfg.fixedDepositionVelocityMps;
-        for (let k = 0; k < SPECTRUM_BIN_COUNT; k++)
-          v[k] =
-            fixed !== null
-              ? fixed
-              : depositionVelocity(SPECTRUM_CENTRES_M[k]!, {
-                  orientation: ORIENTATION[orientation],
-                  downflowMps: airVelocityMps,
-                  waferDiameterM: product.waferDiameterM,
-                  densityKgM3: cfg.particleDensityKgM3,
-                  electrostaticFactor: cfg.depositionFactor,
-                });
-        velocityCache.set(vkey, v);
+    deposition(args) {
+      // The same dose (one object: pair.ts hands both wafers of a pair that waited together the
+      // same one) under the same conditions deposits the same spectrum; a copy of it is returned.
+      const { channelSizesM, dosePerChannel, airVelocityMps, orientation, isolation } = args;
+      const key = `${airVelocityMps}|${orientation}|${isolation}`;
+      let kept = depositionCache.get(dosePerChannel);
+      if (!kept) {
+        kept = [];
+        depositionCache.set(dosePerChannel, kept);
       }
-      const vel = v;
-      return depositDuringExposure({
-        airborneDoseM3s: dose,
-        areaM2: waferAreaM2,
-        isolationFactor: Math.max(isolation, 1),
-        velocity: (d) => vel[binOf(d)]!,
-      });
+      const hit = kept.find((e) => e.key === key && e.channels === channelSizesM);
+      if (hit) return Float64Array.from(hit.spectrum);
+      const spectrum = depositionOf(args);
+      kept.push({ key, channels: channelSizesM, spectrum });
+      return Float64Array.from(spectrum);
     },
     hill(sizes, thresholdM, confidence) {
       // The fit depends on the sizes only through n and S = Σ (ln x − ln x_m), summed from the
@@ -341,10 +366,19 @@ function buildUncached(product: ProductInput, cfg: AssessConfig, minVoidM: numbe
     },
     classLimits(isoClass, channels) {
       if (isoClass === null) return null;
+      // kept per channel-size array (a location's exposure index) and class; callers only read it
+      let byClass = classLimitCache.get(channels);
+      if (!byClass) {
+        byClass = new Map();
+        classLimitCache.set(channels, byClass);
+      }
+      const hit = byClass.get(isoClass);
+      if (hit) return hit;
       const out = new Float64Array(channels.length);
       // ISO 14644-1 defines limits for 0.1–5 µm; outside, the nearest defined size (5 µm over-states larger sizes).
       for (let c = 0; c < channels.length; c++)
         out[c] = isoClassLimit(isoClass, Math.min(Math.max(channels[c]!, 0.1e-6), 5e-6));
+      byClass.set(isoClass, out);
       return out;
     },
   };

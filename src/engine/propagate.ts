@@ -208,6 +208,11 @@ export interface PropagateArgs {
   /** The pair's bonder (its adders apply once when the ledger has no bond step). */
   bonderToolId: string | null;
   confidence: number;
+  /**
+   * Where the detected particles' survivals are kept (n values, written here before any is read):
+   * a caller that assesses many wafers in turn hands out working arrays it reuses; default new ones.
+   */
+  survivalArray?: (n: number) => Float64Array;
 }
 
 /** Propagates one wafer from its scan (or incoming level) through its ledger to bonding. */
@@ -229,7 +234,7 @@ export function propagateWafer(a: PropagateArgs): WaferPropagation {
       xM: p.xM,
       yM: p.yM,
       diameterM: p.diameterM,
-      survival: new Float64Array(p.count).fill(1),
+      survival: (a.survivalArray ? a.survivalArray(p.count) : new Float64Array(p.count)).fill(1),
     };
     contributions.push({
       key: `${role}:detected`,
@@ -537,13 +542,19 @@ export function applyClean(
   }
 }
 
-/** A deep copy of contributions (a re-clean scenario must not touch the as-is state). */
-export function cloneContributions(cs: Contribution[]): Contribution[] {
+/**
+ * A deep copy of contributions (a re-clean scenario must not touch the as-is state). `copy`, when
+ * given, makes the copy of a detected contribution's survivals (into a reused working array, say).
+ */
+export function cloneContributions(
+  cs: Contribution[],
+  copy: (survival: Float64Array, c: Contribution) => Float64Array = (x) => Float64Array.from(x),
+): Contribution[] {
   return cs.map((c) => ({
     ...c,
     base: Float64Array.from(c.base),
     survivalBins: Float64Array.from(c.survivalBins),
-    detected: c.detected ? { ...c.detected, survival: Float64Array.from(c.detected.survival) } : null,
+    detected: c.detected ? { ...c.detected, survival: copy(c.detected.survival, c) } : null,
   }));
 }
 
