@@ -116,6 +116,17 @@ function shiftScanned(v: number, digits: number): number {
   return (scanNeg ? -scanM : scanM) / POW10[q]!;
 }
 
+/**
+ * The fast path's reading of one number cell: its value and that value shifted by `digits` decimal
+ * places, or null when the text is not a plain decimal it takes (the plain path reads it then).
+ * Exported for the agreement test with Number() and shiftDecimal.
+ */
+export function readPlainDecimal(s: string, digits: number): { value: number; shifted: number } | null {
+  if (!scanDecimal(s)) return null;
+  const value = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
+  return { value, shifted: shiftScanned(value, digits) };
+}
+
 /** True when the raw cell holds no whitespace at its ends that trim() would remove (ASCII edges). */
 function plainEdges(s: string): boolean {
   const a = s.charCodeAt(0);
