@@ -37,7 +37,8 @@ export interface ScanBuild {
   repeated: number;
 }
 
-const FIRST_CAPACITY = 256;
+/** Defects a scan has room for before its arrays first double (a typical pre-bond scan has hundreds to tens of thousands). */
+const FIRST_CAPACITY = 1024;
 
 export function newBuild(
   scanId: string,
@@ -76,8 +77,14 @@ export function newBuild(
   };
 }
 
-function grown<T extends Float64Array | Uint8Array>(a: T, n: number): T {
-  const out = new (a.constructor as new (n: number) => T)(n);
+function grownF64(a: Float64Array, n: number): Float64Array<ArrayBuffer> {
+  const out = new Float64Array(n);
+  out.set(a);
+  return out;
+}
+
+function grownU8(a: Uint8Array, n: number): Uint8Array<ArrayBuffer> {
+  const out = new Uint8Array(n);
   out.set(a);
   return out;
 }
@@ -102,10 +109,10 @@ export function pushDefect(
   const i = b.count;
   if (i === b.x.length) {
     const n = i * 2;
-    b.x = grown(b.x, n);
-    b.y = grown(b.y, n);
-    b.d = grown(b.d, n);
-    b.c = grown(b.c, n);
+    b.x = grownF64(b.x, n);
+    b.y = grownF64(b.y, n);
+    b.d = grownF64(b.d, n);
+    b.c = grownU8(b.c, n);
   }
   b.x[i] = xM;
   b.y[i] = yM;
@@ -160,7 +167,7 @@ export class DefectKeySet {
       at = (at + 1) & mask;
     }
     const n = this.size;
-    if (3 * n === keys.length) this.keys = grown(keys, 6 * n);
+    if (3 * n === keys.length) this.keys = grownF64(keys, 6 * n);
     this.keys[3 * n] = a;
     this.keys[3 * n + 1] = b;
     this.keys[3 * n + 2] = c;
