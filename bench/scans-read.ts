@@ -175,7 +175,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
           why:
             worst <= 2
               ? undefined
-              : 'validation (zod per record), unit normalisation, hashing and packing cost more than the parse; not changed here',
+              : 'the import reads with the same parser as the baseline and then checks, maps and packs every defect; the file is also hashed twice (before the import and while it is read); see the remarks in docs/performance.md',
         },
       ],
     };

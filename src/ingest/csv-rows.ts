@@ -112,13 +112,14 @@ export function startCsv(
 
 /**
  * Reads every row of a started CSV file through the cell plan, handing each to `onRow` (its parsed
- * cells or its issues). Returns false when the file cannot be read on (a CSV problem, added as an issue).
+ * cells or its issues), unless `rawRow` took it first (see KindSession.rawRow). Returns false when the file cannot be read on (a CSV problem, added as an issue).
  */
 export function readRows(
   reader: CsvReader,
   start: CsvStart,
   addIssue: (i: KindIssue) => void,
   onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
+  rawRow?: (cells: readonly string[], line: number) => boolean,
 ): boolean {
   for (;;) {
     let batch: ReturnType<CsvReader['nextBatch']>;
@@ -136,6 +137,15 @@ export function readRows(
     for (let r = 0; r < rows.length; r++) {
       const cells = rows[r]!;
       const line = lines[r]!;
+      // A kind's fast path on the raw cells (KindSession.rawRow): rows as wide as the header, while
+      // numbers take a decimal point.
+      if (
+        rawRow !== undefined &&
+        cells.length === start.width &&
+        start.decimal.mode === '.' &&
+        rawRow(cells, line)
+      )
+        continue;
       onRow(parseRow(cells, line, start.slots, start.width, start.decimal), line, cells);
     }
   }

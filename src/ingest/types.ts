@@ -228,6 +228,14 @@ export interface KindSession {
     cells: readonly string[],
   ) => undefined | 'stored' | 'duplicate' | KindIssue[];
   /**
+   * Optional fast path for the common row, tried on the raw cells (as the CSV reader returns them,
+   * untrimmed) before the cell plan, for rows with as many cells as the header row while the file's
+   * decimal separator is a point. Returns true when
+   * it stored the row exactly as `row` would have; false to leave the row to the cell plan and `row`
+   * (it must then have changed nothing). A test keeps it equal to the plain path.
+   */
+  rawRow?: (cells: readonly string[], line: number) => boolean;
+  /**
    * After the last row: file-level checks (references between rows, cycles) and the flag summary.
    * Issues returned here reject the file (even with acceptValidRows).
    */
