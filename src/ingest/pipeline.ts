@@ -241,21 +241,27 @@ function runInTransaction(
   if (!session) return;
 
   // 3. Rows.
-  const readOn = readRows(reader, start, addIssue, (parsed, line, cells) => {
-    report.rowsRead++;
-    if (Array.isArray(parsed)) {
-      report.rowsRejected++;
-      for (const i of parsed) addIssue(i);
-      return;
-    }
-    const out = session.row(parsed, line, cells);
-    if (out === undefined || out === 'stored') report.rowsStored++;
-    else if (out === 'duplicate') report.duplicates++;
-    else {
-      report.rowsRejected++;
-      for (const i of out) addIssue(i);
-    }
-  });
+  const readOn = readRows(
+    reader,
+    start,
+    addIssue,
+    (parsed, line, cells) => {
+      report.rowsRead++;
+      if (Array.isArray(parsed)) {
+        report.rowsRejected++;
+        for (const i of parsed) addIssue(i);
+        return;
+      }
+      const out = session.row(parsed, line, cells);
+      if (out === undefined || out === 'stored') report.rowsStored++;
+      else if (out === 'duplicate') report.duplicates++;
+      else {
+        report.rowsRejected++;
+        for (const i of out) addIssue(i);
+      }
+    },
+    kind.plainRows !== true,
+  );
   if (decimal.note) report.notes.push(decimal.note);
   dialect.decimal = decimal.mode === ',' ? ',' : '.';
   dialect.decimalSource = decimal.source;

@@ -106,6 +106,7 @@ export const counterSamples: ImportKind = {
   columns: COUNTER_COLUMNS,
   patternColumns: [CHANNEL_COLUMNS],
   metadata: COUNTER_METADATA,
+  plainRows: true,
   begin(ctx): KindSession | KindIssue[] {
     const issues: KindIssue[] = [];
     const has = (name: string) => ctx.header.some((h) => h.spec?.name === name);
