@@ -17,6 +17,7 @@ import { createHash } from 'node:crypto';
 import { createReadStream, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Db } from '../store/db.ts';
+import { withOwnKeyChecks } from '../store/key-checks.ts';
 import { writeTransaction } from '../store/writer.ts';
 import { type ByteSource, CsvReader, fileSource } from './csv.ts';
 import { readRows, startCsv } from './csv-rows.ts';
@@ -147,8 +148,11 @@ export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions
     onProgress: (bytesRead, bytesTotal) =>
       opts.onProgress?.({ bytesRead, bytesTotal, rows: report.rowsRead }),
   });
+  // A kind that checks every foreign key itself (once per distinct key) spares SQLite's per-row look-ups.
+  const write = (body: () => void) =>
+    kind.ownKeyChecks ? withOwnKeyChecks(db, () => writeTransaction(db, body)) : writeTransaction(db, body);
   try {
-    writeTransaction(db, () => {
+    write(() => {
       runInTransaction(db, kind, reader, report, addIssue, now, opts.acceptValidRows === true);
       if (report.status === 'rejected') {
         finishIssues();

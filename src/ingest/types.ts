@@ -261,6 +261,12 @@ export interface ImportKind {
    * lines without building them (src/ingest/csv-rows.ts, the plain reader).
    */
   plainRows?: boolean;
+  /**
+   * The kind resolves every foreign key of the rows it writes itself, inside the transaction (each
+   * parent looked up or written once per distinct key): SQLite's per-row checks are then set aside for
+   * the file's transaction (src/store/key-checks.ts).
+   */
+  ownKeyChecks?: boolean;
 }
 
 /** What a configuration kind does with a whole file (inside the import's transaction). */

@@ -107,6 +107,9 @@ export const counterSamples: ImportKind = {
   patternColumns: [CHANNEL_COLUMNS],
   metadata: COUNTER_METADATA,
   plainRows: true,
+  // location and counter resolved by name (a location must exist), the channel set and the import
+  // row written by this import: counter-session.ts and counter-sample-writer.ts.
+  ownKeyChecks: true,
   begin(ctx): KindSession | KindIssue[] {
     const issues: KindIssue[] = [];
     const has = (name: string) => ctx.header.some((h) => h.spec?.name === name);
