@@ -5,7 +5,7 @@
  * parsed row to the kind; readCsvSource runs it alone (the property tests use it at volume).
  */
 import { CELL_FAIL } from './cells.ts';
-import { type ByteSource, CsvReadError, CsvReader } from './csv.ts';
+import { type ByteSource, CsvReadError, CsvReader, isBlank } from './csv.ts';
 import { matchHeader } from './header.ts';
 import { parseMetadata } from './metadata.ts';
 import type {
@@ -111,8 +111,23 @@ export function startCsv(
 }
 
 /**
+ * The plain reader (readPlainLines) on or off. On by default; the tests turn it off to compare with
+ * the general path (papaparse, then parseRow), its plain twin.
+ */
+export const PLAIN_READER = { enabled: true };
+
+/** The raw cells handed on by the plain reader, which builds none (see `readRows`' `needCells`). */
+const NO_CELLS: readonly string[] = Object.freeze([]);
+
+/**
  * Reads every row of a started CSV file through the cell plan, handing each to `onRow` (its parsed
- * cells or its issues), unless `rawRow` took it first (see KindSession.rawRow). Returns false when the file cannot be read on (a CSV problem, added as an issue).
+ * cells or its issues), unless `rawRow` took it first (see KindSession.rawRow). Returns false when the
+ * file cannot be read on (a CSV problem, added as an issue).
+ *
+ * When the caller does not need the raw cells (`needCells` false) and the text holds no quote
+ * character, lines go through the plain reader (readPlainLines), which reads the cells straight from
+ * the text; the rows it cannot read plainly, and every quoted text, go the general way (papaparse,
+ * then parseRow). Both give the same rows, lines and issues (test/unit/ingest/plain-reader.test.ts).
  */
 export function readRows(
   reader: CsvReader,
@@ -120,10 +135,20 @@ export function readRows(
   addIssue: (i: KindIssue) => void,
   onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
   rawRow?: (cells: readonly string[], line: number) => boolean,
+  needCells = true,
 ): boolean {
+  const plain = !needCells && PLAIN_READER.enabled ? new PlainLines(start, reader.delimiter, onRow) : null;
   for (;;) {
     let batch: ReturnType<CsvReader['nextBatch']>;
     try {
+      if (plain) {
+        const t = reader.nextPlainText();
+        if (t === null) return true;
+        if (t !== 'general') {
+          plain.read(t.text, t.line);
+          continue;
+        }
+      }
       batch = reader.nextBatch();
     } catch (e) {
       if (e instanceof CsvReadError) {
@@ -148,6 +173,96 @@ export function readRows(
         continue;
       onRow(parseRow(cells, line, start.slots, start.width, start.decimal), line, cells);
     }
+  }
+}
+
+/**
+ * The plain reader: lines of a text without quotes, cells found by the delimiter and read where they
+ * stand (numbers from their characters, other cells from one substring each), with no array of cells
+ * per row and no papaparse. It reads a row only when every cell is plain — no white space to trim at
+ * either end, not empty, accepted by its cell's fast path, a point as decimal separator — and hands
+ * any other row (blank lines, a wrong number of cells, an empty or refused cell) to the general
+ * way: `split` on the delimiter (what papaparse returns for a line without quotes), then parseRow,
+ * which finds the same values and words the issues.
+ */
+class PlainLines {
+  private readonly starts: Int32Array;
+  private readonly ends: Int32Array;
+  private readonly delim: number;
+  constructor(
+    private readonly start: CsvStart,
+    private readonly delimiter: string,
+    private readonly onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
+  ) {
+    this.starts = new Int32Array(start.width);
+    this.ends = new Int32Array(start.width);
+    this.delim = delimiter.charCodeAt(0);
+  }
+
+  read(text: string, firstLine: number): void {
+    const { slots, width, decimal } = this.start;
+    const { starts, ends, delim, onRow } = this;
+    const n = text.length;
+    let line = firstLine;
+    let a = 0;
+    while (a < n) {
+      let nl = text.indexOf('\n', a);
+      if (nl === -1) nl = n;
+      let b = nl;
+      if (b > a && text.charCodeAt(b - 1) === 13) b--;
+      // Cells of the line [a, b): plain only with exactly `width` cells, a first character that is
+      // not blank and a point as the decimal separator.
+      let row: ParsedRow | null = null;
+      const c0 = a < b ? text.charCodeAt(a) : 0;
+      if (c0 > 32 && c0 < 127 && c0 !== delim && decimal.mode === '.') {
+        let count = 0;
+        let p = a;
+        for (;;) {
+          const d = text.indexOf(this.delimiter, p);
+          const e = d === -1 || d > b ? b : d;
+          if (count === width) {
+            count++;
+            break;
+          }
+          starts[count] = p;
+          ends[count] = e;
+          count++;
+          if (e === b) break;
+          p = e + 1;
+        }
+        if (count === width) row = this.cells(text, slots);
+      }
+      if (row !== null) onRow(row, line, NO_CELLS);
+      else {
+        const cells = text.slice(a, b).split(this.delimiter);
+        if (!isBlank(cells)) onRow(parseRow(cells, line, slots, width, decimal), line, cells);
+      }
+      line++;
+      a = nl + 1;
+    }
+  }
+
+  /** The parsed row when every cell is plain, else null (the row then goes the general way). */
+  private cells(text: string, slots: readonly Slot[]): ParsedRow | null {
+    const { starts, ends } = this;
+    const row: ParsedRow = {};
+    for (let i = 0; i < slots.length; i++) {
+      const slot = slots[i]!;
+      const s = starts[slot.index]!;
+      const e = ends[slot.index]!;
+      if (e <= s) return null;
+      const f = text.charCodeAt(s);
+      const l = text.charCodeAt(e - 1);
+      if (f <= 32 || f >= 127 || l <= 32 || l >= 127) return null;
+      const cell = slot.cell;
+      let v: unknown;
+      if (cell.fastAt) v = cell.fastAt(text, s, e);
+      else if (cell.fast) v = cell.fast(text.slice(s, e));
+      else return null;
+      if (v === CELL_FAIL) return null;
+      row[slot.key] = v;
+    }
+    return row;
   }
 }
 
@@ -182,11 +297,18 @@ export function readCsvSource(kind: ImportKind, source: ByteSource): CsvReadResu
   try {
     const start = startCsv(kind, reader, addIssue, out);
     if (!start || out.issues.length > 0) return out;
-    out.readToEnd = readRows(reader, start, addIssue, (row) => {
-      out.rowsRead++;
-      if (Array.isArray(row)) for (const i of row) addIssue(i);
-      else out.rows.push(row);
-    });
+    out.readToEnd = readRows(
+      reader,
+      start,
+      addIssue,
+      (row) => {
+        out.rowsRead++;
+        if (Array.isArray(row)) for (const i of row) addIssue(i);
+        else out.rows.push(row);
+      },
+      undefined,
+      false,
+    );
     return out;
   } finally {
     reader.close();

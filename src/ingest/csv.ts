@@ -243,6 +243,34 @@ export class CsvReader {
   private carry: { rows: string[][]; lines: number[] } | null = null;
 
   /**
+   * The next run of whole lines as one text, for a reader of plain CSV (csv-rows.ts readPlainLines):
+   * `{ text, line }` with the line number of its first line, when the text holds no quote character;
+   * 'general' when the records must come from `nextBatch` this time (a quote somewhere in the text,
+   * or records already parsed and waiting); null at the end. The text ends at a line break unless it
+   * is the end of the file; the CR of a CRLF break is left in it (the caller drops it).
+   */
+  nextPlainText(): { text: string; line: number } | 'general' | null {
+    if (!this.parser) return 'general';
+    if (this.carry && this.carry.rows.length > 0) return 'general';
+    for (;;) {
+      if (this.pending === '' && this.eof) return null;
+      const lastBreak = this.pending.lastIndexOf('\n');
+      if (!this.eof && lastBreak === -1) {
+        this.fill();
+        continue;
+      }
+      const end = this.eof ? this.pending.length : lastBreak + 1;
+      const text = end === this.pending.length ? this.pending : this.pending.slice(0, end);
+      if (text.indexOf('"') !== -1) return 'general';
+      const line = this.line;
+      this.line += countNewlines(text, 0, text.length);
+      this.pending = end === this.pending.length ? '' : this.pending.slice(end);
+      if (!this.eof) this.fill();
+      return { text, line };
+    }
+  }
+
+  /**
    * The next records (skipping blank lines), or null at the end. `max` limits how many are
    * returned (the rest are kept for the next call).
    */
@@ -322,7 +350,8 @@ export class CsvReader {
   }
 }
 
-function isBlank(row: string[]): boolean {
+/** A record whose every cell is empty or white space (skipped, its line still counted). */
+export function isBlank(row: readonly string[]): boolean {
   const first = row[0]!;
   if (first.length > 0 && first.charCodeAt(0) > 32) return false;
   for (const c of row) if (c.trim() !== '') return false;

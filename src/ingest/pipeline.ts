@@ -2,6 +2,8 @@
  * The import pipeline: one file of one kind → validated, normalised rows in SQLite, atomically.
  *
  *   sha256 of the content ─► same (kind, sha256) already imported? → 'unchanged', nothing written
+ *     (only when an earlier import of the kind had the file's size: otherwise the content is new,
+ *      and the hash is taken while the file is parsed — one read — and stored at the end)
  *   BEGIN ─► metadata block ─► header (normalised, matched) ─► kind.begin(ctx)
  *         ─► for each row: cells trimmed, decimal comma handled, each cell through its zod schema
  *            (fast path first) ─► kind session.row() normalises to SI and stores
@@ -17,12 +19,13 @@ import { createHash } from 'node:crypto';
 import { createReadStream, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Db } from '../store/db.ts';
+import { withOwnKeyChecks } from '../store/key-checks.ts';
 import { writeTransaction } from '../store/writer.ts';
 import { type ByteSource, CsvReader, fileSource } from './csv.ts';
 import { readRows, startCsv } from './csv-rows.ts';
 import { importConfigSource } from './kinds/config-import.ts';
 import { getKind } from './kinds/index.ts';
-import { startReport } from './report.ts';
+import { importedWithSize, setImportSha256, startReport } from './report.ts';
 import type {
   FileContext,
   ImportFlag,
@@ -87,7 +90,10 @@ export async function importFile(db: Db, opts: ImportOptions): Promise<ImportRep
     if (e instanceof ImportFileError) throw e;
     throw new ImportFileError(`cannot read ${opts.path}: ${readProblem(e)}`);
   }
-  const sha256 = await sha256File(opts.path);
+  // Same content means same size: the hash is needed before the import only when an earlier import
+  // of this kind had this size (and always for the small JSON configuration files); otherwise it is
+  // taken while the file is parsed, so that the file is read once.
+  const sha256 = kind.config || importedWithSize(db, kind.name, bytes) ? await sha256File(opts.path) : null;
   return importSource(db, kind, {
     ...opts,
     displayName: opts.displayName ?? basename(opts.path),
@@ -99,7 +105,11 @@ export async function importFile(db: Db, opts: ImportOptions): Promise<ImportRep
 
 export interface SourceImportOptions extends Omit<ImportOptions, 'kind' | 'path'> {
   displayName: string;
-  sha256: string;
+  /**
+   * The content's sha256 when known beforehand (then checked against the bytes read, and a file
+   * imported before is 'unchanged'); null: taken while reading, the same check made at the end.
+   */
+  sha256: string | null;
   bytes: number;
   open: () => ByteSource;
 }
@@ -110,7 +120,11 @@ class Rejection {
 
 /** The synchronous core of importFile, on any byte source (tests use buffers). */
 export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions): ImportReport {
-  if (kind.config) return importConfigSource(db, kind, opts);
+  if (kind.config) {
+    if (opts.sha256 === null)
+      throw new Error(`${kind.name}: a configuration file's sha256 is needed beforehand`);
+    return importConfigSource(db, kind, { ...opts, sha256: opts.sha256 });
+  }
   const file = opts.displayName;
   const { report, unchanged } = startReport(db, kind.name, opts);
   if (unchanged) return report;
@@ -147,17 +161,33 @@ export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions
     onProgress: (bytesRead, bytesTotal) =>
       opts.onProgress?.({ bytesRead, bytesTotal, rows: report.rowsRead }),
   });
+  // A kind that checks every foreign key itself (once per distinct key) spares SQLite's per-row look-ups.
+  const write = (body: () => void) =>
+    kind.ownKeyChecks ? withOwnKeyChecks(db, () => writeTransaction(db, body)) : writeTransaction(db, body);
   try {
-    writeTransaction(db, () => {
+    write(() => {
       runInTransaction(db, kind, reader, report, addIssue, now, opts.acceptValidRows === true);
       if (report.status === 'rejected') {
         finishIssues();
+        if (opts.sha256 === null) {
+          readToEnd(source);
+          report.sha256 = hash.digest('hex');
+        }
         throw new Rejection(report);
       }
-      // An accepted file was read to its end: the bytes stored are the bytes hashed beforehand.
+      // An accepted file was read to its end: the bytes stored are the bytes hashed.
       readToEnd(source);
-      if (hash.digest('hex') !== opts.sha256) {
+      const digest = hash.digest('hex');
+      if (opts.sha256 !== null && digest !== opts.sha256) {
         throw new ImportFileError(`${file} changed while it was being imported; import it again`);
+      }
+      if (opts.sha256 === null) {
+        // Hashed while read: the same content imported meanwhile (by another process, before this
+        // transaction took the write lock) makes this one 'unchanged' — rolled back, nothing kept.
+        const before = startReport(db, kind.name, { ...opts, sha256: digest });
+        if (before.unchanged) throw new Rejection(before.report);
+        report.sha256 = digest;
+        setImportSha256(db, report.importId!, digest);
       }
       finishIssues();
       db.prepare('UPDATE imports SET issues = ? WHERE id = ?').run(
@@ -166,6 +196,7 @@ export function importSource(db: Db, kind: ImportKind, opts: SourceImportOptions
       );
     });
   } catch (e) {
+    if (e instanceof Rejection && e.report !== report) return e.report;
     if (e instanceof Rejection) {
       report.importId = null;
       report.rowsStored = 0;
@@ -240,7 +271,8 @@ function runInTransaction(
   const session = Array.isArray(begun) ? null : begun;
   if (!session) return;
 
-  // 3. Rows (the kind's fast path on raw cells first, when it has one).
+  // 3. Rows (the kind's fast path on raw cells first, when it has one; the plain reader for kinds
+  // that need no raw cells).
   const rawRow = session.rawRow;
   const takeRaw =
     rawRow === undefined
@@ -271,6 +303,7 @@ function runInTransaction(
       }
     },
     takeRaw,
+    kind.plainRows !== true,
   );
   if (decimal.note) report.notes.push(decimal.note);
   dialect.decimal = decimal.mode === ',' ? ',' : '.';

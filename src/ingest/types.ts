@@ -136,6 +136,11 @@ export interface Cell<T> {
    * proves it never accepts what the schema refuses, and returns the same value when both accept.
    */
   fast?: (text: string) => T | typeof CELL_FAIL;
+  /**
+   * Optional fast path on a part of a larger text, [start, end) (the plain reader, csv-rows.ts):
+   * returns exactly what `fast(text.slice(start, end))` returns, without the substring.
+   */
+  fastAt?: (text: string, start: number, end: number) => T | typeof CELL_FAIL;
   /** The cell holds a number: the pipeline turns a decimal comma into a point before it runs. */
   numeric?: boolean;
 }
@@ -259,6 +264,17 @@ export interface ImportKind {
   config?: ConfigKindHandler;
   /** A file with a header and no data rows is valid for this kind (e.g. a scan without defects). */
   allowNoRows?: boolean;
+  /**
+   * The kind's `row` never reads the raw cells (its third argument): the pipeline may then read plain
+   * lines without building them (src/ingest/csv-rows.ts, the plain reader).
+   */
+  plainRows?: boolean;
+  /**
+   * The kind resolves every foreign key of the rows it writes itself, inside the transaction (each
+   * parent looked up or written once per distinct key): SQLite's per-row checks are then set aside for
+   * the file's transaction (src/store/key-checks.ts).
+   */
+  ownKeyChecks?: boolean;
 }
 
 /** What a configuration kind does with a whole file (inside the import's transaction). */

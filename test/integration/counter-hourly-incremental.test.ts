@@ -16,6 +16,7 @@ import { BATCH_MODE, HOURLY_MODE } from '../../src/ingest/kinds/counter-samples.
 import { importFile } from '../../src/ingest/pipeline.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
 
+const DEFAULT_BATCH_ROWS = BATCH_MODE.rows;
 const GOOD = join(import.meta.dirname, '../fixtures/good');
 const T0 = Date.parse('2026-03-02T08:00:00Z');
 const dir = mkdtempSync(join(tmpdir(), 'voidcast-hourly-twin-'));
@@ -90,7 +91,7 @@ interface Outcome {
 async function importAll(
   mode: 'incremental' | 'refresh',
   files: string[][],
-  batchRows = 64,
+  batchRows = DEFAULT_BATCH_ROWS,
 ): Promise<Db & { reports: Outcome[] }> {
   const db = openDatabase(':memory:');
   migrate(db);
@@ -108,7 +109,7 @@ async function importAll(
     }
   } finally {
     HOURLY_MODE.current = 'incremental';
-    BATCH_MODE.rows = 64;
+    BATCH_MODE.rows = DEFAULT_BATCH_ROWS;
   }
   return Object.assign(db, { reports });
 }
@@ -120,9 +121,14 @@ describe('counter_hourly: incremental path and plain twin', () => {
     files[3]!.push(`PC-9,BAY-BOND,${new Date(T0 - 3_600_000).toISOString()},60,28.3,5,4,3,ok,at-rest`);
     const inc = await importAll('incremental', files);
     const plain = await importAll('refresh', files, 1);
+    // a batch width that leaves part batches of every size (written in falling powers of two)
+    const odd = await importAll('incremental', files, 7);
     // the same samples stored, the same counts in the reports, whether rows are batched or not
     expect(samples(inc)).toEqual(samples(plain));
     expect(inc.reports).toEqual(plain.reports);
+    expect(samples(odd)).toEqual(samples(plain));
+    expect(odd.reports).toEqual(plain.reports);
+    odd.close();
     expect(plain.reports[3]!.duplicates).toBe(plain.reports[0]!.stored + plain.reports[0]!.duplicates);
     expect(plain.reports[0]!.duplicates).toBeGreaterThan(0);
     const a = table(inc);
