@@ -8,6 +8,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
+import { SIZE_BANDS } from '../../src/engine/attribution.ts';
 import { auditAreaFromDb, keptAreaAudit } from '../../src/engine/audit/audit.ts';
 import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
 import { chamberHistoryFromDb, lineParetoFromDb, searchLine } from '../../src/engine/audit/line-view.ts';
@@ -19,7 +20,7 @@ import {
   loadCurrentLevels,
 } from '../../src/engine/audit/loader.ts';
 import type { Excursion } from '../../src/engine/audit/types.ts';
-import { loadPair } from '../../src/engine/loader.ts';
+import { assessLotFromDb, loadPair } from '../../src/engine/loader.ts';
 import { assessPair } from '../../src/engine/pair.ts';
 import type { CounterSeriesInput } from '../../src/engine/types.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
@@ -241,7 +242,7 @@ describe('the line view', () => {
   it('the Pareto across the assessed lots sums each category to a share of 1, largest first', () => {
     const p = lineParetoFromDb(db, PERIOD, asOfMs);
     expect(p.lots).toContain('TR2653');
-    for (const cat of ['tool', 'wait location', 'clean'] as const) {
+    for (const cat of ['tool', 'wait location', 'clean', 'size band'] as const) {
       const list = p.entries.filter((e) => e.category === cat);
       expect(list.length).toBeGreaterThan(0);
       // Shares of a category add up to 1 (floating-point sum of a few terms: 1e-12).
@@ -251,6 +252,35 @@ describe('the line view', () => {
     }
     // The buffer cart bay of the night excursion leads the waits (docs/demo.md: TR2653 parked there).
     expect(p.entries.find((e) => e.category === 'wait location')!.key).toBe('BOR-B2');
+  });
+  it('by size band: the bands hold the particle sources’ voids of every assessed lot, the unexplained apart', () => {
+    const p = lineParetoFromDb(db, PERIOD, asOfMs);
+    const bands = p.entries.filter((e) => e.category === 'size band');
+    // Every band of the pair and lot pages (src/engine/attribution.ts SIZE_BANDS), edges in metres.
+    expect(bands.map((e) => e.key).sort()).toEqual(SIZE_BANDS.map((b) => b.label).sort());
+    for (const e of bands) {
+      const b = SIZE_BANDS.find((x) => x.label === e.key)!;
+      expect(e.fromM).toBe(b.fromM);
+      expect(e.toM).toBe(Number.isFinite(b.toM) ? b.toM : null);
+    }
+    // The oracle: each lot assessed here on its own, its particle sources' voids summed over its pairs
+    // (a sum of a few hundred terms in another order: 1e-9 relative).
+    let particle = 0;
+    let unexplained = 0;
+    for (const lotId of p.lots) {
+      const a = assessLotFromDb(db, lotId, { asOfMs, detail: 'summary', config: { draws: 20 } })!;
+      for (const pr of a.pairs)
+        for (const c of pr.contributions)
+          if (c.kind === 'unexplained') unexplained += c.expectedVoids;
+          else particle += c.expectedVoids;
+    }
+    const bandSum = bands.reduce((s, e) => s + e.expectedVoids, 0);
+    expect(particle).toBeGreaterThan(0);
+    expect(Math.abs(bandSum - particle)).toBeLessThan(1e-9 * particle);
+    expect(Math.abs(p.particleVoids - particle)).toBeLessThan(1e-9 * particle);
+    expect(p.unexplainedVoids).toBe(unexplained);
+    // Kept until the data change: the same object again within one data generation.
+    expect(lineParetoFromDb(db, PERIOD, asOfMs)).toBe(p);
   });
   it('each chamber’s history lists its passes in time order with an interval around each count', () => {
     const h = chamberHistoryFromDb(db);

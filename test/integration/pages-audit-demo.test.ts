@@ -224,7 +224,19 @@ describe('the line view over the demo period', () => {
       expect(Math.abs(shares.reduce((a, v) => a + v, 0) - 1)).toBeLessThan(1e-4);
       expect(Number(t.rows.at(-1)![col(t, 'Cumulative share')])).toBeCloseTo(1, 4);
     }
-    expect(html).toContain('data-missing="size band"');
+    // By size band: the bands' rows add up to the particle sources' voids the note beside states
+    // (hand computation on the rows shown, 6 significant figures per cell: 1e-4 relative is ample), with the
+    // band edges in µm.
+    expect(html).not.toContain('data-missing');
+    const bands = tables.find((t) => t.id === 'pareto-size-band')!;
+    expect(bands.header.slice(0, 3)).toEqual(['Size band', 'From (µm)', 'Below (µm)']);
+    const bandRow = (label: string) => bands.rows.find((r) => r[0] === label)!;
+    expect(bandRow('0.3–1 µm').slice(1, 3)).toEqual(['0.3', '1']);
+    expect(bandRow('≥ 5 µm').slice(1, 3)).toEqual(['5', '']);
+    const bandVoids = bands.rows.reduce((a, r) => a + Number(r[col(bands, 'Expected voids')]), 0);
+    const stated = Number(/data-particle-voids="([^"]+)"/.exec(html)![1]);
+    expect(stated).toBeGreaterThan(0);
+    expect(Math.abs(bandVoids - stated)).toBeLessThan(1e-4 * stated);
     const passes = tables.find((t) => t.id === 'chamber-passes')!;
     expect(passes.rows.some((r) => r[0] === 'LACT-1/B')).toBe(true);
     const links = downloadLinks(html);

@@ -324,6 +324,9 @@ export interface LineParetoEntry {
   cumulativeShare: number;
   /** Lots where it contributed. */
   lots: number;
+  /** Size band only: particle diameters [fromM, toM) at the interface, m (toM null: no upper edge). */
+  fromM?: number;
+  toM?: number | null;
 }
 
 export interface ChamberHistoryPoint {

@@ -159,16 +159,37 @@ export function acknowledgeFromForm(
 export function runLineView(
   ctx: AppContext,
   period: AuditPeriod,
-): { pareto: LineParetoEntry[]; histories: ChamberHistory[]; lots: string[]; problems: string[] } {
+): {
+  pareto: LineParetoEntry[];
+  particleVoids: number;
+  unexplainedVoids: number;
+  histories: ChamberHistory[];
+  lots: string[];
+  problems: string[];
+} {
   try {
     const p = lineParetoFromDb(ctx.db, period);
     const histories = chamberHistoryFromDb(ctx.db, undefined, period).filter((h) => h.points.length > 0);
     const problems = [...p.notes];
     if (p.lots.length === 0)
       problems.push('No lot with pairs has a ledger step in this period: nothing to assess.');
-    return { pareto: p.entries, histories, lots: p.lots, problems };
+    return {
+      pareto: p.entries,
+      particleVoids: p.particleVoids,
+      unexplainedVoids: p.unexplainedVoids,
+      histories,
+      lots: p.lots,
+      problems,
+    };
   } catch (err) {
     if (!(err instanceof AuditInputError)) throw err;
-    return { pareto: [], histories: [], lots: [], problems: [err.message] };
+    return {
+      pareto: [],
+      particleVoids: 0,
+      unexplainedVoids: 0,
+      histories: [],
+      lots: [],
+      problems: [err.message],
+    };
   }
 }
