@@ -7,6 +7,7 @@
 import { exposedSteps } from '../../store/audit-exposure.ts';
 import type { Db } from '../../store/db.ts';
 import { installationClockMs } from '../../store/settings.ts';
+import { latestImportId } from '../../store/views-imports.ts';
 import { loadPair } from '../loader.ts';
 import { assessPair } from '../pair.ts';
 import { readAdoptedParameterSet } from '../parameter-sets.ts';
@@ -72,7 +73,7 @@ const CACHE_LIMIT = 500;
 /** The wafers in an excursion's air and the voids and die loss its excess added, per wafer and lot. */
 export function excursionCostInDb(db: Db, exc: Excursion, opts: CostOptions = {}): ExcursionCost {
   const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
-  const lastImport = (db.prepare('SELECT max(id) AS m FROM imports').get() as { m: number | null }).m;
+  const lastImport = latestImportId(db);
   const set = readAdoptedParameterSet(db);
   const key = `${exc.id}|${exc.endMs}|${exc.locationIds.join(',')}|${exc.nature}|${asOfMs}|${lastImport}|${set ? `${set.id}` : 'typed'}`;
   let m = cache.get(db);
