@@ -10,7 +10,8 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
 import { SIZE_BANDS } from '../../src/engine/attribution.ts';
 import { auditAreaFromDb, keptAreaAudit } from '../../src/engine/audit/audit.ts';
-import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
+import { baselineByChannel, eventCostInDb, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
+import { groupEvents } from '../../src/engine/audit/events.ts';
 import { chamberHistoryFromDb, lineParetoFromDb, searchLine } from '../../src/engine/audit/line-view.ts';
 import {
   acknowledgeExcursion,
@@ -145,6 +146,51 @@ describe('the cost of the FFU excursion', () => {
       ).figures.voids.value;
     const overExcess = run(excess) - run(zero);
     expect(Math.abs(overExcess - dv)).toBeLessThanOrEqual(0.03 * Math.abs(dv));
+  });
+  it('the rules’ excursions of the FFU failure are one event, costed once over the union of their hours', () => {
+    const events = groupEvents(boreas);
+    expect(events).toHaveLength(1);
+    const ev = events[0]!;
+    expect(ev.excursionIds.sort()).toEqual(boreas.map((e) => e.id).sort());
+    expect(new Set(ev.rules)).toEqual(new Set(boreas.map((e) => e.rule)));
+    const from = Math.min(...boreas.map((e) => e.startMs));
+    const to = Math.max(...boreas.map((e) => e.endMs));
+    expect(ev.windows).toEqual([{ locationId: 'BOR-B2', fromMs: from, toMs: to }]);
+    const c = eventCostInDb(db, ev, { asOfMs });
+    // The oracle, written here: the pair as measured minus the pair with every sample of BOR-B2 in
+    // [earliest start, latest end) capped at the median hourly mean of the week before that span.
+    const loaded = loadPair(db, 'TR2653-P01', asOfMs)!;
+    const opts = { asOfMs, detail: 'summary' as const, config: { draws: 20 } };
+    const asMeasured = assessPair(loaded.pair, loaded.line, opts);
+    const base = baselineByChannel(db, 'BOR-B2', { fromMs: from, toMs: to });
+    const s = loaded.line.counters['BOR-B2']!;
+    const k = s.channelSizesM.length;
+    const capped = Float64Array.from(s.cumulativePerM3);
+    for (let i = 0; i < s.startMs.length; i++) {
+      if (s.startMs[i]! < from || s.startMs[i]! >= to) continue;
+      for (let j = 0; j < k; j++) {
+        const b = base.get(Math.round(s.channelSizesM[j]! * 1e9))!;
+        if (capped[i * k + j]! > b) capped[i * k + j] = b;
+      }
+    }
+    const without = assessPair(
+      loaded.pair,
+      { ...loaded.line, counters: { ...loaded.line.counters, 'BOR-B2': { ...s, cumulativePerM3: capped } } },
+      opts,
+    );
+    // Tolerance: the same arithmetic in another order, 1e-9 relative.
+    const dv = asMeasured.figures.voids.value - without.figures.voids.value;
+    const w = c.wafers.find((x) => x.pairId === 'TR2653-P01')!;
+    expect(Math.abs(w.addedVoids! - dv)).toBeLessThanOrEqual(1e-9 * Math.abs(dv));
+    // Once: at least each excursion's own cost (its hours are inside the union; capping more hours
+    // removes more excess) and less than their sum, which would count the shared hours two or three times.
+    const own = boreas.map((e) => excursionCostInDb(db, e, { asOfMs }).totalAddedVoids);
+    expect(c.totalAddedVoids).toBeGreaterThanOrEqual(Math.max(...own) * (1 - 1e-9));
+    expect(c.totalAddedVoids).toBeLessThan(own.reduce((a, v) => a + v, 0));
+    // The audit costs the event, not its excursions: one cost, the same.
+    const a = auditAreaFromDb(db, 'BOREAS', { period: PERIOD, asOfMs, chartSizesNm: [] });
+    expect(a.events.map((e) => e.id)).toEqual([ev.id]);
+    expect(a.costs.map((x) => [x.eventId, x.totalAddedVoids])).toEqual([[ev.id, c.totalAddedVoids]]);
   });
   it('an instrument finding has no air to cost', () => {
     const lev = findExcursionsInDb(db, 'LEVANT', { period: PERIOD });

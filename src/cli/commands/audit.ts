@@ -156,23 +156,34 @@ function render(a: AreaAudit): string {
       `  ${l.locationId.padEnd(14)} ≥ ${um(l.diameterM)}: alert ${fmt(l.alertPerM3)}, action ${fmt(l.actionPerM3)} per m³ — ${l.method === 'typed' ? 'typed' : `${l.method} "${l.name}" v${l.version} by ${l.setBy}`}`,
     );
   out.push('');
-  out.push(`excursions: ${a.excursions.length}`);
-  for (const e of a.excursions) {
-    const cost = a.costs.find((k) => k.excursionId === e.id);
-    out.push(`  ${e.id}`);
+  out.push(
+    `excursions: ${a.excursions.length} in ${a.events.length} event${a.events.length === 1 ? '' : 's'}`,
+  );
+  for (const ev of a.events) {
+    const cost = a.costs.find((k) => k.eventId === ev.id);
     out.push(
-      `    ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}`,
+      `  ${ev.id}: ${ev.nature.toUpperCase()}, ${iso(ev.startMs)} – ${iso(ev.endMs)} at ${ev.locationIds.join(', ')}; found by ${ev.rules.join(', ')}`,
     );
-    out.push(`    peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}`);
     if (cost)
       out.push(
-        `    exposed: ${new Set(cost.wafers.map((w) => w.waferId)).size} wafers in ${cost.lots.length} lot${cost.lots.length === 1 ? '' : 's'}; added voids ${fmt(cost.totalAddedVoids)}, added die loss ${fmt(cost.totalAddedDieLoss)} dies${cost.notes.length ? ` (${cost.notes.join('; ')})` : ''}`,
+        `    exposed: ${new Set(cost.wafers.map((w) => w.waferId)).size} wafers in ${cost.lots.length} lot${cost.lots.length === 1 ? '' : 's'}; added voids ${fmt(cost.totalAddedVoids)}, added die loss ${fmt(cost.totalAddedDieLoss)} dies, once for the event${cost.notes.length ? ` (${cost.notes.join('; ')})` : ''}`,
       );
-    if (e.acknowledgement)
+    for (const e of a.excursions.filter((x) => ev.excursionIds.includes(x.id))) {
+      out.push(`    ${e.id}`);
       out.push(
-        `    acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}`,
+        `      ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}`,
       );
+      out.push(`      peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}`);
+      if (e.acknowledgement)
+        out.push(
+          `      acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}`,
+        );
+    }
   }
+  if (a.costs.length > 0)
+    out.push(
+      `  added by all events: ${fmt(a.costs.reduce((s, k) => s + k.totalAddedVoids, 0))} voids, ${fmt(a.costs.reduce((s, k) => s + k.totalAddedDieLoss, 0))} dies of loss (each event costed once)`,
+    );
   out.push('');
   const flagged = a.charts
     .map((ch) => ({ ch, n: ch.points.filter((p) => p.rules.length > 0).length }))

@@ -1,6 +1,6 @@
 /**
- * An area's whole audit over a period — classification, levels in force, excursions with their
- * costs, control charts — from the database (through loader.ts and cost-loader.ts). The CLI's
+ * An area's whole audit over a period — classification, levels in force, excursions grouped into
+ * events with each event's cost, control charts — from the database (through loader.ts and cost-loader.ts). The CLI's
  * `voidcast audit` and the report page read this one object.
  */
 import type { Db } from '../../store/db.ts';
@@ -9,7 +9,8 @@ import { installationClockMs } from '../../store/settings.ts';
 import { keptResult } from '../cache.ts';
 import { controlChart } from './charts.ts';
 import { checkPeriod } from './common.ts';
-import { excursionCostInDb } from './cost-loader.ts';
+import { eventCostInDb } from './cost-loader.ts';
+import { groupEvents } from './events.ts';
 import { type ChannelSeries, DEFAULT_RULES, findExcursions } from './excursions.ts';
 import { classifyAreaFromDb, loadAreaSeries } from './loader.ts';
 import type { AreaAudit, AuditPeriod, ControlChart, ExcursionRules, OccupancySelection } from './types.ts';
@@ -21,7 +22,7 @@ export interface AuditOptions {
   classN?: number | null;
   sizesNm?: readonly number[] | null;
   rules?: ExcursionRules;
-  /** Compute each excursion's cost (two assessments per exposed pair; cached). Default true. */
+  /** Compute each event's cost (two assessments per exposed pair; cached). Default true. */
   costs?: boolean;
   /** Channels to chart, whole nm (default: every channel). */
   chartSizesNm?: readonly number[];
@@ -67,8 +68,9 @@ export function auditAreaFromDb(db: Db, areaId: string, opts: AuditOptions): Are
     found.map((e) => e.id),
   );
   const excursions = found.map((e) => ({ ...e, acknowledgement: acks.get(e.id) ?? null }));
+  const events = groupEvents(excursions);
   const costs =
-    opts.costs === false ? [] : excursions.map((e) => excursionCostInDb(db, e, { asOfMs: opts.asOfMs }));
+    opts.costs === false ? [] : events.map((ev) => eventCostInDb(db, ev, { asOfMs: opts.asOfMs }));
   const charts = chartsOf(series, opts.chartSizesNm);
   return {
     areaId,
@@ -77,6 +79,7 @@ export function auditAreaFromDb(db: Db, areaId: string, opts: AuditOptions): Are
     classification,
     levels,
     excursions,
+    events,
     costs,
     charts,
     elapsedMs: performance.now() - t0,

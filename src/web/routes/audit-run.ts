@@ -49,9 +49,6 @@ export function runAreaAudit(
   }
 }
 
-/** What this version stores from the audit page's forms. */
-export const AUDIT_FORMS = { levels: true, acknowledge: true } as const;
-
 /**
  * A form the engine refused (a baseline shorter than the method needs, parameters out of range, an
  * empty comment): a 400 with the page and the message that says what to change.
