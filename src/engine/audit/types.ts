@@ -336,6 +336,18 @@ export interface ControlChart {
   points: ChartPoint[];
   /** Points excluded from the centre line (hours whose samples are all instrument faults or sentinels). */
   excludedPoints: number;
+  /**
+   * Where the centre line and limits come from (Phase I): `levels` — the baseline window the location's
+   * derived levels were set from; `chosen` — a window the user chose; `period` — the charted points
+   * themselves (no usable baseline; said in `notes`).
+   */
+  baseline: {
+    source: 'levels' | 'chosen' | 'period';
+    window: AuditPeriod | null;
+    /** Usable hours the centre and limits were computed from. */
+    points: number;
+    words: string;
+  };
   /** Plain-words remarks (too few points for limits, …). */
   notes: string[];
 }

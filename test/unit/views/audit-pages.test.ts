@@ -224,6 +224,12 @@ function handAudit(): AreaAudit {
         dispersion: 4.4,
         decidedBy: 'overdispersed (p < 0.01)',
         excludedPoints: 0,
+        baseline: {
+          source: 'chosen',
+          window: { fromMs: T0 - 7 * 24 * H, toMs: T0 },
+          points: 168,
+          words: 'the chosen baseline window',
+        },
         notes: [],
         points: [0, 1, 2, 3].map((i) => ({
           startMs: T0 + i * H,
