@@ -83,6 +83,35 @@ describe('the demo’s planted excursion and counter fault', () => {
   });
 });
 
+describe('control-chart limits from a baseline (Phase I)', () => {
+  it('with the week before as baseline the FFU hours are flagged beyond the limit and far fewer clean hours are', () => {
+    const period = { fromMs: H('2026-10-17T00:00Z'), toMs: H('2026-10-19T00:00Z') };
+    const chosen = { fromMs: H('2026-10-10T00:00Z'), toMs: H('2026-10-17T00:00Z') };
+    const chart = (chartBaseline: typeof chosen | null) =>
+      auditAreaFromDb(db, 'BOR-B2', { period, costs: false, chartSizesNm: [500], chartBaseline }).charts[0]!;
+    const withBase = chart(chosen);
+    const itself = chart(null);
+    // BOR-B2's levels are typed (no window of their own): the chosen window sets the limits.
+    expect(withBase.baseline).toMatchObject({ source: 'chosen', window: chosen, points: 168 });
+    expect(withBase.notes).toEqual([]);
+    expect(itself.baseline.source).toBe('period');
+    expect(itself.notes[0]).toContain('limits from the charted period itself');
+    // The hours above action (01:00–05:00, found by the action-point rule) are beyond the limit.
+    const inFfu = (p: { startMs: number }) =>
+      p.startMs >= H('2026-10-18T01:00Z') && p.startMs < H('2026-10-18T05:00Z');
+    for (const p of withBase.points.filter(inFfu)) expect(p.rules).toContain('beyond-limit');
+    // Outside the failure (00:00–06:00), the period's own limits flag the clean hours as runs below a
+    // centre the failure raised; the baseline's flag fewer than half as many.
+    const outside = (ch: typeof withBase) =>
+      ch.points.filter(
+        (p) =>
+          p.rules.length > 0 && (p.startMs < H('2026-10-18T00:00Z') || p.startMs >= H('2026-10-18T06:00Z')),
+      ).length;
+    expect(withBase.centre).toBeLessThan(itself.centre);
+    expect(outside(withBase)).toBeLessThan(outside(itself) / 2);
+  });
+});
+
 describe('the cost of the FFU excursion', () => {
   it('the exposed wafers are TR2653’s, parked in closed FOUPs on the buffer cart (docs/demo.md)', () => {
     const e = boreas.find((x) => x.rule === 'action-point')!;

@@ -126,6 +126,24 @@ describe('an area’s audit page', () => {
     }
   });
 
+  it('refuses a chart baseline window given by half or ending before it starts, with 400 naming it', async () => {
+    for (const [q, name] of [
+      ['limitsFrom=2025-03-01T00:00Z', 'limitsTo'],
+      ['limitsTo=2025-03-01T00:00Z', 'limitsFrom'],
+      ['limitsFrom=2025-03-02T00:00Z&limitsTo=2025-03-01T00:00Z', 'limitsTo'],
+    ] as const) {
+      const res = await app.request(`/areas/fab-1/audit?${PERIOD}&${q}`);
+      expect(res.status, q).toBe(400);
+      expect(await res.text(), q).toContain(name);
+    }
+    // A good window is kept in the form and in every link of the page (report, downloads).
+    const html = await page(
+      `/areas/fab-1/audit?${PERIOD}&limitsFrom=2025-03-01T00:00Z&limitsTo=2025-03-02T00:00Z`,
+    );
+    expect(html).toContain('name="limitsFrom" value="2025-03-01T00:00Z"');
+    expect(html).toContain('limitsFrom=2025-03-01T00%3A00Z&amp;limitsTo=2025-03-02T00%3A00Z');
+  });
+
   it('shows every part of the audit, each table or the words of its empty state, none left out', async () => {
     const html = await page(`/areas/fab-1/audit?${PERIOD}`);
     const ids = [

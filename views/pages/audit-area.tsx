@@ -27,6 +27,9 @@ export interface AuditQuery {
   to: string;
   occupancy: OccupancySelection;
   edition: 2015 | 1999;
+  /** The control charts' baseline window, when one was chosen. */
+  limitsFrom?: string;
+  limitsTo?: string;
 }
 
 /** The query string of an audit URL. */
@@ -36,6 +39,7 @@ export function auditQueryString(q: AuditQuery, extra: Record<string, string> = 
     to: q.to,
     occupancy: q.occupancy,
     edition: String(q.edition),
+    ...(q.limitsFrom && q.limitsTo ? { limitsFrom: q.limitsFrom, limitsTo: q.limitsTo } : {}),
     ...extra,
   });
   return p.toString();
@@ -76,6 +80,18 @@ export function AuditPeriodForm(props: { action: string; query: AuditQuery; with
             </option>
           </select>
         </label>
+      )}
+      {props.withEdition === false ? null : (
+        <>
+          <label>
+            Chart limits from (UTC)
+            <input name="limitsFrom" value={q.limitsFrom ?? ''} placeholder="optional" />
+          </label>
+          <label>
+            to (UTC)
+            <input name="limitsTo" value={q.limitsTo ?? ''} placeholder="optional" />
+          </label>
+        </>
       )}
       <button type="submit">Show</button>
     </form>
@@ -201,6 +217,11 @@ export function AreaAuditPage(p: AreaAuditProps) {
           <h3>Added risk per lot</h3>
           {view('lot-costs')}
           <h2 id="charts">Control charts</h2>
+          <p class="vc-small">
+            Each chart's centre line and limits come from a baseline: the window the location's derived levels
+            were set from, else the window chosen above (“Chart limits from … to”), else the period itself —
+            then an excursion in the period raises the centre and widens the limits, and the chart says so.
+          </p>
           {view('control-charts')}
           {a.charts && a.charts.length > 0 ? (
             <ChartsBlock

@@ -470,6 +470,14 @@ export function lotCostsTable(costs: EventCost[], labels: Map<string, string>): 
 const KIND_WORDS: Record<string, string> = { c: 'c chart', u: 'u chart', 'laney-u': 'Laney u′ chart' };
 
 /** Each control chart in a row: kind and why, centre, σ_z, points, flagged, left out. */
+/** Where a chart's centre line and limits come from, in words ("the chosen baseline window, 2026‑10‑01 … (336 h)"). */
+export function limitsWords(ch: ControlChart): string {
+  const b = ch.baseline;
+  return b.window
+    ? `${b.words}, ${fmtUtc(b.window.fromMs)} to ${fmtUtc(b.window.toMs)} (${b.points} h)`
+    : `${b.words} (${b.points} h)`;
+}
+
 export function chartsTable(charts: ControlChart[]): AuditTable {
   return {
     id: 'control-charts',
@@ -484,6 +492,7 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
       { key: 'flagged', label: 'Flagged', numeric: true },
       { key: 'left_out', label: 'Left out of the centre', numeric: true },
       { key: 'decided_by', label: 'Why this chart' },
+      { key: 'limits_from', label: 'Limits from' },
     ],
     rows: charts.map((ch) => [
       cell(ch.locationId),
@@ -495,6 +504,7 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
       wholeCell(ch.points.filter((p) => p.rules.length > 0).length),
       wholeCell(ch.excludedPoints),
       cell(ch.decidedBy),
+      cell(limitsWords(ch), { value: ch.baseline.source }),
     ]),
     empty: 'No control chart: no location of this area has counter samples in this period.',
   };
@@ -502,10 +512,6 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
 
 export { classWords, sizeWords };
 
-/**
- * What an area's audit pages show: the classification, and each further part where the engine
- * provides it (null: this version does not compute it, and the page says so).
- */
 /** What the pages, the report and their tables read of an area's audit. */
 export type AuditView = Pick<
   AreaAudit,

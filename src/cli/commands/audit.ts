@@ -39,6 +39,9 @@ export const audit: Command = {
                      report at which the class has a value and needs no sequential sampling)
   --no-costs         skip the excursions' added voids (two assessments per exposed pair)
   --as-of T          assessment time of the costs (default the installation clock, else now)
+  --limits-from T, --limits-to T
+                     the control charts' baseline window (Phase I) where a location and channel has no
+                     derived levels with a window of their own (else the period itself, said per chart)
   --json             print the whole audit as one JSON document
   --csv DIR          write every table as DIR/<table>.csv (RFC 4180; --spreadsheet: with a byte-order
                      mark and the formula guard)
@@ -59,6 +62,8 @@ export const audit: Command = {
       sizes: { type: 'string' },
       'no-costs': { type: 'boolean' },
       'as-of': { type: 'string' },
+      'limits-from': { type: 'string' },
+      'limits-to': { type: 'string' },
       json: { type: 'boolean' },
       csv: { type: 'string' },
       table: { type: 'string' },
@@ -74,6 +79,12 @@ export const audit: Command = {
     const classN = numberOption('class', values.class);
     const sizesNm = values.sizes?.split(',').map((s) => Math.round(sizeOption('sizes', s) * 1e9));
     const asOfMs = timeOption('as-of', values['as-of'], false) ?? undefined;
+    const limitsFrom = timeOption('limits-from', values['limits-from'], false);
+    const limitsTo = timeOption('limits-to', values['limits-to'], false);
+    if ((limitsFrom === null) !== (limitsTo === null))
+      throw new UsageError('--limits-from and --limits-to go together (the charts’ baseline window)');
+    if (limitsFrom !== null && limitsTo !== null && limitsFrom >= limitsTo)
+      throw new UsageError('--limits-to must be after --limits-from');
     const outputs = [values.json, values.csv !== undefined, values.table !== undefined].filter(
       Boolean,
     ).length;
@@ -95,6 +106,8 @@ export const audit: Command = {
           sizesNm: sizesNm ?? null,
           costs: !values['no-costs'],
           asOfMs,
+          chartBaseline:
+            limitsFrom !== null && limitsTo !== null ? { fromMs: limitsFrom, toMs: limitsTo } : null,
         });
         const variant = values.spreadsheet ? 'spreadsheet' : 'plain';
         if (values.json) io.out(`${JSON.stringify(a)}\n`);
@@ -191,7 +204,7 @@ function render(a: AreaAudit): string {
   out.push(`control charts: ${a.charts.length} (location × channel); with flagged hours: ${flagged.length}`);
   for (const { ch, n } of flagged)
     out.push(
-      `  ${ch.locationId.padEnd(14)} ≥ ${um(ch.diameterM)} ${ch.kind}: ${n} flagged hours — ${ch.decidedBy}`,
+      `  ${ch.locationId.padEnd(14)} ≥ ${um(ch.diameterM)} ${ch.kind}: ${n} flagged hours — ${ch.decidedBy}; limits from ${ch.baseline.source === 'period' ? 'the period itself' : `${ch.baseline.words} ${iso(ch.baseline.window!.fromMs)} – ${iso(ch.baseline.window!.toMs)}`}`,
     );
   return `${out.join('\n')}\n`;
 }

@@ -34,7 +34,7 @@ function make(
 ): Made {
   const area = pathArea(ctx, c);
   const q = auditQuery(ctx, get, area);
-  const r = runAreaAudit(ctx, area, q.period, q.occupancy, q.edition);
+  const r = runAreaAudit(ctx, area, q.period, q.occupancy, q.edition, q.limits);
   const a = r.audit;
   return {
     area,

@@ -35,9 +35,10 @@ export function runAreaAudit(
   period: AuditPeriod,
   occupancy: OccupancySelection,
   edition: 2015 | 1999,
+  chartBaseline: AuditPeriod | null = null,
 ): { audit: AuditView | null; refusal: string | null } {
   try {
-    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition });
+    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition, chartBaseline });
     return {
       audit,
       refusal: null,
