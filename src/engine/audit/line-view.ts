@@ -101,8 +101,9 @@ export function linePareto(db: Db, p: AuditPeriod, asOf: number): LinePareto {
   const bands = new Map(SIZE_BANDS.map((b, i) => [b.label, { ...b, order: i }]));
   const entries: LineParetoEntry[] = [];
   for (const category of ['tool', 'wait location', 'clean', 'size band'] as const) {
+    // A size band no lot has voids in is left out, as the chart leaves out an empty bar.
     const list = [...sums.values()]
-      .filter((e) => e.category === category)
+      .filter((e) => e.category === category && (category !== 'size band' || e.voids > 0))
       .sort(
         (a, b) =>
           b.voids - a.voids ||
