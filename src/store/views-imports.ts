@@ -139,3 +139,13 @@ export function getStoredImport(db: Db, id: number): StoredImport | null {
     notes: parse(r.notes, []),
   };
 }
+
+/**
+ * The id of the latest import (null before any): it grows with every stored import, so a result
+ * computed from imported data can be kept under it (the audit's excursion costs,
+ * src/engine/audit/cost-loader.ts) and survive writes that change no input of it.
+ */
+export function latestImportId(db: Db): number | null {
+  if (!hasTable(db, 'imports')) return null;
+  return (db.prepare('SELECT max(id) AS m FROM imports').get() as { m: number | null }).m;
+}

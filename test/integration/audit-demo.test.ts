@@ -8,8 +8,10 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { loadDemo, readDemoManifest } from '../../src/cli/demo.ts';
+import { SIZE_BANDS } from '../../src/engine/attribution.ts';
 import { auditAreaFromDb, keptAreaAudit } from '../../src/engine/audit/audit.ts';
-import { baselineByChannel, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
+import { baselineByChannel, eventCostInDb, excursionCostInDb } from '../../src/engine/audit/cost-loader.ts';
+import { groupEvents } from '../../src/engine/audit/events.ts';
 import { chamberHistoryFromDb, lineParetoFromDb, searchLine } from '../../src/engine/audit/line-view.ts';
 import {
   acknowledgeExcursion,
@@ -19,7 +21,7 @@ import {
   loadCurrentLevels,
 } from '../../src/engine/audit/loader.ts';
 import type { Excursion } from '../../src/engine/audit/types.ts';
-import { loadPair } from '../../src/engine/loader.ts';
+import { assessLotFromDb, loadPair } from '../../src/engine/loader.ts';
 import { assessPair } from '../../src/engine/pair.ts';
 import type { CounterSeriesInput } from '../../src/engine/types.ts';
 import { type Db, migrate, openDatabase } from '../../src/store/db.ts';
@@ -78,6 +80,35 @@ describe('the demo’s planted excursion and counter fault', () => {
       (p) => p.startMs >= H('2026-10-13T09:00Z') && p.startMs < H('2026-10-13T18:00Z'),
     );
     expect(flagged.some((p) => p.rules.includes('run-of-8-below'))).toBe(true);
+  });
+});
+
+describe('control-chart limits from a baseline (Phase I)', () => {
+  it('with the week before as baseline the FFU hours are flagged beyond the limit and far fewer clean hours are', () => {
+    const period = { fromMs: H('2026-10-17T00:00Z'), toMs: H('2026-10-19T00:00Z') };
+    const chosen = { fromMs: H('2026-10-10T00:00Z'), toMs: H('2026-10-17T00:00Z') };
+    const chart = (chartBaseline: typeof chosen | null) =>
+      auditAreaFromDb(db, 'BOR-B2', { period, costs: false, chartSizesNm: [500], chartBaseline }).charts[0]!;
+    const withBase = chart(chosen);
+    const itself = chart(null);
+    // BOR-B2's levels are typed (no window of their own): the chosen window sets the limits.
+    expect(withBase.baseline).toMatchObject({ source: 'chosen', window: chosen, points: 168 });
+    expect(withBase.notes).toEqual([]);
+    expect(itself.baseline.source).toBe('period');
+    expect(itself.notes[0]).toContain('limits from the charted period itself');
+    // The hours above action (01:00–05:00, found by the action-point rule) are beyond the limit.
+    const inFfu = (p: { startMs: number }) =>
+      p.startMs >= H('2026-10-18T01:00Z') && p.startMs < H('2026-10-18T05:00Z');
+    for (const p of withBase.points.filter(inFfu)) expect(p.rules).toContain('beyond-limit');
+    // Outside the failure (00:00–06:00), the period's own limits flag the clean hours as runs below a
+    // centre the failure raised; the baseline's flag fewer than half as many.
+    const outside = (ch: typeof withBase) =>
+      ch.points.filter(
+        (p) =>
+          p.rules.length > 0 && (p.startMs < H('2026-10-18T00:00Z') || p.startMs >= H('2026-10-18T06:00Z')),
+      ).length;
+    expect(withBase.centre).toBeLessThan(itself.centre);
+    expect(outside(withBase)).toBeLessThan(outside(itself) / 2);
   });
 });
 
@@ -144,6 +175,51 @@ describe('the cost of the FFU excursion', () => {
       ).figures.voids.value;
     const overExcess = run(excess) - run(zero);
     expect(Math.abs(overExcess - dv)).toBeLessThanOrEqual(0.03 * Math.abs(dv));
+  });
+  it('the rules’ excursions of the FFU failure are one event, costed once over the union of their hours', () => {
+    const events = groupEvents(boreas);
+    expect(events).toHaveLength(1);
+    const ev = events[0]!;
+    expect(ev.excursionIds.sort()).toEqual(boreas.map((e) => e.id).sort());
+    expect(new Set(ev.rules)).toEqual(new Set(boreas.map((e) => e.rule)));
+    const from = Math.min(...boreas.map((e) => e.startMs));
+    const to = Math.max(...boreas.map((e) => e.endMs));
+    expect(ev.windows).toEqual([{ locationId: 'BOR-B2', fromMs: from, toMs: to }]);
+    const c = eventCostInDb(db, ev, { asOfMs });
+    // The oracle, written here: the pair as measured minus the pair with every sample of BOR-B2 in
+    // [earliest start, latest end) capped at the median hourly mean of the week before that span.
+    const loaded = loadPair(db, 'TR2653-P01', asOfMs)!;
+    const opts = { asOfMs, detail: 'summary' as const, config: { draws: 20 } };
+    const asMeasured = assessPair(loaded.pair, loaded.line, opts);
+    const base = baselineByChannel(db, 'BOR-B2', { fromMs: from, toMs: to });
+    const s = loaded.line.counters['BOR-B2']!;
+    const k = s.channelSizesM.length;
+    const capped = Float64Array.from(s.cumulativePerM3);
+    for (let i = 0; i < s.startMs.length; i++) {
+      if (s.startMs[i]! < from || s.startMs[i]! >= to) continue;
+      for (let j = 0; j < k; j++) {
+        const b = base.get(Math.round(s.channelSizesM[j]! * 1e9))!;
+        if (capped[i * k + j]! > b) capped[i * k + j] = b;
+      }
+    }
+    const without = assessPair(
+      loaded.pair,
+      { ...loaded.line, counters: { ...loaded.line.counters, 'BOR-B2': { ...s, cumulativePerM3: capped } } },
+      opts,
+    );
+    // Tolerance: the same arithmetic in another order, 1e-9 relative.
+    const dv = asMeasured.figures.voids.value - without.figures.voids.value;
+    const w = c.wafers.find((x) => x.pairId === 'TR2653-P01')!;
+    expect(Math.abs(w.addedVoids! - dv)).toBeLessThanOrEqual(1e-9 * Math.abs(dv));
+    // Once: at least each excursion's own cost (its hours are inside the union; capping more hours
+    // removes more excess) and less than their sum, which would count the shared hours two or three times.
+    const own = boreas.map((e) => excursionCostInDb(db, e, { asOfMs }).totalAddedVoids);
+    expect(c.totalAddedVoids).toBeGreaterThanOrEqual(Math.max(...own) * (1 - 1e-9));
+    expect(c.totalAddedVoids).toBeLessThan(own.reduce((a, v) => a + v, 0));
+    // The audit costs the event, not its excursions: one cost, the same.
+    const a = auditAreaFromDb(db, 'BOREAS', { period: PERIOD, asOfMs, chartSizesNm: [] });
+    expect(a.events.map((e) => e.id)).toEqual([ev.id]);
+    expect(a.costs.map((x) => [x.eventId, x.totalAddedVoids])).toEqual([[ev.id, c.totalAddedVoids]]);
   });
   it('an instrument finding has no air to cost', () => {
     const lev = findExcursionsInDb(db, 'LEVANT', { period: PERIOD });
@@ -241,7 +317,7 @@ describe('the line view', () => {
   it('the Pareto across the assessed lots sums each category to a share of 1, largest first', () => {
     const p = lineParetoFromDb(db, PERIOD, asOfMs);
     expect(p.lots).toContain('TR2653');
-    for (const cat of ['tool', 'wait location', 'clean'] as const) {
+    for (const cat of ['tool', 'wait location', 'clean', 'size band'] as const) {
       const list = p.entries.filter((e) => e.category === cat);
       expect(list.length).toBeGreaterThan(0);
       // Shares of a category add up to 1 (floating-point sum of a few terms: 1e-12).
@@ -251,6 +327,36 @@ describe('the line view', () => {
     }
     // The buffer cart bay of the night excursion leads the waits (docs/demo.md: TR2653 parked there).
     expect(p.entries.find((e) => e.category === 'wait location')!.key).toBe('BOR-B2');
+  });
+  it('by size band: the bands hold the particle sources’ voids of every assessed lot, the unexplained apart', () => {
+    const p = lineParetoFromDb(db, PERIOD, asOfMs);
+    const bands = p.entries.filter((e) => e.category === 'size band');
+    // Bands of the pair and lot pages (src/engine/attribution.ts SIZE_BANDS), those with voids, edges in metres.
+    expect(bands.length).toBeGreaterThan(1);
+    for (const e of bands) expect(e.expectedVoids).toBeGreaterThan(0);
+    for (const e of bands) {
+      const b = SIZE_BANDS.find((x) => x.label === e.key)!;
+      expect(e.fromM).toBe(b.fromM);
+      expect(e.toM).toBe(Number.isFinite(b.toM) ? b.toM : null);
+    }
+    // The oracle: each lot assessed here on its own, its particle sources' voids summed over its pairs
+    // (a sum of a few hundred terms in another order: 1e-9 relative).
+    let particle = 0;
+    let unexplained = 0;
+    for (const lotId of p.lots) {
+      const a = assessLotFromDb(db, lotId, { asOfMs, detail: 'summary', config: { draws: 20 } })!;
+      for (const pr of a.pairs)
+        for (const c of pr.contributions)
+          if (c.kind === 'unexplained') unexplained += c.expectedVoids;
+          else particle += c.expectedVoids;
+    }
+    const bandSum = bands.reduce((s, e) => s + e.expectedVoids, 0);
+    expect(particle).toBeGreaterThan(0);
+    expect(Math.abs(bandSum - particle)).toBeLessThan(1e-9 * particle);
+    expect(Math.abs(p.particleVoids - particle)).toBeLessThan(1e-9 * particle);
+    expect(p.unexplainedVoids).toBe(unexplained);
+    // Kept until the data change: the same object again within one data generation.
+    expect(lineParetoFromDb(db, PERIOD, asOfMs)).toBe(p);
   });
   it('each chamber’s history lists its passes in time order with an interval around each count', () => {
     const h = chamberHistoryFromDb(db);

@@ -126,10 +126,43 @@ describe('an area’s audit page', () => {
     }
   });
 
-  it('tells which parts this version does not compute instead of leaving them blank', async () => {
+  it('refuses a chart baseline window given by half or ending before it starts, with 400 naming it', async () => {
+    for (const [q, name] of [
+      ['limitsFrom=2025-03-01T00:00Z', 'limitsTo'],
+      ['limitsTo=2025-03-01T00:00Z', 'limitsFrom'],
+      ['limitsFrom=2025-03-02T00:00Z&limitsTo=2025-03-01T00:00Z', 'limitsTo'],
+    ] as const) {
+      const res = await app.request(`/areas/fab-1/audit?${PERIOD}&${q}`);
+      expect(res.status, q).toBe(400);
+      expect(await res.text(), q).toContain(name);
+    }
+    // A good window is kept in the form and in every link of the page (report, downloads).
+    const html = await page(
+      `/areas/fab-1/audit?${PERIOD}&limitsFrom=2025-03-01T00:00Z&limitsTo=2025-03-02T00:00Z`,
+    );
+    expect(html).toContain('name="limitsFrom" value="2025-03-01T00:00Z"');
+    expect(html).toContain('limitsFrom=2025-03-01T00%3A00Z&amp;limitsTo=2025-03-02T00%3A00Z');
+  });
+
+  it('shows every part of the audit, each table or the words of its empty state, none left out', async () => {
     const html = await page(`/areas/fab-1/audit?${PERIOD}`);
-    for (const m of html.matchAll(/data-missing="([^"]+)"/g))
-      expect(html).toContain(`${m[1]}: not available in this version`);
+    const ids = [
+      ...htmlTables(html).map((t) => t.id),
+      ...[...html.matchAll(/data-empty="([^"]+)"/g)].map((m) => m[1]!),
+    ];
+    for (const id of [
+      'classification-summary',
+      'classification-sizes',
+      'classification-locations',
+      'levels',
+      'excursions',
+      'events',
+      'exposed-wafers',
+      'lot-costs',
+      'control-charts',
+    ])
+      expect(ids, id).toContain(id);
+    expect(html).not.toContain('not available');
   });
 });
 

@@ -107,6 +107,8 @@ const QUERY_ROUTES: {
   { path: '/areas/fab-1/audit?to={}', param: 'to', kind: 'time' },
   { path: '/areas/fab-1/audit?occupancy={}', param: 'occupancy', kind: 'word' },
   { path: '/areas/fab-1/audit?edition={}', param: 'edition', kind: 'word' },
+  { path: '/areas/fab-1/audit?limitsFrom={}', param: 'limitsFrom', kind: 'time' },
+  { path: '/areas/fab-1/audit?limitsTo={}', param: 'limitsTo', kind: 'time' },
   { path: '/areas/fab-1/audit/report?from={}', param: 'from', kind: 'time' },
   { path: '/areas/fab-1/audit/report?occupancy={}', param: 'occupancy', kind: 'word' },
   { path: '/areas/fab-1/audit/tables/classification-summary?format={}', param: 'format', kind: 'word' },

@@ -27,6 +27,9 @@ export interface AuditQuery {
   to: string;
   occupancy: OccupancySelection;
   edition: 2015 | 1999;
+  /** The control charts' baseline window, when one was chosen. */
+  limitsFrom?: string;
+  limitsTo?: string;
 }
 
 /** The query string of an audit URL. */
@@ -36,6 +39,7 @@ export function auditQueryString(q: AuditQuery, extra: Record<string, string> = 
     to: q.to,
     occupancy: q.occupancy,
     edition: String(q.edition),
+    ...(q.limitsFrom && q.limitsTo ? { limitsFrom: q.limitsFrom, limitsTo: q.limitsTo } : {}),
     ...extra,
   });
   return p.toString();
@@ -77,6 +81,18 @@ export function AuditPeriodForm(props: { action: string; query: AuditQuery; with
           </select>
         </label>
       )}
+      {props.withEdition === false ? null : (
+        <>
+          <label>
+            Chart limits from (UTC)
+            <input name="limitsFrom" value={q.limitsFrom ?? ''} placeholder="optional" />
+          </label>
+          <label>
+            to (UTC)
+            <input name="limitsTo" value={q.limitsTo ?? ''} placeholder="optional" />
+          </label>
+        </>
+      )}
       <button type="submit">Show</button>
     </form>
   );
@@ -100,8 +116,6 @@ export interface AreaAuditProps {
   channelsUm: number[];
   /** Draw every control chart (else those with levels or excursions; the table lists all). */
   allCharts?: boolean;
-  /** Whether this version stores derived levels and acknowledgements (else the page says so). */
-  forms: { levels: boolean; acknowledge: boolean };
 }
 
 export function AreaAuditPage(p: AreaAuditProps) {
@@ -109,8 +123,6 @@ export function AreaAuditPage(p: AreaAuditProps) {
   const t = (id: string) => p.tables.find((x) => x.id === id)!;
   const view = (id: string) => <AuditTableView table={t(id)} href={(f) => p.downloadHref(id, f)} />;
   const a = p.audit;
-  const has = (id: string) => p.tables.some((x) => x.id === id);
-  const part = (id: string, what: string) => (has(id) ? view(id) : <NotComputed what={what} />);
   return (
     <section class="vc-audit">
       <p class="vc-crumbs">
@@ -160,18 +172,14 @@ export function AreaAuditPage(p: AreaAuditProps) {
         The levels in force, newest version per location and channel. Levels from the locations file say
         “typed”; derived levels name their method, baseline window, version, who set them and when.
       </p>
-      {a ? part('levels', 'Alert and action levels with their method and history') : null}
-      {p.forms.levels ? (
-        <LevelsForm
-          action={`${base}/levels`}
-          query={p.query}
-          csrf={p.csrfToken}
-          locations={p.locations}
-          channelsUm={p.channelsUm}
-        />
-      ) : (
-        <NotComputed what="Deriving levels from a baseline" />
-      )}
+      {a ? view('levels') : null}
+      <LevelsForm
+        action={`${base}/levels`}
+        query={p.query}
+        csrf={p.csrfToken}
+        locations={p.locations}
+        channelsUm={p.channelsUm}
+      />
       {a ? (
         <>
           <h2 id="excursions">Excursions</h2>
@@ -183,35 +191,38 @@ export function AreaAuditPage(p: AreaAuditProps) {
             . “Most likely” tells a rise in the air from a counter fault by the samples’ data-quality flags
             and the signature across channels.
           </p>
-          {part('excursions', 'Excursions by rule')}
-          {a.excursions && p.forms.acknowledge ? (
-            <AckForms
-              base={base}
-              query={p.query}
-              csrf={p.csrfToken}
-              choices={a.excursions
-                .map((e, i) => ({
-                  id: e.id,
-                  words: `E${i + 1}: ${ruleWords(e.rule)} at ${e.locationIds.join(', ')} from ${fmtUtc(e.startMs)}`,
-                  open: !e.acknowledgement,
-                }))
-                .filter((e) => e.open)}
-            />
-          ) : null}
-          <h3>Exposed wafers</h3>
+          {view('excursions')}
+          <AckForms
+            base={base}
+            query={p.query}
+            csrf={p.csrfToken}
+            choices={a.excursions
+              .map((e, i) => ({
+                id: e.id,
+                words: `E${i + 1}: ${ruleWords(e.rule)} at ${e.locationIds.join(', ')} from ${fmtUtc(e.startMs)}`,
+                open: !e.acknowledgement,
+              }))
+              .filter((e) => e.open)}
+          />
+          <h3>Events and what each added</h3>
           <p class="vc-small">
-            What each excursion added: the expected voids and die loss from the excess over the location's
-            baseline during the excursion, for each wafer the ledger puts in that air.
+            Excursions whose hours overlap at a location are one event, found by each of their rules: an event
+            is costed once, over the union of its excursions' hours — the expected voids and die loss from the
+            excess over the location's baseline, for each wafer the ledger puts in that air — so the events'
+            costs add up without counting an hour twice.
           </p>
-          {part('exposed-wafers', 'The added voids and die loss of each excursion')}
-          {has('lot-costs') ? (
-            <>
-              <h3>Added risk per lot</h3>
-              {view('lot-costs')}
-            </>
-          ) : null}
+          {view('events')}
+          <h3>Exposed wafers</h3>
+          {view('exposed-wafers')}
+          <h3>Added risk per lot</h3>
+          {view('lot-costs')}
           <h2 id="charts">Control charts</h2>
-          {part('control-charts', 'Control charts per location and channel')}
+          <p class="vc-small">
+            Each chart's centre line and limits come from a baseline: the window the location's derived levels
+            were set from, else the window chosen above (“Chart limits from … to”), else the period itself —
+            then an excursion in the period raises the centre and widens the limits, and the chart says so.
+          </p>
+          {view('control-charts')}
           {a.charts && a.charts.length > 0 ? (
             <ChartsBlock
               audit={a}
@@ -246,15 +257,6 @@ function ChartsBlock(props: { audit: AuditView; all: boolean; toggleHref: string
         ))}
       </div>
     </>
-  );
-}
-
-/** A part of the audit this version does not compute: said, never left blank or shown as a pass. */
-export function NotComputed(props: { what: string }) {
-  return (
-    <p class="vc-note" data-missing={props.what}>
-      {props.what}: not available in this version of voidcast.
-    </p>
   );
 }
 

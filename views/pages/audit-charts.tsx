@@ -5,6 +5,7 @@
 import type { ChartRuleId, ControlChart, LevelRecord } from '../../src/engine/audit/types.ts';
 import { type ControlChartInput, type ControlChartRule, controlChart } from '../charts/control-chart.tsx';
 import { fmtDiameter } from '../charts/svg.tsx';
+import { limitsWords } from './audit-tables.ts';
 
 /** The chart rules with their marks and words (our own names; NIST/SEMATECH §6.3.2-style run rules). */
 export const CHART_RULES: (ControlChartRule & { code: ChartRuleId })[] = [
@@ -61,7 +62,13 @@ export function ControlChartFigure(props: { chart: ControlChart; levels: LevelRe
         {ch.excludedPoints
           ? `, ${ch.excludedPoints} left out of the centre line (fault or sentinel hours)`
           : ''}
-        .
+        . Centre line and limits from {limitsWords(ch)}.
+        {ch.notes.length ? (
+          <span class="vc-note" data-limits-note={ch.baseline.source}>
+            {' '}
+            {ch.notes.join('; ')}.
+          </span>
+        ) : null}
       </figcaption>
     </figure>
   );

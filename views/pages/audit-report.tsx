@@ -5,10 +5,10 @@
  * charts, and the sign-offs (acknowledgements on record, and lines to sign on paper).
  */
 import { fmtNum, fmtUtc } from '../partials/format.ts';
-import { type AuditQuery, auditQueryString, NotComputed } from './audit-area.tsx';
+import { type AuditQuery, auditQueryString } from './audit-area.tsx';
 import { ControlChartFigure, chartsShown } from './audit-charts.tsx';
 import { type AuditTable, AuditTableView } from './audit-table.tsx';
-import { type AuditView, classWords, excursionLabels, occupancyWords } from './audit-tables.ts';
+import { type AuditView, classWords, eventLabels, excursionLabels, occupancyWords } from './audit-tables.ts';
 
 /** The report's section headings, in order (the browser test finds them in the printed PDF). */
 export const REPORT_HEADINGS = [
@@ -22,13 +22,6 @@ export const REPORT_HEADINGS = [
 
 /** The most columns a table of the printed report has (A4 landscape at 8 pt); wider ones are cut into parts. */
 export const REPORT_MAX_COLUMNS = 12;
-
-const WHAT: Record<string, string> = {
-  levels: 'Alert and action levels with their method and history',
-  excursions: 'Excursions by rule',
-  'exposed-wafers': 'The added voids and die loss of each excursion',
-  'control-charts': 'Control charts per location and channel',
-};
 
 export interface AuditReportProps {
   area: { id: string; name: string };
@@ -45,19 +38,17 @@ export function AuditReportPage(p: AuditReportProps) {
   const t = (id: string) => p.tables.find((x) => x.id === id);
   const view = (id: string) => {
     const table = t(id);
-    return table ? (
-      <AuditTableView table={table} href={null} maxColumns={REPORT_MAX_COLUMNS} />
-    ) : a ? (
-      <NotComputed what={WHAT[id] ?? id} />
-    ) : null;
+    return table ? <AuditTableView table={table} href={null} maxColumns={REPORT_MAX_COLUMNS} /> : null;
   };
   const excursions = a?.excursions ?? [];
-  // Excursions of one event overlap (the rules see it each in their way): the largest is said, never a sum.
-  const costs = a?.costs ?? null;
-  const largest = costs?.length
-    ? costs.reduce((m, c) => (c.totalAddedVoids > m.totalAddedVoids ? c : m))
-    : null;
+  const events = a?.events ?? [];
+  // Each event is costed once (its excursions together), so the events' costs add up without double counting.
+  const costs = a?.costs ?? [];
+  const costed = costs.filter((c) => c.lots.length > 0);
+  const addedVoids = costs.reduce((s, c) => s + c.totalAddedVoids, 0);
+  const addedDieLoss = costs.reduce((s, c) => s + c.totalAddedDieLoss, 0);
   const labels = excursionLabels(excursions);
+  const evLabels = eventLabels(events);
   const back = `/areas/${encodeURIComponent(p.area.id)}/audit?${auditQueryString(p.query)}`;
   return (
     <article class="vc-report-doc">
@@ -92,22 +83,34 @@ export function AuditReportPage(p: AuditReportProps) {
               : 'no verdict'}
           </dd>
           <dt>Excursions</dt>
-          <dd>
-            {!a?.excursions
-              ? 'not available in this version of voidcast'
+          <dd data-cover="excursions">
+            {!a
+              ? 'none judged'
               : `${excursions.length} in the period${
                   excursions.length
-                    ? `; ${excursions.filter((e) => e.nature === 'air').length} in the air, ${excursions.filter((e) => e.nature === 'instrument').length} counter faults` +
-                      (
-                        costs === null
-                          ? '; added voids not available in this version'
-                          : largest
-                            ? `; the largest, ${labels.get(largest.excursionId) ?? largest.excursionId}, added ${fmtNum(largest.totalAddedVoids)} voids and ${fmtNum(largest.totalAddedDieLoss)} dies of loss (excursions of one event overlap and are not summed)`
-                            : ''
-                      )
+                    ? ` in ${events.length} event${events.length === 1 ? '' : 's'}: ${events.filter((e) => e.nature === 'air').length} in the air, ${events.filter((e) => e.nature === 'instrument').length} counter fault${events.filter((e) => e.nature === 'instrument').length === 1 ? '' : 's'}, ${events.filter((e) => e.nature === 'unclear').length} unclear`
                     : ''
                 }`}
           </dd>
+          {a && events.length > 0 ? (
+            <>
+              <dt>Added by the events</dt>
+              <dd data-cover="added">
+                {costs.length === 0
+                  ? 'not costed in this report'
+                  : `${fmtNum(addedVoids)} expected voids and ${fmtNum(addedDieLoss)} dies of loss in all, each event counted once (its excursions together)${
+                      costed.length
+                        ? `: ${costed
+                            .map(
+                              (c) =>
+                                `${evLabels.get(c.eventId) ?? c.eventId} (${c.excursionIds.map((id) => labels.get(id) ?? id).join(', ')}) ${fmtNum(c.totalAddedVoids)} voids`,
+                            )
+                            .join('; ')}`
+                        : ''
+                    }`}
+              </dd>
+            </>
+          ) : null}
           <dt>Drawn up</dt>
           <dd>
             {fmtUtc(p.generatedAtMs)} by voidcast {p.version}
@@ -145,10 +148,16 @@ export function AuditReportPage(p: AuditReportProps) {
       <section class="vc-report-section">
         <h2>{REPORT_HEADINGS[3]}</h2>
         {view('excursions')}
+        <h3>Events and what each added</h3>
+        <p class="vc-small">
+          Excursions whose hours overlap at a location are one event; each event is costed once, over the
+          union of its excursions' hours.
+        </p>
+        {view('events')}
         <h3>Exposed wafers</h3>
         {view('exposed-wafers')}
         <h3>Added risk per lot</h3>
-        {t('lot-costs') ? view('lot-costs') : null}
+        {view('lot-costs')}
       </section>
       <section class="vc-report-section">
         <h2>{REPORT_HEADINGS[4]}</h2>

@@ -8,8 +8,9 @@ import type {
   AreaAudit,
   AreaClassification,
   ControlChart,
+  EventCost,
   Excursion,
-  ExcursionCost,
+  ExcursionEvent,
   LevelRecord,
   VerdictStatus,
 } from '../../src/engine/audit/types.ts';
@@ -276,15 +277,29 @@ export function excursionLabels(exs: { id: string }[]): Map<string, string> {
 const excursionCell = (id: string, labels: Map<string, string>): AuditCell =>
   cell(labels.get(id) ?? id, { value: id, cls: 'vc-nowrap' });
 
-/** Excursions: rule, where, when, peak, channels, what it most likely is, data quality, cost. */
-export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null): AuditTable {
-  const costOf = new Map((costs ?? []).map((c) => [c.excursionId, c]));
+/** Short labels of the events ("Event 1", …), in the audit's order. */
+export function eventLabels(events: { id: string }[]): Map<string, string> {
+  return new Map(events.map((e, i) => [e.id, `Event ${i + 1}`]));
+}
+
+const eventCell = (id: string, labels: Map<string, string>): AuditCell =>
+  cell(labels.get(id) ?? id, { value: id, cls: 'vc-nowrap' });
+
+/**
+ * Excursions: rule, where, when, peak, channels, what it most likely is, data quality, and the event
+ * it belongs to (its cost is the event's, in the events table: excursions of one event are costed
+ * together, once).
+ */
+export function excursionsTable(exs: Excursion[], events: ExcursionEvent[]): AuditTable {
   const labels = excursionLabels(exs);
+  const evLabels = eventLabels(events);
+  const eventOf = new Map(events.flatMap((ev) => ev.excursionIds.map((id) => [id, ev.id])));
   return {
     id: 'excursions',
     title: 'Excursions',
     columns: [
       { key: 'id', label: 'Excursion' },
+      { key: 'event', label: 'Event' },
       { key: 'rule', label: 'Rule' },
       { key: 'locations', label: 'Locations' },
       { key: 'start', label: 'Start (UTC)' },
@@ -297,13 +312,9 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
       { key: 'nature', label: 'Most likely' },
       { key: 'why', label: 'Why' },
       { key: 'data_quality', label: 'Data quality' },
-      { key: 'exposed_wafers', label: 'Exposed wafers', numeric: true },
-      { key: 'added_voids', label: 'Added voids', numeric: true },
-      { key: 'added_die_loss', label: 'Added die loss (dies)', numeric: true },
       { key: 'acknowledged', label: 'Acknowledged' },
     ],
     rows: exs.map((e) => {
-      const cost = costOf.get(e.id);
       const q = e.quality;
       const quality = [
         `${q.samples} samples`,
@@ -315,8 +326,10 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
       ]
         .filter(Boolean)
         .join(', ');
+      const ev = eventOf.get(e.id);
       return [
         excursionCell(e.id, labels),
+        ev ? eventCell(ev, evLabels) : cell('—', { value: null }),
         cell(ruleWords(e.rule), { value: e.rule }),
         cell(e.locationIds.join(', ')),
         timeCell(e.startMs),
@@ -329,9 +342,6 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
         cell(NATURE_WORDS[e.nature] ?? e.nature, { value: e.nature, cls: `vc-nature-${e.nature}` }),
         cell(e.natureWords, { cls: 'vc-wide' }),
         cell(quality),
-        cost ? wholeCell(cost.wafers.length) : cell('not costed', { value: null }),
-        cost ? numCell(cost.totalAddedVoids) : cell('not costed', { value: null }),
-        cost ? numCell(cost.totalAddedDieLoss) : cell('not costed', { value: null }),
         e.acknowledgement
           ? cell(
               `${e.acknowledgement.account}, ${fmtUtc(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}`,
@@ -343,13 +353,63 @@ export function excursionsTable(exs: Excursion[], costs: ExcursionCost[] | null)
   };
 }
 
-/** Every wafer the ledger puts in an excursion's air, with what the excursion added to it. */
-export function exposedWafersTable(costs: ExcursionCost[], labels: Map<string, string>): AuditTable {
+/**
+ * Events: the excursions of one happening (overlapping windows at a shared location), the rules that
+ * found it, the windows costed and what it added, once. `costs` null or without the event: not costed.
+ */
+export function eventsTable(
+  events: ExcursionEvent[],
+  costs: EventCost[] | null,
+  exs: Excursion[],
+): AuditTable {
+  const labels = excursionLabels(exs);
+  const evLabels = eventLabels(events);
+  const costOf = new Map((costs ?? []).map((c) => [c.eventId, c]));
+  return {
+    id: 'events',
+    title: 'Events and what each added',
+    columns: [
+      { key: 'id', label: 'Event' },
+      { key: 'excursions', label: 'Excursions' },
+      { key: 'rules', label: 'Found by' },
+      { key: 'locations', label: 'Locations' },
+      { key: 'start', label: 'Start (UTC)' },
+      { key: 'end', label: 'End (UTC)' },
+      { key: 'nature', label: 'Most likely' },
+      { key: 'exposed_wafers', label: 'Exposed wafers', numeric: true },
+      { key: 'added_voids', label: 'Added voids', numeric: true },
+      { key: 'added_die_loss', label: 'Added die loss (dies)', numeric: true },
+      { key: 'notes', label: 'Notes' },
+    ],
+    rows: events.map((ev) => {
+      const c = costOf.get(ev.id);
+      return [
+        eventCell(ev.id, evLabels),
+        cell(ev.excursionIds.map((id) => labels.get(id) ?? id).join(', '), {
+          value: ev.excursionIds.join(' '),
+        }),
+        cell(ev.rules.map(ruleWords).join('; '), { value: ev.rules.join(' ') }),
+        cell(ev.locationIds.join(', ')),
+        timeCell(ev.startMs),
+        timeCell(ev.endMs),
+        cell(NATURE_WORDS[ev.nature] ?? ev.nature, { value: ev.nature, cls: `vc-nature-${ev.nature}` }),
+        c ? wholeCell(new Set(c.wafers.map((w) => w.waferId)).size) : cell('not costed', { value: null }),
+        c ? numCell(c.totalAddedVoids) : cell('not costed', { value: null }),
+        c ? numCell(c.totalAddedDieLoss) : cell('not costed', { value: null }),
+        cell(c ? c.notes.join('; ') : '', { cls: 'vc-wide' }),
+      ];
+    }),
+    empty: 'No excursion in this period under the rules chosen.',
+  };
+}
+
+/** Every wafer the ledger puts in an event's air, with what the event added to it. */
+export function exposedWafersTable(costs: EventCost[], labels: Map<string, string>): AuditTable {
   return {
     id: 'exposed-wafers',
-    title: 'Exposed wafers and what each excursion added',
+    title: 'Exposed wafers and what each event added',
     columns: [
-      { key: 'excursion', label: 'Excursion' },
+      { key: 'event', label: 'Event' },
       { key: 'wafer', label: 'Wafer' },
       { key: 'lot', label: 'Lot' },
       { key: 'pair', label: 'Pair' },
@@ -363,7 +423,7 @@ export function exposedWafersTable(costs: ExcursionCost[], labels: Map<string, s
     ],
     rows: costs.flatMap((c) =>
       c.wafers.map((w) => [
-        excursionCell(c.excursionId, labels),
+        eventCell(c.eventId, labels),
         cell(w.waferId, { cls: 'vc-nowrap' }),
         cell(w.lotId, { href: `/lots/${encodeURIComponent(w.lotId)}`, cls: 'vc-nowrap' }),
         w.pairId
@@ -382,13 +442,13 @@ export function exposedWafersTable(costs: ExcursionCost[], labels: Map<string, s
   };
 }
 
-/** What each excursion added per lot. */
-export function lotCostsTable(costs: ExcursionCost[], labels: Map<string, string>): AuditTable {
+/** What each event added per lot. */
+export function lotCostsTable(costs: EventCost[], labels: Map<string, string>): AuditTable {
   return {
     id: 'lot-costs',
     title: 'Added risk per lot',
     columns: [
-      { key: 'excursion', label: 'Excursion' },
+      { key: 'event', label: 'Event' },
       { key: 'lot', label: 'Lot' },
       { key: 'wafers', label: 'Wafers exposed', numeric: true },
       { key: 'added_voids', label: 'Added voids', numeric: true },
@@ -396,7 +456,7 @@ export function lotCostsTable(costs: ExcursionCost[], labels: Map<string, string
     ],
     rows: costs.flatMap((c) =>
       c.lots.map((l) => [
-        excursionCell(c.excursionId, labels),
+        eventCell(c.eventId, labels),
         cell(l.lotId, { href: `/lots/${encodeURIComponent(l.lotId)}` }),
         wholeCell(l.wafers),
         numCell(l.addedVoids),
@@ -410,6 +470,14 @@ export function lotCostsTable(costs: ExcursionCost[], labels: Map<string, string
 const KIND_WORDS: Record<string, string> = { c: 'c chart', u: 'u chart', 'laney-u': 'Laney u′ chart' };
 
 /** Each control chart in a row: kind and why, centre, σ_z, points, flagged, left out. */
+/** Where a chart's centre line and limits come from, in words ("the chosen baseline window, 2026‑10‑01 … (336 h)"). */
+export function limitsWords(ch: ControlChart): string {
+  const b = ch.baseline;
+  return b.window
+    ? `${b.words}, ${fmtUtc(b.window.fromMs)} to ${fmtUtc(b.window.toMs)} (${b.points} h)`
+    : `${b.words} (${b.points} h)`;
+}
+
 export function chartsTable(charts: ControlChart[]): AuditTable {
   return {
     id: 'control-charts',
@@ -424,6 +492,7 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
       { key: 'flagged', label: 'Flagged', numeric: true },
       { key: 'left_out', label: 'Left out of the centre', numeric: true },
       { key: 'decided_by', label: 'Why this chart' },
+      { key: 'limits_from', label: 'Limits from' },
     ],
     rows: charts.map((ch) => [
       cell(ch.locationId),
@@ -435,6 +504,7 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
       wholeCell(ch.points.filter((p) => p.rules.length > 0).length),
       wholeCell(ch.excludedPoints),
       cell(ch.decidedBy),
+      cell(limitsWords(ch), { value: ch.baseline.source }),
     ]),
     empty: 'No control chart: no location of this area has counter samples in this period.',
   };
@@ -442,36 +512,33 @@ export function chartsTable(charts: ControlChart[]): AuditTable {
 
 export { classWords, sizeWords };
 
-/**
- * What an area's audit pages show: the classification, and each further part where the engine
- * provides it (null: this version does not compute it, and the page says so).
- */
-export interface AuditView {
-  areaId: string;
-  period: AreaAudit['period'];
-  occupancy: AreaAudit['occupancy'];
-  classification: AreaClassification;
-  levels: LevelRecord[] | null;
-  excursions: Excursion[] | null;
-  costs: ExcursionCost[] | null;
-  charts: ControlChart[] | null;
-}
+/** What the pages, the report and their tables read of an area's audit. */
+export type AuditView = Pick<
+  AreaAudit,
+  | 'areaId'
+  | 'period'
+  | 'occupancy'
+  | 'classification'
+  | 'levels'
+  | 'excursions'
+  | 'events'
+  | 'costs'
+  | 'charts'
+>;
 
-/** Every table of an area's audit that has data behind it, in page order. */
+/** Every table of an area's audit, in page order. */
 export function areaAuditTables(a: AuditView, hrefOf?: (locationId: string) => string): AuditTable[] {
+  const labels = eventLabels(a.events);
   return [
     classificationSummaryTable(a.classification),
     classificationSizesTable(a.classification),
     classificationLocationsTable(a.classification, hrefOf),
-    ...(a.levels ? [levelsTable(a.levels)] : []),
-    ...(a.excursions ? [excursionsTable(a.excursions, a.costs ?? [])] : []),
-    ...(a.costs
-      ? [
-          exposedWafersTable(a.costs, excursionLabels(a.excursions ?? [])),
-          lotCostsTable(a.costs, excursionLabels(a.excursions ?? [])),
-        ]
-      : []),
-    ...(a.charts ? [chartsTable(a.charts)] : []),
+    levelsTable(a.levels),
+    excursionsTable(a.excursions, a.events),
+    eventsTable(a.events, a.costs, a.excursions),
+    exposedWafersTable(a.costs, labels),
+    lotCostsTable(a.costs, labels),
+    chartsTable(a.charts),
   ];
 }
 

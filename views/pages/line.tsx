@@ -17,18 +17,31 @@ export const PARETO_CATEGORIES: { category: ParetoCategory; id: string; title: s
   { category: 'size band', id: 'pareto-size-band', title: 'By size band' },
 ];
 
-/** One Pareto table per category. */
+const um = (m: number | null | undefined) =>
+  m === null || m === undefined ? null : Number((m * 1e6).toPrecision(6));
+
+/**
+ * One Pareto table per category. The size-band table gives each band's particle diameters in µm
+ * (the lower edge inclusive, the upper exclusive; an empty upper edge: no upper edge).
+ */
 export function paretoTable(entries: LineParetoEntry[], category: ParetoCategory): AuditTable {
   const def = PARETO_CATEGORIES.find((c) => c.category === category)!;
   const rows = entries.filter((e) => e.category === category);
+  const bands = category === 'size band';
   return {
     id: def.id,
     title: `Expected voids ${def.title.toLowerCase()}`,
     columns: [
       {
         key: 'key',
-        label: category === 'size band' ? 'Size band' : category[0]!.toUpperCase() + category.slice(1),
+        label: bands ? 'Size band' : category[0]!.toUpperCase() + category.slice(1),
       },
+      ...(bands
+        ? [
+            { key: 'from_um', label: 'From (µm)', numeric: true },
+            { key: 'to_um', label: 'Below (µm)', numeric: true },
+          ]
+        : []),
       { key: 'expected_voids', label: 'Expected voids', numeric: true },
       { key: 'share', label: 'Share', numeric: true },
       { key: 'cumulative_share', label: 'Cumulative share', numeric: true },
@@ -36,6 +49,12 @@ export function paretoTable(entries: LineParetoEntry[], category: ParetoCategory
     ],
     rows: rows.map((e) => [
       cell(e.label === e.key ? e.key : `${e.label} (${e.key})`, { value: e.key }),
+      ...(bands
+        ? [
+            cell(String(um(e.fromM) ?? ''), { value: um(e.fromM) }),
+            cell(um(e.toM) === null ? '—' : String(um(e.toM)), { value: um(e.toM) }),
+          ]
+        : []),
       cell(fmtNum(e.expectedVoids), { value: Number(e.expectedVoids.toPrecision(6)) }),
       cell(fmtPct(e.share), { value: Number(e.share.toPrecision(6)), cls: 'vc-nowrap' }),
       cell(fmtPct(e.cumulativeShare), { value: Number(e.cumulativeShare.toPrecision(6)), cls: 'vc-nowrap' }),
@@ -84,6 +103,9 @@ export interface LinePageProps {
   query: { from: string; to: string };
   period: { fromMs: number; toMs: number };
   pareto: LineParetoEntry[];
+  /** Expected voids of the particle sources (the size bands' sum) and of no particle, over the lots. */
+  particleVoids: number;
+  unexplainedVoids: number;
   histories: ChamberHistory[];
   tables: AuditTable[];
   problems: string[];
@@ -125,16 +147,6 @@ export function LinePage(p: LinePageProps) {
           const items = p.pareto
             .filter((e) => e.category === c.category)
             .map((e) => ({ label: e.key, value: e.expectedVoids }));
-          if (items.length === 0 && c.category === 'size band' && p.pareto.length > 0)
-            return (
-              <div class="vc-chart-block" data-pareto={c.category}>
-                <h3>{c.title}</h3>
-                <p class="vc-note" data-missing="size band">
-                  By size band: not available in this version of voidcast (the line view sums each lot's
-                  assessment summary, which does not keep the sources' size spectra).
-                </p>
-              </div>
-            );
           return (
             <div class="vc-chart-block" data-pareto={c.category}>
               <h3>{c.title}</h3>
@@ -147,6 +159,19 @@ export function LinePage(p: LinePageProps) {
                     width: 560,
                   })
                 : null}
+              {c.category === 'size band' ? (
+                <p class="vc-note" data-particle-voids={String(p.particleVoids)}>
+                  The particle's diameter at the bond interface, lower edge included. The bands hold the
+                  expected voids of every particle source ({fmtNum(p.particleVoids)} in all)
+                  {p.unexplainedVoids > 0 ? (
+                    <>
+                      ; the {fmtNum(p.unexplainedVoids)} expected voids no scanned particle explains have no
+                      particle size and are in no band
+                    </>
+                  ) : null}
+                  .
+                </p>
+              ) : null}
               <AuditTableView table={t(c.id)} href={(f) => p.downloadHref(c.id, f)} />
             </div>
           );

@@ -39,6 +39,9 @@ export const audit: Command = {
                      report at which the class has a value and needs no sequential sampling)
   --no-costs         skip the excursions' added voids (two assessments per exposed pair)
   --as-of T          assessment time of the costs (default the installation clock, else now)
+  --limits-from T, --limits-to T
+                     the control charts' baseline window (Phase I) where a location and channel has no
+                     derived levels with a window of their own (else the period itself, said per chart)
   --json             print the whole audit as one JSON document
   --csv DIR          write every table as DIR/<table>.csv (RFC 4180; --spreadsheet: with a byte-order
                      mark and the formula guard)
@@ -59,6 +62,8 @@ export const audit: Command = {
       sizes: { type: 'string' },
       'no-costs': { type: 'boolean' },
       'as-of': { type: 'string' },
+      'limits-from': { type: 'string' },
+      'limits-to': { type: 'string' },
       json: { type: 'boolean' },
       csv: { type: 'string' },
       table: { type: 'string' },
@@ -74,6 +79,12 @@ export const audit: Command = {
     const classN = numberOption('class', values.class);
     const sizesNm = values.sizes?.split(',').map((s) => Math.round(sizeOption('sizes', s) * 1e9));
     const asOfMs = timeOption('as-of', values['as-of'], false) ?? undefined;
+    const limitsFrom = timeOption('limits-from', values['limits-from'], false);
+    const limitsTo = timeOption('limits-to', values['limits-to'], false);
+    if ((limitsFrom === null) !== (limitsTo === null))
+      throw new UsageError('--limits-from and --limits-to go together (the charts’ baseline window)');
+    if (limitsFrom !== null && limitsTo !== null && limitsFrom >= limitsTo)
+      throw new UsageError('--limits-to must be after --limits-from');
     const outputs = [values.json, values.csv !== undefined, values.table !== undefined].filter(
       Boolean,
     ).length;
@@ -95,6 +106,8 @@ export const audit: Command = {
           sizesNm: sizesNm ?? null,
           costs: !values['no-costs'],
           asOfMs,
+          chartBaseline:
+            limitsFrom !== null && limitsTo !== null ? { fromMs: limitsFrom, toMs: limitsTo } : null,
         });
         const variant = values.spreadsheet ? 'spreadsheet' : 'plain';
         if (values.json) io.out(`${JSON.stringify(a)}\n`);
@@ -156,23 +169,34 @@ function render(a: AreaAudit): string {
       `  ${l.locationId.padEnd(14)} ≥ ${um(l.diameterM)}: alert ${fmt(l.alertPerM3)}, action ${fmt(l.actionPerM3)} per m³ — ${l.method === 'typed' ? 'typed' : `${l.method} "${l.name}" v${l.version} by ${l.setBy}`}`,
     );
   out.push('');
-  out.push(`excursions: ${a.excursions.length}`);
-  for (const e of a.excursions) {
-    const cost = a.costs.find((k) => k.excursionId === e.id);
-    out.push(`  ${e.id}`);
+  out.push(
+    `excursions: ${a.excursions.length} in ${a.events.length} event${a.events.length === 1 ? '' : 's'}`,
+  );
+  for (const ev of a.events) {
+    const cost = a.costs.find((k) => k.eventId === ev.id);
     out.push(
-      `    ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}`,
+      `  ${ev.id}: ${ev.nature.toUpperCase()}, ${iso(ev.startMs)} – ${iso(ev.endMs)} at ${ev.locationIds.join(', ')}; found by ${ev.rules.join(', ')}`,
     );
-    out.push(`    peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}`);
     if (cost)
       out.push(
-        `    exposed: ${new Set(cost.wafers.map((w) => w.waferId)).size} wafers in ${cost.lots.length} lot${cost.lots.length === 1 ? '' : 's'}; added voids ${fmt(cost.totalAddedVoids)}, added die loss ${fmt(cost.totalAddedDieLoss)} dies${cost.notes.length ? ` (${cost.notes.join('; ')})` : ''}`,
+        `    exposed: ${new Set(cost.wafers.map((w) => w.waferId)).size} wafers in ${cost.lots.length} lot${cost.lots.length === 1 ? '' : 's'}; added voids ${fmt(cost.totalAddedVoids)}, added die loss ${fmt(cost.totalAddedDieLoss)} dies, once for the event${cost.notes.length ? ` (${cost.notes.join('; ')})` : ''}`,
       );
-    if (e.acknowledgement)
+    for (const e of a.excursions.filter((x) => ev.excursionIds.includes(x.id))) {
+      out.push(`    ${e.id}`);
       out.push(
-        `    acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}`,
+        `      ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}`,
       );
+      out.push(`      peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}`);
+      if (e.acknowledgement)
+        out.push(
+          `      acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}`,
+        );
+    }
   }
+  if (a.costs.length > 0)
+    out.push(
+      `  added by all events: ${fmt(a.costs.reduce((s, k) => s + k.totalAddedVoids, 0))} voids, ${fmt(a.costs.reduce((s, k) => s + k.totalAddedDieLoss, 0))} dies of loss (each event costed once)`,
+    );
   out.push('');
   const flagged = a.charts
     .map((ch) => ({ ch, n: ch.points.filter((p) => p.rules.length > 0).length }))
@@ -180,7 +204,7 @@ function render(a: AreaAudit): string {
   out.push(`control charts: ${a.charts.length} (location × channel); with flagged hours: ${flagged.length}`);
   for (const { ch, n } of flagged)
     out.push(
-      `  ${ch.locationId.padEnd(14)} ≥ ${um(ch.diameterM)} ${ch.kind}: ${n} flagged hours — ${ch.decidedBy}`,
+      `  ${ch.locationId.padEnd(14)} ≥ ${um(ch.diameterM)} ${ch.kind}: ${n} flagged hours — ${ch.decidedBy}; limits from ${ch.baseline.source === 'period' ? 'the period itself' : `${ch.baseline.words} ${iso(ch.baseline.window!.fromMs)} – ${iso(ch.baseline.window!.toMs)}`}`,
     );
   return `${out.join('\n')}\n`;
 }

@@ -3,7 +3,8 @@
  * rule, told apart from instrument findings; `voidcast excursions ack --id ID --comment TEXT`:
  * acknowledge one.
  */
-import { excursionCostInDb } from '../../engine/audit/cost-loader.ts';
+import { eventCostInDb } from '../../engine/audit/cost-loader.ts';
+import { groupEvents } from '../../engine/audit/events.ts';
 import { DEFAULT_RULES } from '../../engine/audit/excursions.ts';
 import { acknowledgeExcursion, findExcursionsInDb } from '../../engine/audit/loader.ts';
 import type { ExcursionRules } from '../../engine/audit/types.ts';
@@ -36,8 +37,9 @@ voidcast excursions ack --id <excursion id> --comment <text> [--by NAME] [--data
   --ratio-k K           how many σ away the ratio must be (default 4)
   --no-action           switch off the one-point-above-action rule
   --no-quality          switch off the data-quality rule (hours mostly flagged by the counter)
-  --costs               add each excursion's exposed wafers and added voids and die loss
-  --json                print the excursions (and costs) as JSON
+  --costs               add each event's exposed wafers and added voids and die loss (overlapping
+                        excursions at a location are one event, costed once)
+  --json                print the excursions and events (and costs) as JSON
   ack: stores an acknowledgement with a comment (append-only; the latest is shown).
 
   exit codes: 0 done, 2 usage, 3 refused (bad rule settings or acknowledgement), 4 no database or no
@@ -127,31 +129,40 @@ voidcast excursions ack --id <excursion id> --comment <text> [--by NAME] [--data
     try {
       return withAuditErrors('excursions', io, () => {
         const list = findExcursionsInDb(db, values.area!, { period: { fromMs, toMs }, occupancy, rules });
-        const costs = values.costs ? list.map((e) => excursionCostInDb(db, e)) : [];
+        const events = groupEvents(list);
+        const costs = values.costs ? events.map((ev) => eventCostInDb(db, ev)) : [];
         if (values.json) {
-          io.out(`${JSON.stringify(values.costs ? { excursions: list, costs } : { excursions: list })}\n`);
+          io.out(
+            `${JSON.stringify(values.costs ? { excursions: list, events, costs } : { excursions: list, events })}\n`,
+          );
           return EXIT.ok;
         }
         if (list.length === 0) io.out(`no excursions at ${values.area} in ${iso(fromMs)} – ${iso(toMs)}\n`);
-        for (const e of list) {
+        for (const ev of events) {
+          for (const e of list.filter((x) => ev.excursionIds.includes(x.id))) {
+            io.out(
+              `${e.id}\n  ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}\n`,
+            );
+            io.out(`  peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}\n`);
+            if (e.acknowledgement)
+              io.out(
+                `  acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}\n`,
+              );
+          }
+          const n = ev.excursionIds.length;
           io.out(
-            `${e.id}\n  ${e.nature.toUpperCase()}: ${iso(e.startMs)} – ${iso(e.endMs)} at ${e.locationIds.join(', ')}; ${e.words}\n`,
+            `${ev.id}: ${n === 1 ? 'one excursion' : `one event of ${n} excursions`} (${ev.rules.join(', ')}), ${iso(ev.startMs)} – ${iso(ev.endMs)}\n`,
           );
-          io.out(`  peak ${fmt(e.peakPerM3)} per m³ at ${iso(e.peakMs)}; ${e.natureWords}\n`);
-          const c = costs.find((k) => k.excursionId === e.id);
+          const c = costs.find((k) => k.eventId === ev.id);
           if (c) {
             io.out(
-              `  added voids ${fmt(c.totalAddedVoids)}, added die loss ${fmt(c.totalAddedDieLoss)} dies over ${c.lots.length} lot${c.lots.length === 1 ? '' : 's'}${c.notes.length ? ` (${c.notes.join('; ')})` : ''}\n`,
+              `  added voids ${fmt(c.totalAddedVoids)}, added die loss ${fmt(c.totalAddedDieLoss)} dies over ${c.lots.length} lot${c.lots.length === 1 ? '' : 's'}${n > 1 ? ', counted once for the event' : ''}${c.notes.length ? ` (${c.notes.join('; ')})` : ''}\n`,
             );
             for (const l of c.lots)
               io.out(
                 `    lot ${l.lotId}: ${l.wafers} wafers, +${fmt(l.addedVoids)} voids, +${fmt(l.addedDieLoss)} dies\n`,
               );
           }
-          if (e.acknowledgement)
-            io.out(
-              `  acknowledged by ${e.acknowledgement.account} at ${iso(e.acknowledgement.atMs)}: ${e.acknowledgement.comment}\n`,
-            );
         }
         return EXIT.ok;
       });

@@ -10,6 +10,15 @@
  *   2. Otherwise the u chart (ū ± 3√(ū/nᵢ)); when every point sampled the same volume (within
  *      1 %), the c chart on counts (c̄ ± 3√c̄), which it then equals (NIST/SEMATECH §6.3.3.1).
  * Underdispersed counts (σ_z < 1) keep the u chart rather than narrowing its limits.
+ *
+ * **Phase I baseline.** The chart's kind, centre line, σ_z and so its limits come from a baseline
+ * (Phase I), and the charted points are judged against them (Phase II; NIST/SEMATECH e-Handbook
+ * §6.3.1): a period that holds a large excursion would otherwise raise its own centre and widen its own
+ * limits, and flag its clean hours as runs below the centre. The baseline is given by the caller (the
+ * audit: the window the location's derived levels were set from, else one the user chose); without one,
+ * or with fewer than `MIN_BASELINE_POINTS` usable hours in it, the limits come from the charted points
+ * themselves, and the chart says so. The c chart needs equal volumes in the baseline and the charted
+ * hours alike; otherwise the u chart.
  */
 import {
   cChartLimits,
@@ -18,7 +27,7 @@ import {
   laneyUPrime,
   uChartLimits,
 } from '../../model/index.ts';
-import type { ChartKind, ChartPoint, ControlChart } from './types.ts';
+import type { AuditPeriod, ChartKind, ChartPoint, ControlChart } from './types.ts';
 
 /** One subgroup: an hour of one location and channel. */
 export interface ChartInputPoint {
@@ -33,6 +42,23 @@ export interface ChartInputPoint {
 export const OVERDISPERSION_P = 0.01;
 /** Relative spread of volumes under which the c chart is used (Choice). */
 export const EQUAL_VOLUME_TOLERANCE = 0.01;
+/**
+ * Fewest usable hours a baseline needs to set the limits (Choice: the 20 to 25 subgroups usually asked
+ * of a Phase I study, Montgomery, Introduction to Statistical Quality Control, 7th ed., §6.2).
+ */
+export const MIN_BASELINE_POINTS = 20;
+
+/** A Phase I baseline: its points (hours of the same location and channel) and where it comes from. */
+export interface ChartBaseline {
+  points: readonly ChartInputPoint[];
+  source: 'levels' | 'chosen';
+  window: AuditPeriod;
+  /** Whose window it is, in words ("the window of the levels “October baseline” v2"). */
+  words: string;
+}
+
+const PERIOD_NOTE =
+  'limits from the charted period itself (no baseline window: neither derived levels nor a chosen one); an excursion in the period raises the centre line and widens the limits';
 
 /**
  * The control chart of one location and channel.
@@ -45,9 +71,26 @@ export function controlChart(
   locationId: string,
   diameterM: number,
   points: readonly ChartInputPoint[],
+  baseline: ChartBaseline | null = null,
 ): ControlChart {
-  const usable = points.filter((p) => !p.excluded && p.volumeM3 > 0);
-  const excludedPoints = points.length - usable.length;
+  const charted = points.filter((p) => !p.excluded && p.volumeM3 > 0);
+  const excludedPoints = points.length - charted.length;
+  const inBaseline = baseline ? baseline.points.filter((p) => !p.excluded && p.volumeM3 > 0) : [];
+  const phase1 = baseline !== null && inBaseline.length >= MIN_BASELINE_POINTS;
+  const usable = phase1 ? inBaseline : charted;
+  const fromPeriod = phase1
+    ? null
+    : baseline
+      ? `${baseline.words} holds ${inBaseline.length} usable hour${inBaseline.length === 1 ? '' : 's'} (at least ${MIN_BASELINE_POINTS} are needed): limits from the charted period itself; an excursion in the period raises the centre line and widens the limits`
+      : PERIOD_NOTE;
+  const baselineInfo: ControlChart['baseline'] = phase1
+    ? {
+        source: baseline!.source,
+        window: baseline!.window,
+        points: inBaseline.length,
+        words: baseline!.words,
+      }
+    : { source: 'period', window: null, points: charted.length, words: 'the charted period itself' };
   const empty = (note: string): ControlChart => ({
     locationId,
     diameterM,
@@ -67,6 +110,7 @@ export function controlChart(
       excluded: true,
     })),
     excludedPoints: points.length,
+    baseline: baselineInfo,
     notes: [note],
   });
   if (usable.length < 2)
@@ -80,7 +124,7 @@ export function controlChart(
   const df = laney.degreesOfFreedom;
   const pValue = laney.centre > 0 ? chiSquareSurvival(laney.pearsonX2, df) : 1;
   const dispersion = laney.pearsonX2 / df;
-  const vols = usable.map((p) => p.volumeM3);
+  const vols = [...usable, ...charted].map((p) => p.volumeM3);
   const vMin = Math.min(...vols);
   const vMax = Math.max(...vols);
   const equal = (vMax - vMin) / vMax <= EQUAL_VOLUME_TOLERANCE;
@@ -153,6 +197,7 @@ export function controlChart(
     decidedBy,
     points: out,
     excludedPoints,
-    notes: [],
+    baseline: baselineInfo,
+    notes: fromPeriod ? [fromPeriod] : [],
   };
 }

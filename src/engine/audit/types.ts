@@ -234,7 +234,7 @@ export interface ExposedWaferCost {
   /** Ledger step and its carrier state during the overlap. */
   step: string;
   carrier: 'open' | 'closed' | 'purged';
-  /** Overlap of the step with the excursion, UTC ms. */
+  /** Overlap of the step with a window of the event, UTC ms. */
   fromMs: number;
   toMs: number;
   /** Added expected deposited particles (≥ the engine's floor) on the wafer face. */
@@ -253,11 +253,41 @@ export interface LotCost {
   addedDieLoss: number;
 }
 
-/** The added cost of one excursion: the excess over the location's baseline, through the engine. */
-export interface ExcursionCost {
-  excursionId: string;
-  locationId: string;
+/**
+ * Excursions that are one happening (src/engine/audit/events.ts): their windows overlap and they
+ * share a location. Costed once, over the union of its members' windows.
+ */
+export interface ExcursionEvent {
+  /** Stable id: `event:${locationIds joined by +}:${startMs}`. */
+  id: string;
+  areaId: string;
+  /** Its excursions, earliest first. */
+  excursionIds: string[];
+  /** The rules that found it, in the order of its excursions. */
+  rules: ExcursionRuleId[];
+  locationIds: string[];
+  /** The earliest start and the latest end of its excursions, UTC ms. */
+  startMs: number;
+  endMs: number;
+  /**
+   * What is costed: per location, the union of the windows of its excursions there that are not
+   * instrument findings (empty for an instrument event).
+   */
+  windows: { locationId: string; fromMs: number; toMs: number }[];
+  /** instrument: every excursion is one; air: every other one is air; unclear otherwise. */
+  nature: ExcursionNature;
+}
+
+/** The added cost of one event: the excess over its locations' baselines in its windows, through the engine. */
+export interface EventCost {
+  eventId: string;
+  /** The event's excursions (costed together, once). */
+  excursionIds: string[];
+  locationIds: string[];
+  /** The event's span (its earliest start to its latest end). */
   period: AuditPeriod;
+  /** The windows costed (ExcursionEvent.windows). */
+  windows: ExcursionEvent['windows'];
   wafers: ExposedWaferCost[];
   lots: LotCost[];
   totalAddedVoids: number;
@@ -306,6 +336,18 @@ export interface ControlChart {
   points: ChartPoint[];
   /** Points excluded from the centre line (hours whose samples are all instrument faults or sentinels). */
   excludedPoints: number;
+  /**
+   * Where the centre line and limits come from (Phase I): `levels` — the baseline window the location's
+   * derived levels were set from; `chosen` — a window the user chose; `period` — the charted points
+   * themselves (no usable baseline; said in `notes`).
+   */
+  baseline: {
+    source: 'levels' | 'chosen' | 'period';
+    window: AuditPeriod | null;
+    /** Usable hours the centre and limits were computed from. */
+    points: number;
+    words: string;
+  };
   /** Plain-words remarks (too few points for limits, …). */
   notes: string[];
 }
@@ -324,6 +366,9 @@ export interface LineParetoEntry {
   cumulativeShare: number;
   /** Lots where it contributed. */
   lots: number;
+  /** Size band only: particle diameters [fromM, toM) at the interface, m (toM null: no upper edge). */
+  fromM?: number;
+  toM?: number | null;
 }
 
 export interface ChamberHistoryPoint {
@@ -361,7 +406,10 @@ export interface AreaAudit {
   classification: AreaClassification;
   levels: LevelRecord[];
   excursions: Excursion[];
-  costs: ExcursionCost[];
+  /** The excursions grouped into events (each excursion in exactly one). */
+  events: ExcursionEvent[];
+  /** One per event (same order), unless costs were skipped (then empty). */
+  costs: EventCost[];
   charts: ControlChart[];
   /** Milliseconds the audit took (for the performance budget). */
   elapsedMs: number;

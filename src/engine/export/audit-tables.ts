@@ -11,6 +11,7 @@ export const AUDIT_TABLES = [
   'classification-sizes',
   'levels',
   'excursions',
+  'events',
   'exposed-wafers',
   'lot-costs',
   'chart-points',
@@ -26,6 +27,8 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
   const sizeCols = c.sizesM.map((d) => `mean_ge_${um(d)}um_per_m3`);
   const passCols = c.sizesM.map((d) => `pass_ge_${um(d)}um`);
   const rows = <T>(xs: readonly T[], f: (x: T) => CsvCell[]) => xs.map(f);
+  const eventOf = new Map(a.events.flatMap((ev) => ev.excursionIds.map((id) => [id, ev.id])));
+  const costOf = new Map(a.costs.map((k) => [k.eventId, k]));
   return {
     'classification-locations': {
       header: [
@@ -132,6 +135,7 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
     excursions: {
       header: [
         'excursion_id',
+        'event_id',
         'rule',
         'nature',
         'locations',
@@ -155,6 +159,7 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
       ],
       rows: rows(a.excursions, (e) => [
         e.id,
+        eventOf.get(e.id) ?? null,
         e.rule,
         e.nature,
         e.locationIds.join(' '),
@@ -177,9 +182,42 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
         e.acknowledgement?.comment ?? null,
       ]),
     },
+    events: {
+      header: [
+        'event_id',
+        'excursion_ids',
+        'rules',
+        'nature',
+        'locations',
+        'start',
+        'end',
+        'windows_costed',
+        'exposed_wafers',
+        'added_voids',
+        'added_die_loss',
+        'notes',
+      ],
+      rows: rows(a.events, (ev) => {
+        const k = costOf.get(ev.id);
+        return [
+          ev.id,
+          ev.excursionIds.join(' '),
+          ev.rules.join(' '),
+          ev.nature,
+          ev.locationIds.join(' '),
+          iso(ev.startMs),
+          iso(ev.endMs),
+          ev.windows.map((w) => `${w.locationId} ${iso(w.fromMs)}/${iso(w.toMs)}`).join('; '),
+          k ? new Set(k.wafers.map((w) => w.waferId)).size : null,
+          k ? k.totalAddedVoids : null,
+          k ? k.totalAddedDieLoss : null,
+          k ? k.notes.join('; ') : 'not costed',
+        ];
+      }),
+    },
     'exposed-wafers': {
       header: [
-        'excursion_id',
+        'event_id',
         'wafer_id',
         'lot_id',
         'pair_id',
@@ -193,7 +231,7 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
       ],
       rows: a.costs.flatMap((k) =>
         k.wafers.map((w) => [
-          k.excursionId,
+          k.eventId,
           w.waferId,
           w.lotId,
           w.pairId,
@@ -208,9 +246,9 @@ export function auditTables(a: AreaAudit): Record<AuditTableName, CsvTable> {
       ),
     },
     'lot-costs': {
-      header: ['excursion_id', 'lot_id', 'wafers', 'added_voids', 'added_die_loss'],
+      header: ['event_id', 'lot_id', 'wafers', 'added_voids', 'added_die_loss'],
       rows: a.costs.flatMap((k) =>
-        k.lots.map((l) => [k.excursionId, l.lotId, l.wafers, l.addedVoids, l.addedDieLoss]),
+        k.lots.map((l) => [k.eventId, l.lotId, l.wafers, l.addedVoids, l.addedDieLoss]),
       ),
     },
     'chart-points': {

@@ -16,13 +16,7 @@ import type { AppContext } from '../context.ts';
 import { renderPage } from '../render.ts';
 import { fileDate, pickTable, queryFormat, sendTable } from './audit-export.ts';
 import { type AreaRef, auditQuery, pathArea } from './audit-params.ts';
-import {
-  AUDIT_FORMS,
-  acknowledgeFromForm,
-  deriveLevelsFromForm,
-  FormRefusal,
-  runAreaAudit,
-} from './audit-run.ts';
+import { acknowledgeFromForm, deriveLevelsFromForm, FormRefusal, runAreaAudit } from './audit-run.ts';
 
 interface Made {
   area: AreaRef;
@@ -40,7 +34,7 @@ function make(
 ): Made {
   const area = pathArea(ctx, c);
   const q = auditQuery(ctx, get, area);
-  const r = runAreaAudit(ctx, area, q.period, q.occupancy, q.edition);
+  const r = runAreaAudit(ctx, area, q.period, q.occupancy, q.edition, q.limits);
   const a = r.audit;
   return {
     area,
@@ -89,7 +83,6 @@ function page(
         flash,
         locations: m.area.locations.map((l) => ({ id: l.locationId, name: l.name })),
         channelsUm: channels,
-        forms: AUDIT_FORMS,
         allCharts: c.req.query('charts') === 'all',
       }),
     },

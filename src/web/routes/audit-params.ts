@@ -1,6 +1,7 @@
 /**
  * The parameters of the audit pages, read through src/web/params.ts: the area, the period
- * (`from`, `to`: UTC ms or ISO 8601 with its zone), the occupancy state and the ISO 14644-1 edition.
+ * (`from`, `to`: UTC ms or ISO 8601 with its zone), the occupancy state, the ISO 14644-1 edition and
+ * the control charts' baseline window (`limitsFrom`, `limitsTo`).
  * A bad value is a 400 naming it; an unknown area a 404. Without a period the audit covers the 30
  * days up to the area's newest counter sample (or up to now, without samples).
  */
@@ -66,12 +67,42 @@ export function periodOf(
   return { fromMs, toMs };
 }
 
-/** `occupancy`, `edition` and the period of an audit request. */
+/**
+ * The control charts' baseline window (`limitsFrom`, `limitsTo`: UTC ms or ISO 8601 with its zone),
+ * both or neither: the window the chart limits come from where a location has no derived levels with a
+ * window of their own. One without the other, an end not after the start or a window longer than
+ * MAX_PERIOD_MS is a 400.
+ */
+export function limitsWindowOf(fromText: string | undefined, toText: string | undefined): AuditPeriod | null {
+  const from = asOfValue('limitsFrom', fromText);
+  const to = asOfValue('limitsTo', toText);
+  if (from === null && to === null) return null;
+  if (from === null)
+    throw new BadParamError('limitsFrom', 'is needed with limitsTo (the baseline window’s start)');
+  if (to === null)
+    throw new BadParamError('limitsTo', 'is needed with limitsFrom (the baseline window’s end)');
+  if (from >= to)
+    throw new BadParamError(
+      'limitsTo',
+      `must be after limitsFrom (${minuteIso(from)}); got ${minuteIso(to)}`,
+    );
+  if (to - from > MAX_PERIOD_MS)
+    throw new BadParamError('limitsTo', `must be at most ${MAX_PERIOD_MS / DAY_MS} days after limitsFrom`);
+  return { fromMs: from, toMs: to };
+}
+
+/** `occupancy`, `edition`, the period and the charts' baseline window of an audit request. */
 export function auditQuery(
   ctx: AppContext,
   get: (param: string) => string | undefined,
   area: AreaRef,
-): { query: AuditQuery; period: AuditPeriod; occupancy: OccupancySelection; edition: 2015 | 1999 } {
+): {
+  query: AuditQuery;
+  period: AuditPeriod;
+  occupancy: OccupancySelection;
+  edition: 2015 | 1999;
+  limits: AuditPeriod | null;
+} {
   const occupancy = choiceValue('occupancy', get('occupancy'), OCCUPANCY_CHOICES) ?? 'operational';
   const edition = Number(choiceValue('edition', get('edition'), ['2015', '1999'] as const) ?? '2015') as
     | 2015
@@ -86,10 +117,18 @@ export function auditQuery(
       ? Math.ceil(Date.now() / HOUR_MS) * HOUR_MS
       : Math.floor(last / HOUR_MS) * HOUR_MS + HOUR_MS;
   });
+  const limits = limitsWindowOf(get('limitsFrom'), get('limitsTo'));
   return {
-    query: { from: minuteIso(period.fromMs), to: minuteIso(period.toMs), occupancy, edition },
+    query: {
+      from: minuteIso(period.fromMs),
+      to: minuteIso(period.toMs),
+      occupancy,
+      edition,
+      ...(limits ? { limitsFrom: minuteIso(limits.fromMs), limitsTo: minuteIso(limits.toMs) } : {}),
+    },
     period,
     occupancy,
     edition,
+    limits,
   };
 }

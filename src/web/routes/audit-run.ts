@@ -35,9 +35,10 @@ export function runAreaAudit(
   period: AuditPeriod,
   occupancy: OccupancySelection,
   edition: 2015 | 1999,
+  chartBaseline: AuditPeriod | null = null,
 ): { audit: AuditView | null; refusal: string | null } {
   try {
-    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition });
+    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition, chartBaseline });
     return {
       audit,
       refusal: null,
@@ -48,9 +49,6 @@ export function runAreaAudit(
     return { audit: null, refusal: err.message };
   }
 }
-
-/** What this version stores from the audit page's forms. */
-export const AUDIT_FORMS = { levels: true, acknowledge: true } as const;
 
 /**
  * A form the engine refused (a baseline shorter than the method needs, parameters out of range, an
@@ -159,16 +157,37 @@ export function acknowledgeFromForm(
 export function runLineView(
   ctx: AppContext,
   period: AuditPeriod,
-): { pareto: LineParetoEntry[]; histories: ChamberHistory[]; lots: string[]; problems: string[] } {
+): {
+  pareto: LineParetoEntry[];
+  particleVoids: number;
+  unexplainedVoids: number;
+  histories: ChamberHistory[];
+  lots: string[];
+  problems: string[];
+} {
   try {
     const p = lineParetoFromDb(ctx.db, period);
     const histories = chamberHistoryFromDb(ctx.db, undefined, period).filter((h) => h.points.length > 0);
     const problems = [...p.notes];
     if (p.lots.length === 0)
       problems.push('No lot with pairs has a ledger step in this period: nothing to assess.');
-    return { pareto: p.entries, histories, lots: p.lots, problems };
+    return {
+      pareto: p.entries,
+      particleVoids: p.particleVoids,
+      unexplainedVoids: p.unexplainedVoids,
+      histories,
+      lots: p.lots,
+      problems,
+    };
   } catch (err) {
     if (!(err instanceof AuditInputError)) throw err;
-    return { pareto: [], histories: [], lots: [], problems: [err.message] };
+    return {
+      pareto: [],
+      particleVoids: 0,
+      unexplainedVoids: 0,
+      histories: [],
+      lots: [],
+      problems: [err.message],
+    };
   }
 }

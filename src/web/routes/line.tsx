@@ -1,7 +1,7 @@
 /**
  * The line view over a period (/line?from&to; by default the 30 days up to the installation's
  * assessment clock, else now): a Pareto of expected voids across every lot assessed in the period
- * (tool, wait location, clean) and each tool chamber's history, with every table as a download
+ * (tool, wait location, clean, size band) and each tool chamber's history, with every table as a download
  * (/line/tables/:table?format=). Thin: parameters, the engine's line view, tables, render.
  */
 import type { Context, Hono } from 'hono';
@@ -34,6 +34,8 @@ export function register(app: Hono, ctx: AppContext): void {
         query: m.query,
         period: m.period,
         pareto: m.view.pareto,
+        particleVoids: m.view.particleVoids,
+        unexplainedVoids: m.view.unexplainedVoids,
         histories: m.view.histories,
         tables: m.tables,
         problems: m.view.problems,

@@ -122,6 +122,29 @@ describe('voids no scanned particle explains', () => {
     expect(b.inputsHash).not.toBe(a.inputsHash);
   });
 
+  it('stay out of the size bands, which hold the particle sources’ voids in every detail (the line view sums them)', () => {
+    const { p, data } = standard();
+    const u = fittedUnexplained('HB-1', { ratePerPair: 2.5, meanAreaM2: 4e-6 });
+    const sum = (xs: number[]) => xs.reduce((s, x) => s + x, 0);
+    for (const detail of ['full', 'summary'] as const) {
+      const a = assessPair(p, data, { asOfMs: AS_OF, detail });
+      const b = assessPair(p, withSet(data, { 'HB-1': u }), { asOfMs: AS_OF, detail });
+      const bands = sum(b.pareto.bySizeBand.map((e) => e.expectedVoids));
+      const particleSources = sum(
+        b.contributions.filter((c) => c.kind !== 'unexplained').map((c) => c.expectedVoids),
+      );
+      // The bands partition the particle sources' voids (a sum of 48 bins regrouped: 1e-12 relative).
+      expect(bands).toBeGreaterThan(0);
+      expect(Math.abs(bands - particleSources)).toBeLessThan(1e-12 * particleSources);
+      // … which are the pair's voids less the 2.5 no particle explains (hand computation), and the
+      // same as without the set: the unexplained voids are in no band.
+      expect(bands).toBeCloseTo(b.figures.voids.value - 2.5, 10);
+      expect(Math.abs(bands - sum(a.pareto.bySizeBand.map((e) => e.expectedVoids)))).toBeLessThan(
+        1e-12 * bands,
+      );
+    }
+  });
+
   it('kill dies by the uniform critical-area amount on a small layout (hand computation)', () => {
     const { p, data } = emptyPair();
     const a = assessPair(p, data, { asOfMs: AS_OF });

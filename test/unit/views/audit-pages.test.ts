@@ -148,11 +148,51 @@ function handAudit(): AreaAudit {
         },
       },
     ],
+    // The two excursions do not overlap: two events, the earlier (the counter fault) first.
+    events: [
+      {
+        id: `event:BOR-B1:${T0 + 2 * H}`,
+        areaId: 'BOR',
+        excursionIds: ['alert-run:BOR-B1:1760500000000'],
+        rules: ['alert-run'],
+        locationIds: ['BOR-B1'],
+        startMs: T0 + 2 * H,
+        endMs: T0 + 3 * H,
+        windows: [],
+        nature: 'instrument',
+      },
+      {
+        id: `event:BOR-B1:${T0 + 5 * H}`,
+        areaId: 'BOR',
+        excursionIds: ['action-point:BOR-B1:1760748000000'],
+        rules: ['action-point'],
+        locationIds: ['BOR-B1'],
+        startMs: T0 + 5 * H,
+        endMs: T0 + 9 * H,
+        windows: [{ locationId: 'BOR-B1', fromMs: T0 + 5 * H, toMs: T0 + 9 * H }],
+        nature: 'air',
+      },
+    ],
     costs: [
       {
-        excursionId: 'action-point:BOR-B1:1760748000000',
-        locationId: 'BOR-B1',
+        eventId: `event:BOR-B1:${T0 + 2 * H}`,
+        excursionIds: ['alert-run:BOR-B1:1760500000000'],
+        locationIds: ['BOR-B1'],
+        period: { fromMs: T0 + 2 * H, toMs: T0 + 3 * H },
+        windows: [],
+        wafers: [],
+        lots: [],
+        totalAddedVoids: 0,
+        totalAddedDieLoss: 0,
+        method: 'difference of two assessments',
+        notes: ['an instrument finding'],
+      },
+      {
+        eventId: `event:BOR-B1:${T0 + 5 * H}`,
+        excursionIds: ['action-point:BOR-B1:1760748000000'],
+        locationIds: ['BOR-B1'],
         period: { fromMs: T0 + 5 * H, toMs: T0 + 9 * H },
+        windows: [{ locationId: 'BOR-B1', fromMs: T0 + 5 * H, toMs: T0 + 9 * H }],
         wafers: [
           {
             waferId: 'W01',
@@ -184,6 +224,12 @@ function handAudit(): AreaAudit {
         dispersion: 4.4,
         decidedBy: 'overdispersed (p < 0.01)',
         excludedPoints: 0,
+        baseline: {
+          source: 'chosen',
+          window: { fromMs: T0 - 7 * 24 * H, toMs: T0 },
+          points: 168,
+          words: 'the chosen baseline window',
+        },
         notes: [],
         points: [0, 1, 2, 3].map((i) => ({
           startMs: T0 + i * H,
@@ -270,13 +316,24 @@ describe('area audit page and report', () => {
         csrfToken: 'tok',
         locations: [{ id: 'BOR-B1', name: 'Bay 1' }],
         channelsUm: [0.5],
-        forms: { levels: true, acknowledge: true },
       }),
     );
     const ex = htmlTables(html).find((t) => t.id === 'excursions')!;
     const nature = ex.header.indexOf('Most likely');
     expect(ex.rows.map((r) => r[nature])).toEqual(['air', 'instrument']);
-    expect(ex.rows[0]![ex.header.indexOf('Added voids')]).toBe('0.31');
+    // Each excursion names its event; the event carries the cost (hand-built: 0.31 voids).
+    expect(ex.rows.map((r) => r[ex.header.indexOf('Event')])).toEqual([
+      `event:BOR-B1:${T0 + 5 * H}`,
+      `event:BOR-B1:${T0 + 2 * H}`,
+    ]);
+    const ev = htmlTables(html).find((t) => t.id === 'events')!;
+    expect(
+      ev.rows.map((r) => [r[0], r[ev.header.indexOf('Excursions')], r[ev.header.indexOf('Added voids')]]),
+    ).toEqual([
+      [`event:BOR-B1:${T0 + 2 * H}`, 'alert-run:BOR-B1:1760500000000', '0'],
+      [`event:BOR-B1:${T0 + 5 * H}`, 'action-point:BOR-B1:1760748000000', '0.31'],
+    ]);
+    expect(html).not.toContain('data-missing');
     for (const t of tables.filter((x) => x.rows.length > 0))
       expect(html).toContain(`data-downloads="${t.id}"`);
     expect(html).toContain('data-chart="control-chart"');
@@ -302,6 +359,10 @@ describe('area audit page and report', () => {
     expect([...at].sort((a, b) => a - b)).toEqual(at);
     expect(html).not.toContain('vc-downloads');
     expect(html).toContain('inlet, &quot;blocked&quot;');
+    // The cover sums the events (hand computation: 0 + 0.31), naming each costed one with its excursions.
+    expect(html).toContain(
+      '0.31 expected voids and 4.4 dies of loss in all, each event counted once (its excursions together): Event 2 (E1) 0.31 voids',
+    );
   });
 });
 
@@ -309,9 +370,9 @@ describe('splitColumns', () => {
   it('cuts a wide table into balanced parts that each repeat the first column and together hold every cell once', () => {
     const t = areaAuditTables(handAudit()).find((x) => x.id === 'excursions')!;
     const parts = splitColumns(t, 10);
-    // 17 columns: the name and 16 more, in ⌈16 / 9⌉ = 2 parts of 8 (hand computation).
-    expect(t.columns).toHaveLength(17);
-    expect(parts.map((p) => p.columns.length)).toEqual([9, 9]);
+    // 15 columns: the name and 14 more, in ⌈14 / 9⌉ = 2 parts of 7 (hand computation).
+    expect(t.columns).toHaveLength(15);
+    expect(parts.map((p) => p.columns.length)).toEqual([8, 8]);
     for (const p of parts) expect(p.columns[0]).toEqual(t.columns[0]);
     expect(parts.flatMap((p) => p.columns.slice(1))).toEqual(t.columns.slice(1));
     parts.forEach((p) => {
