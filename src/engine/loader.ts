@@ -8,6 +8,14 @@
  * read, or the set it is given (a lot's second thread gets the set the first one read, so both use
  * the same one even if someone adopts another in between).
  */
+import {
+  type LedgerRow,
+  lotPairRows,
+  type PairRow,
+  pairCountsByLot,
+  readLedgerRows,
+  readPairRow,
+} from '../store/assessment-rows.ts';
 import { readCounterSeries } from '../store/counters.ts';
 import type { Db } from '../store/db.ts';
 import { insertDisposition, readDispositions } from '../store/dispositions.ts';
@@ -46,41 +54,6 @@ import type {
   ToolInput,
   WaferInput,
 } from './types.ts';
-
-interface PairRow {
-  id: string;
-  product_id: string;
-  lot_id: string;
-  top_wafer_id: string;
-  bottom_wafer_id: string;
-  flip_axis: 'x' | 'y';
-  rotation_rad: number;
-  offset_x_m: number;
-  offset_y_m: number;
-  bonder_tool_id: string | null;
-  planned_bond_ms: number | null;
-}
-
-interface LedgerRow {
-  id: number;
-  wafer_id: string | null;
-  step: string;
-  kind: LedgerStepInput['kind'];
-  tool_id: string | null;
-  chamber: string | null;
-  recipe: string | null;
-  clean_id: string | null;
-  location_id: string | null;
-  carrier: LedgerStepInput['carrier'];
-  orientation: LedgerStepInput['orientation'];
-  start_ms: number;
-  end_ms: number | null;
-  reclean_count: number;
-}
-
-function tableExists(db: Db, name: string): boolean {
-  return Boolean(db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = ?").get(name));
-}
 
 function toToolInput(t: StoredTool): ToolInput {
   return {
@@ -143,21 +116,6 @@ function readLocations(db: Db, ids: string[]): Record<string, LocationInput> {
     };
   }
   return out;
-}
-
-function readPairRow(db: Db, pairId: string): PairRow | null {
-  if (!tableExists(db, 'pairs')) return null;
-  return (db.prepare('SELECT * FROM pairs WHERE id = ?').get(pairId) as PairRow | undefined) ?? null;
-}
-
-function readLedgerRows(db: Db, lotId: string): LedgerRow[] {
-  return db
-    .prepare(
-      `SELECT id, wafer_id, step, kind, tool_id, chamber, recipe, clean_id, location_id, carrier, orientation,
-              start_ms, end_ms, reclean_count
-         FROM ledger_steps WHERE lot_id = ? ORDER BY start_ms, id`,
-    )
-    .all(lotId) as LedgerRow[];
 }
 
 /**
@@ -323,12 +281,6 @@ export function loadPair(
   return { pair: pairs[0]!, line };
 }
 
-function lotPairRows(db: Db, lotId: string): PairRow[] {
-  return tableExists(db, 'pairs')
-    ? (db.prepare('SELECT * FROM pairs WHERE lot_id = ? ORDER BY id').all(lotId) as PairRow[])
-    : [];
-}
-
 /** The ids of a lot's pairs in assessment order, or null when the lot is unknown. */
 export function lotPairIds(db: Db, lotId: string): string[] | null {
   if (!readLot(db, lotId)) return null;
@@ -392,13 +344,12 @@ export function assessLotPairsFromDb(
 export function listLotsForApi(
   db: Db,
 ): { lotId: string; productId: string | null; waferCount: number; pairCount: number }[] {
-  const hasPairs = tableExists(db, 'pairs');
-  const count = hasPairs ? db.prepare('SELECT COUNT(*) AS n FROM pairs WHERE lot_id = ?') : null;
+  const counts = pairCountsByLot(db);
   return listLots(db).map((l) => ({
     lotId: l.lotId,
     productId: l.productId,
     waferCount: l.waferCount,
-    pairCount: count ? (count.get(l.lotId) as { n: number }).n : 0,
+    pairCount: counts.get(l.lotId) ?? 0,
   }));
 }
 
