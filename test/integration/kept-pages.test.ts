@@ -15,12 +15,14 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { keptStats } from '../../src/engine/cache.ts';
 import { adoptParameterSetInDb, proposeParameterSet } from '../../src/engine/parameter-sets.ts';
+import { whatIfWaiting } from '../../src/engine/tuning/index.ts';
 import { importFile } from '../../src/ingest/pipeline.ts';
 import { type Db, openDatabase, openDataDir } from '../../src/store/db.ts';
 import { setSetting } from '../../src/store/settings.ts';
 import { dataGeneration } from '../../src/store/writer.ts';
 import { createApp } from '../../src/web/app.ts';
 import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
+import { waitingWhatIf } from '../../src/web/routes/whatif-context.ts';
 import { AS_OF_MS, importPageLine, type LineFiles, lineFiles, T0_MS } from '../helpers/pages-data.ts';
 import { fittedUnexplained } from '../helpers/parameter-values.ts';
 
@@ -137,6 +139,19 @@ describe('kept pages: Areas, line view, waiting what-if, Imports', () => {
     expect(csv.bom).toBe(true);
     expect(csv.disposition).toMatch(/^attachment; filename="line-pareto-wait-location-.*-spreadsheet\.csv"$/);
     expect((await kept(ROUTES[6]!)).disposition).toBe('attachment; filename="whatif-waiting.json"');
+  });
+
+  it('gives the waiting what-if from the kept lot contexts exactly as the engine gives it from the database', () => {
+    const ctx = { db, dataDir: files.dir, version: 'test', log: () => {} };
+    for (const scenario of [
+      { levers: [] },
+      { levers: [{ kind: 'air' as const, locationId: 'bay-3', scale: 3 }] },
+      { levers: [{ kind: 'air' as const, locationId: 'no-such-place', scale: 3 }] },
+    ]) {
+      const fast = waitingWhatIf(ctx, scenario, AS_OF_MS);
+      expect(fast).toEqual(whatIfWaiting(db, scenario, { asOfMs: AS_OF_MS }));
+      expect(waitingWhatIf(ctx, scenario, AS_OF_MS)).toBe(fast); // kept for the page, swap and export
+    }
   });
 
   it('keeps a swap apart from its page and from a history restore (the whole page)', async () => {
