@@ -4,9 +4,10 @@
  *
  * What is kept, and for whom:
  * - only GET answers with status 200 of the routes in KEPT_ROUTES (the assessment pages and their
- *   swaps, the learning pages, the JSON assessments, the Areas page and its trend, the line view and
- *   its table downloads, the what-if of every waiting lot and its export, the Imports page and its
- *   history); never the account, audit-trail (/audit) or upload-job pages, never a POST;
+ *   swaps, the learning pages, the JSON assessments, the Areas page and its trend, an area's audit
+ *   page and its table downloads (not its printed report, which states when it was made), the line
+ *   view and its table downloads, the what-if of every waiting lot and its export, the Imports page
+ *   and its history); never the account, audit-trail (/audit) or upload-job pages, never a POST;
  * - per data generation (src/store/writer.ts `dataGeneration`: any committed write — an import,
  *   a parameter set adopted, a sign-off — starts a new one, so the next request renders afresh),
  *   through the engine's kept results (src/engine/cache.ts);
@@ -43,6 +44,8 @@ export const KEPT_ROUTES: ReadonlySet<string> = new Set([
   '/',
   '/areas',
   '/areas/trend',
+  '/areas/:id/audit',
+  '/areas/:id/audit/tables/:table',
   '/line',
   '/line/tables/:table',
   '/whatif/waiting',

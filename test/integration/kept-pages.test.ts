@@ -1,10 +1,11 @@
 /**
- * Kept pages beyond the assessments (src/web/page-cache.ts): the Areas page and its trend, the line
- * view and its table downloads, the what-if of every waiting lot and its export, and the Imports
- * page. Each is served again from the kept answer (a hit, the same bytes), equals the answer of a
+ * Kept pages beyond the assessments (src/web/page-cache.ts): the Areas page and its trend, an area's
+ * audit page and its table downloads, the line view and its table downloads, the what-if of every
+ * waiting lot and its export, and the Imports page. Each is served again from the kept answer (a hit, the same bytes), equals the answer of a
  * plain twin — a second connection to the same database file with an app that keeps nothing
  * (keepPages false), so nothing of the first connection's kept results can answer it — and, after a
- * write that changes it (a counter import, a scan import, a parameter set adopted), is renewed: it
+ * write that changes it (a counter import, a scan import, levels derived, an excursion
+ * acknowledged, a parameter set adopted), is renewed: it
  * differs from the answer before and equals the plain twin's again.
  * Expected values: none stored; every answer is compared with the plain twin's on the same data
  * (the invented line of test/helpers/pages-data.ts).
@@ -13,6 +14,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { acknowledgeExcursion, deriveAndStoreLevels } from '../../src/engine/audit/index.ts';
 import { keptStats } from '../../src/engine/cache.ts';
 import { adoptParameterSetInDb, proposeParameterSet } from '../../src/engine/parameter-sets.ts';
 import { whatIfWaiting } from '../../src/engine/tuning/index.ts';
@@ -34,6 +36,7 @@ let cookie: string;
 let dataDir: string;
 
 const HX = { 'hx-request': 'true' };
+const PERIOD = 'from=2025-03-03T00:00Z&to=2025-03-04T00:00Z';
 /** The routes newly kept, each with the headers a browser sends for it. */
 const ROUTES: { path: string; headers?: Record<string, string> }[] = [
   { path: '/areas' },
@@ -44,6 +47,8 @@ const ROUTES: { path: string; headers?: Record<string, string> }[] = [
   { path: '/whatif/waiting', headers: HX },
   { path: '/whatif/waiting/export' },
   { path: '/imports' },
+  { path: `/areas/fab-1/audit?${PERIOD}` },
+  { path: `/areas/fab-1/audit/tables/levels?${PERIOD}&format=json` },
 ];
 const label = (r: (typeof ROUTES)[number]) => `${r.path}${r.headers ? ' (htmx)' : ''}`;
 
@@ -182,6 +187,29 @@ describe('kept pages: Areas, line view, waiting what-if, Imports', () => {
     }
     await importText('counter-samples', 'counters-next-day.csv', `${rows.join('\n')}\n`);
     await expectRenewed(['/areas', '/areas/trend (htmx)', '/imports']);
+  });
+
+  it('renews an area’s audit page and its tables after levels are derived (no import)', async () => {
+    const gen = dataGeneration(db);
+    deriveAndStoreLevels(db, {
+      locationId: 'bay-3',
+      diameterM: 0.5e-6,
+      method: 'class-fraction',
+      window: null,
+      name: 'kept-pages test levels',
+      setBy: 'A. Auditor',
+      nowMs: AS_OF_MS,
+    });
+    expect(dataGeneration(db)).not.toBe(gen);
+    await expectRenewed([ROUTES.at(-2)!, ROUTES.at(-1)!].map(label));
+  });
+
+  it('renews an area’s audit page after an excursion is acknowledged (no import)', async () => {
+    const html = before.get(label(ROUTES.at(-2)!))!;
+    const id = /<select id="ack-id" name="excursion"><option value="([^"]+)"/.exec(html)?.[1];
+    expect(id).toBeDefined();
+    acknowledgeExcursion(db, id!.replaceAll('&amp;', '&'), 'Door left open; closed.', 'A. Auditor', AS_OF_MS);
+    await expectRenewed([label(ROUTES.at(-2)!)]);
   });
 
   it('renews the line view, its tables, the waiting what-if and its export after a scan import', async () => {
