@@ -564,7 +564,6 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
   ].join('\n');
   const pages = r.routes.filter((x) => x.kind !== 'baseline' && !x.route.startsWith('/assets/'));
   const missed = pages.filter((x) => !x.met);
-  const areas = missed.filter((x) => x.route.startsWith('/areas'));
   const errors = r.routes.reduce((a, x) => a + x.errors + x.non2xx, 0) + r.soak.errors;
   return {
     name: 'load',
@@ -585,12 +584,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
         target: 'p99 < 200 ms, zero errors and non-2xx, ≥ 0.5 × /healthz throughput',
         measured: `${pages.length - missed.length} of ${pages.length} routes met${missed.length ? `; missed: ${missed.map((x) => `\`${x.route}\``).join(', ')}` : ''}`,
         met: missed.length === 0,
-        why: missed.length
-          ? `${areas.length ? 'the Areas page and its trend are computed on every request (from the hourly aggregates since migration 0023; not kept between requests); ' : ''}${missed
-              .filter((x) => !x.route.startsWith('/areas'))
-              .map((x) => `\`${x.route}\`: ${x.why}`)
-              .join('; ')}`
-          : undefined,
+        why: missed.length ? missed.map((x) => `\`${x.route}\`: ${x.why}`).join('; ') : undefined,
       },
       {
         name: 'errors under load (issue 14)',
