@@ -5,9 +5,9 @@
  * What is kept, and for whom:
  * - only GET answers with status 200 of the routes in KEPT_ROUTES (the assessment pages and their
  *   swaps, the learning pages, the JSON assessments, the Areas page and its trend, an area's audit
- *   page and its table downloads (not its printed report, which states when it was made), the line
- *   view and its table downloads, the what-if of every waiting lot and its export, the Imports page
- *   and its history); never the account, audit-trail (/audit) or upload-job pages, never a POST;
+ *   page, its printed report and its table downloads, the line view and its table downloads, the
+ *   what-if of every waiting lot and its export, the Imports page and its history); never the
+ *   account, audit-trail (/audit) or upload-job pages, never a POST;
  * - per data generation (src/store/writer.ts `dataGeneration`: any committed write — an import,
  *   a parameter set adopted, a sign-off — starts a new one, so the next request renders afresh),
  *   through the engine's kept results (src/engine/cache.ts);
@@ -18,7 +18,8 @@
  *   clock) is not kept, as its time is the millisecond of the request;
  * - per URL (path and query) and htmx headers (a fragment is not a page);
  * - per what else a route registers with `keptKeyPart` (the Imports page: the uploads running in
- *   this process, which change without a write).
+ *   this process, which change without a write; an audit report: the real minute it states it was
+ *   made in, even under a frozen assessment clock).
  *
  * Only the body, its content type and a download's file name (content-disposition) are kept, never
  * another header: the cookies a request gets (the CSRF cookie for a browser that has none) are set
@@ -45,6 +46,7 @@ export const KEPT_ROUTES: ReadonlySet<string> = new Set([
   '/areas',
   '/areas/trend',
   '/areas/:id/audit',
+  '/areas/:id/audit/report',
   '/areas/:id/audit/tables/:table',
   '/line',
   '/line/tables/:table',

@@ -212,6 +212,32 @@ describe('kept pages: Areas, line view, waiting what-if, Imports', () => {
     await expectRenewed([label(ROUTES.at(-2)!)]);
   });
 
+  it('keeps an area’s audit report per real minute (it states when it was made), renewed after levels are derived', async () => {
+    // Away from the end of a minute, so that the requests below fall in one minute.
+    const intoMinute = Date.now() % 60_000;
+    if (intoMinute > 50_000) await new Promise((r) => setTimeout(r, 60_000 - intoMinute + 100));
+    const r = { path: `/areas/fab-1/audit/report?${PERIOD}` };
+    const first = await kept(r);
+    expect(first.status).toBe(200);
+    const stats = keptStats(db);
+    expect(await kept(r)).toEqual(first);
+    expect(keptStats(db).hits).toBe(stats.hits + 1);
+    expect(first).toEqual(await plain(r));
+    deriveAndStoreLevels(db, {
+      locationId: 'bay-3',
+      diameterM: 0.5e-6,
+      method: 'class-fraction',
+      window: null,
+      parameters: { alert: 0.4, action: 0.8 },
+      name: 'kept-pages test levels, second version',
+      setBy: 'A. Auditor',
+      nowMs: AS_OF_MS,
+    });
+    const now = await kept(r);
+    expect(now.body).not.toBe(first.body);
+    expect(now).toEqual(await plain(r));
+  }, 90_000);
+
   it('renews the line view, its tables, the waiting what-if and its export after a scan import', async () => {
     // A later scan of a wafer of the waiting lot L-01 (P-01), 40 particles of 900 nm, before the clock.
     const iso = new Date(T0_MS + 15 * 3_600_000).toISOString().replace('.000Z', 'Z');
