@@ -13,7 +13,7 @@
  *    real /account/tokens form for the JSON API routes (Authorization: Bearer).
  * 3. Lists the GET routes of the app itself (createApp(...).routes, the modules of src/web/app.ts
  *    ROUTES) and fills their ids from the demo (a lot, its first pair, a calculator, an import, a
- *    parameter set). State-changing routes (POST) are not loaded; a GET route whose id does not
+ *    parameter set, an area; a download's table). State-changing routes (POST) are not loaded; a GET route whose id does not
  *    exist in the demo is listed as skipped with the reason.
  * 4. For each route: autocannon (9.0.0) with `--connections` connections, bounded by
  *    `--requests` requests and `--seconds` seconds (whichever comes first), after a warm-up of
@@ -280,7 +280,8 @@ async function discover(
   const calc = /\/calculators\/([a-z0-9-]+)/.exec(await page('/calculators'))?.[1];
   const imp = /href="\/imports\/history\/(\d+)"/.exec(await page('/imports/history'))?.[1];
   const set = /href="\/parameters\/([^"/?#]+)"/.exec(await page('/parameters'))?.[1];
-  return { lot: lotId, pair: pairId, calculator: calc, import: imp, set };
+  const area = /href="\/areas\/([^"/?#]+)\/audit"/.exec(await page('/areas'))?.[1];
+  return { lot: lotId, pair: pairId, calculator: calc, import: imp, set, area };
 }
 
 /** A route with its ids filled from the demo, the headers it needs, or the reason it is skipped. */
@@ -299,12 +300,17 @@ function fill(
   else if (route.startsWith('/calculators/:id')) path = sub('id', need('calculator'));
   else if (route.startsWith('/imports/history/:id')) path = sub('id', need('import'));
   else if (route.startsWith('/parameters/:id')) path = sub('id', need('set'));
+  else if (route.startsWith('/areas/:id')) path = sub('id', need('area'));
+  else if (route === '/line/tables/:table') path = route;
   else if (route.startsWith('/imports/jobs/'))
     return {
       skip: 'an upload job exists only while an upload runs (made by a POST, which this bench does not send)',
     };
   else if (route.includes(':')) return { skip: 'no id for this route in the demo' };
   if (path === null) return { skip: 'the demo has no such item' };
+  // a download: a table of the page (the line's Pareto by tool; an audit's levels in force)
+  if (route.endsWith('/tables/:table'))
+    path = path.replace(':table', route.startsWith('/line') ? 'pareto-tool' : 'levels');
   if (route === '/login') return { skip: 'redirects a signed-in session (303) by design' };
   // Swaps answer htmx (HX-Request) with a fragment and a plain request with a redirect to their page.
   const FRAGMENTS: Record<string, string> = {
