@@ -10,8 +10,8 @@
  * three-hour excursion (× 20) at the first bay on day 20 — imported through the real import
  * (importFile), which maintains the hourly aggregates (migration 0023).
  *
- * Measured through app.request (open mode; the pages are not kept by src/web/page-cache.ts, so every
- * request renders): after two warm-up requests, RUNS requests per page and repeat; p50 and p95.
+ * Measured through app.request (open mode; an app with keepPages false, so that no answer is kept by
+ * src/web/page-cache.ts and every request renders): after two warm-up requests, RUNS requests per page and repeat; p50 and p95.
  * Twice: with the installation clock set (as the demo sets it) and with none (costs at now; quick
  * mode: this one only).
  * Baselines in the same run: GET /healthz, and a bare read of the 30 days of hourly aggregates of
@@ -147,7 +147,9 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
     cfg.log(
       `imported ${counters.rows.toLocaleString('en-US')} counter samples (${LOCATIONS} locations × ${DAYS} d × 1/min, 4 channels; ${hourlyRows.toLocaleString('en-US')} hourly aggregate rows) in ${fmt((performance.now() - t0) / 1000, 1)} s`,
     );
-    const app = createApp({ db, dataDir: dir, version: 'bench', log: () => {} });
+    // keepPages false: the Areas page is kept between requests in the server (src/web/page-cache.ts);
+    // this bench times its rendering.
+    const app = createApp({ db, dataDir: dir, version: 'bench', log: () => {}, keepPages: false });
     const ok = async (path: string) => {
       const res = await app.request(path);
       const body = await res.text();

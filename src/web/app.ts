@@ -84,7 +84,7 @@ export function createApp(ctx: AppContext, extraRoutes: RouteModule[] = []): Hon
   // What the asker's role allows (src/web/auth/permissions.ts).
   app.use('*', authorize(ctx));
   // The assessment pages and API answers, kept until the data change (src/web/page-cache.ts).
-  app.use('*', keptPages(ctx));
+  if (ctx.keepPages !== false) app.use('*', keptPages(ctx));
 
   const asset = (body: Buffer, type: string) => () =>
     new Response(new Uint8Array(body), {

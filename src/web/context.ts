@@ -15,4 +15,9 @@ export interface AppContext {
    * banner on every page saying so.
    */
   auth?: { mode: 'open' } | { mode: 'accounts'; sessionSecret: string };
+  /**
+   * false: no answer is kept between requests (src/web/page-cache.ts), every page is rendered
+   * afresh — for the benches that time the rendering and the tests' plain twin. Default: kept.
+   */
+  keepPages?: boolean;
 }

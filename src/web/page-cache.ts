@@ -4,8 +4,10 @@
  *
  * What is kept, and for whom:
  * - only GET answers with status 200 of the routes in KEPT_ROUTES (the assessment pages and their
- *   swaps, the learning pages, the JSON assessments); never the account, audit, import or upload
- *   pages (but the import history, which only an import changes), never a POST;
+ *   swaps, the learning pages, the JSON assessments, the Areas page and its trend, an area's audit
+ *   page, its printed report and its table downloads, the line view and its table downloads, the
+ *   what-if of every waiting lot and its export, the Imports page and its history); never the
+ *   account, audit-trail (/audit) or upload-job pages, never a POST;
  * - per data generation (src/store/writer.ts `dataGeneration`: any committed write — an import,
  *   a parameter set adopted, a sign-off — starts a new one, so the next request renders afresh),
  *   through the engine's kept results (src/engine/cache.ts);
@@ -14,11 +16,14 @@
  * - per assessment clock: the installation's frozen clock, else the current minute (the pages
  *   assess at now floored to the minute); an API answer at the real now (no `?asOf=`, no frozen
  *   clock) is not kept, as its time is the millisecond of the request;
- * - per URL (path and query) and htmx headers (a fragment is not a page).
+ * - per URL (path and query) and htmx headers (a fragment is not a page);
+ * - per what else a route registers with `keptKeyPart` (the Imports page: the uploads running in
+ *   this process, which change without a write; an audit report: the real minute it states it was
+ *   made in, even under a frozen assessment clock).
  *
- * Only the body and its content type are kept, never a header: the cookies a request gets (the
- * CSRF cookie for a browser that has none) are set by the middleware before this one, for that
- * request.
+ * Only the body, its content type and a download's file name (content-disposition) are kept, never
+ * another header: the cookies a request gets (the CSRF cookie for a browser that has none) are set
+ * by the middleware before this one, for that request.
  *
  * The page's CSRF token belongs to the asker's browser: it is replaced by a placeholder when the
  * page is kept and by the current request's own token when it is served, so no token is ever
@@ -38,6 +43,16 @@ import type { AppContext } from './context.ts';
 /** The GET routes whose answers are kept (route patterns as registered). */
 export const KEPT_ROUTES: ReadonlySet<string> = new Set([
   '/',
+  '/areas',
+  '/areas/trend',
+  '/areas/:id/audit',
+  '/areas/:id/audit/report',
+  '/areas/:id/audit/tables/:table',
+  '/line',
+  '/line/tables/:table',
+  '/whatif/waiting',
+  '/whatif/waiting/export',
+  '/imports',
   '/lots',
   '/lots/:id',
   '/lots/:id/pareto',
@@ -64,6 +79,8 @@ const TOKEN_PLACEHOLDER = '\u0000csrf-token\u0000';
 interface Kept {
   status: number;
   contentType: string;
+  /** A download's `content-disposition` (its file name), the only other header kept; null for a page. */
+  disposition: string | null;
   body: string;
   /** The body gzipped once, in pieces around its tokens (see `gzipAround`); null when small. */
   gzip: GzipPieces | null;
@@ -131,6 +148,29 @@ function gzipWith(g: GzipPieces, token: string): Uint8Array<ArrayBuffer> {
 /** Bodies below this many characters are sent as they are (compressing them saves little). */
 const GZIP_MIN_CHARS = 2048;
 
+/**
+ * Parts of a route's key besides the data, the asker, the clock, the URL and the htmx headers: what
+ * else its answer shows that changes without a write (the Imports page lists the uploads running
+ * in this process). Registered by the route module, per app.
+ */
+const keyParts = new WeakMap<AppContext, Map<string, (c: Context) => string>>();
+
+/** Adds `part(c)` to the key of `route`'s kept answers (see `keyParts`). */
+export function keptKeyPart(ctx: AppContext, route: string, part: (c: Context) => string): void {
+  if (!KEPT_ROUTES.has(route)) throw new Error(`${route} is not a kept route`);
+  let m = keyParts.get(ctx);
+  if (!m) {
+    m = new Map();
+    keyParts.set(ctx, m);
+  }
+  m.set(route, part);
+}
+
+/** Kept answers' types: pages, JSON, and the tables' CSV downloads. */
+const KEPT_TYPES = /^(text\/html|application\/json|text\/csv)/;
+/** UTF-8 with a leading byte-order mark kept (Response.text() drops it; a spreadsheet CSV has one). */
+const UTF8 = new TextDecoder('utf-8', { ignoreBOM: true });
+
 function askerKey(c: Context): string | null {
   const a = actorOf(c);
   if (a.kind === 'open') return 'open';
@@ -145,7 +185,8 @@ export function keptPages(ctx: AppContext): MiddlewareHandler {
     if (c.req.method !== 'GET') return next();
     // Only the kept routes enter the store (routing is done before the middleware runs), so that
     // other pages — a what-if with its levers in the query, say — take no room in it.
-    if (!matchedRoutes(c).some((r) => r.method === 'GET' && KEPT_ROUTES.has(r.path))) return next();
+    const route = matchedRoutes(c).find((r) => r.method === 'GET' && KEPT_ROUTES.has(r.path))?.path;
+    if (route === undefined) return next();
     const asker = askerKey(c);
     if (asker === null) return next();
     const api = c.req.path.startsWith('/api/');
@@ -161,6 +202,9 @@ export function keptPages(ctx: AppContext): MiddlewareHandler {
       c.req.header('hx-request') ?? '',
       c.req.header('hx-boosted') ?? '',
       c.req.header('hx-target') ?? '',
+      // a history restore asks a swap's route for the whole page (routes/whatif-context.ts wantsFragment)
+      c.req.header('hx-history-restore-request') ?? '',
+      keyParts.get(ctx)?.get(route)?.(c) ?? '',
     ].join('|');
     let rendered = false;
     const kept = await keptResultAsync<Kept | null>(ctx.db, key, async () => {
@@ -168,18 +212,20 @@ export function keptPages(ctx: AppContext): MiddlewareHandler {
       await next();
       if (c.res.status !== 200) return null;
       const contentType = c.res.headers.get('content-type') ?? '';
-      if (!/^(text\/html|application\/json)/.test(contentType)) return null;
-      const body = await c.res.text();
+      if (!KEPT_TYPES.test(contentType)) return null;
+      const disposition = c.res.headers.get('content-disposition');
+      const body = UTF8.decode(await c.res.arrayBuffer());
       const token = c.get('csrfToken');
       c.res = new Response(body, c.res);
       const keptBody =
         typeof token === 'string' && token !== '' ? body.replaceAll(token, TOKEN_PLACEHOLDER) : body;
       const gzip = keptBody.length >= GZIP_MIN_CHARS ? gzipAround(keptBody) : null;
-      return { status: 200, contentType, body: keptBody, gzip };
+      return { status: 200, contentType, disposition, body: keptBody, gzip };
     });
     if (rendered) return;
     if (kept === null) return next();
     c.header('content-type', kept.contentType);
+    if (kept.disposition !== null) c.header('content-disposition', kept.disposition);
     c.header('vary', 'Accept-Encoding');
     const token = c.get('csrfToken');
     const own = typeof token === 'string' && token.length < 65_536 ? token : '';

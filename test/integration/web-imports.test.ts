@@ -275,6 +275,9 @@ describe('the Imports page', () => {
 
   it('lists jobs still running on the plain Imports page, with a link to follow each', async () => {
     const h = await harness();
+    // The page is kept (src/web/page-cache.ts): a job started without a write must still show on it.
+    const before = await (await h.app.request('/imports', { headers: { cookie: h.cookie } })).text();
+    expect(before).not.toContain('still running');
     const res = await post(
       h,
       form({ _csrf: h.token, kind: 'locations' }, [{ name: 'slow & "big".csv', content: GOOD }]),

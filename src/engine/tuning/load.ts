@@ -70,15 +70,30 @@ export function waitingLotIds(db: Db, asOfMs: number): string[] {
 }
 
 /**
+ * The waiting lots and their contexts as a caller has them already (the web routes keep them per
+ * data generation and time): the same as waitingLotIds and openLotContext with the same options.
+ */
+export interface WaitingSources {
+  lotIds: string[];
+  context: (lotId: string) => LotContext | null;
+}
+
+/**
  * The scenario on every waiting lot. A lot the scenario cannot apply to (e.g. it never waits at the
  * location a lever names) is listed in `skipped` with the lever's message; other errors propagate.
+ * `sources`: the waiting lots and their contexts when the caller has them (else read here).
  */
-export function whatIfWaiting(db: Db, scenario: Scenario, opts: ContextOptions): WaitingWhatIf {
+export function whatIfWaiting(
+  db: Db,
+  scenario: Scenario,
+  opts: ContextOptions,
+  sources?: WaitingSources,
+): WaitingWhatIf {
   parseScenario(scenario); // a lever of the wrong shape is refused once, not lot by lot
   const lots: WaitingWhatIf['lots'] = [];
   const skipped: WaitingWhatIf['skipped'] = [];
-  for (const lotId of waitingLotIds(db, opts.asOfMs)) {
-    const ctx = openLotContext(db, lotId, opts);
+  for (const lotId of sources?.lotIds ?? waitingLotIds(db, opts.asOfMs)) {
+    const ctx = sources ? sources.context(lotId) : openLotContext(db, lotId, opts);
     if (!ctx) continue;
     try {
       lots.push(whatIfLot(ctx, scenario));

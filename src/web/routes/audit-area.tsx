@@ -13,6 +13,7 @@ import { type AuditView, areaAuditTables, auditProblems } from '../../../views/p
 import type { AuditPeriod } from '../../engine/audit/types.ts';
 import { audit } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
+import { keptKeyPart } from '../page-cache.ts';
 import { renderPage } from '../render.ts';
 import { fileDate, pickTable, queryFormat, sendTable } from './audit-export.ts';
 import { type AreaRef, auditQuery, pathArea } from './audit-params.ts';
@@ -115,6 +116,9 @@ export function register(app: Hono, ctx: AppContext): void {
     return page(ctx, c, m, flash);
   });
 
+  // The report states when it was made (to the minute): kept per real minute, even under a frozen
+  // assessment clock (src/web/page-cache.ts).
+  keptKeyPart(ctx, '/areas/:id/audit/report', () => String(Math.floor(Date.now() / 60_000)));
   app.get('/areas/:id/audit/report', (c) => {
     const m = make(ctx, c);
     return renderPage(c, ctx, {

@@ -23,6 +23,7 @@ import type {
   LineParetoEntry,
   OccupancySelection,
 } from '../../engine/audit/types.ts';
+import { installationClockMs } from '../../store/settings.ts';
 import { actorName } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue, positiveNumberValue } from '../params.ts';
@@ -166,7 +167,9 @@ export function runLineView(
   problems: string[];
 } {
   try {
-    const p = lineParetoFromDb(ctx.db, period);
+    // At the minute, as the other pages assess (and as the page is kept: src/web/page-cache.ts).
+    const asOfMs = installationClockMs(ctx.db) ?? Math.floor(Date.now() / 60_000) * 60_000;
+    const p = lineParetoFromDb(ctx.db, period, asOfMs);
     const histories = chamberHistoryFromDb(ctx.db, undefined, period).filter((h) => h.points.length > 0);
     const problems = [...p.notes];
     if (p.lots.length === 0)

@@ -40,6 +40,7 @@ import type { AppContext } from '../context.ts';
 import { CSRF_FIELD, csrfDeferred, csrfField, csrfHeaders, forbidden, verifyCsrfToken } from '../csrf.ts';
 import { runImport } from '../import-worker.ts';
 import { createJobRegistry, DEFAULT_JOB_TTL_MS, type Job } from '../jobs.ts';
+import { keptKeyPart } from '../page-cache.ts';
 import { pathWholeNumber, queryPage, wholeNumberValue } from '../params.ts';
 import { isFragmentRequest, renderPage } from '../render.ts';
 import { formatBytes, multipartBoundary, readMultipart, UploadError, uploadLimitBytes } from '../upload.ts';
@@ -198,9 +199,16 @@ export function register(app: Hono, ctx: AppContext): void {
     );
   };
 
+  // Jobs still running (e.g. started in another tab) are listed so they can be followed.
+  const activeJobs = () => jobs.list().filter((j) => j.state === 'queued' || j.state === 'running');
+  // The kept page (src/web/page-cache.ts) is kept per set of running jobs: they change without a write.
+  keptKeyPart(ctx, '/imports', () =>
+    activeJobs()
+      .map((j) => j.id)
+      .join(','),
+  );
   app.get('/imports', (c) => {
-    // Jobs still running (e.g. started in another tab) are listed so they can be followed.
-    const active = jobs.list().filter((j) => j.state === 'queued' || j.state === 'running');
+    const active = activeJobs();
     if (active.length === 0) return page(c, {});
     return page(c, {
       notice: (

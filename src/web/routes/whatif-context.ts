@@ -10,8 +10,11 @@ import {
   openLotContext,
   openPairContext,
   type PairContext,
+  type Scenario,
   ScenarioError,
+  type WaitingWhatIf,
   waitingLotIds,
+  whatIfWaiting,
 } from '../../engine/tuning/index.ts';
 import type { LineData, PairInput } from '../../engine/types.ts';
 import { ModelInputError, plainModelError } from '../../model/errors.ts';
@@ -197,4 +200,28 @@ export function waitingOptions(
 
 export function waitingLotIdsOf(ctx: AppContext, asOfMs: number): string[] {
   return memoised(ctx, `whatif-waiting-ids|${asOfMs}`, () => waitingLotIds(ctx.db, asOfMs));
+}
+
+/**
+ * The scenario on every waiting lot, kept per data generation, time and scenario (the page, its swap
+ * and its export share it), from the waiting lots' contexts kept for the levers' choices
+ * (`lotContext`): the same as whatIfWaiting on the database (tested), without loading and assessing
+ * each lot again.
+ */
+export function waitingWhatIf(ctx: AppContext, scenario: Scenario, asOfMs: number): WaitingWhatIf {
+  return memoised(ctx, `whatif-waiting|${asOfMs}|${JSON.stringify(scenario)}`, () =>
+    whatIfWaiting(
+      ctx.db,
+      scenario,
+      { asOfMs },
+      {
+        lotIds: waitingLotIdsOf(ctx, asOfMs),
+        context: (id) => {
+          const lc = lotContext(ctx, id, asOfMs);
+          // a lot that cannot be assessed: the engine's own error, as whatIfWaiting gives it
+          return lc && 'problem' in lc ? openLotContext(ctx.db, id, { asOfMs, detail: 'summary' }) : lc;
+        },
+      },
+    ),
+  );
 }

@@ -25,7 +25,7 @@ import {
   WhatIfError,
   type WhatIfParetoBy,
 } from '../../../views/partials/whatif-result.tsx';
-import { type Scenario, whatIfLot, whatIfPair, whatIfWaiting } from '../../engine/tuning/index.ts';
+import { type Scenario, whatIfLot, whatIfPair } from '../../engine/tuning/index.ts';
 import type { LineData } from '../../engine/types.ts';
 import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
@@ -41,6 +41,7 @@ import {
   pairContext,
   token,
   waitingOptions,
+  waitingWhatIf,
   wantsFragment,
 } from './whatif-context.ts';
 import { leverValuesOf, lineNames, scenarioOf } from './whatif-query.ts';
@@ -237,7 +238,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const w0 = waitingOptions(ctx, asOfMs);
     const below: Below = { saved: savedViews(ctx).filter((v) => v.target === 'every waiting lot') };
     const s = scenarioFor(values, w0.lines);
-    const r = 'error' in s ? s : attempt(() => whatIfWaiting(ctx.db, s.scenario, { asOfMs }));
+    const r = 'error' in s ? s : attempt(() => waitingWhatIf(ctx, s.scenario, asOfMs));
     if ('error' in r)
       return renderWhatIf(
         c,
@@ -306,7 +307,7 @@ export function register(app: Hono, ctx: AppContext): void {
     const asOfMs = asOfFrom(c, ctx);
     const values = leverValuesOf((k) => c.req.query(k));
     const scenario = scenarioOf(values, lineNames(...waitingOptions(ctx, asOfMs).lines));
-    const w = exportAttempt(() => whatIfWaiting(ctx.db, scenario, { asOfMs }));
+    const w = exportAttempt(() => waitingWhatIf(ctx, scenario, asOfMs));
     return download(c, 'whatif-waiting.json', {
       kind: 'voidcast what-if',
       subject: { kind: 'waiting' },
