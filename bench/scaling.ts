@@ -137,10 +137,14 @@ async function counterGrowth(cfg: BenchConfig): Promise<Growth> {
         for (let l = 0; l < LOCATIONS; l++) k += readCounterSamples(db, `LOC-${l + 1}`, START_MS, to).n;
         return k;
       };
-      // warm-up, except at 10⁷ rows (13 s a read here): the smaller sizes have warmed the code, and
-      // the rows were just written, so they are in the page cache
+      // Warm-up and several runs below 10⁷ rows. At 10⁷ (15–20 s of CPU a read here) one run, no
+      // warm-up: the smaller sizes have warmed the code and the rows were just written, so they are
+      // in the page cache; a read that long varies by a few per cent from run to run, and 5 % at the
+      // top size moves the exponent over 10⁵–10⁷ by 0.01 (half of log10 1.05), while a second
+      // read cost 15–40 s of the run.
       if (n < 1e7) read();
-      const runs = n >= 1e7 ? 2 : runsFrom(cfg, 5, 3);
+      else cfg.log(`reading ${n.toLocaleString('en-US')} rows (one run, about 15–20 s of CPU)…`);
+      const runs = n >= 1e7 ? 1 : runsFrom(cfg, 5, 3);
       const t: number[] = [];
       let got = 0;
       for (let i = 0; i < runs; i++) {
@@ -150,7 +154,7 @@ async function counterGrowth(cfg: BenchConfig): Promise<Growth> {
       }
       ms.push(median(t));
       cfg.log(
-        `readCounterSamples, ${got.toLocaleString('en-US')} rows: ${fmt(median(t))} ms CPU (median of ${runs})`,
+        `readCounterSamples, ${got.toLocaleString('en-US')} rows: ${fmt(median(t))} ms CPU (${runs > 1 ? `median of ${runs}` : 'one run'})`,
       );
     }
     db.close();
