@@ -25,7 +25,7 @@ import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 
 import { cpus, loadavg, totalmem } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { type BenchConfig, fmt, runsFrom, type Section, type Target } from './common.ts';
+import { type BenchConfig, cpuSecondsSoFar, fmt, runsFrom, type Section, type Target } from './common.ts';
 
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..');
 const DOC = join(ROOT, 'docs', 'performance.md');
@@ -95,6 +95,8 @@ export interface Report {
     separateRun?: { date: string; mode: 'full' | 'quick'; command: string };
   })[];
   seconds: number;
+  /** CPU seconds of the bench process and its waited-for children over the run (absent in older reports). */
+  cpuSeconds?: number;
   /** Load average (1 / 5 / 15 min) when the run started and when it ended (absent in older reports). */
   loadAvgBefore?: number[];
   loadAvgAfter?: number[];
@@ -129,7 +131,7 @@ export function runTime(r: Report): { seconds: number; how: string } {
   if (separate.length === 0)
     return {
       seconds: r.seconds,
-      how: `run of ${r.date}, load average ${la(r.loadAvgBefore)} before, ${la(r.loadAvgAfter)} after`,
+      how: `run of ${r.date}, load average ${la(r.loadAvgBefore)} before, ${la(r.loadAvgAfter)} after${r.cpuSeconds !== undefined ? `; ${fmt(r.cpuSeconds / 60, 1)} min of CPU` : ''}`,
     };
   return {
     seconds: r.sections.reduce((a, s) => a + (s.seconds ?? 0), 0),
@@ -212,7 +214,14 @@ export function markdown(r: Report): string {
         ? `; with the sections measured in separate runs merged in, the sections’ own times sum to ${fmt(t.seconds / 60, 1)} min).`
         : `; load average ${la(r.loadAvgBefore)} before, ${la(r.loadAvgAfter)} after).`),
     '',
-    `Time per section: ${r.sections.map((s) => `${s.name} ${Math.round(s.seconds ?? 0)} s`).join(', ')}.`,
+    `Time per section (wall${r.sections.some((s) => s.cpuSeconds !== undefined) ? ' / CPU of the bench process and the load section’s server' : ''}): ${r.sections
+      .map(
+        (s) =>
+          `${s.name} ${Math.round(s.seconds ?? 0)} s${s.cpuSeconds !== undefined ? ` / ${Math.round(s.cpuSeconds)} s` : ''}`,
+      )
+      .join(
+        ', ',
+      )}${r.cpuSeconds !== undefined && !separate ? `; the whole run ${fmt(r.seconds / 60, 1)} min wall / ${fmt(r.cpuSeconds / 60, 1)} min CPU` : ''}.`,
     '',
     `Machine: ${r.machine.cpu}, ${r.machine.cores} cores, ${r.machine.memoryGb} GB, Node.js ${r.machine.node}, ${r.machine.platform}. ` +
       'The machine is shared with other work: absolute figures are noisy; the ratios against baselines measured in the same run are what the targets use. ' +
@@ -271,6 +280,7 @@ async function main() {
   const names = args.filter((a) => !a.startsWith('-') && a !== 'quick' && SECTIONS.some((s) => s.name === a));
   const cfg: BenchConfig = { quick, runs: runsFrom({ quick }, 7, 3), log: (l) => print(`  ${l}`) };
   const t0 = performance.now();
+  const cpu0 = cpuSecondsSoFar();
   const runLoadBefore = loadavg();
   const sections: Report['sections'] = [];
   const todo = SECTIONS.filter((s) => (names.length > 0 ? names.includes(s.name) : !quick || s.quick));
@@ -284,15 +294,17 @@ async function main() {
     );
     const before = loadavg();
     const ts = performance.now();
+    const cs = cpuSecondsSoFar();
     const sec = await s.run(cfg);
     sec.seconds = (performance.now() - ts) / 1000;
+    sec.cpuSeconds = cpuSecondsSoFar() - cs;
     sections.push({ ...sec, loadAvgBefore: before, loadAvgAfter: loadavg() });
     for (const t of sec.targets)
       console.log(
         `  ${t.met ? 'met   ' : 'MISSED'} ${t.name}: ${t.measured}${t.why && !t.met ? ` — ${t.why}` : ''}`,
       );
     console.log(
-      `  ${s.name}: ${Math.round(sec.seconds)} s (load average ${la(before)} → ${la(loadavg())}); ${clock(performance.now() - t0)} into the run`,
+      `  ${s.name}: ${Math.round(sec.seconds)} s wall, ${Math.round(sec.cpuSeconds)} s CPU (load average ${la(before)} → ${la(loadavg())}); ${clock(performance.now() - t0)} into the run`,
     );
   }
   const report: Report = {
@@ -301,6 +313,7 @@ async function main() {
     machine: machine(),
     sections,
     seconds: (performance.now() - t0) / 1000,
+    cpuSeconds: cpuSecondsSoFar() - cpu0,
     loadAvgBefore: runLoadBefore,
     loadAvgAfter: loadavg(),
   };
@@ -310,7 +323,7 @@ async function main() {
   const file = join(dir, `${report.date.replace(/:/g, '')}${quick ? '-quick' : ''}.json`);
   writeFileSync(file, `${JSON.stringify(report, null, 2)}\n`);
   console.log(
-    `results: ${file} (${fmt(report.seconds / 60, 1)} min; load average ${la(report.loadAvgBefore)} → ${la(report.loadAvgAfter)})`,
+    `results: ${file} (${fmt(report.seconds / 60, 1)} min wall, ${fmt(report.cpuSeconds! / 60, 1)} min CPU; load average ${la(report.loadAvgBefore)} → ${la(report.loadAvgAfter)})`,
   );
   if (names.length === 0)
     for (const t of report.targets)

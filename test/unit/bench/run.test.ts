@@ -146,7 +146,7 @@ describe('markdown', () => {
     expect(md).toContain(
       '(10.0 min in all; load average 0.50 / 0.25 / 0.13 before, 1.50 / 1.00 / 0.75 after).',
     );
-    expect(md).toContain(`Time per section: ${FULL.map((n) => `${n} 60 s`).join(', ')}.`);
+    expect(md).toContain(`Time per section (wall): ${FULL.map((n) => `${n} 60 s`).join(', ')}.`);
     const rows = md
       .split('\n')
       .filter((l) => l.startsWith('| ') && !l.startsWith('| section') && !l.startsWith('| measured'));
@@ -157,6 +157,18 @@ describe('markdown', () => {
       /^\| run \| quick run, `npm run bench -- quick` \| < 2 min \| not measured \| \*\*missed\*\* \|/,
     );
     expect(rows[2]).toBe('| import | import target | goal | x | met |  |');
+  });
+
+  it('states CPU beside wall time where the report has it', () => {
+    const full = report('full', '2026-12-03T10:00:00Z', each(FULL, 60), 600);
+    full.cpuSeconds = 300;
+    for (const s of full.sections) s.cpuSeconds = 30;
+    full.targets = timeTargets(full, undefined);
+    const md = markdown(full);
+    // 300 s = 5.0 min of CPU (hand computation)
+    expect(md).toContain('; the whole run 10.0 min wall / 5.0 min CPU.');
+    expect(md).toContain('import 60 s / 30 s, scans 60 s / 30 s');
+    expect(full.targets[0]!.measured).toMatch(/; 5\.0 min of CPU\)$/);
   });
 
   it('writes an older report without run-level load averages or time targets', () => {
