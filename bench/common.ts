@@ -6,7 +6,7 @@
 import { readFileSync } from 'node:fs';
 
 export interface BenchConfig {
-  /** Short sizes and bounds (`npm run bench -- quick`): under two minutes in all. */
+  /** Short sizes and bounds (`npm run bench -- quick`): target: under two minutes in all (a row of the Targets table). */
   quick: boolean;
   /** Measured runs per figure after the warm-up (BENCH_RUNS overrides). */
   runs: number;

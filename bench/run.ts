@@ -3,8 +3,8 @@
  * then the results as JSON (bench/results/<UTC date-time>[-quick].json, not committed) and the
  * tables of docs/performance.md (between its generated-section markers).
  *
- *   npm run bench                 every workload at full size (under 15 minutes on two cores)
- *   npm run bench -- quick        small sizes and bounds (under 2 minutes); says so beside each target
+ *   npm run bench                 every workload at full size (target: under 15 minutes on two cores)
+ *   npm run bench -- quick        small sizes and bounds (target: under 2 minutes); says so beside each target
  *   npm run bench -- load assess  only the named sections (no docs written unless every one ran)
  *   BENCH_RUNS=n                  measured runs per figure (after the warm-up)
  *   --no-docs                     do not rewrite docs/performance.md
