@@ -318,16 +318,16 @@ async function main() {
     loadAvgAfter: loadavg(),
   };
   const dir = join(ROOT, 'bench', 'results');
-  report.targets = timeTargets(report, latestWhole(dir, quick ? 'full' : 'quick'));
+  // Only a whole run measures its mode's time (a run of named sections is merged or stands alone).
+  if (names.length === 0) report.targets = timeTargets(report, latestWhole(dir, quick ? 'full' : 'quick'));
   mkdirSync(dir, { recursive: true });
   const file = join(dir, `${report.date.replace(/:/g, '')}${quick ? '-quick' : ''}.json`);
   writeFileSync(file, `${JSON.stringify(report, null, 2)}\n`);
   console.log(
     `results: ${file} (${fmt(report.seconds / 60, 1)} min wall, ${fmt(report.cpuSeconds! / 60, 1)} min CPU; load average ${la(report.loadAvgBefore)} → ${la(report.loadAvgAfter)})`,
   );
-  if (names.length === 0)
-    for (const t of report.targets)
-      console.log(`${t.met ? 'met   ' : 'MISSED'} ${t.name}: ${t.target}: ${t.measured}`);
+  for (const t of report.targets ?? [])
+    console.log(`${t.met ? 'met   ' : 'MISSED'} ${t.name}: ${t.target}: ${t.measured}`);
   const mergeFrom = args.find((a) => a.startsWith('--merge='))?.slice('--merge='.length);
   if (mergeFrom && names.length > 0 && !args.includes('--no-docs')) {
     // The merged report replaces the earlier one, so that later merges add to it.
