@@ -3,9 +3,10 @@
  * a baseline in the same run, its targets (met or missed, and why), and growth exponents; plus the
  * small statistics they share (median, log–log least squares, CPU time of this process).
  */
+import { readFileSync } from 'node:fs';
 
 export interface BenchConfig {
-  /** Short sizes and bounds (`npm run bench -- quick`): under two minutes in all. */
+  /** Short sizes and bounds (`npm run bench -- quick`): target: under two minutes in all (a row of the Targets table). */
   quick: boolean;
   /** Measured runs per figure after the warm-up (BENCH_RUNS overrides). */
   runs: number;
@@ -56,7 +57,10 @@ export interface Section {
   growth?: Growth[];
   /** Any further table, already in Markdown (e.g. the load test's per-route table). */
   table?: string;
+  /** Wall time of the section (set by the runner). */
   seconds?: number;
+  /** CPU time (user + system) of the bench process and the child processes it waited for (set by the runner). */
+  cpuSeconds?: number;
 }
 
 export function median(xs: readonly number[]): number {
@@ -99,6 +103,26 @@ export async function timedAsync<T>(f: () => Promise<T>): Promise<{ value: T; ms
   const ms = performance.now() - t0;
   const c = process.cpuUsage(c0);
   return { value, ms, cpuMs: (c.user + c.system) / 1000 };
+}
+
+/**
+ * CPU seconds (user + system) used so far by this process and by the child processes it has waited
+ * for (the load section's server, once it has exited): Node's own count for this process, and on
+ * Linux the children's from /proc/self/stat (cutime + cstime, fields 16 and 17, in clock ticks of
+ * 1/100 s, the kernel's USER_HZ); elsewhere the children count as 0.
+ */
+export function cpuSecondsSoFar(): number {
+  const c = process.cpuUsage();
+  let children = 0;
+  try {
+    const stat = readFileSync('/proc/self/stat', 'utf8');
+    // fields after the command name (which may hold spaces) start at field 3, state
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    children = (Number(f[13]) + Number(f[14])) / 100;
+  } catch {
+    // not Linux: the bench process alone
+  }
+  return (c.user + c.system) / 1e6 + (Number.isFinite(children) ? children : 0);
 }
 
 export function fmt(v: number, digits = 2): string {
