@@ -71,7 +71,7 @@ describe('assessLotFromDbParallel', () => {
       'test',
     );
     if (!proposed.ok) throw new Error(proposed.message);
-    adoptParameterSetInDb(db, proposed.set.id, 'test');
+    adoptParameterSetInDb(db, proposed.set.id, 'a second person');
     try {
       const serial = assessLotFromDb(db, 'TR2652', { asOfMs })!;
       const parallel = await assessLotFromDbParallel(db, 'TR2652', { asOfMs });
