@@ -160,7 +160,7 @@ export function timeTargets(r: Report, other?: Report): Target[] {
     return {
       name,
       target: goal,
-      measured: `${fmt(t.seconds / 60, 1)} min (${x === r ? '' : 'its latest whole run: '}${t.how})`,
+      measured: `${fmt(t.seconds / 60, 1)} min (${x === r ? '' : 'the latest complete run of that mode: '}${t.how})`,
       met: t.seconds < limitS,
       why: t.seconds < limitS ? undefined : 'see the time per section above the tables',
     };

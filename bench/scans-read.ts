@@ -201,7 +201,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
           why:
             worst <= 2
               ? undefined
-              : 'the import reads with the same parser as the baseline and then checks, maps and packs every defect; the file is also hashed twice (before the import and while it is read); see the remarks in docs/performance.md',
+              : 'the import reads with the same parser as the baseline and then checks, maps, hashes and packs every defect into its scan; see the remarks in docs/performance.md',
         },
       ],
     };
