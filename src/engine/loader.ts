@@ -8,10 +8,10 @@
  * read, or the set it is given (a lot's second thread gets the set the first one read, so both use
  * the same one even if someone adopts another in between).
  */
+
 import {
-  type LedgerRow,
+  type LedgerStepRow,
   lotPairRows,
-  type PairRow,
   pairCountsByLot,
   readLedgerRows,
   readPairRow,
@@ -21,6 +21,7 @@ import type { Db } from '../store/db.ts';
 import { insertDisposition, readDispositions } from '../store/dispositions.ts';
 import { getLocation } from '../store/locations.ts';
 import { listLots, readLot } from '../store/lots.ts';
+import type { PairRow } from '../store/pairs.ts';
 import { readProduct } from '../store/products.ts';
 import { latestScanBefore, listScansOfLot, type ScanHeader, scanInputOf } from '../store/scans.ts';
 import { installationClockMs } from '../store/settings.ts';
@@ -137,7 +138,7 @@ function loadPairs(
   const cleans: Record<string, CleanInput> = {};
   for (const [k, c] of Object.entries(cleansStored)) cleans[k] = toCleanInput(c);
   const products: Record<string, ProductInput> = {};
-  const ledgerByLot = new Map<string, LedgerRow[]>();
+  const ledgerByLot = new Map<string, LedgerStepRow[]>();
   const windows = new Map<string, [number, number]>();
   // The scan headers of each lot's wafers, read once per lot (by wafer, oldest first).
   const scansByLot = new Map<string, Map<string, ScanHeader[]>>();

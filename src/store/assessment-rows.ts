@@ -5,39 +5,11 @@
  * schema).
  */
 import type { Db } from './db.ts';
-import type { CarrierState, FaceOrientation } from './ledger.ts';
-import type { StepKind } from './products.ts';
+import type { LedgerRow } from './ledger.ts';
+import type { PairRow } from './pairs.ts';
 
-export interface PairRow {
-  id: string;
-  product_id: string;
-  lot_id: string;
-  top_wafer_id: string;
-  bottom_wafer_id: string;
-  flip_axis: 'x' | 'y';
-  rotation_rad: number;
-  offset_x_m: number;
-  offset_y_m: number;
-  bonder_tool_id: string | null;
-  planned_bond_ms: number | null;
-}
-
-export interface LedgerRow {
-  id: number;
-  wafer_id: string | null;
-  step: string;
-  kind: StepKind;
-  tool_id: string | null;
-  chamber: string | null;
-  recipe: string | null;
-  clean_id: string | null;
-  location_id: string | null;
-  carrier: CarrierState;
-  orientation: FaceOrientation;
-  start_ms: number;
-  end_ms: number | null;
-  reclean_count: number;
-}
+/** A lot's ledger step as the loader reads it (the stored row without its import). */
+export type LedgerStepRow = Omit<LedgerRow, 'import_id'>;
 
 function tableExists(db: Db, name: string): boolean {
   return Boolean(db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = ?").get(name));
@@ -49,14 +21,14 @@ export function readPairRow(db: Db, pairId: string): PairRow | null {
 }
 
 /** A lot's ledger steps in time order (then by id). */
-export function readLedgerRows(db: Db, lotId: string): LedgerRow[] {
+export function readLedgerRows(db: Db, lotId: string): LedgerStepRow[] {
   return db
     .prepare(
       `SELECT id, wafer_id, step, kind, tool_id, chamber, recipe, clean_id, location_id, carrier, orientation,
               start_ms, end_ms, reclean_count
          FROM ledger_steps WHERE lot_id = ? ORDER BY start_ms, id`,
     )
-    .all(lotId) as LedgerRow[];
+    .all(lotId) as LedgerStepRow[];
 }
 
 /** A lot's pairs in id order (the order of assessment). */

@@ -45,7 +45,8 @@ export interface LedgerStep {
   importId: number;
 }
 
-interface Row {
+/** A row of `ledger_steps` as stored. */
+export interface LedgerRow {
   id: number;
   wafer_id: string | null;
   step: string;
@@ -74,7 +75,7 @@ export function readLedger(db: Db, waferId: string): LedgerStep[] {
         WHERE l.wafer_id = w.id OR (l.wafer_id IS NULL AND l.lot_id = w.lot_id)
         ORDER BY l.start_ms, l.id`,
     )
-    .all(waferId) as Row[];
+    .all(waferId) as LedgerRow[];
   return rows.map((r, seq) => ({
     seq,
     step: r.step,
@@ -143,7 +144,7 @@ export function ledgerWriter(db: Db): LedgerWriter {
   return {
     add: (s) => {
       const old = find.get(s.lotId, s.waferId ?? '', s.step, s.startMs) as
-        | (Row & { line: number })
+        | (LedgerRow & { line: number })
         | undefined;
       if (old) {
         const same =

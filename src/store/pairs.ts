@@ -22,7 +22,8 @@ export interface StoredPair {
   importId: number;
 }
 
-interface Row {
+/** A row of `pairs` as stored. */
+export interface PairRow {
   id: string;
   product_id: string;
   lot_id: string;
@@ -37,7 +38,7 @@ interface Row {
   import_id: number;
 }
 
-function pairOf(r: Row): StoredPair {
+function pairOf(r: PairRow): StoredPair {
   return {
     pairId: r.id,
     productId: r.product_id,
@@ -56,24 +57,24 @@ function pairOf(r: Row): StoredPair {
 
 /** A pair, or null. */
 export function readPair(db: Db, pairId: string): StoredPair | null {
-  const r = db.prepare('SELECT * FROM pairs WHERE id = ?').get(pairId) as Row | undefined;
+  const r = db.prepare('SELECT * FROM pairs WHERE id = ?').get(pairId) as PairRow | undefined;
   return r ? pairOf(r) : null;
 }
 
 /** The pairs of a lot, by id. */
 export function listPairsOfLot(db: Db, lotId: string): StoredPair[] {
-  return (db.prepare('SELECT * FROM pairs WHERE lot_id = ? ORDER BY id').all(lotId) as Row[]).map(pairOf);
+  return (db.prepare('SELECT * FROM pairs WHERE lot_id = ? ORDER BY id').all(lotId) as PairRow[]).map(pairOf);
 }
 
 /** The pair a wafer is in (as top or bottom), or null. */
 export function pairOfWafer(db: Db, waferId: string): StoredPair | null {
   const r = db
     .prepare('SELECT * FROM pairs WHERE top_wafer_id = ? OR bottom_wafer_id = ?')
-    .get(waferId, waferId) as Row | undefined;
+    .get(waferId, waferId) as PairRow | undefined;
   return r ? pairOf(r) : null;
 }
 
 /** Every pair, by lot then id. */
 export function listPairs(db: Db): StoredPair[] {
-  return (db.prepare('SELECT * FROM pairs ORDER BY lot_id, id').all() as Row[]).map(pairOf);
+  return (db.prepare('SELECT * FROM pairs ORDER BY lot_id, id').all() as PairRow[]).map(pairOf);
 }
