@@ -83,7 +83,9 @@ describe('the run-time targets', () => {
       /^10\.0 min \(run of 2026-12-03T10:00:00Z, load average 0\.50 \/ 0\.25 \/ 0\.13/,
     );
     expect(q).toMatchObject({ target: '< 2 min', met: true });
-    expect(q!.measured).toMatch(/^1\.5 min \(the latest complete run of that mode: run of 2026-12-03T09:00:00Z/);
+    expect(q!.measured).toMatch(
+      /^1\.5 min \(the latest complete run of that mode: run of 2026-12-03T09:00:00Z/,
+    );
   });
 
   it('counts a run at or over its bound as missed, and a mode without a whole run as missed', () => {
