@@ -112,45 +112,10 @@ export function refreshCounterHourly(db: Db, locationRowId: number, fromMs: numb
       const key = ((hour - h0) / HOUR_MS) * 4096 + room * 1024 + di;
       let a = accs.get(key);
       if (!a) {
-        a = {
-          diameterNm: d,
-          roomState: room,
-          hourMs: hour,
-          n: 0,
-          nUsable: 0,
-          countSum: 0,
-          volumeM3: 0,
-          concSum: 0,
-          maxPerM3: null,
-          minVolumeM3: null,
-          minDurationMs: null,
-          flags: 0,
-          nFault: 0,
-          nLowerBound: 0,
-          nSentinel: 0,
-          nZeroRun: 0,
-          nGap: 0,
-        };
+        a = newAcc(d, room, hour);
         accs.set(key, a);
       }
-      a.n++;
-      a.flags |= flags;
-      if (flags & 1) a.nFault++;
-      if (flags & 2) a.nLowerBound++;
-      if (flags & 4) a.nSentinel++;
-      if (flags & 8) a.nZeroRun++;
-      if (flags & 16) a.nGap++;
-      if (usable) {
-        const c = ge[i]!;
-        a.nUsable++;
-        a.countSum += c;
-        a.volumeM3 += vol;
-        const conc = c / vol;
-        a.concSum += conc;
-        if (a.maxPerM3 === null || conc > a.maxPerM3) a.maxPerM3 = conc;
-        if (a.minVolumeM3 === null || vol < a.minVolumeM3) a.minVolumeM3 = vol;
-        if (a.minDurationMs === null || dur < a.minDurationMs) a.minDurationMs = dur;
-      }
+      addSample(a, flags, usable, ge[i]!, vol, dur);
     }
   }
   db.prepare('DELETE FROM counter_hourly WHERE location = ? AND hour_ms >= ? AND hour_ms < ?').run(
@@ -259,24 +224,7 @@ export class HourlyAccumulator {
     const list = cur.list;
     for (let i = 0; i < list.length; i++) {
       const a = list[i]!;
-      a.n++;
-      a.flags |= flags;
-      if (flags & 1) a.nFault++;
-      if (flags & 2) a.nLowerBound++;
-      if (flags & 4) a.nSentinel++;
-      if (flags & 8) a.nZeroRun++;
-      if (flags & 16) a.nGap++;
-      if (usable) {
-        const c = ge[i]!;
-        a.nUsable++;
-        a.countSum += c;
-        a.volumeM3 += vol;
-        const conc = c / vol;
-        a.concSum += conc;
-        if (a.maxPerM3 === null || conc > a.maxPerM3) a.maxPerM3 = conc;
-        if (a.minVolumeM3 === null || vol < a.minVolumeM3) a.minVolumeM3 = vol;
-        if (a.minDurationMs === null || dur < a.minDurationMs) a.minDurationMs = dur;
-      }
+      addSample(a, flags, usable, ge[i]!, vol, dur);
     }
     if (this.accs.size >= FLUSH_AT) this.flush();
   }
@@ -331,6 +279,29 @@ export class HourlyAccumulator {
       for (const [from, to] of spans) refreshCounterHourly(this.db, loc, from, to);
     this.changedSpans.clear();
   }
+}
+
+/**
+ * Adds one sample's channel to an hour's running sums: every sample counts and its flags are noted;
+ * a usable one adds its count `c`, its volume `vol` (m³), its concentration and its duration `dur` (ms).
+ */
+function addSample(a: Acc, flags: number, usable: boolean, c: number, vol: number, dur: number): void {
+  a.n++;
+  a.flags |= flags;
+  if (flags & 1) a.nFault++;
+  if (flags & 2) a.nLowerBound++;
+  if (flags & 4) a.nSentinel++;
+  if (flags & 8) a.nZeroRun++;
+  if (flags & 16) a.nGap++;
+  if (!usable) return;
+  a.nUsable++;
+  a.countSum += c;
+  a.volumeM3 += vol;
+  const conc = c / vol;
+  a.concSum += conc;
+  if (a.maxPerM3 === null || conc > a.maxPerM3) a.maxPerM3 = conc;
+  if (a.minVolumeM3 === null || vol < a.minVolumeM3) a.minVolumeM3 = vol;
+  if (a.minDurationMs === null || dur < a.minDurationMs) a.minDurationMs = dur;
 }
 
 function newAcc(diameterNm: number, roomState: number, hourMs: number): Acc {
