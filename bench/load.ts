@@ -27,15 +27,16 @@
  * Targets (issue 17 / issue 14): p99 < 200 ms, zero errors and non-2xx answers, throughput
  * ≥ 0.5 × /healthz's, memory steady (last sample ≤ 1.25 × the first after warm-up).
  */
-import { type ChildProcess, spawn } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { type ChildProcess, fork, spawn } from 'node:child_process';
+import { closeSync, mkdtempSync, openSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import autocannon from 'autocannon';
+import type autocannon from 'autocannon';
 import { openDataDir } from '../src/store/db.ts';
 import { createApp } from '../src/web/app.ts';
 import { type BenchConfig, defaultConfig, fmt, type Section } from './common.ts';
+import type { ClientAnswer, ClientRun } from './load-client.ts';
 
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..');
 const PASSWORD = 'bench-load-password-2026';
@@ -82,6 +83,19 @@ export interface LoadResult {
    * JSON assessment (an API token) at the same connections; the server's RSS after each round.
    */
   soak: { rounds: number; requestsPerRound: number; errors: number; rssMb: number[]; steady: boolean };
+  /**
+   * One slow request must not stall the others: /healthz at the same connections while the lots'
+   * queue is computed afresh again and again (each at a minute not assessed before, so nothing is
+   * kept for it), its p99 and how many such renders ran meanwhile, with their median time.
+   */
+  stall: {
+    requests: number;
+    p50Ms: number;
+    p99Ms: number;
+    errors: number;
+    renders: number;
+    renderMs: number;
+  };
   loadAvg: number[];
 }
 
@@ -101,40 +115,47 @@ function refuseNonLoopback(host: string): void {
     throw new Error(`bench/load.ts sends load to this machine only; host ${host} refused`);
 }
 
-/** Starts the server child; resolves with its URL once it prints the address line. */
+/**
+ * Starts the server child; resolves with its URL once it has written the address line. Its
+ * standard output (the request log, a line per request) goes to a file in the data directory, as a
+ * deployment's log does: a pipe to this process would block the server whenever the pipe is full
+ * (Node writes to pipes synchronously on Linux) and this process has not yet read it.
+ */
 function startServer(dataDir: string, host: string): Promise<{ child: ChildProcess; url: string }> {
+  const logPath = join(dataDir, 'server.log');
+  const logFd = openSync(logPath, 'w');
   const child = spawn(
     process.execPath,
     ['--import', 'tsx', 'src/cli/main.ts', 'serve', '--port', '0', '--host', host, '--data', dataDir],
     {
       cwd: ROOT,
       env: { ...process.env, VOIDCAST_ADMIN_PASSWORD: PASSWORD, VOIDCAST_OPEN: '', PORT: '' },
-      stdio: ['ignore', 'pipe', 'pipe'],
+      stdio: ['ignore', logFd, 'pipe'],
     },
   );
+  closeSync(logFd);
   return new Promise((resolve, reject) => {
-    let out = '';
     let err = '';
+    const started = () => readFileSync(logPath, 'utf8').slice(0, 100_000);
+    const finish = (f: () => void) => {
+      clearTimeout(timer);
+      clearInterval(poll);
+      f();
+    };
     const timer = setTimeout(
-      () => reject(new Error(`server did not start in 180 s:\n${out}\n${err}`)),
+      () => finish(() => reject(new Error(`server did not start in 180 s:\n${started()}\n${err}`))),
       180_000,
     );
+    const poll = setInterval(() => {
+      const m = /running at (http:\/\/\S+?)\/?\s/.exec(started());
+      if (m) finish(() => resolve({ child, url: m[1]! }));
+    }, 100);
     child.stderr!.on('data', (d) => {
       err += String(d);
     });
-    child.stdout!.on('data', (d) => {
-      // The request log goes on growing under load: keep only what is needed to find the address.
-      if (out.length < 100_000) out += String(d);
-      const m = /running at (http:\/\/\S+?)\/?\s/.exec(out);
-      if (m) {
-        clearTimeout(timer);
-        resolve({ child, url: m[1]! });
-      }
-    });
-    child.once('exit', (code) => {
-      clearTimeout(timer);
-      reject(new Error(`server exited (${code}):\n${out}\n${err}`));
-    });
+    child.once('exit', (code) =>
+      finish(() => reject(new Error(`server exited (${code}):\n${started()}\n${err}`))),
+    );
   });
 }
 
@@ -220,29 +241,47 @@ function slope(ts: number[], ys: number[]): number {
 }
 
 /**
- * One autocannon run bounded by `opts.amount` requests and `seconds` seconds, whichever comes
- * first. Its own duration is in whole sample intervals: the rate is taken from the wall time of
- * the first request to the last answer instead.
+ * The load client: bench/load-client.ts in a child process of its own, one autocannon run per
+ * message, so that the bench process's own heap and work do not show in the latencies.
  */
-function cannon(
-  opts: autocannon.Options,
-  seconds: number,
-): Promise<{ res: autocannon.Result; answers: number; wallS: number }> {
-  return new Promise((resolve, reject) => {
-    const t0 = performance.now();
-    let last = t0;
-    let answers = 0;
-    const inst = autocannon({ sampleInt: 100, ...opts }, (err, res) => {
-      clearTimeout(timer);
-      if (err) reject(err);
-      else resolve({ res, answers, wallS: Math.max(1e-3, (last - t0) / 1000) });
-    });
-    inst.on('response', () => {
-      answers++;
-      last = performance.now();
-    });
-    const timer = setTimeout(() => inst.stop(), seconds * 1000);
+function startClient(): {
+  cannon: (
+    opts: autocannon.Options,
+    seconds: number,
+  ) => Promise<{ res: autocannon.Result; answers: number; wallS: number }>;
+  stop: () => Promise<void>;
+} {
+  const child = fork(join(ROOT, 'bench', 'load-client.ts'), [], {
+    execArgv: ['--import', 'tsx'],
+    stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
   });
+  const waiting = new Map<number, { resolve: (a: ClientAnswer) => void; reject: (e: Error) => void }>();
+  let next = 0;
+  child.on('message', (a: ClientAnswer) => {
+    waiting.get(a.id)?.resolve(a);
+    waiting.delete(a.id);
+  });
+  child.once('exit', (code) => {
+    for (const w of waiting.values()) w.reject(new Error(`load client exited (${code})`));
+    waiting.clear();
+  });
+  return {
+    cannon: async (opts, seconds) => {
+      const id = next++;
+      const a = await new Promise<ClientAnswer>((resolve, reject) => {
+        waiting.set(id, { resolve, reject });
+        child.send({ id, opts, seconds } satisfies ClientRun);
+      });
+      if ('error' in a) throw new Error(`load client: ${a.error}`);
+      return a;
+    },
+    stop: async () => {
+      if (child.exitCode !== null) return;
+      const done = new Promise((r) => child.once('exit', r));
+      child.disconnect();
+      await done;
+    },
+  };
 }
 
 /** The GET routes of the app, from its own route table (src/web/app.ts ROUTES). */
@@ -334,6 +373,8 @@ export async function runLoad(o: Opts): Promise<LoadResult> {
   refuseNonLoopback(o.host);
   const dataDir = mkdtempSync(join(tmpdir(), 'voidcast-bench-load-'));
   let child: ChildProcess | null = null;
+  const client = startClient();
+  const { cannon } = client;
   const samples: { t: number; mb: number }[] = [];
   let sampler: NodeJS.Timeout | null = null;
   try {
@@ -480,6 +521,39 @@ export async function runLoad(o: Opts): Promise<LoadResult> {
     o.log(
       `soak (lot page + lot API, ${rounds} rounds of ${2 * o.requests} requests): RSS ${soakRss.map((x) => x.toFixed(0)).join(' → ')} MB, errors ${soakErrors}, ${soak.steady ? 'steady' : 'NOT steady'}`,
     );
+    // Stall: /healthz under load while cold renders of the lots' queue run one after another.
+    let stopRenders = false;
+    const renderMs: number[] = [];
+    const renders = (async () => {
+      for (let k = 1; !stopRenders; k++) {
+        const asOf = new Date(Math.floor(Date.now() / 60_000) * 60_000 - k * 60_000).toISOString();
+        const t = performance.now();
+        await (
+          await fetch(`${url}/lots?asOf=${encodeURIComponent(asOf)}`, { headers: { cookie } })
+        ).arrayBuffer();
+        renderMs.push(performance.now() - t);
+      }
+    })();
+    // the first render under way before the load starts
+    await new Promise((r) => setTimeout(r, 50));
+    const { res: st, answers: stAnswers } = await cannon(
+      // bounded by time (the renders must have time to run), not by the route's request count
+      { url: `${url}/healthz`, connections: o.connections, amount: 10 * o.requests, timeout: 60 },
+      o.seconds,
+    );
+    stopRenders = true;
+    await renders;
+    const stall = {
+      requests: stAnswers,
+      p50Ms: st.latency.p50,
+      p99Ms: st.latency.p99,
+      errors: st.errors + st.timeouts + st.non2xx,
+      renders: renderMs.length,
+      renderMs: [...renderMs].sort((a, b) => a - b)[Math.floor(renderMs.length / 2)] ?? 0,
+    };
+    o.log(
+      `stall: /healthz while ${stall.renders} cold renders of /lots ran (median ${stall.renderMs.toFixed(0)} ms each): p50 ${stall.p50Ms} ms, p99 ${stall.p99Ms} ms, errors ${stall.errors}`,
+    );
     clearInterval(sampler);
     sampler = null;
     // Memory after the first route's warm-up, to the end.
@@ -515,10 +589,12 @@ export async function runLoad(o: Opts): Promise<LoadResult> {
       skipped,
       rss,
       soak,
+      stall,
       loadAvg: loadavg(),
     };
   } finally {
     if (sampler) clearInterval(sampler);
+    await client.stop();
     if (child && child.exitCode === null) {
       const done = new Promise((r) => child!.once('exit', r));
       child.kill('SIGTERM');
@@ -566,6 +642,8 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
     '',
     `Soak (issue 14): ${r.soak.rounds} rounds of ${r.soak.requestsPerRound} requests (the lot page with one session, the lot's JSON assessment with a token) at ${r.connections} connections; server RSS after each round ${r.soak.rssMb.map((x) => fmt(x)).join(' → ')} MB; errors and non-2xx ${r.soak.errors}.`,
     '',
+    `Stall: \`/healthz\` at ${r.connections} connections while the lots' queue (\`/lots?asOf=\`, each time a minute not assessed before, so nothing is kept for it) is computed afresh, one render after another: p50 ${r.stall.p50Ms} ms, p99 ${r.stall.p99Ms} ms over ${r.stall.requests} requests; ${r.stall.renders} renders meanwhile, median ${fmt(r.stall.renderMs)} ms each; errors and non-2xx ${r.stall.errors}.`,
+    '',
     `Server memory (RSS, sampled every 250 ms over the whole load): first ${fmt(r.rss.firstMb)} MB, at one third ${fmt(r.rss.thirdMb)} MB, last ${fmt(r.rss.lastMb)} MB (last/first ${fmt(r.rss.lastMb / Math.max(1, r.rss.firstMb))}), peak ${fmt(r.rss.peakMb)} MB, least-squares slope ${fmt(r.rss.slopeMbPerMin)} MB/min over ${r.rss.samples} samples.`,
   ].join('\n');
   const pages = r.routes.filter((x) => x.kind !== 'baseline' && !x.route.startsWith('/assets/'));
@@ -591,6 +669,16 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
         measured: `${pages.length - missed.length} of ${pages.length} routes met${missed.length ? `; missed: ${missed.map((x) => `\`${x.route}\``).join(', ')}` : ''}`,
         met: missed.length === 0,
         why: missed.length ? missed.map((x) => `\`${x.route}\`: ${x.why}`).join('; ') : undefined,
+      },
+      {
+        name: 'one slow request does not stall the others: /healthz while the lots’ queue is computed afresh, again and again',
+        target: `p99 < ${P99_TARGET_MS} ms, zero errors, at least one render in the time`,
+        measured: `p99 ${r.stall.p99Ms} ms (p50 ${r.stall.p50Ms} ms) over ${r.stall.requests} requests, while ${r.stall.renders} renders of \`/lots\` at new times ran (median ${fmt(r.stall.renderMs)} ms each); errors ${r.stall.errors}`,
+        met: r.stall.p99Ms < P99_TARGET_MS && r.stall.errors === 0 && r.stall.renders > 0,
+        why:
+          r.stall.p99Ms < P99_TARGET_MS
+            ? undefined
+            : 'the renders hold up the event loop or share its cores with the load',
       },
       {
         name: 'errors under load (issue 14)',

@@ -10,9 +10,9 @@
  * its answer, and never stays open for an idle worker). An in-memory database, a small lot or a
  * failing worker fall back to the single-thread path.
  */
-import { isMainThread, parentPort, type Worker, workerData } from 'node:worker_threads';
+import { isMainThread, workerData } from 'node:worker_threads';
 import { type Db, openDatabase } from '../store/db.ts';
-import { databaseFile, startModuleWorker } from '../store/worker-thread.ts';
+import { databaseFile, JobThread, serveJobs } from '../store/worker-thread.ts';
 import { assessLotFromDb, assessLotPairsFromDb, lotPairIds, readProductInput } from './loader.ts';
 import { summariseLot } from './lot.ts';
 import type { ParameterSet } from './parameter-set-types.ts';
@@ -24,7 +24,6 @@ import type { AssessOptions, LotAssessment, PairAssessment } from './types.ts';
 const MIN_PAIRS_FOR_WORKER = 4;
 
 interface Job {
-  id: number;
   dbFile: string;
   lotId: string;
   pairIds: string[];
@@ -33,59 +32,7 @@ interface Job {
   set: ParameterSet | null;
 }
 
-type Reply = { id: number; ok: true; pairs: PairAssessment[] } | { id: number; ok: false; message: string };
-
-class AssessWorker {
-  private worker: Worker | null = null;
-  private next = 1;
-  private readonly pending = new Map<
-    number,
-    { resolve: (p: PairAssessment[]) => void; reject: (e: Error) => void }
-  >();
-
-  private start(): Worker {
-    const w = startModuleWorker(import.meta.url, { voidcastAssessWorker: true });
-    w.on('message', (m: Reply) => {
-      const p = this.pending.get(m.id);
-      if (!p) return;
-      this.pending.delete(m.id);
-      if (this.pending.size === 0) w.unref(); // idle: it must not hold the process open
-      if (m.ok) p.resolve(m.pairs);
-      else p.reject(new Error(m.message));
-    });
-    const fail = (e: Error) => {
-      for (const p of this.pending.values()) p.reject(e);
-      this.pending.clear();
-      this.worker = null;
-    };
-    w.on('error', fail);
-    w.on('exit', (code) => fail(new Error(`the assessment worker exited with code ${code}`)));
-    // Unref'd while idle, after the listeners (adding a 'message' listener refs it again); run()
-    // refs it while a job is out, or a process awaiting the answer (the CLI) could end without it.
-    w.unref();
-    this.worker = w;
-    return w;
-  }
-
-  run(job: Omit<Job, 'id'>): Promise<PairAssessment[]> {
-    const w = this.worker ?? this.start();
-    const id = this.next++;
-    return new Promise((resolve, reject) => {
-      this.pending.set(id, { resolve, reject });
-      w.ref();
-      w.postMessage({ ...job, id } satisfies Job);
-    });
-  }
-
-  /** Ends the worker (tests; a server shutting down). */
-  async stop(): Promise<void> {
-    const w = this.worker;
-    this.worker = null;
-    if (w) await w.terminate();
-  }
-}
-
-let shared: AssessWorker | null = null;
+let shared: JobThread<Job, PairAssessment[]> | null = null;
 
 /** Stops the shared worker thread, if one was started. */
 export async function stopAssessWorker(): Promise<void> {
@@ -113,7 +60,7 @@ export async function assessLotFromDbParallel(
   const cut = Math.floor(ids.length / 2);
   const mine = ids.slice(0, cut);
   const theirs = ids.slice(cut);
-  shared ??= new AssessWorker();
+  shared ??= new JobThread<Job, PairAssessment[]>(import.meta.url, { voidcastAssessWorker: true });
   const remote = shared.run({ dbFile: file, lotId, pairIds: theirs, opts, set });
   // If the worker fails, this thread assesses its half too; the answer is the same, only slower.
   remote.catch(() => {});
@@ -138,24 +85,14 @@ export async function assessLotFromDbParallel(
 
 // ── the worker thread ──────────────────────────────────────────────────────────────────────────
 function workerMain(): void {
-  const port = parentPort!;
   const connections = new Map<string, Db>();
-  port.on('message', (job: Job) => {
-    try {
-      let db = connections.get(job.dbFile);
-      if (!db) {
-        db = openDatabase(job.dbFile);
-        connections.set(job.dbFile, db);
-      }
-      const r = assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts, job.set);
-      port.postMessage({ id: job.id, ok: true, pairs: r?.pairs ?? [] } satisfies Reply);
-    } catch (e) {
-      port.postMessage({
-        id: job.id,
-        ok: false,
-        message: e instanceof Error ? e.message : String(e),
-      } satisfies Reply);
+  serveJobs((job: Job) => {
+    let db = connections.get(job.dbFile);
+    if (!db) {
+      db = openDatabase(job.dbFile);
+      connections.set(job.dbFile, db);
     }
+    return assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts, job.set)?.pairs ?? [];
   });
 }
 

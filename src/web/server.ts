@@ -1,6 +1,8 @@
 /** Starts the HTTP server on the loopback interface (by default) for a data directory. */
+
 import type { AddressInfo } from 'node:net';
 import { type ServerType, serve } from '@hono/node-server';
+import { stopViewThread, warmViewThread } from '../engine/view-thread.ts';
 import { type Db, openDataDir } from '../store/db.ts';
 import { createApp } from './app.ts';
 import { ensureFirstAdmin } from './auth/bootstrap.ts';
@@ -69,6 +71,7 @@ export async function startServer(opts: ServerOptions): Promise<RunningServer> {
     auth: mode === 'accounts' ? { mode, sessionSecret: sessionSecret(opts.dataDir) } : { mode },
   };
   const app = createApp(ctx);
+  warmViewThread(db);
   const server: ServerType = await new Promise((resolve, reject) => {
     const s = serve({ fetch: app.fetch, hostname: opts.host, port: opts.port }, () => resolve(s));
     s.once('error', reject);
@@ -85,6 +88,7 @@ export async function startServer(opts: ServerOptions): Promise<RunningServer> {
       new Promise<void>((resolve) => {
         server.close(async () => {
           await drop?.stop();
+          await stopViewThread();
           db.close();
           resolve();
         });

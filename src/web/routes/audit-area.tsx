@@ -28,14 +28,14 @@ interface Made {
   problems: string[];
 }
 
-function make(
+async function make(
   ctx: AppContext,
   c: Context,
   get: (k: string) => string | undefined = (k) => c.req.query(k),
-): Made {
+): Promise<Made> {
   const area = pathArea(ctx, c);
   const q = auditQuery(ctx, get, area);
-  const r = runAreaAudit(ctx, area, q.period, q.occupancy, q.edition, q.limits);
+  const r = await runAreaAudit(ctx, area, q.period, q.occupancy, q.edition, q.limits);
   const a = r.audit;
   return {
     area,
@@ -104,8 +104,8 @@ function returnQuery(body: Record<string, unknown>): string {
 }
 
 export function register(app: Hono, ctx: AppContext): void {
-  app.get('/areas/:id/audit', (c) => {
-    const m = make(ctx, c);
+  app.get('/areas/:id/audit', async (c) => {
+    const m = await make(ctx, c);
     const stored = c.req.query('stored');
     const flash =
       stored === 'levels'
@@ -119,8 +119,8 @@ export function register(app: Hono, ctx: AppContext): void {
   // The report states when it was made (to the minute): kept per real minute, even under a frozen
   // assessment clock (src/web/page-cache.ts).
   keptKeyPart(ctx, '/areas/:id/audit/report', () => String(Math.floor(Date.now() / 60_000)));
-  app.get('/areas/:id/audit/report', (c) => {
-    const m = make(ctx, c);
+  app.get('/areas/:id/audit/report', async (c) => {
+    const m = await make(ctx, c);
     return renderPage(c, ctx, {
       title: `Audit report ${m.area.name}`,
       active: '/areas',
@@ -136,9 +136,9 @@ export function register(app: Hono, ctx: AppContext): void {
     });
   });
 
-  app.get('/areas/:id/audit/tables/:table', (c) => {
+  app.get('/areas/:id/audit/tables/:table', async (c) => {
     const format = queryFormat(c);
-    const m = make(ctx, c);
+    const m = await make(ctx, c);
     if (!m.audit) return c.text(`This area cannot be audited: ${m.problems.join(' ')}\n`, 422);
     const t = pickTable(m.tables, c.req.param('table') ?? '');
     const stem = `audit-${m.area.id}-${t.id}-${fileDate(m.period.fromMs)}-${fileDate(m.period.toMs)}`;
@@ -173,7 +173,7 @@ export function register(app: Hono, ctx: AppContext): void {
       return page(
         ctx,
         c,
-        make(ctx, c, (k) => p.get(k) ?? undefined),
+        await make(ctx, c, (k) => p.get(k) ?? undefined),
         { kind: 'error', text: err.message },
         err.status,
       );
@@ -201,7 +201,7 @@ export function register(app: Hono, ctx: AppContext): void {
       return page(
         ctx,
         c,
-        make(ctx, c, (k) => p.get(k) ?? undefined),
+        await make(ctx, c, (k) => p.get(k) ?? undefined),
         { kind: 'error', text: err.message },
         err.status,
       );

@@ -8,11 +8,8 @@ import type { AuditView } from '../../../views/pages/audit-tables.ts';
 import {
   AuditInputError,
   acknowledgeExcursion,
-  chamberHistoryFromDb,
   deriveAndStoreLevels,
-  keptAreaAudit,
   LEVEL_METHODS,
-  lineParetoFromDb,
   OCCUPANCY_STATES,
 } from '../../engine/audit/index.ts';
 import type {
@@ -23,23 +20,25 @@ import type {
   LineParetoEntry,
   OccupancySelection,
 } from '../../engine/audit/types.ts';
-import { installationClockMs } from '../../store/settings.ts';
+import { onViewThread, pageClockMs } from '../../engine/view-thread.ts';
 import { actorName } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue, positiveNumberValue } from '../params.ts';
 import type { AreaRef } from './audit-params.ts';
 
 /** The audit of an area (src/engine/audit/audit.ts), or null with the engine's reason when it cannot be made. */
-export function runAreaAudit(
+export async function runAreaAudit(
   ctx: AppContext,
   area: AreaRef,
   period: AuditPeriod,
   occupancy: OccupancySelection,
   edition: 2015 | 1999,
   chartBaseline: AuditPeriod | null = null,
-): { audit: AuditView | null; refusal: string | null } {
+): Promise<{ audit: AuditView | null; refusal: string | null }> {
   try {
-    const audit = keptAreaAudit(ctx.db, area.id, { period, occupancy, edition, chartBaseline });
+    // on the pages' thread, at the pages' minute (src/engine/view-thread.ts)
+    const opts = { period, occupancy, edition, chartBaseline, asOfMs: pageClockMs(ctx.db) };
+    const audit = await onViewThread(ctx.db, 'areaAudit', { areaId: area.id, opts });
     return {
       audit,
       refusal: null,
@@ -155,22 +154,23 @@ export function acknowledgeFromForm(
  * The line view over a period: the Pareto of expected voids across the lots assessed in it, each
  * tool chamber's passes in it (chambers without a pass left out), and the engine's notes.
  */
-export function runLineView(
+export async function runLineView(
   ctx: AppContext,
   period: AuditPeriod,
-): {
+): Promise<{
   pareto: LineParetoEntry[];
   particleVoids: number;
   unexplainedVoids: number;
   histories: ChamberHistory[];
   lots: string[];
   problems: string[];
-} {
+}> {
   try {
-    // At the minute, as the other pages assess (and as the page is kept: src/web/page-cache.ts).
-    const asOfMs = installationClockMs(ctx.db) ?? Math.floor(Date.now() / 60_000) * 60_000;
-    const p = lineParetoFromDb(ctx.db, period, asOfMs);
-    const histories = chamberHistoryFromDb(ctx.db, undefined, period).filter((h) => h.points.length > 0);
+    // At the minute, as the other pages assess (and as the page is kept: src/web/page-cache.ts),
+    // on the pages' thread (src/engine/view-thread.ts).
+    const v = await onViewThread(ctx.db, 'line', { period, asOfMs: pageClockMs(ctx.db) });
+    const p = v.pareto;
+    const histories = v.histories.filter((h) => h.points.length > 0);
     const problems = [...p.notes];
     if (p.lots.length === 0)
       problems.push('No lot with pairs has a ledger step in this period: nothing to assess.');

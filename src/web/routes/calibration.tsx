@@ -8,46 +8,21 @@
 import type { Context, Hono } from 'hono';
 import { CalibrationPage } from '../../../views/pages/calibration.tsx';
 import { VoidOverlayPanel } from '../../../views/partials/void-overlay-panel.tsx';
-import { calibrateWithBacktest } from '../../engine/learn/backtest.ts';
-import type {
-  BacktestReport,
-  CalibrationReport,
-  PairCalibration,
-} from '../../engine/learn/calibration-types.ts';
-import { loadInspectedLots } from '../../engine/learn/loader.ts';
+import type { CalibrationReport, PairCalibration } from '../../engine/learn/calibration-types.ts';
+import type { CalibrationView } from '../../engine/learn/calibration-view.ts';
 import { proposeLineParameters } from '../../engine/learn/propose.ts';
 import { EngineInputError } from '../../engine/pair.ts';
 import type { ProposeOutcome } from '../../engine/parameter-sets.ts';
+import { onViewThread } from '../../engine/view-thread.ts';
 import { audit } from '../auth/audit.ts';
 import { accountOf } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { csrfToken } from '../csrf.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
-import { memoised } from './lots.tsx';
 
-interface Calibrated {
-  calibration: CalibrationReport;
-  backtest: BacktestReport;
-  waferDiameterM: number;
-  edgeExclusionM: number;
-}
-
-function calibrated(ctx: AppContext): Calibrated | { problem: string } {
-  return memoised(ctx, 'calibration', () => {
-    try {
-      const { lots } = loadInspectedLots(ctx.db);
-      const r = calibrateWithBacktest(lots);
-      const product = lots[0] ? Object.values(lots[0].line.products)[0] : undefined;
-      return {
-        ...r,
-        waferDiameterM: product?.waferDiameterM ?? 0.3,
-        edgeExclusionM: product?.edgeExclusionM ?? 0,
-      };
-    } catch (e) {
-      if (e instanceof EngineInputError) return { problem: e.message };
-      throw e;
-    }
-  });
+/** The calibration for the pages, on the pages' thread (src/engine/view-thread.ts), kept until the data change. */
+function calibrated(ctx: AppContext): Promise<CalibrationView | { problem: string }> {
+  return onViewThread(ctx.db, 'calibration', {});
 }
 
 function token(c: Context): string {
@@ -66,13 +41,13 @@ function pickPair(r: CalibrationReport, asked: string | undefined): PairCalibrat
   return best;
 }
 
-function page(
+async function page(
   c: Context,
   ctx: AppContext,
   extra: { error?: string; name?: string; label?: string } = {},
   status: 200 | 400 | 422 = 200,
-): Response {
-  const r = calibrated(ctx);
+): Promise<Response> {
+  const r = await calibrated(ctx);
   if ('problem' in r)
     return renderPage(
       c,
@@ -116,11 +91,11 @@ function page(
 export function register(app: Hono, ctx: AppContext): void {
   app.get('/calibration', (c) => page(c, ctx));
 
-  app.get('/calibration/map', (c) => {
+  app.get('/calibration/map', async (c) => {
     const id = c.req.query('pair') ?? '';
     if (!isFragmentRequest(c))
       return c.redirect(`/calibration?pair=${encodeURIComponent(id)}#calibration-map`, 303);
-    const r = calibrated(ctx);
+    const r = await calibrated(ctx);
     const pair = 'problem' in r ? null : r.calibration.pairs.find((p) => p.pairId === id);
     if (!pair || 'problem' in r)
       return c.html(`<p class="vc-error">There is no inspected pair with that id.</p>`, 404);

@@ -13,20 +13,20 @@ import { fileDate, pickTable, queryFormat, sendTable } from './audit-export.ts';
 import { minuteIso, periodOf } from './audit-params.ts';
 import { runLineView } from './audit-run.ts';
 
-function make(ctx: AppContext, c: Context) {
+async function make(ctx: AppContext, c: Context) {
   const period = periodOf(
     c.req.query('from'),
     c.req.query('to'),
     () => Math.ceil((installationClockMs(ctx.db) ?? Date.now()) / 3_600_000) * 3_600_000,
   );
-  const view = runLineView(ctx, period);
+  const view = await runLineView(ctx, period);
   const query = { from: minuteIso(period.fromMs), to: minuteIso(period.toMs) };
   return { period, query, view, tables: lineTables(view.pareto, view.histories) };
 }
 
 export function register(app: Hono, ctx: AppContext): void {
-  app.get('/line', (c) => {
-    const m = make(ctx, c);
+  app.get('/line', async (c) => {
+    const m = await make(ctx, c);
     return renderPage(c, ctx, {
       title: 'Line view',
       active: '/line',
@@ -45,9 +45,9 @@ export function register(app: Hono, ctx: AppContext): void {
     });
   });
 
-  app.get('/line/tables/:table', (c) => {
+  app.get('/line/tables/:table', async (c) => {
     const format = queryFormat(c);
-    const m = make(ctx, c);
+    const m = await make(ctx, c);
     const t = pickTable(m.tables, c.req.param('table') ?? '');
     return sendTable(t, format, `line-${t.id}-${fileDate(m.period.fromMs)}-${fileDate(m.period.toMs)}`);
   });

@@ -8,10 +8,8 @@ import { type LotRow, LotsPage } from '../../../views/pages/lots.tsx';
 import { MessagePage } from '../../../views/pages/message.tsx';
 import { ParetoPanel } from '../../../views/partials/pareto-panel.tsx';
 import { keptResult } from '../../engine/cache.ts';
-import { loadLot } from '../../engine/loader.ts';
-import { assessLotInSession } from '../../engine/lot.ts';
-import { createSession, EngineInputError } from '../../engine/pair.ts';
-import type { LotAssessment } from '../../engine/types.ts';
+import { type LotView, NO_PAIRS } from '../../engine/lot-view.ts';
+import { onViewThread } from '../../engine/view-thread.ts';
 import { latestDisposition } from '../../store/dispositions.ts';
 import { listLots } from '../../store/lots.ts';
 import { getSetting } from '../../store/settings.ts';
@@ -55,54 +53,29 @@ export function memoised<T>(ctx: AppContext, key: string, compute: () => T): T {
   return keptResult(ctx.db, `page|${key}`, compute);
 }
 
-/** Why a lot without pairs has no call: it is not (yet) to be bonded. */
-const NO_PAIRS = 'no bond pairs: monitor or test wafers, or a lot whose pairs file is not imported yet';
-
-type LotForPage =
-  | { lot: LotAssessment; bonded: boolean; bondedAtMs: number | null }
-  | { problem: string }
-  | null;
-
-/** Lot assessment, or the reason there is none (unknown lot: null). */
+/**
+ * Lot assessment for the pages, or the reason there is none (unknown lot: null), computed on the
+ * pages' thread (src/engine/view-thread.ts) and kept until the data change.
+ */
 export function assessLotForPage(
   ctx: AppContext,
   lotId: string,
   asOfMs: number,
   detail: 'summary' | 'full' = 'summary',
-): LotForPage {
-  return memoised(ctx, `lot|${lotId}|${asOfMs}|${detail}`, () =>
-    assessLotUncached(ctx, lotId, asOfMs, detail),
-  );
-}
-
-function assessLotUncached(
-  ctx: AppContext,
-  lotId: string,
-  asOfMs: number,
-  detail: 'summary' | 'full',
-): LotForPage {
-  const loaded = loadLot(ctx.db, lotId, asOfMs);
-  if (!loaded) return null;
-  if (loaded.lot.pairs.length === 0) return { problem: NO_PAIRS };
-  try {
-    const lot = assessLotInSession(loaded.lot, createSession(loaded.line), { asOfMs, detail });
-    const times = loaded.lot.pairs.map((p) => p.bondTimeMs);
-    const bonded = times.every((t) => t !== null);
-    return { lot, bonded, bondedAtMs: bonded ? Math.max(...(times as number[])) : null };
-  } catch (e) {
-    if (e instanceof EngineInputError) return { problem: e.message };
-    throw e;
-  }
+): Promise<LotView> {
+  return onViewThread(ctx.db, 'lot', { lotId, asOfMs, detail });
 }
 
 export function register(app: Hono, ctx: AppContext): void {
-  app.get('/lots', (c) => {
+  app.get('/lots', async (c) => {
     const asOfMs = asOfFrom(c, ctx);
     const waiting: LotRow[] = [];
     const bonded: LotRow[] = [];
     const unpaired: LotRow[] = [];
-    for (const l of listLots(ctx.db)) {
-      const r = assessLotForPage(ctx, l.lotId, asOfMs);
+    const lots = listLots(ctx.db);
+    const views = await Promise.all(lots.map((l) => assessLotForPage(ctx, l.lotId, asOfMs)));
+    for (const [i, l] of lots.entries()) {
+      const r = views[i]!;
       if (!r) continue;
       if ('problem' in r) {
         // A lot without pairs has nothing to bond: not in the queue (e.g. the monitor lot).
@@ -156,9 +129,9 @@ export function register(app: Hono, ctx: AppContext): void {
     });
   });
 
-  app.get('/lots/:id', (c) => {
+  app.get('/lots/:id', async (c) => {
     const id = c.req.param('id');
-    const r = assessLotForPage(ctx, id, asOfFrom(c, ctx));
+    const r = await assessLotForPage(ctx, id, asOfFrom(c, ctx));
     if (!r) return notFound(c, ctx, `There is no lot ${id}.`);
     if ('problem' in r)
       return renderPage(c, ctx, {
@@ -177,12 +150,12 @@ export function register(app: Hono, ctx: AppContext): void {
     });
   });
 
-  app.get('/lots/:id/pareto', (c) => {
+  app.get('/lots/:id/pareto', async (c) => {
     const id = c.req.param('id');
     const by = queryParetoBy(c, 'by');
     if (!isFragmentRequest(c))
       return c.redirect(`/lots/${encodeURIComponent(id)}?pareto=${by}#pareto-panel`, 303);
-    const r = assessLotForPage(ctx, id, asOfFrom(c, ctx));
+    const r = await assessLotForPage(ctx, id, asOfFrom(c, ctx));
     if (!r || 'problem' in r) return c.html('<p class="vc-error">This lot cannot be assessed.</p>', 404);
     return renderFragment(
       c,
