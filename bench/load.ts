@@ -7,7 +7,8 @@
  *
  * 1. Starts `voidcast serve` as a child process on 127.0.0.1 (any other host is refused: this bench
  *    sends load to this machine only) with a fresh data directory (the demo line imported on first
- *    start, as a user's first start does) and VOIDCAST_ADMIN_PASSWORD for the first administrator.
+ *    start, as a user's first start does) and VOIDCAST_ADMIN_PASSWORD for the first administrator;
+ *    its request log goes to a file in that directory.
  * 2. Signs in once through the real /login form (CSRF cookie and field) and shares that session
  *    cookie among the connections of the page routes; makes an API token (scope read) through the
  *    real /account/tokens form for the JSON API routes (Authorization: Bearer).
@@ -15,13 +16,16 @@
  *    ROUTES) and fills their ids from the demo (a lot, its first pair, a calculator, an import, a
  *    parameter set, an area; a download's table). State-changing routes (POST) are not loaded; a GET route whose id does not
  *    exist in the demo is listed as skipped with the reason.
- * 4. For each route: autocannon (9.0.0) with `--connections` connections, bounded by
+ * 4. For each route: autocannon (9.0.0, in a client process of its own: bench/load-client.ts) with
+ *    `--connections` connections, bounded by
  *    `--requests` requests and `--seconds` seconds (whichever comes first), after a warm-up of
  *    one request per connection; /healthz first, as the baseline of throughput. Before that, the
  *    route's first request alone (its cold cost, "first request ms": a kept route renders then); a
  *    route whose first and second requests each take over a second is loaded with one request per
  *    connection only (none in quick mode).
- * 5. Samples the server's resident set size (/proc/<pid>/status VmRSS) every 250 ms over the whole
+ * 5. Soak (issue 14): rounds of the lot page and the lot's JSON assessment, the server's RSS after
+ *    each. Stall: /healthz under load while the lots' queue is computed afresh again and again.
+ * 6. Samples the server's resident set size (/proc/<pid>/status VmRSS) every 250 ms over the whole
  *    run and reports first, last, peak and the least-squares slope in MB per minute.
  *
  * Targets (issue 17 / issue 14): p99 < 200 ms, zero errors and non-2xx answers, throughput
