@@ -11,8 +11,8 @@
  * failing worker fall back to the single-thread path.
  */
 import { isMainThread, workerData } from 'node:worker_threads';
-import { type Db, openDatabase } from '../store/db.ts';
-import { databaseFile, JobThread, serveJobs } from '../store/worker-thread.ts';
+import type { Db } from '../store/db.ts';
+import { databaseFile, JobThread, serveJobs, threadConnection } from '../store/worker-thread.ts';
 import { assessLotFromDb, assessLotPairsFromDb, lotPairIds, readProductInput } from './loader.ts';
 import { summariseLot } from './lot.ts';
 import type { ParameterSet } from './parameter-set-types.ts';
@@ -85,13 +85,8 @@ export async function assessLotFromDbParallel(
 
 // ── the worker thread ──────────────────────────────────────────────────────────────────────────
 function workerMain(): void {
-  const connections = new Map<string, Db>();
   serveJobs((job: Job) => {
-    let db = connections.get(job.dbFile);
-    if (!db) {
-      db = openDatabase(job.dbFile);
-      connections.set(job.dbFile, db);
-    }
+    const db = threadConnection(job.dbFile);
     return assessLotPairsFromDb(db, job.lotId, job.pairIds, job.opts, job.set)?.pairs ?? [];
   });
 }

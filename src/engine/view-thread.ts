@@ -13,9 +13,15 @@
  * share: the job runs on the calling thread, with the same result (tested).
  */
 import { isMainThread, workerData } from 'node:worker_threads';
-import { type Db, openDatabase } from '../store/db.ts';
+import type { Db } from '../store/db.ts';
 import { installationClockMs } from '../store/settings.ts';
-import { databaseFile, JobThread, serveJobs, type ThreadError } from '../store/worker-thread.ts';
+import {
+  databaseFile,
+  JobThread,
+  serveJobs,
+  type ThreadError,
+  threadConnection,
+} from '../store/worker-thread.ts';
 import type { AuditOptions } from './audit/audit.ts';
 import { keptAreaAudit } from './audit/audit.ts';
 import { AuditInputError } from './audit/errors.ts';
@@ -104,13 +110,8 @@ export function pageClockMs(db: Db): number {
 
 // ── the thread ─────────────────────────────────────────────────────────────────────────────────
 if (!isMainThread && (workerData as { voidcastViewThread?: boolean } | null)?.voidcastViewThread === true) {
-  const connections = new Map<string, Db>();
   serveJobs((m: Message) => {
-    let db = connections.get(m.dbFile);
-    if (!db) {
-      db = openDatabase(m.dbFile);
-      connections.set(m.dbFile, db);
-    }
+    const db = threadConnection(m.dbFile);
     return runHere(db, m.job, m.args as never);
   });
 }

@@ -12,7 +12,7 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { parentPort, Worker } from 'node:worker_threads';
-import type { Db } from './db.ts';
+import { type Db, openDatabase } from './db.ts';
 
 const require = createRequire(import.meta.url);
 
@@ -148,4 +148,16 @@ export function serveJobs<Q, R>(handle: (job: Q) => R): void {
       port.postMessage({ id, ok: false, error: { name: 'Error', message: String(e) } } satisfies Reply<R>);
     }
   });
+}
+
+const connections = new Map<string, Db>();
+
+/** This thread's own connection to a data file: opened on first use, then kept for the thread's life. */
+export function threadConnection(file: string): Db {
+  let db = connections.get(file);
+  if (!db) {
+    db = openDatabase(file);
+    connections.set(file, db);
+  }
+  return db;
 }
