@@ -2,7 +2,8 @@
  * The pages' heavy engine work on a thread of its own, so that the web server's event loop goes on
  * answering other requests (kept pages, static files, /healthz) while a page is computed for the
  * first time after the data change: a lot's assessment for its page and the lots' queue, the
- * calibration with its backtest, an area's audit, the line view.
+ * calibration with its backtest, the adders and removal curves learned from the scans, an area's
+ * audit, the line view.
  *
  * Each job is an engine function of the database and plain arguments whose result is plain data
  * (structured-cloned back); the thread opens its own connection to the same file (WAL: it reads
@@ -29,6 +30,7 @@ import { chamberHistoryFromDb, lineParetoFromDb } from './audit/line-view.ts';
 import type { AuditPeriod } from './audit/types.ts';
 import { keptResult, keptResultAsync } from './cache.ts';
 import { calibrationViewFromDb } from './learn/calibration-view.ts';
+import { learnAddersFrom, learnDataFrom, learnRemovalFrom } from './learn/index.ts';
 import { lotViewFromDb } from './lot-view.ts';
 import { EngineInputError } from './pair.ts';
 
@@ -41,6 +43,11 @@ const JOBS = {
   calibration: (db: Db, _a: Record<string, never>) =>
     keptResult(db, 'view|calibration', () => calibrationViewFromDb(db)),
   areaAudit: (db: Db, a: { areaId: string; opts: AuditOptions }) => keptAreaAudit(db, a.areaId, a.opts),
+  learned: (db: Db, _a: Record<string, never>) =>
+    keptResult(db, 'view|learned', () => {
+      const data = learnDataFrom(db);
+      return { adders: learnAddersFrom(data), removal: learnRemovalFrom(data), cleans: data.cleans };
+    }),
   line: (db: Db, a: { period: AuditPeriod; asOfMs: number }) => ({
     pareto: lineParetoFromDb(db, a.period, a.asOfMs),
     histories: chamberHistoryFromDb(db, undefined, a.period),

@@ -46,7 +46,7 @@ describe('the pages’ thread', () => {
     rmSync(dir, { recursive: true, force: true });
   });
 
-  it('answers a lot, the lots, the calibration, an area’s audit and the line view as this thread would', async () => {
+  it('answers a lot, the lots, the calibration, the learned fits, an area’s audit and the line view as this thread would', async () => {
     const lots = listLots(db).map((l) => l.lotId);
     expect(lots.length).toBeGreaterThan(2);
     for (const lotId of lots)
@@ -57,6 +57,9 @@ describe('the pages’ thread', () => {
     // the calibration states when its fits were made: the two were made at different times
     expect(ownTimesOff(await onViewThread(db, 'calibration', {}))).toEqual(
       ownTimesOff(runHere(plain, 'calibration', {})),
+    );
+    expect(ownTimesOff(await onViewThread(db, 'learned', {}))).toEqual(
+      ownTimesOff(runHere(plain, 'learned', {})),
     );
     const period = { fromMs: asOfMs - 14 * 86_400_000, toMs: asOfMs };
     const line = { period, asOfMs };

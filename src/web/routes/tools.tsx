@@ -16,10 +16,10 @@
 import type { Context, Hono } from 'hono';
 import { type CleanView, type ToolRow, ToolsPage } from '../../../views/pages/tools.tsx';
 import { LearnedSection, type LearnedView } from '../../../views/partials/learned-tools.tsx';
-import { learnAddersFrom, learnDataFrom, learnRemovalFrom } from '../../engine/learn/index.ts';
 import { lineLabel, proposeLineParameters } from '../../engine/learn/propose.ts';
 import { EngineInputError } from '../../engine/pair.ts';
 import type { ProposeOutcome } from '../../engine/parameter-sets.ts';
+import { onViewThread } from '../../engine/view-thread.ts';
 import { fitRemovalCurve, type RemovalCurveParams, removalEfficiency } from '../../model/clean.ts';
 import { ModelInputError } from '../../model/errors.ts';
 import { SPECTRUM_CENTRES_M } from '../../model/spectrum.ts';
@@ -97,15 +97,13 @@ export function cleanView(c: StoredClean): CleanView {
  * The fits learned from the line's scans, made on request through the engine (src/engine/learn):
  * adders per pass per tool and chamber, removal curves per clean, each with the typed values beside.
  */
-export function learnedView(
+export async function learnedView(
   ctx: AppContext,
   csrf: string,
   propose: { error?: string; name?: string; label?: string } = {},
-): LearnedView {
-  const data = learnDataFrom(ctx.db);
-  const adders = learnAddersFrom(data);
-  const removal = learnRemovalFrom(data);
-  const cleans = data.cleans;
+): Promise<LearnedView> {
+  // on the pages' thread (src/engine/view-thread.ts), kept until the data change
+  const { adders, removal, cleans } = await onViewThread(ctx.db, 'learned', {});
   return {
     adders,
     removal,
@@ -188,13 +186,13 @@ function toolsPage(
 
 export function register(app: Hono, ctx: AppContext): void {
   // The learned section alone (htmx); without script the form asks for /tools?learn=1.
-  app.get('/tools/learned', (c) => {
+  app.get('/tools/learned', async (c) => {
     if (isFragmentRequest(c))
-      return renderFragment(c, LearnedSection({ learned: learnedView(ctx, token(c)) }));
+      return renderFragment(c, LearnedSection({ learned: await learnedView(ctx, token(c)) }));
     return c.redirect('/tools?learn=1#vc-learned', 303);
   });
-  app.get('/tools', (c) =>
-    toolsPage(c, ctx, c.req.query('learn') === '1' ? learnedView(ctx, token(c)) : null),
+  app.get('/tools', async (c) =>
+    toolsPage(c, ctx, c.req.query('learn') === '1' ? await learnedView(ctx, token(c)) : null),
   );
 
   // Every fit of the line as one proposed parameter set (src/engine/learn/propose.ts) → 303 to it on
@@ -207,8 +205,8 @@ export function register(app: Hono, ctx: AppContext): void {
     const name = account ? account.user.username : str('name').slice(0, 120);
     const label = str('label').slice(0, 200);
     const refused = c.req.header('HX-Request') === 'true' ? 200 : 422;
-    const again = (error: string) =>
-      toolsPage(c, ctx, learnedView(ctx, token(c), { error, name, label }), refused as 200 | 422);
+    const again = async (error: string) =>
+      toolsPage(c, ctx, await learnedView(ctx, token(c), { error, name, label }), refused as 200 | 422);
     if (!name) return again('Your name: the name of the person proposing the set is required.');
     if (!label) return again('Label: a label for the set is required.');
     let out: ProposeOutcome;
