@@ -16,13 +16,13 @@
  *    ROUTES) and fills their ids from the demo (a lot, its first pair, a calculator, an import, a
  *    parameter set, an area; a download's table). State-changing routes (POST) are not loaded; a GET route whose id does not
  *    exist in the demo is listed as skipped with the reason.
- * 4. For each route: autocannon (9.0.0, in a client process of its own: bench/load-client.ts) with
- *    `--connections` connections, bounded by
- *    `--requests` requests and `--seconds` seconds (whichever comes first), after a warm-up of
- *    one request per connection; /healthz first, as the baseline of throughput. Before that, the
- *    route's first request alone (its cold cost, "first request ms": a kept route renders then); a
- *    route whose first and second requests each take over a second is loaded with one request per
- *    connection only (none in quick mode).
+ * 4. Warms the server up with /healthz under the same load for a few seconds (not measured). Then
+ *    for each route: autocannon (9.0.0, in a client process of its own: bench/load-client.ts) with
+ *    `--connections` connections, bounded by `--requests` requests and `--seconds` seconds
+ *    (whichever comes first), after a warm-up of one request per connection; /healthz first, as the
+ *    baseline of throughput. Before that, the route's first request alone (its cold cost, "first
+ *    request ms": a kept route renders then); a route whose first and second requests each take
+ *    over a second is loaded with one request per connection only (none in quick mode).
  * 5. Soak (issue 14): rounds of the lot page and the lot's JSON assessment, the server's RSS after
  *    each. Stall: /healthz under load while the lots' queue is computed afresh again and again.
  * 6. Samples the server's resident set size (/proc/<pid>/status VmRSS) every 250 ms over the whole
@@ -400,6 +400,13 @@ export async function runLoad(o: Opts): Promise<LoadResult> {
       if (mb !== null) samples.push({ t: (performance.now() - tStart) / 60_000, mb });
     }, 250);
 
+    // Warm-up of the server as a whole before the baseline (JIT, SQLite's page cache, the
+    // connections): /healthz under the same load for a while, not measured. Without it the
+    // baseline, measured first, would carry the server's start-up and every ratio would flatter.
+    await cannon(
+      { url: `${url}/healthz`, connections: o.connections, amount: 5 * o.requests, timeout: 60 },
+      o.quick ? 1 : 3,
+    );
     const figures: RouteFigure[] = [];
     const skipped: LoadResult['skipped'] = [];
     const order = ['/healthz', ...routes.filter((r) => r !== '/healthz')];
@@ -636,7 +643,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
       `| \`${x.route}\` | ${x.kind} | ${x.requests} | ${fmt(x.rps)} | ${x.kind === 'baseline' ? '1 (baseline)' : fmt(x.ratio)} | ${x.p50Ms} | ${x.p99Ms} | ${x.firstMs} | ${x.errors} | ${x.non2xx} | ${fmt(x.bytes / 1024, 1)} | ${x.met ? 'met' : `**missed**: ${x.why}`} |`,
   );
   const table = [
-    `${r.connections} connections on 127.0.0.1, at most ${r.maxRequests} requests or ${r.maxSeconds} s per route after a warm-up of one request per connection; pages with one signed-in session, the JSON API with an API token; \`Accept-Encoding: gzip\` as browsers send it. "First request": the route's first request, alone, before its load (a kept route renders its answer then; the load is served from it until the data change).`,
+    `${r.connections} connections on 127.0.0.1, at most ${r.maxRequests} requests or ${r.maxSeconds} s per route after a warm-up of one request per connection (and, before the first route, of the server as a whole: /healthz under the same load for a few seconds, not measured); the client in a process of its own, the server's request log to a file; pages with one signed-in session, the JSON API with an API token; \`Accept-Encoding: gzip\` as browsers send it. "First request": the route's first request, alone, before its load (a kept route renders its answer then; the load is served from it until the data change).`,
     '',
     '| route | kind | requests | req/s | × /healthz | p50 ms | p99 ms | first request ms | errors | non-2xx | KB/answer | target |',
     '|---|---|---|---|---|---|---|---|---|---|---|---|',
