@@ -30,11 +30,12 @@ export interface ScanBuild {
   y: Float64Array;
   d: Float64Array;
   c: Uint8Array;
+  /** The defects as written (x, y, size in the file's units), for the repeated-defect flag (repeatsOf). */
+  wx: Float64Array;
+  wy: Float64Array;
+  ws: Float64Array;
   edgeCount: number;
   noClass: number;
-  /** The defects as written (x, y, size in the file's units) for the repeated-defect flag. */
-  seen: DefectKeySet;
-  repeated: number;
 }
 
 /** Defects a scan has room for before its arrays first double (a typical pre-bond scan has hundreds to tens of thousands). */
@@ -70,10 +71,11 @@ export function newBuild(
     y: new Float64Array(FIRST_CAPACITY),
     d: new Float64Array(FIRST_CAPACITY),
     c: new Uint8Array(FIRST_CAPACITY),
+    wx: new Float64Array(FIRST_CAPACITY),
+    wy: new Float64Array(FIRST_CAPACITY),
+    ws: new Float64Array(FIRST_CAPACITY),
     edgeCount: 0,
     noClass: 0,
-    seen: new DefectKeySet(),
-    repeated: 0,
   };
 }
 
@@ -87,6 +89,18 @@ function grownU8(a: Uint8Array, n: number): Uint8Array<ArrayBuffer> {
   const out = new Uint8Array(n);
   out.set(a);
   return out;
+}
+
+/** Doubles the room of a full build's arrays (the callers append after it). */
+export function growBuild(b: ScanBuild): void {
+  const n = b.x.length * 2;
+  b.x = grownF64(b.x, n);
+  b.y = grownF64(b.y, n);
+  b.d = grownF64(b.d, n);
+  b.c = grownU8(b.c, n);
+  b.wx = grownF64(b.wx, n);
+  b.wy = grownF64(b.wy, n);
+  b.ws = grownF64(b.ws, n);
 }
 
 /**
@@ -107,21 +121,29 @@ export function pushDefect(
   noClass: boolean,
 ): void {
   const i = b.count;
-  if (i === b.x.length) {
-    const n = i * 2;
-    b.x = grownF64(b.x, n);
-    b.y = grownF64(b.y, n);
-    b.d = grownF64(b.d, n);
-    b.c = grownU8(b.c, n);
-  }
+  if (i === b.x.length) growBuild(b);
   b.x[i] = xM;
   b.y[i] = yM;
   b.d[i] = dM;
   b.c[i] = code;
+  b.wx[i] = xv;
+  b.wy[i] = yv;
+  b.ws[i] = sv;
   b.count = i + 1;
   if (noClass) b.noClass++;
   if (edge) b.edgeCount++;
-  if (b.seen.add(xv, yv, sv)) b.repeated++;
+}
+
+/**
+ * Defect rows of the scan that repeat an earlier defect of it (same x, y and size as written): the
+ * count of the repeated-defect flag, taken once the scan is read, over a set sized for all its defects.
+ */
+export function repeatsOf(b: ScanBuild): number {
+  const set = new DefectKeySet(b.count);
+  let repeated = 0;
+  const { wx, wy, ws } = b;
+  for (let i = 0; i < b.count; i++) if (set.add(wx[i]!, wy[i]!, ws[i]!)) repeated++;
+  return repeated;
 }
 
 const bits = new Float64Array(1);
@@ -146,9 +168,19 @@ function mix(h: number, v: number): number {
  * linear probing over the stored triples.
  */
 export class DefectKeySet {
-  private keys = new Float64Array(3 * FIRST_CAPACITY);
+  private keys: Float64Array;
   private size = 0;
-  private slots = new Int32Array(2 * FIRST_CAPACITY).fill(-1);
+  private slots: Int32Array;
+
+  /** `expected`: the triples it will likely hold (room for them without growing). */
+  constructor(expected = FIRST_CAPACITY) {
+    const n = Math.max(16, expected);
+    this.keys = new Float64Array(3 * n);
+    // A power of two at least twice the expected size (load factor ≤ 1/2).
+    let slots = 32;
+    while (slots < 2 * n) slots *= 2;
+    this.slots = new Int32Array(slots).fill(-1);
+  }
 
   /** Adds the triple; true when it was there already. */
   add(x: number, y: number, s: number): boolean {

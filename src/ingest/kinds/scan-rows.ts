@@ -6,17 +6,20 @@
  * Two ways of reading a defect row give the same result:
  * - the plain one (`row`): the pipeline's cell plan has parsed every cell through its zod schema
  *   (fast path first); the row's issues are worded here;
- * - the fast one (`rawRow`): the common defect row — every number written as plain decimals of at
- *   most 15 digits, the class as listed, nothing else filled — read straight from the raw cells
- *   without a parsed-row object, a string key or a text round trip per number. Anything else
- *   (whitespace, exponents, a problem to report) it leaves untouched for the plain one.
- *   test/unit/properties/import-scans-fast.test.ts checks on generated files that both store the
+ * - the fast one (`rawText`): the common defect row — every number written as plain decimals of at
+ *   most 15 digits, the class as listed, nothing else filled — read where it stands in the text of a
+ *   quote-free file (src/ingest/csv-rows.ts, RawLines hands the cell bounds), without a cell string,
+ *   a parsed-row object, a string key or a text round trip per number, and appended without a call
+ *   per defect. Anything else (whitespace, exponents, a problem to report) it leaves untouched for
+ *   the plain one. In a text with quotes, `rawRow` lays the cells papaparse cut end to end and reads
+ *   them the same way.
+ *   test/unit/properties/import-scans-fast.test.ts checks on generated files that all three store the
  *   same bytes and report the same issues.
  */
 import { DEFECT_CLASS_CODE, DEFECT_CLASSES, type DefectClass } from '../../store/scans.ts';
 import type { FileContext, KindIssue, KindSession, ParsedRow } from '../types.ts';
 import { shiftDecimal } from './header-fields.ts';
-import { newBuild, pushDefect, type ScanBuild } from './scan-build.ts';
+import { growBuild, newBuild, pushDefect, type ScanBuild } from './scan-build.ts';
 import { SCAN_LEVEL_FIELDS } from './scan-columns.ts';
 import { finishScans } from './scan-store.ts';
 import type { FrameTransform } from './wafer-frame.ts';
@@ -77,14 +80,19 @@ let scanNeg = false;
  * of ten — what shiftDecimal computes through text.
  */
 function scanDecimal(s: string): boolean {
-  const n = s.length;
-  let i = 0;
+  return scanDecimalAt(s, 0, s.length);
+}
+
+/** scanDecimal of `s.slice(from, to)`, read where it stands. */
+function scanDecimalAt(s: string, from: number, to: number): boolean {
+  const n = to;
+  let i = from;
   let neg = false;
-  if (n === 0) return false;
-  const c0 = s.charCodeAt(0);
+  if (n === from) return false;
+  const c0 = s.charCodeAt(from);
   if (c0 === 45 || c0 === 43) {
     neg = c0 === 45;
-    i = 1;
+    i = from + 1;
   }
   let m = 0;
   let digits = 0;
@@ -125,6 +133,12 @@ export function readPlainDecimal(s: string, digits: number): { value: number; sh
   if (!scanDecimal(s)) return null;
   const value = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
   return { value, shifted: shiftScanned(value, digits) };
+}
+
+/** True when `text` holds `word` at `at` (compared character by character, no string made). */
+function holdsAt(text: string, at: number, word: string): boolean {
+  for (let i = 0; i < word.length; i++) if (text.charCodeAt(at + i) !== word.charCodeAt(i)) return false;
+  return true;
 }
 
 /** True when the raw cell holds no whitespace at its ends that trim() would remove (ASCII edges). */
@@ -273,42 +287,64 @@ export function scanSession(plan: ScanPlan): KindSession {
   const taken = new Set([recIdx, idIdx, xIdx, yIdx, sIdx, clsIdx]);
   /** Columns a defect row leaves empty (the scan-level ones). */
   const emptyIdx = ctx.header.filter((h) => !taken.has(h.index)).map((h) => h.index);
-  const classCode = new Map<string, number>(DEFECT_CLASSES.map((c) => [c, DEFECT_CLASS_CODE[c]]));
   const { a, b: tb, c, d, e, f } = tf;
   // Inside this squared distance a defect is surely inside the usable area (Math.hypot is needed
   // only near the edge-exclusion line and beyond).
   const innerSq = (usableM * (1 - 1e-9)) ** 2;
   const outerLimit = radiusM * (1 + REL_EPS);
 
-  const rawRow = (cells: readonly string[]): boolean => {
+  /** The class names and codes, for matching a class cell where it stands. */
+  const classNames: readonly string[] = DEFECT_CLASSES;
+  const classCodes = DEFECT_CLASSES.map((c) => DEFECT_CLASS_CODE[c]);
+  /** The scan of the last defect row taken (rows of one scan mostly follow each other). */
+  let last: ScanBuild | null = null;
+
+  const rawText = (text: string, starts: Int32Array, ends: Int32Array): boolean => {
     let build: ScanBuild;
     if (recordLayout) {
-      if (cells[recIdx] !== 'defect') return false;
-      const id = cells[idIdx]!;
-      if (id.length === 0 || id.length > 200 || !plainEdges(id)) return false;
-      const found = builds.get(id);
-      if (found === undefined) return false;
-      build = found;
+      const rs = starts[recIdx]!;
+      if (ends[recIdx]! - rs !== 6 || !holdsAt(text, rs, 'defect')) return false;
+      const is = starts[idIdx]!;
+      const ie = ends[idIdx]!;
+      const len = ie - is;
+      if (len === 0 || len > 200) return false;
+      if (last !== null && last.scanId.length === len && holdsAt(text, is, last.scanId)) build = last;
+      else {
+        const id = text.slice(is, ie);
+        if (!plainEdges(id)) return false;
+        const found = builds.get(id);
+        if (found === undefined) return false;
+        build = last = found;
+      }
     } else build = single!;
-    for (let k = 0; k < emptyIdx.length; k++) if (cells[emptyIdx[k]!]!.length !== 0) return false;
+    for (let k = 0; k < emptyIdx.length; k++) {
+      const i = emptyIdx[k]!;
+      if (ends[i] !== starts[i]) return false;
+    }
     let code = DEFECT_CLASS_CODE.unknown;
     let noClass = true;
     if (clsIdx !== -1) {
-      const t = cells[clsIdx]!;
-      if (t.length !== 0) {
-        const k = classCode.get(t);
-        if (k === undefined) return false;
-        code = k;
+      const cs = starts[clsIdx]!;
+      const len = ends[clsIdx]! - cs;
+      if (len !== 0) {
+        let k = 0;
+        while (k < classNames.length) {
+          const name = classNames[k]!;
+          if (name.length === len && holdsAt(text, cs, name)) break;
+          k++;
+        }
+        if (k === classNames.length) return false;
+        code = classCodes[k]!;
         noClass = false;
       }
     }
-    if (!scanDecimal(cells[xIdx]!)) return false;
+    if (!scanDecimalAt(text, starts[xIdx]!, ends[xIdx]!)) return false;
     const xv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
     const xM = shiftX === 0 ? shiftScanned(xv, xDig) : shiftDecimal(xv - shiftX, xDig);
-    if (!scanDecimal(cells[yIdx]!)) return false;
+    if (!scanDecimalAt(text, starts[yIdx]!, ends[yIdx]!)) return false;
     const yv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
     const yM = shiftY === 0 ? shiftScanned(yv, yDig) : shiftDecimal(yv - shiftY, yDig);
-    if (!scanDecimal(cells[sIdx]!) || scanNeg || scanM === 0) return false; // sizes are > 0
+    if (!scanDecimalAt(text, starts[sIdx]!, ends[sIdx]!) || scanNeg || scanM === 0) return false; // sizes are > 0
     const sv = scanM / POW10[scanP]!;
     const dM = shiftScanned(sv, sizeDig);
     const ox = a * xM + tb * yM + c;
@@ -320,8 +356,38 @@ export function scanSession(plan: ScanPlan): KindSession {
       edge = r > usableM;
     }
     if (dM < build.thresholdM * (1 - REL_EPS)) return false;
-    pushDefect(build, xv, yv, sv, ox, oy, dM, edge, code, noClass);
+    // pushDefect written out: a call with these numbers as arguments would box each of them.
+    const i = build.count;
+    if (i === build.x.length) growBuild(build);
+    build.x[i] = ox;
+    build.y[i] = oy;
+    build.d[i] = dM;
+    build.c[i] = code;
+    build.wx[i] = xv;
+    build.wy[i] = yv;
+    build.ws[i] = sv;
+    build.count = i + 1;
+    if (noClass) build.noClass++;
+    if (edge) build.edgeCount++;
     return true;
+  };
+
+  // The fast path on cells already cut (a text with quotes: papaparse's records): the cells laid end
+  // to end in one text, read by rawText.
+  let cellStarts = new Int32Array(0);
+  let cellEnds = new Int32Array(0);
+  const rawRow = (cells: readonly string[]): boolean => {
+    if (cellStarts.length < cells.length) {
+      cellStarts = new Int32Array(cells.length);
+      cellEnds = new Int32Array(cells.length);
+    }
+    let p = 0;
+    for (let i = 0; i < cells.length; i++) {
+      cellStarts[i] = p;
+      p += cells[i]!.length;
+      cellEnds[i] = p;
+    }
+    return rawText(cells.join(''), cellStarts, cellEnds);
   };
 
   return {
@@ -366,6 +432,7 @@ export function scanSession(plan: ScanPlan): KindSession {
       return addDefect(b, row, line, cells) ?? 'stored';
     },
     rawRow,
+    rawText,
     finish: () => finishScans(plan, order),
   };
 }
