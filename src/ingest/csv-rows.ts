@@ -302,7 +302,6 @@ export function countingRawText(
 class RawLines {
   private readonly starts: Int32Array;
   private readonly ends: Int32Array;
-  private readonly delim: number;
   constructor(
     private readonly start: CsvStart,
     private readonly delimiter: string,
@@ -310,15 +309,13 @@ class RawLines {
     private readonly rawText: RawText,
     private readonly rawRow: ((cells: readonly string[], line: number) => boolean) | undefined,
   ) {
-    // One slot more than the header: a line with more cells is seen as such.
-    this.starts = new Int32Array(start.width + 1);
-    this.ends = new Int32Array(start.width + 1);
-    this.delim = delimiter.charCodeAt(0);
+    this.starts = new Int32Array(start.width);
+    this.ends = new Int32Array(start.width);
   }
 
   read(text: string, firstLine: number): void {
     const { slots, width, decimal } = this.start;
-    const { starts, ends, delim, rawText, rawRow, onRow } = this;
+    const { starts, ends, delimiter, rawText, rawRow, onRow } = this;
     const n = text.length;
     let line = firstLine;
     let a = 0;
@@ -330,20 +327,19 @@ class RawLines {
       let count = 0;
       if (decimal.mode === '.') {
         let p = a;
-        for (let i = a; i < b; i++) {
-          if (text.charCodeAt(i) === delim) {
-            if (count === width) break;
-            starts[count] = p;
-            ends[count] = i;
+        for (;;) {
+          let i = text.indexOf(delimiter, p);
+          if (i === -1 || i > b) i = b;
+          if (count === width) {
             count++;
-            p = i + 1;
+            break;
           }
-        }
-        if (count < width) {
           starts[count] = p;
-          ends[count] = b;
+          ends[count] = i;
+          count++;
+          if (i === b) break;
+          p = i + 1;
         }
-        count++;
       }
       if (count !== width || !rawText(text, starts, ends, line)) {
         const cells = text.slice(a, b).split(this.delimiter);

@@ -136,97 +136,63 @@ export function pushDefect(
 
 /**
  * Defect rows of the scan that repeat an earlier defect of it (same x, y and size as written): the
- * count of the repeated-defect flag, taken once the scan is read, over a set sized for all its defects.
+ * count of the repeated-defect flag, taken once the scan is read (countRepeats).
  */
 export function repeatsOf(b: ScanBuild): number {
-  const set = new DefectKeySet(b.count);
-  let repeated = 0;
-  const { wx, wy, ws } = b;
-  for (let i = 0; i < b.count; i++) if (set.add(wx[i]!, wy[i]!, ws[i]!)) repeated++;
-  return repeated;
+  return countRepeats(b.wx, b.wy, b.ws, b.count);
 }
 
-const bits = new Float64Array(1);
-const words = new Uint32Array(bits.buffer);
-
-/** Mixes the two 32-bit words of a double into h (MurmurHash3's 32-bit mixing constants, Appleby 2011). */
-function mix(h: number, v: number): number {
-  bits[0] = v;
-  let k = Math.imul(words[0]!, 0xcc9e2d51);
+/** Mixes a 32-bit word into h (MurmurHash3's 32-bit mixing constants, Appleby 2011). */
+function mix(h: number, word: number): number {
+  let k = Math.imul(word, 0xcc9e2d51);
   k = Math.imul((k << 15) | (k >>> 17), 0x1b873593);
-  h = Math.imul(((h ^ k) << 13) | ((h ^ k) >>> 19), 5) + 0xe6546b64;
-  k = Math.imul(words[1]!, 0xcc9e2d51);
-  k = Math.imul((k << 15) | (k >>> 17), 0x1b873593);
-  return Math.imul(((h ^ k) << 13) | ((h ^ k) >>> 19), 5) + 0xe6546b64;
+  h ^= k;
+  return Math.imul((h << 13) | (h >>> 19), 5) + 0xe6546b64;
 }
 
 /**
- * A set of (x, y, size) triples of numbers, by value: two defects are the same when their three
- * numbers are equal (−0 equals 0). That is exactly when their shortest decimal texts are equal
- * (String of a finite double is unique to its value, and String(−0) is "0"), the key the
- * repeated-defect flag has always used, without building a string per defect. Open addressing with
- * linear probing over the stored triples.
+ * How many of the first n triples (xs[i], ys[i], ss[i]) equal an earlier one, by value: two defects
+ * are the same when their three numbers are equal (−0 equals 0). That is exactly when their shortest
+ * decimal texts are equal (String of a finite double is unique to its value, and String(−0) is "0"),
+ * the key the repeated-defect flag has always used, without building a string per defect. Open
+ * addressing with linear probing over the triples' indices, in a table at least twice their count;
+ * each number is hashed from the two 32-bit words of its bits (read through an Int32Array view), −0
+ * as +0.
  */
-export class DefectKeySet {
-  private keys: Float64Array;
-  private size = 0;
-  private slots: Int32Array;
-
-  /** `expected`: the triples it will likely hold (room for them without growing). */
-  constructor(expected = FIRST_CAPACITY) {
-    const n = Math.max(16, expected);
-    this.keys = new Float64Array(3 * n);
-    // A power of two at least twice the expected size (load factor ≤ 1/2).
-    let slots = 32;
-    while (slots < 2 * n) slots *= 2;
-    this.slots = new Int32Array(slots).fill(-1);
-  }
-
-  /** Adds the triple; true when it was there already. */
-  add(x: number, y: number, s: number): boolean {
-    // +0 for −0 (the comparisons below treat them alike; the hash must too).
-    const a = x + 0;
-    const b = y + 0;
-    const c = s + 0;
-    const keys = this.keys;
-    const slots = this.slots;
-    const mask = slots.length - 1;
-    let at = hashOf(a, b, c) & mask;
+export function countRepeats(xs: Float64Array, ys: Float64Array, ss: Float64Array, n: number): number {
+  let size = 32;
+  while (size < 2 * n) size *= 2;
+  const slots = new Int32Array(size).fill(-1);
+  const mask = size - 1;
+  const xw = new Int32Array(xs.buffer, xs.byteOffset, 2 * n);
+  const yw = new Int32Array(ys.buffer, ys.byteOffset, 2 * n);
+  const sw = new Int32Array(ss.buffer, ss.byteOffset, 2 * n);
+  let repeated = 0;
+  for (let i = 0; i < n; i++) {
+    const x = xs[i]!;
+    const y = ys[i]!;
+    const s = ss[i]!;
+    // The words of −0 are those of +0 here (x === 0 holds for both).
+    let h = 0x9747b28c;
+    h = x === 0 ? mix(mix(h, 0), 0) : mix(mix(h, xw[2 * i]!), xw[2 * i + 1]!);
+    h = y === 0 ? mix(mix(h, 0), 0) : mix(mix(h, yw[2 * i]!), yw[2 * i + 1]!);
+    h = s === 0 ? mix(mix(h, 0), 0) : mix(mix(h, sw[2 * i]!), sw[2 * i + 1]!);
+    h ^= h >>> 16;
+    h = Math.imul(h, 0x85ebca6b);
+    h ^= h >>> 13;
+    let at = h & mask;
     for (;;) {
       const k = slots[at]!;
-      if (k === -1) break;
-      if (keys[3 * k] === a && keys[3 * k + 1] === b && keys[3 * k + 2] === c) return true;
+      if (k === -1) {
+        slots[at] = i;
+        break;
+      }
+      if (xs[k] === x && ys[k] === y && ss[k] === s) {
+        repeated++;
+        break;
+      }
       at = (at + 1) & mask;
     }
-    const n = this.size;
-    if (3 * n === keys.length) this.keys = grownF64(keys, 6 * n);
-    this.keys[3 * n] = a;
-    this.keys[3 * n + 1] = b;
-    this.keys[3 * n + 2] = c;
-    slots[at] = n;
-    this.size = n + 1;
-    if (2 * this.size > slots.length) this.rehash();
-    return false;
   }
-
-  /** Doubles the slot table and puts every stored triple back. */
-  private rehash(): void {
-    const keys = this.keys;
-    const slots = new Int32Array(this.slots.length * 2).fill(-1);
-    const mask = slots.length - 1;
-    for (let i = 0; i < this.size; i++) {
-      let at = hashOf(keys[3 * i]!, keys[3 * i + 1]!, keys[3 * i + 2]!) & mask;
-      while (slots[at] !== -1) at = (at + 1) & mask;
-      slots[at] = i;
-    }
-    this.slots = slots;
-  }
-}
-
-function hashOf(a: number, b: number, c: number): number {
-  let h = mix(mix(mix(0x9747b28c, a), b), c);
-  h ^= h >>> 16;
-  h = Math.imul(h, 0x85ebca6b);
-  h ^= h >>> 13;
-  return h;
+  return repeated;
 }
