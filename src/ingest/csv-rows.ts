@@ -273,7 +273,7 @@ class PlainLines {
 }
 
 /** A kind's fast path on the lines of a text without quotes (KindSession.rawText). */
-export type RawText = (text: string, starts: Int32Array, ends: Int32Array, line: number) => boolean;
+export type RawText = (text: string, from: number, to: number, width: number) => boolean;
 
 /**
  * `rawText` counting each row it takes as read and stored in `counts` (the pipeline's report).
@@ -283,8 +283,8 @@ export function countingRawText(
   counts: { rowsRead: number; rowsStored: number },
 ): RawText | undefined {
   if (rawText === undefined) return undefined;
-  return (text, starts, ends, line) => {
-    if (!rawText(text, starts, ends, line)) return false;
+  return (text, from, to, width) => {
+    if (!rawText(text, from, to, width)) return false;
     counts.rowsRead++;
     counts.rowsStored++;
     return true;
@@ -293,29 +293,24 @@ export function countingRawText(
 
 /**
  * The lines of a text without quotes for a kind with a fast path on the text (KindSession.rawText):
- * each line's cell bounds found by the delimiter, with no array or string per cell, and handed to
- * `rawText`; a line it does not take (a wrong number of cells, an unusual row, a problem to report)
- * goes the general way: `split` on the delimiter (what papaparse returns for a line without quotes,
- * the CR of a CRLF break dropped), blank lines skipped, then `rawRow` and parseRow as in readRows.
- * Both give the same rows, lines and issues (test/unit/properties/import-scans-fast.test.ts).
+ * each line handed to `rawText` where it stands (no array or string per line or cell); a line it
+ * does not take (a wrong number of cells, an unusual row, a problem to report) goes the general way:
+ * `split` on the delimiter (what papaparse returns for a line without quotes, the CR of a CRLF break
+ * dropped), blank lines skipped, then `rawRow` and parseRow as in readRows. Both give the same rows,
+ * lines and issues (test/unit/properties/import-scans-fast.test.ts).
  */
 class RawLines {
-  private readonly starts: Int32Array;
-  private readonly ends: Int32Array;
   constructor(
     private readonly start: CsvStart,
     private readonly delimiter: string,
     private readonly onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
     private readonly rawText: RawText,
     private readonly rawRow: ((cells: readonly string[], line: number) => boolean) | undefined,
-  ) {
-    this.starts = new Int32Array(start.width);
-    this.ends = new Int32Array(start.width);
-  }
+  ) {}
 
   read(text: string, firstLine: number): void {
     const { slots, width, decimal } = this.start;
-    const { starts, ends, delimiter, rawText, rawRow, onRow } = this;
+    const { rawText, rawRow, onRow } = this;
     const n = text.length;
     let line = firstLine;
     let a = 0;
@@ -324,24 +319,7 @@ class RawLines {
       if (nl === -1) nl = n;
       let b = nl;
       if (b > a && text.charCodeAt(b - 1) === 13) b--;
-      let count = 0;
-      if (decimal.mode === '.') {
-        let p = a;
-        for (;;) {
-          let i = text.indexOf(delimiter, p);
-          if (i === -1 || i > b) i = b;
-          if (count === width) {
-            count++;
-            break;
-          }
-          starts[count] = p;
-          ends[count] = i;
-          count++;
-          if (i === b) break;
-          p = i + 1;
-        }
-      }
-      if (count !== width || !rawText(text, starts, ends, line)) {
+      if (decimal.mode !== '.' || !rawText(text, a, b, width)) {
         const cells = text.slice(a, b).split(this.delimiter);
         if (!isBlank(cells)) {
           if (

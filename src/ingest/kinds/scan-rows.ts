@@ -66,62 +66,67 @@ function fmt(v: number): string {
 const POW10: number[] = [1];
 for (let k = 1; k <= 22; k++) POW10.push(POW10[k - 1]! * 10);
 
-/** The integer of a scanned decimal's digits, its count of fraction digits, and its sign. */
-let scanM = 0;
-let scanP = 0;
-let scanNeg = false;
+/**
+ * The decimals scanned by scanNumber, three numbers each at 3k: the integer of its digits, its count
+ * of fraction digits, its sign (1: negative). A typed array: its stores box no number.
+ */
+const NUM = new Float64Array(9);
 
 /**
  * Scans a plain decimal (`[+-]digits[.digits]`, at least one digit, at most 15 in all, no exponent,
- * no space) into scanM, scanP and scanNeg; false for anything else. Such a text's value is
- * scanM / 10^scanP exactly rounded (both exact doubles: one correctly rounded division, as
- * Number() rounds), and its shortest text form has the same decimal value (15 digits round-trip
- * through a double, IEEE 754 §5.12.2), so shifting its exponent equals dividing by a larger power
- * of ten — what shiftDecimal computes through text.
+ * no space) from `text[from]` up to `to` or the first `delim` character (a character code; -1 for
+ * none) into NUM at 3k; returns where it stopped, or -1 for anything else. Such a text's value is
+ * m / 10^p exactly rounded (both exact doubles: one correctly rounded division, as Number() rounds),
+ * and its shortest text form has the same decimal value (15 digits round-trip through a double,
+ * IEEE 754 §5.12.2), so shifting its exponent equals dividing by a larger power of ten — what
+ * shiftDecimal computes through text.
  */
-function scanDecimal(s: string): boolean {
-  return scanDecimalAt(s, 0, s.length);
-}
-
-/** scanDecimal of `s.slice(from, to)`, read where it stands. */
-function scanDecimalAt(s: string, from: number, to: number): boolean {
-  const n = to;
+function scanNumber(text: string, from: number, to: number, delim: number, k: number): number {
   let i = from;
-  let neg = false;
-  if (n === from) return false;
-  const c0 = s.charCodeAt(from);
-  if (c0 === 45 || c0 === 43) {
-    neg = c0 === 45;
-    i = from + 1;
+  let neg = 0;
+  if (i < to) {
+    const c0 = text.charCodeAt(i);
+    if (c0 === 45 || c0 === 43) {
+      neg = c0 === 45 ? 1 : 0;
+      i++;
+    }
   }
   let m = 0;
   let digits = 0;
   let frac = -1;
-  for (; i < n; i++) {
-    const c = s.charCodeAt(i);
+  for (; i < to; i++) {
+    const c = text.charCodeAt(i);
     if (c >= 48 && c <= 57) {
       m = m * 10 + (c - 48);
       digits++;
     } else if (c === 46 && frac === -1) frac = digits;
-    else return false;
+    else if (c === delim) break;
+    else return -1;
   }
-  if (digits === 0 || digits > 15) return false;
-  scanM = m;
-  scanP = frac === -1 ? 0 : digits - frac;
-  scanNeg = neg;
-  return true;
+  if (digits === 0 || digits > 15) return -1;
+  NUM[3 * k] = m;
+  NUM[3 * k + 1] = frac === -1 ? 0 : digits - frac;
+  NUM[3 * k + 2] = neg;
+  return i;
+}
+
+/** The value of the decimal scanned into NUM at 3k. */
+function scannedValue(k: number): number {
+  const m = NUM[3 * k]!;
+  return (NUM[3 * k + 2] === 1 ? -m : m) / POW10[NUM[3 * k + 1]!]!;
 }
 
 /**
- * shiftDecimal(v, digits) for the value just scanned (v = its value), without the text round trip:
- * the same double (see scanDecimal), or shiftDecimal itself where its shortest form would carry an
- * exponent (|v| < 10^-6) or the power of ten would not be exact.
+ * shiftDecimal(v, digits) for the decimal scanned into NUM at 3k (v = its value), without the text
+ * round trip: the same double (see scanNumber), or shiftDecimal itself where its shortest form would
+ * carry an exponent (|v| < 10^-6) or the power of ten would not be exact.
  */
-function shiftScanned(v: number, digits: number): number {
-  if (scanM === 0) return 0; // shiftDecimal(±0) is +0 ("0e-3")
-  const q = scanP + digits;
+function shiftedOf(k: number, v: number, digits: number): number {
+  const m = NUM[3 * k]!;
+  if (m === 0) return 0; // shiftDecimal(±0) is +0 ("0e-3")
+  const q = NUM[3 * k + 1]! + digits;
   if (q > 22 || Math.abs(v) < 1e-6) return shiftDecimal(v, digits);
-  return (scanNeg ? -scanM : scanM) / POW10[q]!;
+  return (NUM[3 * k + 2] === 1 ? -m : m) / POW10[q]!;
 }
 
 /**
@@ -130,16 +135,20 @@ function shiftScanned(v: number, digits: number): number {
  * Exported for the agreement test with Number() and shiftDecimal.
  */
 export function readPlainDecimal(s: string, digits: number): { value: number; shifted: number } | null {
-  if (!scanDecimal(s)) return null;
-  const value = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-  return { value, shifted: shiftScanned(value, digits) };
+  if (scanNumber(s, 0, s.length, -1, 0) !== s.length) return null;
+  const value = scannedValue(0);
+  return { value, shifted: shiftedOf(0, value, digits) };
 }
 
-/** True when `text` holds `word` at `at` (compared character by character, no string made). */
-function holdsAt(text: string, at: number, word: string): boolean {
-  for (let i = 0; i < word.length; i++) if (text.charCodeAt(at + i) !== word.charCodeAt(i)) return false;
-  return true;
-}
+/** What a cell of a defect row holds (the fast path's plan of a row); numbers last, x, y, size in order. */
+const ROLE_ANY = 0;
+const ROLE_EMPTY = 1;
+const ROLE_RECORD = 2;
+const ROLE_ID = 3;
+const ROLE_CLASS = 4;
+const ROLE_X = 5;
+const ROLE_Y = 6;
+const ROLE_SIZE = 7;
 
 /** True when the raw cell holds no whitespace at its ends that trim() would remove (ASCII edges). */
 function plainEdges(s: string): boolean {
@@ -298,55 +307,119 @@ export function scanSession(plan: ScanPlan): KindSession {
   const classCodes = DEFECT_CLASSES.map((c) => DEFECT_CLASS_CODE[c]);
   /** The scan of the last defect row taken (rows of one scan mostly follow each other). */
   let last: ScanBuild | null = null;
+  const delimiter = ctx.dialect.delimiter;
+  const delim = delimiter.charCodeAt(0);
+  /** What each cell of a row holds, by index, for a header of `width` cells (rolesFor). */
+  let roles: Int8Array = new Int8Array(0);
+  const rolesFor = (width: number): Int8Array => {
+    const r = new Int8Array(width).fill(ROLE_ANY);
+    for (const i of emptyIdx) r[i] = ROLE_EMPTY;
+    if (recIdx !== -1) r[recIdx] = ROLE_RECORD;
+    if (idIdx !== -1) r[idIdx] = ROLE_ID;
+    r[xIdx] = ROLE_X;
+    r[yIdx] = ROLE_Y;
+    r[sIdx] = ROLE_SIZE;
+    if (clsIdx !== -1) r[clsIdx] = ROLE_CLASS;
+    return r;
+  };
 
-  const rawText = (text: string, starts: Int32Array, ends: Int32Array): boolean => {
-    let build: ScanBuild;
-    if (recordLayout) {
-      const rs = starts[recIdx]!;
-      if (ends[recIdx]! - rs !== 6 || !holdsAt(text, rs, 'defect')) return false;
-      const is = starts[idIdx]!;
-      const ie = ends[idIdx]!;
-      const len = ie - is;
-      if (len === 0 || len > 200) return false;
-      if (last !== null && last.scanId.length === len && holdsAt(text, is, last.scanId)) build = last;
-      else {
-        const id = text.slice(is, ie);
-        if (!plainEdges(id)) return false;
-        const found = builds.get(id);
-        if (found === undefined) return false;
-        build = last = found;
-      }
-    } else build = single!;
-    for (let k = 0; k < emptyIdx.length; k++) {
-      const i = emptyIdx[k]!;
-      if (ends[i] !== starts[i]) return false;
+  /**
+   * The fast path on the line [from, to) of a quote-free text of rows `width` cells wide: one pass over
+   * its characters, each cell checked where it stands as the header says (see the module comment).
+   */
+  const rawText = (text: string, from: number, to: number, width: number): boolean => {
+    if (roles.length !== width) {
+      if (Math.max(recIdx, idIdx, xIdx, yIdx, sIdx, clsIdx, ...emptyIdx) >= width) return false;
+      roles = rolesFor(width);
     }
+    let build = single;
     let code = DEFECT_CLASS_CODE.unknown;
     let noClass = true;
-    if (clsIdx !== -1) {
-      const cs = starts[clsIdx]!;
-      const len = ends[clsIdx]! - cs;
-      if (len !== 0) {
-        let k = 0;
-        while (k < classNames.length) {
-          const name = classNames[k]!;
-          if (name.length === len && holdsAt(text, cs, name)) break;
-          k++;
+    let p = from;
+    for (let col = 0; col < width; col++) {
+      const role = roles[col]!;
+      if (role === ROLE_EMPTY) {
+        // nothing: the delimiter (or the end) must follow at once
+      } else if (role >= ROLE_X) {
+        p = scanNumber(text, p, to, delim, role - ROLE_X);
+        if (p === -1) return false;
+      } else if (role === ROLE_RECORD) {
+        // `defect`, compared where it stands (the delimiter check below ends the cell).
+        if (
+          p + 6 > to ||
+          text.charCodeAt(p) !== 100 ||
+          text.charCodeAt(p + 1) !== 101 ||
+          text.charCodeAt(p + 2) !== 102 ||
+          text.charCodeAt(p + 3) !== 101 ||
+          text.charCodeAt(p + 4) !== 99 ||
+          text.charCodeAt(p + 5) !== 116
+        )
+          return false;
+        p += 6;
+      } else if (role === ROLE_ID) {
+        // Mostly the scan of the row before: its id compared where it stands.
+        let k = -1;
+        if (last !== null) {
+          const sid = last.scanId;
+          const len = sid.length;
+          if (p + len <= to) {
+            k = 0;
+            while (k < len && text.charCodeAt(p + k) === sid.charCodeAt(k)) k++;
+            if (k === len && (p + len === to || text.charCodeAt(p + len) === delim)) {
+              build = last;
+              p += len;
+            } else k = -1;
+          }
         }
-        if (k === classNames.length) return false;
-        code = classCodes[k]!;
-        noClass = false;
+        if (k === -1) {
+          let end = text.indexOf(delimiter, p);
+          if (end === -1 || end > to) end = to;
+          const len = end - p;
+          if (len === 0 || len > 200) return false;
+          const id = text.slice(p, end);
+          if (!plainEdges(id)) return false;
+          const found = builds.get(id);
+          if (found === undefined) return false;
+          build = last = found;
+          p = end;
+        }
+      } else if (role === ROLE_CLASS) {
+        let end = p;
+        while (end < to && text.charCodeAt(end) !== delim) end++;
+        const len = end - p;
+        if (len !== 0) {
+          let k = 0;
+          for (; k < classNames.length; k++) {
+            const name = classNames[k]!;
+            if (name.length !== len) continue;
+            let j = 0;
+            while (j < len && text.charCodeAt(p + j) === name.charCodeAt(j)) j++;
+            if (j === len) break;
+          }
+          if (k === classNames.length) return false;
+          code = classCodes[k]!;
+          noClass = false;
+        }
+        p = end;
+      } else {
+        // A column the import ignores: anything up to the delimiter.
+        const end = text.indexOf(delimiter, p);
+        p = end === -1 || end > to ? to : end;
       }
+      // The cell ends at a delimiter, the last one at the end of the line.
+      if (col < width - 1) {
+        if (p >= to || text.charCodeAt(p) !== delim) return false;
+        p++;
+      } else if (p !== to) return false;
     }
-    if (!scanDecimalAt(text, starts[xIdx]!, ends[xIdx]!)) return false;
-    const xv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-    const xM = shiftX === 0 ? shiftScanned(xv, xDig) : shiftDecimal(xv - shiftX, xDig);
-    if (!scanDecimalAt(text, starts[yIdx]!, ends[yIdx]!)) return false;
-    const yv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-    const yM = shiftY === 0 ? shiftScanned(yv, yDig) : shiftDecimal(yv - shiftY, yDig);
-    if (!scanDecimalAt(text, starts[sIdx]!, ends[sIdx]!) || scanNeg || scanM === 0) return false; // sizes are > 0
-    const sv = scanM / POW10[scanP]!;
-    const dM = shiftScanned(sv, sizeDig);
+    if (build === null) return false;
+    const xv = scannedValue(0);
+    const xM = shiftX === 0 ? shiftedOf(0, xv, xDig) : shiftDecimal(xv - shiftX, xDig);
+    const yv = scannedValue(1);
+    const yM = shiftY === 0 ? shiftedOf(1, yv, yDig) : shiftDecimal(yv - shiftY, yDig);
+    if (NUM[8] === 1 || NUM[6] === 0) return false; // sizes are > 0
+    const sv = scannedValue(2);
+    const dM = shiftedOf(2, sv, sizeDig);
     const ox = a * xM + tb * yM + c;
     const oy = d * xM + e * yM + f;
     let edge = false;
@@ -372,22 +445,16 @@ export function scanSession(plan: ScanPlan): KindSession {
     return true;
   };
 
-  // The fast path on cells already cut (a text with quotes: papaparse's records): the cells laid end
-  // to end in one text, read by rawText.
-  let cellStarts = new Int32Array(0);
-  let cellEnds = new Int32Array(0);
+  // The fast path on cells already cut (a text with quotes: papaparse's records): cells holding no
+  // delimiter nor line break are joined by the delimiter into one line and read by rawText (its
+  // cells are then these very cells); any other row is left to the plain path.
   const rawRow = (cells: readonly string[]): boolean => {
-    if (cellStarts.length < cells.length) {
-      cellStarts = new Int32Array(cells.length);
-      cellEnds = new Int32Array(cells.length);
-    }
-    let p = 0;
     for (let i = 0; i < cells.length; i++) {
-      cellStarts[i] = p;
-      p += cells[i]!.length;
-      cellEnds[i] = p;
+      const t = cells[i]!;
+      if (t.indexOf(delimiter) !== -1 || t.indexOf('\n') !== -1 || t.indexOf('\r') !== -1) return false;
     }
-    return rawText(cells.join(''), cellStarts, cellEnds);
+    const line = cells.join(delimiter);
+    return rawText(line, 0, line.length, cells.length);
   };
 
   return {

@@ -3,7 +3,7 @@
  * with the fast paths taken away, so every row goes through the cell plan (zod schemas, fast cells
  * first) and the plain defect checks. Two fast paths are checked: `rawText`, which reads a line of a
  * quote-free text where it stands (src/ingest/csv-rows.ts, RawLines), and `rawRow`, which reads the
- * cells papaparse cut (texts with quotes). Expected values come from the plain path itself (the
+ * cells papaparse cut (texts with quotes) joined into a line. Expected values come from the plain path itself (the
  * implementation before the fast paths existed; bench/scans-read.ts's file was also checked byte for
  * byte against it by hand when each fast path was written): on generated files — with quoted cells,
  * blank and white-space lines, CRLF breaks, and read a few bytes at a time so that lines straddle
@@ -61,8 +61,8 @@ function countingScans(counts: Counts, text: boolean): ImportKind {
         return took;
       },
       rawText: text
-        ? (t, starts, ends, line) => {
-            const took = textPath!(t, starts, ends, line);
+        ? (t, from, to, width) => {
+            const took = textPath!(t, from, to, width);
             if (took) counts.text++;
             return took;
           }
