@@ -19,7 +19,7 @@ import { describe, expect, it } from 'vitest';
 import type { ByteSource } from '../../../src/ingest/csv.ts';
 import { shiftDecimal } from '../../../src/ingest/kinds/header-fields.ts';
 import { countRepeats } from '../../../src/ingest/kinds/scan-build.ts';
-import { readPlainDecimal } from '../../../src/ingest/kinds/scan-rows.ts';
+import { readPlainDecimal } from '../../../src/ingest/kinds/scan-numbers.ts';
 import { scans } from '../../../src/ingest/kinds/scans.ts';
 import { importSource, sha256Text } from '../../../src/ingest/pipeline.ts';
 import type { ImportKind, ImportReport, KindSession } from '../../../src/ingest/types.ts';
