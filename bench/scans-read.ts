@@ -6,7 +6,9 @@
  *
  * Figures, each against a baseline measured in the same run:
  * 1. import rate through importFile (defects/s) against a bare parse of the same file with papaparse
- *    (no validation, no storage): the ratio says what validation, normalisation and packing cost;
+ *    (no validation, no storage): the ratio says what validation, normalisation and packing cost
+ *    (the import reads a quote-free file with its own line reader, src/ingest/kinds/scan-rows.ts
+ *    rawText, not with papaparse);
  * 2. reading all 50 scans with readScanDefects (typed arrays of x, y, size, class) against the bare
  *    SQLite read of the same BLOB columns (the floor: better-sqlite3 has to copy the bytes out):
  *    target well under 100 ms for the whole lot, ratio close to 1.
@@ -168,6 +170,8 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
     });
     db!.close();
     const worst = Math.max(...ratios);
+    const worstCpu = Math.max(...cpuRatios);
+    const met = worst <= 2 && worstCpu <= 2;
     return {
       name: 'scans',
       data: `one record-layout scans file of ${WAFERS} wafers × ${DEFECTS.toLocaleString('en-US')} defects (${(n / 1e6).toFixed(1)} M), xorshift32 seed 20260303; ${repeat} alternating repeats after a warm-up`,
@@ -182,7 +186,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
             unit: 'ms',
           },
           ratio: median(ratios),
-          note: `CPU ${fmt(median(cpuRatios))} ×; range ${fmt(Math.min(...ratios))}–${fmt(worst)} ×; bare parses p50: papaparse over the whole text ${fmt(median(wholeMs))} ms, the import’s chunked reader ${fmt(median(chunkMs))} ms`,
+          note: `CPU ${fmt(median(cpuRatios))} × (range ${fmt(Math.min(...cpuRatios))}–${fmt(worstCpu)} ×); range ${fmt(Math.min(...ratios))}–${fmt(worst)} ×; bare parses p50: papaparse over the whole text ${fmt(median(wholeMs))} ms, the import’s chunked reader ${fmt(median(chunkMs))} ms`,
         },
         {
           what: `readScanDefects of all ${ids.length} scans, p50`,
@@ -195,13 +199,12 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
       targets: [
         {
           name: 'scan import',
-          target: '≤ 2 × a bare parse of the same file, in every repeat',
-          measured: `median ${fmt(median(ratios))} ×, highest ${fmt(worst)} × (wall); CPU median ${fmt(median(cpuRatios))} ×`,
-          met: worst <= 2,
-          why:
-            worst <= 2
-              ? undefined
-              : 'the import reads with the same parser as the baseline and then checks, maps, hashes and packs every defect into its scan; see the remarks in docs/performance.md',
+          target: '≤ 2 × a bare parse of the same file, in every repeat, by wall and by CPU time',
+          measured: `median ${fmt(median(ratios))} ×, highest ${fmt(worst)} × (wall); CPU median ${fmt(median(cpuRatios))} ×, highest ${fmt(worstCpu)} ×`,
+          met,
+          why: met
+            ? undefined
+            : 'besides reading the file, the import hashes it, checks, maps and packs every defect into its scan, counts repeats and writes the BLOBs; see the remarks in docs/performance.md',
         },
       ],
     };

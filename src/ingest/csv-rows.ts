@@ -136,16 +136,22 @@ export function readRows(
   onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
   rawRow?: (cells: readonly string[], line: number) => boolean,
   needCells = true,
+  rawText?: RawText,
 ): boolean {
   const plain = !needCells && PLAIN_READER.enabled ? new PlainLines(start, reader.delimiter, onRow) : null;
+  const raw =
+    plain === null && rawText !== undefined && PLAIN_READER.enabled
+      ? new RawLines(start, reader.delimiter, onRow, rawText, rawRow)
+      : null;
+  const textLines = plain ?? raw;
   for (;;) {
     let batch: ReturnType<CsvReader['nextBatch']>;
     try {
-      if (plain) {
+      if (textLines) {
         const t = reader.nextPlainText();
         if (t === null) return true;
         if (t !== 'general') {
-          plain.read(t.text, t.line);
+          textLines.read(t.text, t.line);
           continue;
         }
       }
@@ -263,6 +269,68 @@ class PlainLines {
       row[slot.key] = v;
     }
     return row;
+  }
+}
+
+/** A kind's fast path on the lines of a text without quotes (KindSession.rawText). */
+export type RawText = (text: string, from: number, to: number, width: number) => boolean;
+
+/**
+ * `rawText` counting each row it takes as read and stored in `counts` (the pipeline's report).
+ */
+export function countingRawText(
+  rawText: RawText | undefined,
+  counts: { rowsRead: number; rowsStored: number },
+): RawText | undefined {
+  if (rawText === undefined) return undefined;
+  return (text, from, to, width) => {
+    if (!rawText(text, from, to, width)) return false;
+    counts.rowsRead++;
+    counts.rowsStored++;
+    return true;
+  };
+}
+
+/**
+ * The lines of a text without quotes for a kind with a fast path on the text (KindSession.rawText):
+ * each line handed to `rawText` where it stands (no array or string per line or cell); a line it
+ * does not take (a wrong number of cells, an unusual row, a problem to report) goes the general way:
+ * `split` on the delimiter (what papaparse returns for a line without quotes, the CR of a CRLF break
+ * dropped), blank lines skipped, then `rawRow` and parseRow as in readRows. Both give the same rows,
+ * lines and issues (test/unit/properties/import-scans-fast.test.ts).
+ */
+class RawLines {
+  constructor(
+    private readonly start: CsvStart,
+    private readonly delimiter: string,
+    private readonly onRow: (row: ParsedRow | KindIssue[], line: number, cells: readonly string[]) => void,
+    private readonly rawText: RawText,
+    private readonly rawRow: ((cells: readonly string[], line: number) => boolean) | undefined,
+  ) {}
+
+  read(text: string, firstLine: number): void {
+    const { slots, width, decimal } = this.start;
+    const { rawText, rawRow, onRow } = this;
+    const n = text.length;
+    let line = firstLine;
+    let a = 0;
+    while (a < n) {
+      let nl = text.indexOf('\n', a);
+      if (nl === -1) nl = n;
+      let b = nl;
+      if (b > a && text.charCodeAt(b - 1) === 13) b--;
+      if (decimal.mode !== '.' || !rawText(text, a, b, width)) {
+        const cells = text.slice(a, b).split(this.delimiter);
+        if (!isBlank(cells)) {
+          if (
+            !(rawRow !== undefined && cells.length === width && decimal.mode === '.' && rawRow(cells, line))
+          )
+            onRow(parseRow(cells, line, slots, width, decimal), line, cells);
+        }
+      }
+      line++;
+      a = nl + 1;
+    }
   }
 }
 

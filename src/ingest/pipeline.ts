@@ -22,7 +22,7 @@ import type { Db } from '../store/db.ts';
 import { withOwnKeyChecks } from '../store/key-checks.ts';
 import { writeTransaction } from '../store/writer.ts';
 import { type ByteSource, CsvReader, fileSource } from './csv.ts';
-import { readRows, startCsv } from './csv-rows.ts';
+import { countingRawText, readRows, startCsv } from './csv-rows.ts';
 import { importConfigSource } from './kinds/config-import.ts';
 import { getKind } from './kinds/index.ts';
 import { importedWithSize, setImportSha256, startReport } from './report.ts';
@@ -304,6 +304,7 @@ function runInTransaction(
     },
     takeRaw,
     kind.plainRows !== true,
+    countingRawText(session.rawText, report),
   );
   if (decimal.note) report.notes.push(decimal.note);
   dialect.decimal = decimal.mode === ',' ? ',' : '.';

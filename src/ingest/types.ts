@@ -241,6 +241,15 @@ export interface KindSession {
    */
   rawRow?: (cells: readonly string[], line: number) => boolean;
   /**
+   * Optional fast path for the common row on a text without quote characters, before any cell is cut
+   * out of it: the line is `text.slice(from, to)` (the CR of a CRLF break dropped), its cells what
+   * splitting it on the file's delimiter gives, `width` the header's count of cells; tried while the
+   * file's decimal separator is a point. The same contract as `rawRow`: true when it stored the row
+   * exactly as `row` would have (a line of `width` cells); false to leave the row to the general way
+   * (it must then have changed nothing).
+   */
+  rawText?: (text: string, from: number, to: number, width: number) => boolean;
+  /**
    * After the last row: file-level checks (references between rows, cycles) and the flag summary.
    * Issues returned here reject the file (even with acceptValidRows).
    */

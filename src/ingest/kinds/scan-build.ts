@@ -30,11 +30,12 @@ export interface ScanBuild {
   y: Float64Array;
   d: Float64Array;
   c: Uint8Array;
+  /** The defects as written (x, y, size in the file's units), for the repeated-defect flag (repeatsOf). */
+  wx: Float64Array;
+  wy: Float64Array;
+  ws: Float64Array;
   edgeCount: number;
   noClass: number;
-  /** The defects as written (x, y, size in the file's units) for the repeated-defect flag. */
-  seen: DefectKeySet;
-  repeated: number;
 }
 
 /** Defects a scan has room for before its arrays first double (a typical pre-bond scan has hundreds to tens of thousands). */
@@ -70,10 +71,11 @@ export function newBuild(
     y: new Float64Array(FIRST_CAPACITY),
     d: new Float64Array(FIRST_CAPACITY),
     c: new Uint8Array(FIRST_CAPACITY),
+    wx: new Float64Array(FIRST_CAPACITY),
+    wy: new Float64Array(FIRST_CAPACITY),
+    ws: new Float64Array(FIRST_CAPACITY),
     edgeCount: 0,
     noClass: 0,
-    seen: new DefectKeySet(),
-    repeated: 0,
   };
 }
 
@@ -87,6 +89,18 @@ function grownU8(a: Uint8Array, n: number): Uint8Array<ArrayBuffer> {
   const out = new Uint8Array(n);
   out.set(a);
   return out;
+}
+
+/** Doubles the room of a full build's arrays (the callers append after it). */
+export function growBuild(b: ScanBuild): void {
+  const n = b.x.length * 2;
+  b.x = grownF64(b.x, n);
+  b.y = grownF64(b.y, n);
+  b.d = grownF64(b.d, n);
+  b.c = grownU8(b.c, n);
+  b.wx = grownF64(b.wx, n);
+  b.wy = grownF64(b.wy, n);
+  b.ws = grownF64(b.ws, n);
 }
 
 /**
@@ -107,94 +121,78 @@ export function pushDefect(
   noClass: boolean,
 ): void {
   const i = b.count;
-  if (i === b.x.length) {
-    const n = i * 2;
-    b.x = grownF64(b.x, n);
-    b.y = grownF64(b.y, n);
-    b.d = grownF64(b.d, n);
-    b.c = grownU8(b.c, n);
-  }
+  if (i === b.x.length) growBuild(b);
   b.x[i] = xM;
   b.y[i] = yM;
   b.d[i] = dM;
   b.c[i] = code;
+  b.wx[i] = xv;
+  b.wy[i] = yv;
+  b.ws[i] = sv;
   b.count = i + 1;
   if (noClass) b.noClass++;
   if (edge) b.edgeCount++;
-  if (b.seen.add(xv, yv, sv)) b.repeated++;
-}
-
-const bits = new Float64Array(1);
-const words = new Uint32Array(bits.buffer);
-
-/** Mixes the two 32-bit words of a double into h (MurmurHash3's 32-bit mixing constants, Appleby 2011). */
-function mix(h: number, v: number): number {
-  bits[0] = v;
-  let k = Math.imul(words[0]!, 0xcc9e2d51);
-  k = Math.imul((k << 15) | (k >>> 17), 0x1b873593);
-  h = Math.imul(((h ^ k) << 13) | ((h ^ k) >>> 19), 5) + 0xe6546b64;
-  k = Math.imul(words[1]!, 0xcc9e2d51);
-  k = Math.imul((k << 15) | (k >>> 17), 0x1b873593);
-  return Math.imul(((h ^ k) << 13) | ((h ^ k) >>> 19), 5) + 0xe6546b64;
 }
 
 /**
- * A set of (x, y, size) triples of numbers, by value: two defects are the same when their three
- * numbers are equal (−0 equals 0). That is exactly when their shortest decimal texts are equal
- * (String of a finite double is unique to its value, and String(−0) is "0"), the key the
- * repeated-defect flag has always used, without building a string per defect. Open addressing with
- * linear probing over the stored triples.
+ * Defect rows of the scan that repeat an earlier defect of it (same x, y and size as written): the
+ * count of the repeated-defect flag, taken once the scan is read (countRepeats).
  */
-export class DefectKeySet {
-  private keys = new Float64Array(3 * FIRST_CAPACITY);
-  private size = 0;
-  private slots = new Int32Array(2 * FIRST_CAPACITY).fill(-1);
-
-  /** Adds the triple; true when it was there already. */
-  add(x: number, y: number, s: number): boolean {
-    // +0 for −0 (the comparisons below treat them alike; the hash must too).
-    const a = x + 0;
-    const b = y + 0;
-    const c = s + 0;
-    const keys = this.keys;
-    const slots = this.slots;
-    const mask = slots.length - 1;
-    let at = hashOf(a, b, c) & mask;
-    for (;;) {
-      const k = slots[at]!;
-      if (k === -1) break;
-      if (keys[3 * k] === a && keys[3 * k + 1] === b && keys[3 * k + 2] === c) return true;
-      at = (at + 1) & mask;
-    }
-    const n = this.size;
-    if (3 * n === keys.length) this.keys = grownF64(keys, 6 * n);
-    this.keys[3 * n] = a;
-    this.keys[3 * n + 1] = b;
-    this.keys[3 * n + 2] = c;
-    slots[at] = n;
-    this.size = n + 1;
-    if (2 * this.size > slots.length) this.rehash();
-    return false;
-  }
-
-  /** Doubles the slot table and puts every stored triple back. */
-  private rehash(): void {
-    const keys = this.keys;
-    const slots = new Int32Array(this.slots.length * 2).fill(-1);
-    const mask = slots.length - 1;
-    for (let i = 0; i < this.size; i++) {
-      let at = hashOf(keys[3 * i]!, keys[3 * i + 1]!, keys[3 * i + 2]!) & mask;
-      while (slots[at] !== -1) at = (at + 1) & mask;
-      slots[at] = i;
-    }
-    this.slots = slots;
-  }
+export function repeatsOf(b: ScanBuild): number {
+  return countRepeats(b.wx, b.wy, b.ws, b.count);
 }
 
-function hashOf(a: number, b: number, c: number): number {
-  let h = mix(mix(mix(0x9747b28c, a), b), c);
-  h ^= h >>> 16;
-  h = Math.imul(h, 0x85ebca6b);
-  h ^= h >>> 13;
-  return h;
+/** Mixes a 32-bit word into h (MurmurHash3's 32-bit mixing constants, Appleby 2011). */
+function mix(h: number, word: number): number {
+  let k = Math.imul(word, 0xcc9e2d51);
+  k = Math.imul((k << 15) | (k >>> 17), 0x1b873593);
+  h ^= k;
+  return Math.imul((h << 13) | (h >>> 19), 5) + 0xe6546b64;
+}
+
+/**
+ * How many of the first n triples (xs[i], ys[i], ss[i]) equal an earlier one, by value: two defects
+ * are the same when their three numbers are equal (−0 equals 0). That is exactly when their shortest
+ * decimal texts are equal (String of a finite double is unique to its value, and String(−0) is "0"),
+ * the key the repeated-defect flag has always used, without building a string per defect. Open
+ * addressing with linear probing over the triples' indices, in a table at least twice their count;
+ * each number is hashed from the two 32-bit words of its bits (read through an Int32Array view), −0
+ * as +0.
+ */
+export function countRepeats(xs: Float64Array, ys: Float64Array, ss: Float64Array, n: number): number {
+  let size = 32;
+  while (size < 2 * n) size *= 2;
+  const slots = new Int32Array(size).fill(-1);
+  const mask = size - 1;
+  const xw = new Int32Array(xs.buffer, xs.byteOffset, 2 * n);
+  const yw = new Int32Array(ys.buffer, ys.byteOffset, 2 * n);
+  const sw = new Int32Array(ss.buffer, ss.byteOffset, 2 * n);
+  let repeated = 0;
+  for (let i = 0; i < n; i++) {
+    const x = xs[i]!;
+    const y = ys[i]!;
+    const s = ss[i]!;
+    // The words of −0 are those of +0 here (x === 0 holds for both).
+    let h = 0x9747b28c;
+    h = x === 0 ? mix(mix(h, 0), 0) : mix(mix(h, xw[2 * i]!), xw[2 * i + 1]!);
+    h = y === 0 ? mix(mix(h, 0), 0) : mix(mix(h, yw[2 * i]!), yw[2 * i + 1]!);
+    h = s === 0 ? mix(mix(h, 0), 0) : mix(mix(h, sw[2 * i]!), sw[2 * i + 1]!);
+    h ^= h >>> 16;
+    h = Math.imul(h, 0x85ebca6b);
+    h ^= h >>> 13;
+    let at = h & mask;
+    for (;;) {
+      const k = slots[at]!;
+      if (k === -1) {
+        slots[at] = i;
+        break;
+      }
+      if (xs[k] === x && ys[k] === y && ss[k] === s) {
+        repeated++;
+        break;
+      }
+      at = (at + 1) & mask;
+    }
+  }
+  return repeated;
 }

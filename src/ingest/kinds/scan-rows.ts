@@ -6,18 +6,22 @@
  * Two ways of reading a defect row give the same result:
  * - the plain one (`row`): the pipeline's cell plan has parsed every cell through its zod schema
  *   (fast path first); the row's issues are worded here;
- * - the fast one (`rawRow`): the common defect row — every number written as plain decimals of at
- *   most 15 digits, the class as listed, nothing else filled — read straight from the raw cells
- *   without a parsed-row object, a string key or a text round trip per number. Anything else
- *   (whitespace, exponents, a problem to report) it leaves untouched for the plain one.
- *   test/unit/properties/import-scans-fast.test.ts checks on generated files that both store the
+ * - the fast one (`rawText`): the common defect row — every number written as plain decimals of at
+ *   most 15 digits, the class as listed, nothing else filled — read where it stands in the text of a
+ *   quote-free file (src/ingest/csv-rows.ts, RawLines hands the cell bounds), without a cell string,
+ *   a parsed-row object, a string key or a text round trip per number, and appended without a call
+ *   per defect. Anything else (whitespace, exponents, a problem to report) it leaves untouched for
+ *   the plain one. In a text with quotes, `rawRow` lays the cells papaparse cut end to end and reads
+ *   them the same way.
+ *   test/unit/properties/import-scans-fast.test.ts checks on generated files that all three store the
  *   same bytes and report the same issues.
  */
 import { DEFECT_CLASS_CODE, DEFECT_CLASSES, type DefectClass } from '../../store/scans.ts';
 import type { FileContext, KindIssue, KindSession, ParsedRow } from '../types.ts';
 import { shiftDecimal } from './header-fields.ts';
-import { newBuild, pushDefect, type ScanBuild } from './scan-build.ts';
+import { growBuild, newBuild, pushDefect, type ScanBuild } from './scan-build.ts';
 import { SCAN_LEVEL_FIELDS } from './scan-columns.ts';
+import { NUM, scanNumber, scannedValue, shiftedOf } from './scan-numbers.ts';
 import { finishScans } from './scan-store.ts';
 import type { FrameTransform } from './wafer-frame.ts';
 
@@ -59,73 +63,15 @@ function fmt(v: number): string {
   return String(Math.round(v * 1000) / 1000);
 }
 
-/** 10^k for k = 0…22, each exact (10^22 is the largest power of ten a double holds exactly). */
-const POW10: number[] = [1];
-for (let k = 1; k <= 22; k++) POW10.push(POW10[k - 1]! * 10);
-
-/** The integer of a scanned decimal's digits, its count of fraction digits, and its sign. */
-let scanM = 0;
-let scanP = 0;
-let scanNeg = false;
-
-/**
- * Scans a plain decimal (`[+-]digits[.digits]`, at least one digit, at most 15 in all, no exponent,
- * no space) into scanM, scanP and scanNeg; false for anything else. Such a text's value is
- * scanM / 10^scanP exactly rounded (both exact doubles: one correctly rounded division, as
- * Number() rounds), and its shortest text form has the same decimal value (15 digits round-trip
- * through a double, IEEE 754 §5.12.2), so shifting its exponent equals dividing by a larger power
- * of ten — what shiftDecimal computes through text.
- */
-function scanDecimal(s: string): boolean {
-  const n = s.length;
-  let i = 0;
-  let neg = false;
-  if (n === 0) return false;
-  const c0 = s.charCodeAt(0);
-  if (c0 === 45 || c0 === 43) {
-    neg = c0 === 45;
-    i = 1;
-  }
-  let m = 0;
-  let digits = 0;
-  let frac = -1;
-  for (; i < n; i++) {
-    const c = s.charCodeAt(i);
-    if (c >= 48 && c <= 57) {
-      m = m * 10 + (c - 48);
-      digits++;
-    } else if (c === 46 && frac === -1) frac = digits;
-    else return false;
-  }
-  if (digits === 0 || digits > 15) return false;
-  scanM = m;
-  scanP = frac === -1 ? 0 : digits - frac;
-  scanNeg = neg;
-  return true;
-}
-
-/**
- * shiftDecimal(v, digits) for the value just scanned (v = its value), without the text round trip:
- * the same double (see scanDecimal), or shiftDecimal itself where its shortest form would carry an
- * exponent (|v| < 10^-6) or the power of ten would not be exact.
- */
-function shiftScanned(v: number, digits: number): number {
-  if (scanM === 0) return 0; // shiftDecimal(±0) is +0 ("0e-3")
-  const q = scanP + digits;
-  if (q > 22 || Math.abs(v) < 1e-6) return shiftDecimal(v, digits);
-  return (scanNeg ? -scanM : scanM) / POW10[q]!;
-}
-
-/**
- * The fast path's reading of one number cell: its value and that value shifted by `digits` decimal
- * places, or null when the text is not a plain decimal it takes (the plain path reads it then).
- * Exported for the agreement test with Number() and shiftDecimal.
- */
-export function readPlainDecimal(s: string, digits: number): { value: number; shifted: number } | null {
-  if (!scanDecimal(s)) return null;
-  const value = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-  return { value, shifted: shiftScanned(value, digits) };
-}
+/** What a cell of a defect row holds (the fast path's plan of a row); numbers last, x, y, size in order. */
+const ROLE_ANY = 0;
+const ROLE_EMPTY = 1;
+const ROLE_RECORD = 2;
+const ROLE_ID = 3;
+const ROLE_CLASS = 4;
+const ROLE_X = 5;
+const ROLE_Y = 6;
+const ROLE_SIZE = 7;
 
 /** True when the raw cell holds no whitespace at its ends that trim() would remove (ASCII edges). */
 function plainEdges(s: string): boolean {
@@ -273,44 +219,130 @@ export function scanSession(plan: ScanPlan): KindSession {
   const taken = new Set([recIdx, idIdx, xIdx, yIdx, sIdx, clsIdx]);
   /** Columns a defect row leaves empty (the scan-level ones). */
   const emptyIdx = ctx.header.filter((h) => !taken.has(h.index)).map((h) => h.index);
-  const classCode = new Map<string, number>(DEFECT_CLASSES.map((c) => [c, DEFECT_CLASS_CODE[c]]));
   const { a, b: tb, c, d, e, f } = tf;
   // Inside this squared distance a defect is surely inside the usable area (Math.hypot is needed
   // only near the edge-exclusion line and beyond).
   const innerSq = (usableM * (1 - 1e-9)) ** 2;
   const outerLimit = radiusM * (1 + REL_EPS);
 
-  const rawRow = (cells: readonly string[]): boolean => {
-    let build: ScanBuild;
-    if (recordLayout) {
-      if (cells[recIdx] !== 'defect') return false;
-      const id = cells[idIdx]!;
-      if (id.length === 0 || id.length > 200 || !plainEdges(id)) return false;
-      const found = builds.get(id);
-      if (found === undefined) return false;
-      build = found;
-    } else build = single!;
-    for (let k = 0; k < emptyIdx.length; k++) if (cells[emptyIdx[k]!]!.length !== 0) return false;
+  /** The class names and codes, for matching a class cell where it stands. */
+  const classNames: readonly string[] = DEFECT_CLASSES;
+  const classCodes = DEFECT_CLASSES.map((c) => DEFECT_CLASS_CODE[c]);
+  /** The scan of the last defect row taken (rows of one scan mostly follow each other). */
+  let last: ScanBuild | null = null;
+  const delimiter = ctx.dialect.delimiter;
+  const delim = delimiter.charCodeAt(0);
+  /** What each cell of a row holds, by index, for a header of `width` cells (rolesFor). */
+  let roles: Int8Array = new Int8Array(0);
+  const rolesFor = (width: number): Int8Array => {
+    const r = new Int8Array(width).fill(ROLE_ANY);
+    for (const i of emptyIdx) r[i] = ROLE_EMPTY;
+    if (recIdx !== -1) r[recIdx] = ROLE_RECORD;
+    if (idIdx !== -1) r[idIdx] = ROLE_ID;
+    r[xIdx] = ROLE_X;
+    r[yIdx] = ROLE_Y;
+    r[sIdx] = ROLE_SIZE;
+    if (clsIdx !== -1) r[clsIdx] = ROLE_CLASS;
+    return r;
+  };
+
+  /**
+   * The fast path on the line [from, to) of a quote-free text of rows `width` cells wide: one pass over
+   * its characters, each cell checked where it stands as the header says (see the module comment).
+   */
+  const rawText = (text: string, from: number, to: number, width: number): boolean => {
+    if (roles.length !== width) {
+      if (Math.max(recIdx, idIdx, xIdx, yIdx, sIdx, clsIdx, ...emptyIdx) >= width) return false;
+      roles = rolesFor(width);
+    }
+    let build = single;
     let code = DEFECT_CLASS_CODE.unknown;
     let noClass = true;
-    if (clsIdx !== -1) {
-      const t = cells[clsIdx]!;
-      if (t.length !== 0) {
-        const k = classCode.get(t);
-        if (k === undefined) return false;
-        code = k;
-        noClass = false;
+    let p = from;
+    for (let col = 0; col < width; col++) {
+      const role = roles[col]!;
+      if (role === ROLE_EMPTY) {
+        // nothing: the delimiter (or the end) must follow at once
+      } else if (role >= ROLE_X) {
+        p = scanNumber(text, p, to, delim, role - ROLE_X);
+        if (p === -1) return false;
+      } else if (role === ROLE_RECORD) {
+        // `defect`, compared where it stands (the delimiter check below ends the cell).
+        if (
+          p + 6 > to ||
+          text.charCodeAt(p) !== 100 ||
+          text.charCodeAt(p + 1) !== 101 ||
+          text.charCodeAt(p + 2) !== 102 ||
+          text.charCodeAt(p + 3) !== 101 ||
+          text.charCodeAt(p + 4) !== 99 ||
+          text.charCodeAt(p + 5) !== 116
+        )
+          return false;
+        p += 6;
+      } else if (role === ROLE_ID) {
+        // Mostly the scan of the row before: its id compared where it stands.
+        let k = -1;
+        if (last !== null) {
+          const sid = last.scanId;
+          const len = sid.length;
+          if (p + len <= to) {
+            k = 0;
+            while (k < len && text.charCodeAt(p + k) === sid.charCodeAt(k)) k++;
+            if (k === len && (p + len === to || text.charCodeAt(p + len) === delim)) {
+              build = last;
+              p += len;
+            } else k = -1;
+          }
+        }
+        if (k === -1) {
+          let end = text.indexOf(delimiter, p);
+          if (end === -1 || end > to) end = to;
+          const len = end - p;
+          if (len === 0 || len > 200) return false;
+          const id = text.slice(p, end);
+          if (!plainEdges(id)) return false;
+          const found = builds.get(id);
+          if (found === undefined) return false;
+          build = last = found;
+          p = end;
+        }
+      } else if (role === ROLE_CLASS) {
+        let end = p;
+        while (end < to && text.charCodeAt(end) !== delim) end++;
+        const len = end - p;
+        if (len !== 0) {
+          let k = 0;
+          for (; k < classNames.length; k++) {
+            const name = classNames[k]!;
+            if (name.length !== len) continue;
+            let j = 0;
+            while (j < len && text.charCodeAt(p + j) === name.charCodeAt(j)) j++;
+            if (j === len) break;
+          }
+          if (k === classNames.length) return false;
+          code = classCodes[k]!;
+          noClass = false;
+        }
+        p = end;
+      } else {
+        // A column the import ignores: anything up to the delimiter.
+        const end = text.indexOf(delimiter, p);
+        p = end === -1 || end > to ? to : end;
       }
+      // The cell ends at a delimiter, the last one at the end of the line.
+      if (col < width - 1) {
+        if (p >= to || text.charCodeAt(p) !== delim) return false;
+        p++;
+      } else if (p !== to) return false;
     }
-    if (!scanDecimal(cells[xIdx]!)) return false;
-    const xv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-    const xM = shiftX === 0 ? shiftScanned(xv, xDig) : shiftDecimal(xv - shiftX, xDig);
-    if (!scanDecimal(cells[yIdx]!)) return false;
-    const yv = (scanNeg ? -scanM : scanM) / POW10[scanP]!;
-    const yM = shiftY === 0 ? shiftScanned(yv, yDig) : shiftDecimal(yv - shiftY, yDig);
-    if (!scanDecimal(cells[sIdx]!) || scanNeg || scanM === 0) return false; // sizes are > 0
-    const sv = scanM / POW10[scanP]!;
-    const dM = shiftScanned(sv, sizeDig);
+    if (build === null) return false;
+    const xv = scannedValue(0);
+    const xM = shiftX === 0 ? shiftedOf(0, xv, xDig) : shiftDecimal(xv - shiftX, xDig);
+    const yv = scannedValue(1);
+    const yM = shiftY === 0 ? shiftedOf(1, yv, yDig) : shiftDecimal(yv - shiftY, yDig);
+    if (NUM[8] === 1 || NUM[6] === 0) return false; // sizes are > 0
+    const sv = scannedValue(2);
+    const dM = shiftedOf(2, sv, sizeDig);
     const ox = a * xM + tb * yM + c;
     const oy = d * xM + e * yM + f;
     let edge = false;
@@ -320,8 +352,32 @@ export function scanSession(plan: ScanPlan): KindSession {
       edge = r > usableM;
     }
     if (dM < build.thresholdM * (1 - REL_EPS)) return false;
-    pushDefect(build, xv, yv, sv, ox, oy, dM, edge, code, noClass);
+    // pushDefect written out: a call with these numbers as arguments would box each of them.
+    const i = build.count;
+    if (i === build.x.length) growBuild(build);
+    build.x[i] = ox;
+    build.y[i] = oy;
+    build.d[i] = dM;
+    build.c[i] = code;
+    build.wx[i] = xv;
+    build.wy[i] = yv;
+    build.ws[i] = sv;
+    build.count = i + 1;
+    if (noClass) build.noClass++;
+    if (edge) build.edgeCount++;
     return true;
+  };
+
+  // The fast path on cells already cut (a text with quotes: papaparse's records): cells holding no
+  // delimiter nor line break are joined by the delimiter into one line and read by rawText (its
+  // cells are then these very cells); any other row is left to the plain path.
+  const rawRow = (cells: readonly string[]): boolean => {
+    for (let i = 0; i < cells.length; i++) {
+      const t = cells[i]!;
+      if (t.indexOf(delimiter) !== -1 || t.indexOf('\n') !== -1 || t.indexOf('\r') !== -1) return false;
+    }
+    const line = cells.join(delimiter);
+    return rawText(line, 0, line.length, cells.length);
   };
 
   return {
@@ -366,6 +422,7 @@ export function scanSession(plan: ScanPlan): KindSession {
       return addDefect(b, row, line, cells) ?? 'stored';
     },
     rawRow,
+    rawText,
     finish: () => finishScans(plan, order),
   };
 }

@@ -13,7 +13,7 @@ import { lotWriter } from '../../store/lots.ts';
 import { packFloat64, packUint8, scanContentOf, scanInserter } from '../../store/scans.ts';
 import type { ImportFlag, KindIssue } from '../types.ts';
 import { shiftDecimal } from './header-fields.ts';
-import type { ScanBuild } from './scan-build.ts';
+import { repeatsOf, type ScanBuild } from './scan-build.ts';
 import type { ScanPlan } from './scan-rows.ts';
 
 export function finishScans(
@@ -109,7 +109,7 @@ export function finishScans(
     stored++;
     edge += b.edgeCount;
     noClass += b.noClass;
-    repeated += b.repeated;
+    repeated += repeatsOf(b);
   }
   const flags: ImportFlag[] = [];
   if (edge > 0)
