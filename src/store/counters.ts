@@ -49,6 +49,7 @@ const LITTLE_ENDIAN = new Uint8Array(new Float64Array([1]).buffer)[7] === 0x3f;
 
 interface Statements {
   location: { get: (id: string) => unknown };
+  chunkEnd: { get: (...a: unknown[]) => unknown };
   packed: { get: (...a: unknown[]) => unknown };
   range: { raw: (on: boolean) => { all: (...a: unknown[]) => unknown[][] } };
   set: { get: (id: number) => unknown };
@@ -67,16 +68,24 @@ function statements(db: Db): Statements {
           FROM counter_samples WHERE location = ? AND start_ms > ? AND start_ms < ?
          ORDER BY start_ms, counter, duration_ms`,
       ),
-      // One row per read: each column as a JSON array (SQLite writes REALs with 17 significant digits,
-      // so they round-trip exactly) and the counts as one hex string. Far fewer JS objects than one
-      // row (and one Buffer) per sample; the order is verified after parsing.
+      // Where the next chunk of a read ends: the start of the sample `chunkRows` places after a start
+      // (null: the rest of the range is one chunk).
+      chunkEnd: db
+        .prepare(
+          `SELECT start_ms FROM counter_samples WHERE location = ? AND start_ms >= ? AND start_ms < ?
+            ORDER BY start_ms LIMIT 1 OFFSET ?`,
+        )
+        .pluck(),
+      // One chunk of a read as one row: each column as a JSON array (SQLite writes REALs with 17
+      // significant digits, so they round-trip exactly) and the counts as one hex string. Far fewer
+      // JS objects than one row (and one Buffer) per sample; the order is verified after parsing.
       packed: db.prepare(
         `SELECT count(*) AS n, json_group_array(start_ms) AS s, json_group_array(duration_ms) AS d,
            json_group_array(volume_m3) AS v, json_group_array(counter) AS c, json_group_array(channel_set) AS cs,
            json_group_array(flags) AS f, json_group_array(room_state) AS r, json_group_array(import_id) AS i,
            group_concat(hex(counts), '') AS x
          FROM (SELECT start_ms, duration_ms, volume_m3, counter, channel_set, flags, room_state, import_id, counts
-               FROM counter_samples WHERE location = ? AND start_ms > ? AND start_ms < ? AND start_ms + duration_ms > ?
+               FROM counter_samples WHERE location = ? AND start_ms >= ? AND start_ms < ? AND start_ms + duration_ms > ?
                ORDER BY start_ms, counter, duration_ms)`,
       ),
       set: db.prepare('SELECT id, mode, sizes FROM counter_channel_sets WHERE id = ?'),
@@ -86,6 +95,14 @@ function statements(db: Db): Statements {
   }
   return s;
 }
+
+/**
+ * Samples per chunk of a read (`chunkRows`; the tests make it small). Each chunk is one packed row
+ * (see the `packed` statement): its texts stay about a megabyte whatever the range, so a read grows
+ * with its samples, not faster (one text per column over the whole range grew faster than the rows
+ * it held).
+ */
+export const COUNTER_READ = { chunkRows: 65_536 };
 
 interface Packed {
   n: number;
@@ -100,12 +117,27 @@ interface Packed {
   x: string | null;
 }
 
+/** One chunk, parsed: its columns and its counts' bytes. */
+interface Chunk {
+  n: number;
+  start: number[];
+  dur: number[];
+  vol: number[];
+  counter: number[];
+  set: number[];
+  flags: number[];
+  room: number[];
+  imp: number[];
+  bytes: Buffer;
+}
+
 /**
  * Samples of one location overlapping [fromUtcMs, toUtcMs) — start < to and end > from — in
  * (start, counter, duration) order. An unknown location gives an empty result (n = 0).
  *
- * Reads the range as one packed row (see the `packed` statement); if the rows did not arrive in key
- * order it falls back to readCounterSamplesByRows (the same result, one JS row per sample).
+ * Reads the range in chunks of COUNTER_READ.chunkRows samples, each as one packed row (the `packed` statement);
+ * if the rows did not arrive in key order it falls back to readCounterSamplesByRows (the same
+ * result, one JS row per sample; its plain twin, which the tests compare it with).
  */
 export function readCounterSamples(
   db: Db,
@@ -116,52 +148,71 @@ export function readCounterSamples(
   const st = statements(db);
   const loc = st.location.get(locationId) as number | undefined;
   if (loc === undefined) return readCounterSamplesByRows(db, locationId, fromUtcMs, toUtcMs);
-  const p = st.packed.get(loc, fromUtcMs - MAX_SAMPLE_DURATION_MS, toUtcMs, fromUtcMs) as Packed;
-  const n = p.n;
-  const start = JSON.parse(p.s) as number[];
-  const dur = JSON.parse(p.d) as number[];
-  const counterRow = JSON.parse(p.c) as number[];
-  for (let j = 1; j < n; j++) {
-    const a = start[j - 1]!;
-    const b = start[j]!;
-    if (
-      b < a ||
-      (b === a &&
-        (counterRow[j]! < counterRow[j - 1]! ||
-          (counterRow[j] === counterRow[j - 1] && dur[j]! <= dur[j - 1]!)))
-    )
-      return readCounterSamplesByRows(db, locationId, fromUtcMs, toUtcMs);
+  // Samples start at whole milliseconds: "start > from − MAX" is "start ≥ from − MAX + 1".
+  const chunks: Chunk[] = [];
+  let total = 0;
+  let prev: { start: number; counter: number; dur: number } | null = null;
+  for (let a = Math.floor(fromUtcMs - MAX_SAMPLE_DURATION_MS) + 1; a < toUtcMs; ) {
+    const end = st.chunkEnd.get(loc, a, toUtcMs, COUNTER_READ.chunkRows) as number | undefined;
+    // (a chunk holds every sample of its starts: past its first start even if they fill it)
+    const b = end === undefined ? toUtcMs : Math.max(end, a + 1);
+    const p = st.packed.get(loc, a, b, fromUtcMs) as Packed;
+    const c: Chunk = {
+      n: p.n,
+      start: JSON.parse(p.s) as number[],
+      dur: JSON.parse(p.d) as number[],
+      vol: JSON.parse(p.v) as number[],
+      counter: JSON.parse(p.c) as number[],
+      set: JSON.parse(p.cs) as number[],
+      flags: JSON.parse(p.f) as number[],
+      room: JSON.parse(p.r) as number[],
+      imp: JSON.parse(p.i) as number[],
+      bytes: p.n > 0 ? Buffer.from(p.x ?? '', 'hex') : Buffer.alloc(0),
+    };
+    // The rows must have come in key order (start, counter, duration), within and across chunks.
+    for (let j = 0; j < c.n; j++) {
+      const k = { start: c.start[j]!, counter: c.counter[j]!, dur: c.dur[j]! };
+      if (
+        prev &&
+        (k.start < prev.start ||
+          (k.start === prev.start &&
+            (k.counter < prev.counter || (k.counter === prev.counter && k.dur <= prev.dur))))
+      )
+        return readCounterSamplesByRows(db, locationId, fromUtcMs, toUtcMs);
+      prev = k;
+    }
+    chunks.push(c);
+    total += c.n;
+    if (end === undefined) break;
+    a = b;
   }
-  const setRow = JSON.parse(p.cs) as number[];
   const sets = new Sets(st);
-  for (let j = 0; j < n; j++) sets.index(setRow[j]!);
-  const out = emptySamples(locationId, n, sets);
-  const vol = JSON.parse(p.v) as number[];
-  const flags = JSON.parse(p.f) as number[];
-  const room = JSON.parse(p.r) as number[];
-  const imp = JSON.parse(p.i) as number[];
+  for (const c of chunks) for (let j = 0; j < c.n; j++) sets.index(c.set[j]!);
+  const out = emptySamples(locationId, total, sets);
   const counters = new Counters(st, out.counterIds);
-  const bytes = n > 0 ? Buffer.from(p.x ?? '', 'hex') : Buffer.alloc(0);
   const countBytes = new Uint8Array(out.counts.buffer);
   const w = out.width;
-  let off = 0;
-  for (let j = 0; j < n; j++) {
-    out.startMs[j] = start[j]!;
-    out.endMs[j] = start[j]! + dur[j]!;
-    out.volumeM3[j] = vol[j]!;
-    out.counter[j] = counters.index(counterRow[j]!);
-    const si = sets.index(setRow[j]!);
-    out.channelSet[j] = si;
-    const k = sets.list[si]!.lowerM.length;
-    countBytes.set(bytes.subarray(off, off + 8 * k), j * w * 8);
-    off += 8 * k;
-    for (let c = k; c < w; c++) out.counts[j * w + c] = Number.NaN;
-    out.flags[j] = flags[j]!;
-    out.roomState[j] = room[j]!;
-    out.importId[j] = imp[j]!;
+  let i = 0;
+  for (const c of chunks) {
+    let off = 0;
+    for (let j = 0; j < c.n; j++, i++) {
+      out.startMs[i] = c.start[j]!;
+      out.endMs[i] = c.start[j]! + c.dur[j]!;
+      out.volumeM3[i] = c.vol[j]!;
+      out.counter[i] = counters.index(c.counter[j]!);
+      const si = sets.index(c.set[j]!);
+      out.channelSet[i] = si;
+      const k = sets.list[si]!.lowerM.length;
+      countBytes.set(c.bytes.subarray(off, off + 8 * k), i * w * 8);
+      off += 8 * k;
+      for (let q = k; q < w; q++) out.counts[i * w + q] = Number.NaN;
+      out.flags[i] = c.flags[j]!;
+      out.roomState[i] = c.room[j]!;
+      out.importId[i] = c.imp[j]!;
+    }
+    if (off !== c.bytes.length)
+      throw new Error(`counter samples at ${locationId}: stored counts do not match their channel sets`);
   }
-  if (off !== bytes.length)
-    throw new Error(`counter samples at ${locationId}: stored counts do not match their channel sets`);
   return out;
 }
 

@@ -1,10 +1,11 @@
-/** The engine's counter read: the packed path equals the row-by-row path; mixed channel sets. */
+/** The engine's counter read: the chunked packed path equals the row-by-row path; mixed channel sets. */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { importFile } from '../../src/ingest/pipeline.ts';
 import {
+  COUNTER_READ,
   readCounterSamples,
   readCounterSamplesByRows,
   toCumulativeSeries,
@@ -58,18 +59,41 @@ afterAll(() => {
 });
 
 describe('readCounterSamples', () => {
-  it('the packed read equals the row-by-row read, for whole and partial ranges', () => {
+  it('the streamed read equals the row-by-row read, for whole and partial ranges', () => {
     for (const [from, to] of [
       [0, 1e15],
       [T0 + 31 * 60_000, T0 + 33 * 60_000],
       [T0 + 59.5 * 60_000, T0 + 3_600_000],
       [T0 + 3_600_000, T0 + 7_200_000],
     ] as const) {
-      const packed = readCounterSamples(db, 'BND-1', from, to);
+      const streamed = readCounterSamples(db, 'BND-1', from, to);
       const rows = readCounterSamplesByRows(db, 'BND-1', from, to);
-      expect(packed).toEqual(rows);
+      expect(streamed).toEqual(rows);
     }
     expect(readCounterSamples(db, 'BND-1', 0, 1e15).n).toBe(91);
+  });
+
+  it('reads the same in chunks of any size, a chunk’s last start shared by the next samples included', () => {
+    // Counters A and B both start a sample at every even minute (and the 5-minute sample at minute
+    // 30 shares its start too), so small chunks end inside a run of samples with one start.
+    const kept = COUNTER_READ.chunkRows;
+    try {
+      for (const size of [1, 2, 3, 7, 64]) {
+        COUNTER_READ.chunkRows = size;
+        for (const [from, to] of [
+          [0, 1e15],
+          [T0 + 31 * 60_000, T0 + 33 * 60_000],
+          [T0 + 10 * 60_000, T0 + 50 * 60_000],
+        ] as const)
+          expect(readCounterSamples(db, 'BND-1', from, to)).toEqual(
+            readCounterSamplesByRows(db, 'BND-1', from, to),
+          );
+      }
+      COUNTER_READ.chunkRows = 1;
+      expect(readCounterSamples(db, 'BND-1', 0, 1e15).n).toBe(91);
+    } finally {
+      COUNTER_READ.chunkRows = kept;
+    }
   });
 
   it('includes a sample that started before the range and reaches into it', () => {
