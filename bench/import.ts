@@ -250,7 +250,7 @@ export async function run(cfg: BenchConfig = defaultConfig()): Promise<Section> 
         why:
           Math.min(...rs) >= 1
             ? undefined
-            : 'SQLite’s own work on the samples (the batched INSERTs and the commit) is about half of the import’s CPU time and alone near the shell’s whole import; the rest is validating every cell and row, the per-series quality checks and the hourly aggregates, which the shell does not do; parsing is not overlapped with writing (one thread). See docs/performance.md.',
+            : 'SQLite’s own work on the samples (the batched INSERTs and the commit) is about half of the import’s CPU time and alone near the shell’s whole import; the rest is validating every cell and row, the per-series quality checks and the hourly aggregates, which the shell does not do; parsing overlapped with writing in a second thread was tried and not kept (faster by wall with a core free, but over 250 MB at 5 M rows). See docs/performance.md.',
       });
     log(
       `importFile ${fmt(rate(median(oursMs)))} rows/s vs sqlite3 ${fmt(rate(median(baseMs)))} rows/s: wall ratio ${fmt(median(wallRatios))}, CPU ratio ${fmt(median(cpuRatios))}`,
