@@ -209,6 +209,27 @@ export function scansCsv(): string {
  * 14:30–17:30, activation on ACT-1, an open wait in the bonder's mini-environment 18:15–19:30.
  * L-01-05 and L-01-06 have had two re-cleans already (the product's limit).
  */
+/**
+ * A later scan of wafer L-01-01 (pair P-01 of the waiting lot L-01), 15 h after T0 (before the
+ * clock): 40 particles of 900 nm. Importing it changes P-01's inputs and starts a new data generation.
+ */
+export function rescanCsv(): string {
+  const iso = new Date(T0_MS + 15 * 3_600_000).toISOString().replace('.000Z', 'Z');
+  return [
+    '# format: voidcast scans 1',
+    '# tool: SCN-1',
+    '# threshold_nm: 45',
+    '# wafer_diameter_mm: 300',
+    '# edge_exclusion_mm: 3',
+    '# coordinates: origin=centre x=right y=up view=front',
+    '# notch_deg: 270',
+    'record,scan_id,lot,wafer,step,scan_time,x_mm,y_mm,size_nm,class',
+    `scan,L-01-01-RS,L-01,L-01-01,re-scan,${iso},,,,`,
+    ...Array.from({ length: 40 }, (_, i) => `defect,L-01-01-RS,,,,,${i * 3 - 60},${i - 20},900,particle`),
+    '',
+  ].join('\n');
+}
+
 export function ledgerCsv(): string {
   const rows = [
     'lot,wafer,step,step_kind,tool,chamber,recipe,clean,location,carrier,orientation,start,end,reclean_count',

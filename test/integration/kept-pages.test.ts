@@ -25,7 +25,14 @@ import { dataGeneration } from '../../src/store/writer.ts';
 import { createApp } from '../../src/web/app.ts';
 import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
 import { waitingWhatIf } from '../../src/web/routes/whatif-context.ts';
-import { AS_OF_MS, importPageLine, type LineFiles, lineFiles, T0_MS } from '../helpers/pages-data.ts';
+import {
+  AS_OF_MS,
+  importPageLine,
+  type LineFiles,
+  lineFiles,
+  rescanCsv,
+  T0_MS,
+} from '../helpers/pages-data.ts';
 import { fittedUnexplained } from '../helpers/parameter-values.ts';
 
 let db: Db;
@@ -240,20 +247,7 @@ describe('kept pages: Areas, line view, waiting what-if, Imports', () => {
 
   it('renews the line view, its tables, the waiting what-if and its export after a scan import', async () => {
     // A later scan of a wafer of the waiting lot L-01 (P-01), 40 particles of 900 nm, before the clock.
-    const iso = new Date(T0_MS + 15 * 3_600_000).toISOString().replace('.000Z', 'Z');
-    const scan = [
-      '# format: voidcast scans 1',
-      '# tool: SCN-1',
-      '# threshold_nm: 45',
-      '# wafer_diameter_mm: 300',
-      '# edge_exclusion_mm: 3',
-      '# coordinates: origin=centre x=right y=up view=front',
-      '# notch_deg: 270',
-      'record,scan_id,lot,wafer,step,scan_time,x_mm,y_mm,size_nm,class',
-      `scan,L-01-01-RS,L-01,L-01-01,re-scan,${iso},,,,`,
-      ...Array.from({ length: 40 }, (_, i) => `defect,L-01-01-RS,,,,,${i * 3 - 60},${i - 20},900,particle`),
-      '',
-    ].join('\n');
+    const scan = rescanCsv();
     await importText('scans', 'rescan.csv', scan);
     await expectRenewed([
       '/line',

@@ -21,7 +21,7 @@ import { dataGeneration } from '../../src/store/writer.ts';
 import { createApp } from '../../src/web/app.ts';
 import { csrfSecret, tokenFor } from '../../src/web/csrf.ts';
 import { AS_OF_SETTING } from '../../src/web/routes/lots.tsx';
-import { AS_OF_MS, importPageLine, type LineFiles, lineFiles, T0_MS } from '../helpers/pages-data.ts';
+import { AS_OF_MS, importPageLine, type LineFiles, lineFiles, rescanCsv } from '../helpers/pages-data.ts';
 import { fittedUnexplained } from '../helpers/parameter-values.ts';
 
 let db: Db;
@@ -68,20 +68,7 @@ describe('kept answers', () => {
   it('computes afresh after an import changes the inputs (a later scan of a wafer of P-01)', async () => {
     const old = await pairJson();
     const gen = dataGeneration(db);
-    const iso = new Date(T0_MS + 15 * 3_600_000).toISOString().replace('.000Z', 'Z');
-    const scan = [
-      '# format: voidcast scans 1',
-      '# tool: SCN-1',
-      '# threshold_nm: 45',
-      '# wafer_diameter_mm: 300',
-      '# edge_exclusion_mm: 3',
-      '# coordinates: origin=centre x=right y=up view=front',
-      '# notch_deg: 270',
-      'record,scan_id,lot,wafer,step,scan_time,x_mm,y_mm,size_nm,class',
-      `scan,L-01-01-RS,L-01,L-01-01,re-scan,${iso},,,,`,
-      ...Array.from({ length: 40 }, (_, i) => `defect,L-01-01-RS,,,,,${i * 3 - 60},${i - 20},900,particle`),
-      '',
-    ].join('\n');
+    const scan = rescanCsv();
     const path = join(files.dir, 'rescan.csv');
     writeFileSync(path, scan);
     const r = await importFile(db, { kind: 'scans', path });
