@@ -16,13 +16,13 @@ import { fileURLToPath } from 'node:url';
 import { importFile } from '../ingest/pipeline.ts';
 import type { ImportKindName, ImportReport } from '../ingest/types.ts';
 import type { Db } from '../store/db.ts';
-import { getSetting, setSetting } from '../store/settings.ts';
+import { CLOCK_SETTING, getSetting, setSetting } from '../store/settings.ts';
 import { writeTransaction } from '../store/writer.ts';
 
 /** Settings key recording that (and when, from which manifest) the demo was loaded. */
 export const DEMO_LOADED_SETTING = 'demo.loaded';
-/** The frozen clock the pages assess at (the same key as src/web/routes/lots.tsx AS_OF_SETTING). */
-export const CLOCK_AS_OF_SETTING = 'clock.as_of';
+/** The frozen clock the pages assess at (src/store/settings.ts). */
+export const CLOCK_AS_OF_SETTING = CLOCK_SETTING;
 
 /** sample-counts/ at the repository root (this file is src/cli/demo.ts). */
 export const DEFAULT_DEMO_DIR = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'sample-counts');

@@ -15,7 +15,6 @@
  */
 import { isMainThread, workerData } from 'node:worker_threads';
 import type { Db } from '../store/db.ts';
-import { installationClockMs } from '../store/settings.ts';
 import {
   databaseFile,
   JobThread,
@@ -108,11 +107,6 @@ export function onViewThread<K extends ViewJob>(db: Db, job: K, args: Args<K>): 
 /** The job on this thread (the plain twin of onViewThread, and the thread's own work). */
 export function runHere<K extends ViewJob>(db: Db, job: K, args: Args<K>): Result<K> {
   return (JOBS[job] as (db: Db, a: Args<K>) => Result<K>)(db, args);
-}
-
-/** The time an audit of the pages is made at: the installation's clock, else now to the minute. */
-export function pageClockMs(db: Db): number {
-  return installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
 }
 
 // ── the thread ─────────────────────────────────────────────────────────────────────────────────

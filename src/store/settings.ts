@@ -24,8 +24,16 @@ export const CLOCK_SETTING = 'clock.as_of';
 
 /** The installation's assessment clock in UTC ms, or null when it follows the real time. */
 export function installationClockMs(db: Db): number | null {
-  const v = getSetting(db, CLOCK_SETTING);
+  const v = getSetting(db, CLOCK_SETTING)?.trim();
   if (v === undefined || v === '') return null;
   const t = /^\d+$/.test(v) ? Number(v) : Date.parse(v);
   return Number.isFinite(t) ? t : null;
+}
+
+/**
+ * The time the pages assess at when none is given: the installation's clock, else now floored to
+ * the minute (so that a page and its swaps within a minute show the same figures), UTC ms.
+ */
+export function pageClockMs(db: Db): number {
+  return installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
 }

@@ -10,9 +10,10 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadDemoOnce } from '../../src/cli/demo.ts';
 import { AuditInputError } from '../../src/engine/audit/errors.ts';
-import { onViewThread, pageClockMs, runHere, stopViewThread } from '../../src/engine/view-thread.ts';
+import { onViewThread, runHere, stopViewThread } from '../../src/engine/view-thread.ts';
 import { type Db, migrate, openDatabase, openDataDir } from '../../src/store/db.ts';
 import { listLots } from '../../src/store/lots.ts';
+import { pageClockMs } from '../../src/store/settings.ts';
 
 /**
  * The computations' own times set to 0 (`fittedAtMs`, the real time a fit was made; `elapsedMs`, how

@@ -5,7 +5,7 @@
  */
 import type { Db } from '../../store/db.ts';
 import { latestAcks } from '../../store/excursion-acks.ts';
-import { installationClockMs } from '../../store/settings.ts';
+import { pageClockMs } from '../../store/settings.ts';
 import { keptResult } from '../cache.ts';
 import { type ChartBaseline, type ChartInputPoint, controlChart } from './charts.ts';
 import { checkPeriod } from './common.ts';
@@ -186,7 +186,7 @@ export function auditAreaFromDb(db: Db, areaId: string, opts: AuditOptions): Are
  * mutated by its callers.
  */
 export function keptAreaAudit(db: Db, areaId: string, opts: AuditOptions): AreaAudit {
-  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
+  const asOfMs = opts.asOfMs ?? pageClockMs(db);
   const resolved: AuditOptions = { ...opts, asOfMs };
   const key = `area-audit|${areaId}|${JSON.stringify(resolved)}`;
   return keptResult(db, key, () => auditAreaFromDb(db, areaId, resolved));

@@ -8,7 +8,7 @@
 
 import { exposedSteps } from '../../store/audit-exposure.ts';
 import type { Db } from '../../store/db.ts';
-import { installationClockMs } from '../../store/settings.ts';
+import { pageClockMs } from '../../store/settings.ts';
 import { latestImportId } from '../../store/views-imports.ts';
 import { loadPair } from '../loader.ts';
 import { assessPair } from '../pair.ts';
@@ -83,7 +83,7 @@ const CACHE_LIMIT = 500;
 
 /** The wafers in an event's air and the voids and die loss its excess added, per wafer and lot (once per event). */
 export function eventCostInDb(db: Db, ev: ExcursionEvent, opts: CostOptions = {}): EventCost {
-  const asOfMs = opts.asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
+  const asOfMs = opts.asOfMs ?? pageClockMs(db);
   const lastImport = latestImportId(db);
   const set = readAdoptedParameterSet(db);
   const key = `${ev.id}|${JSON.stringify(ev.windows)}|${ev.excursionIds.join(',')}|${ev.nature}|${asOfMs}|${lastImport}|${set ? `${set.id}` : 'typed'}`;

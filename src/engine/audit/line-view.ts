@@ -26,7 +26,7 @@
 import { garwoodInterval } from '../../model/index.ts';
 import { lotsActiveIn, type SearchRow, searchIds } from '../../store/audit-line.ts';
 import type { Db } from '../../store/db.ts';
-import { installationClockMs } from '../../store/settings.ts';
+import { pageClockMs } from '../../store/settings.ts';
 import { SIZE_BANDS } from '../attribution.ts';
 import { keptResult } from '../cache.ts';
 import { learnAdders } from '../learn/adders.ts';
@@ -54,7 +54,7 @@ export interface LinePareto {
  */
 export function lineParetoFromDb(db: Db, period: AuditPeriod, asOfMs?: number): LinePareto {
   const p = checkPeriod(period);
-  const asOf = asOfMs ?? installationClockMs(db) ?? Math.floor(Date.now() / 60_000) * 60_000;
+  const asOf = asOfMs ?? pageClockMs(db);
   return keptResult(db, `line-pareto|${p.fromMs}|${p.toMs}|${asOf}`, () => linePareto(db, p, asOf));
 }
 

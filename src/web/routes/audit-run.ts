@@ -20,7 +20,8 @@ import type {
   LineParetoEntry,
   OccupancySelection,
 } from '../../engine/audit/types.ts';
-import { onViewThread, pageClockMs } from '../../engine/view-thread.ts';
+import { onViewThread } from '../../engine/view-thread.ts';
+import { pageClockMs } from '../../store/settings.ts';
 import { actorName } from '../auth/audit.ts';
 import type { AppContext } from '../context.ts';
 import { asOfValue, BadParamError, choiceValue, positiveNumberValue } from '../params.ts';

@@ -12,7 +12,7 @@ import { type LotView, NO_PAIRS } from '../../engine/lot-view.ts';
 import { onViewThread } from '../../engine/view-thread.ts';
 import { latestDisposition } from '../../store/dispositions.ts';
 import { listLots } from '../../store/lots.ts';
-import { getSetting } from '../../store/settings.ts';
+import { CLOCK_SETTING, pageClockMs } from '../../store/settings.ts';
 import type { AppContext } from '../context.ts';
 import { queryAsOf, queryParetoBy } from '../params.ts';
 import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
@@ -21,26 +21,15 @@ import { isFragmentRequest, renderFragment, renderPage } from '../render.ts';
  * The setting that freezes the line's clock (ISO 8601 with zone, or ms since the epoch): the demo
  * line is a recorded fortnight, assessed at its own "now". Unset: the pages assess at the real now.
  */
-export const AS_OF_SETTING = 'clock.as_of';
-
-function parseInstant(v: string | undefined | null): number | null {
-  if (!v) return null;
-  const n = /^\d+$/.test(v.trim()) ? Number(v.trim()) : Date.parse(v);
-  return Number.isFinite(n) ? n : null;
-}
+export const AS_OF_SETTING = CLOCK_SETTING;
 
 /**
  * The assessment time of a request: `?asOf=` (ISO 8601 with zone, or ms since the epoch, 1970 up to
- * 2100; anything else is a 400 naming asOf — src/web/params.ts), else
- * the installation's frozen clock (AS_OF_SETTING), else now floored to the minute, so that a page
- * and its swaps within a minute show the same figures.
+ * 2100; anything else is a 400 naming asOf — src/web/params.ts), else the installation's frozen
+ * clock, else now floored to the minute (src/store/settings.ts pageClockMs).
  */
 export function asOfFrom(c: Context, ctx: AppContext): number {
-  return (
-    queryAsOf(c) ??
-    parseInstant(getSetting(ctx.db, AS_OF_SETTING)) ??
-    Math.floor(Date.now() / 60_000) * 60_000
-  );
+  return queryAsOf(c) ?? pageClockMs(ctx.db);
 }
 
 /**
